@@ -1,0 +1,73 @@
+import { randomUUID } from 'node:crypto';
+import { type Handle, type HandleServerError } from '@sveltejs/kit';
+import { sequence } from '@sveltejs/kit/hooks';
+import { db } from '$lib/server/db';
+import { resolveSession } from '$lib/server/auth/sessions';
+import { resolveBearer } from '$lib/server/auth/tokens';
+import { errorResponse } from '$lib/server/api/http';
+import { isPublicPath } from '$lib/server/auth/public-paths';
+
+/** Resolves the user once per request: a bearer token on the API, else the session cookie. */
+const resolveUser: Handle = async ({ event, resolve }) => {
+	event.locals.requestId = randomUUID();
+	event.locals.user = null;
+	event.locals.session = null;
+	event.locals.authVia = null;
+	event.locals.tokenId = null;
+	const authz = event.request.headers.get('authorization');
+	if (authz && event.url.pathname.startsWith('/api/')) {
+		const match = /^Bearer\s+(\S+)$/i.exec(authz);
+		const found = match ? await resolveBearer(db, match[1]) : null;
+		if (!found) return errorResponse(401, 'invalid-token', 'The API token is not valid (unknown, revoked or expired).');
+		const { tokenId, ...user } = found;
+		event.locals.user = user;
+		event.locals.authVia = 'token';
+		event.locals.tokenId = tokenId;
+		return resolve(event);
+	}
+	const resolved = await resolveSession(event.cookies);
+	if (resolved) {
+		const { user, session } = resolved;
+		event.locals.user = { id: user.id, email: user.email, name: user.name, role: user.role };
+		event.locals.session = session;
+		event.locals.authVia = 'session';
+	}
+	return resolve(event);
+};
+
+/** Deny by default: anything that is not explicitly public needs a signed-in user (routes still check roles). */
+const gate: Handle = async ({ event, resolve }) => {
+	if (event.locals.user || isPublicPath(event.url.pathname, event.request.method)) return resolve(event);
+	if (event.url.pathname.startsWith('/api/')) return errorResponse(401, 'unauthenticated', 'Sign in first.');
+	const back = event.url.pathname + event.url.search;
+	return new Response(null, { status: 303, headers: { location: `/signin?redirectTo=${encodeURIComponent(back)}` } });
+};
+
+/** Security headers on every response; no caching of anything a signed-in user sees. */
+const securityHeaders: Handle = async ({ event, resolve }) => {
+	const response = await resolve(event);
+	const h = response.headers;
+	const set = (k: string, v: string) => {
+		if (!h.has(k)) h.set(k, v);
+	};
+	try {
+		set('X-Frame-Options', 'DENY');
+		set('X-Content-Type-Options', 'nosniff');
+		set('Referrer-Policy', 'same-origin');
+		set('Permissions-Policy', 'camera=(), microphone=(), geolocation=(), payment=(), usb=()');
+		set('Strict-Transport-Security', 'max-age=31536000; includeSubDomains');
+		if (!event.url.pathname.startsWith('/_app/immutable/')) set('Cache-Control', 'no-store');
+	} catch {
+		// some responses (e.g. from fetch) have immutable headers; they pass unchanged
+	}
+	return response;
+};
+
+export const handle: Handle = sequence(resolveUser, gate, securityHeaders);
+
+export const handleError: HandleServerError = ({ error: err, event, status, message }) => {
+	const id = event.locals?.requestId ?? randomUUID();
+	if (status >= 500) console.error(`[${id}] ${event.request.method} ${event.url.pathname}:`, err);
+	return { message: status >= 500 ? 'Something went wrong on the server.' : message, id };
+};
+

@@ -1,0 +1,19 @@
+import type { Role } from '$lib/server/db/schema';
+
+export interface NavItem {
+	href: string;
+	label: string;
+	roles: readonly Role[];
+}
+
+const ALL: readonly Role[] = ['admin', 'stockroom', 'engineer', 'purchaser'];
+
+/**
+ * The main navigation. Add an entry here when its page exists; the layout shows each role only
+ * what it may use (the server checks again on every request).
+ */
+export const NAV: NavItem[] = [{ href: '/', label: 'Overview', roles: ALL }];
+
+export function navFor(role: Role | undefined): NavItem[] {
+	return role ? NAV.filter((item) => item.roles.includes(role)) : [];
+}

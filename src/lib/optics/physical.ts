@@ -1,0 +1,92 @@
+/**
+ * Physical filter of kernel roots: can the parts really stand there? Positive working
+ * distances and gap above the caller's minimums, and no glass touching glass, or cutting
+ * the object or target plane, anywhere across the clear apertures (using the sags).
+ * Allocation-free, reads the same snapshot as the kernels.
+ */
+import {
+	ELEMENT_STRIDE,
+	EL_FRONT_CURVATURE,
+	EL_BACK_CURVATURE,
+	EL_SEMI_APERTURE,
+	EL_FRONT_SAG,
+	EL_BACK_SAG
+} from './snapshot';
+import { minAirGapMm } from './sag';
+
+/** Object distance (object plane to first vertex) below the minimum working distance. */
+export const PHYS_OBJECT_DISTANCE = 1;
+/** Back distance (last vertex to target plane) below the minimum working distance. */
+export const PHYS_BACK_DISTANCE = 2;
+/** Vertex gap between the two parts below the minimum gap. */
+export const PHYS_GAP = 4;
+/** The facing surfaces of the two parts touch or cross somewhere inside the clear apertures. */
+export const PHYS_SURFACES_TOUCH = 8;
+/** The first surface reaches the object plane (e.g. a concave surface's rim). */
+export const PHYS_OBJECT_PLANE = 16;
+/** The last surface reaches the target plane. */
+export const PHYS_TARGET_PLANE = 32;
+/** A clear aperture is larger than the sphere of a facing surface reaches. */
+export const PHYS_APERTURE = 64;
+
+/**
+ * Physical check of a single-element placement (object distance s, back distance d, mm).
+ * Returns 0 when it can be built, else a sum of PHYS_* bits.
+ * - s and d ≥ minWorkingDistanceMm (measured at the vertices);
+ * - the rim of the first surface stays to the right of the object plane (s + its sag at
+ *   the rim > 0), the rim of the last surface to the left of the target plane.
+ */
+export function checkSinglePhysical(
+	snapshot: Float64Array,
+	i: number,
+	s: number,
+	d: number,
+	minWorkingDistanceMm: number
+): number {
+	const o = i * ELEMENT_STRIDE;
+	let bad = 0;
+	if (!(s >= minWorkingDistanceMm)) bad |= PHYS_OBJECT_DISTANCE;
+	if (!(d >= minWorkingDistanceMm)) bad |= PHYS_BACK_DISTANCE;
+	if (!(s + Math.min(0, snapshot[o + EL_FRONT_SAG]) > 0)) bad |= PHYS_OBJECT_PLANE;
+	if (!(d - Math.max(0, snapshot[o + EL_BACK_SAG]) > 0)) bad |= PHYS_TARGET_PLANE;
+	return bad;
+}
+
+/**
+ * Physical check of a pair placement (s, vertex gap g, d, mm; element i then j).
+ * Returns 0 when it can be built, else a sum of PHYS_* bits:
+ * - s, d ≥ minWorkingDistanceMm and g ≥ minGapMm (at the vertices, as the request states);
+ * - the last surface of i and the first of j keep a positive air gap at every height up
+ *   to the smaller of the two clear semi-apertures (exact: `minAirGapMm` shows the gap is
+ *   monotone in height, so vertex and rim decide). Beyond the smaller aperture the
+ *   mounts and bevels are not modelled. Parts without a known clear aperture are
+ *   checked at the vertices only; black boxes count as flat.
+ * - the rims of the outer surfaces stay off the object and target planes.
+ */
+export function checkPairPhysical(
+	snapshot: Float64Array,
+	i: number,
+	j: number,
+	s: number,
+	g: number,
+	d: number,
+	minWorkingDistanceMm: number,
+	minGapMm: number
+): number {
+	const o1 = i * ELEMENT_STRIDE,
+		o2 = j * ELEMENT_STRIDE;
+	let bad = 0;
+	if (!(s >= minWorkingDistanceMm)) bad |= PHYS_OBJECT_DISTANCE;
+	if (!(d >= minWorkingDistanceMm)) bad |= PHYS_BACK_DISTANCE;
+	if (!(g >= minGapMm)) bad |= PHYS_GAP;
+	if (!(s + Math.min(0, snapshot[o1 + EL_FRONT_SAG]) > 0)) bad |= PHYS_OBJECT_PLANE;
+	if (!(d - Math.max(0, snapshot[o2 + EL_BACK_SAG]) > 0)) bad |= PHYS_TARGET_PLANE;
+	const h1 = snapshot[o1 + EL_SEMI_APERTURE],
+		h2 = snapshot[o2 + EL_SEMI_APERTURE];
+	let rimGap: number | null;
+	if (h1 === h2) rimGap = g + snapshot[o2 + EL_FRONT_SAG] - snapshot[o1 + EL_BACK_SAG];
+	else rimGap = minAirGapMm(snapshot[o1 + EL_BACK_CURVATURE], snapshot[o2 + EL_FRONT_CURVATURE], g, h1 < h2 ? h1 : h2);
+	if (rimGap === null) bad |= PHYS_APERTURE;
+	else if (!(g > 0 && rimGap > 0)) bad |= PHYS_SURFACES_TOUCH;
+	return bad;
+}

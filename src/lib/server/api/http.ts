@@ -1,0 +1,99 @@
+import { isHttpError, json, type RequestEvent, type RequestHandler } from '@sveltejs/kit';
+import { ZodError } from 'zod';
+
+/** An error with the JSON shape of the API: `{ error: { code, message, fields? } }`. */
+export class ApiError extends Error {
+	constructor(
+		readonly status: number,
+		readonly code: string,
+		message: string,
+		readonly fields?: Record<string, string>
+	) {
+		super(message);
+	}
+}
+
+/** Domain errors from services carry a status and code so routes can map them without a table. */
+export class DomainError extends Error {
+	constructor(
+		readonly status: number,
+		readonly code: string,
+		message: string,
+		readonly fields?: Record<string, string>
+	) {
+		super(message);
+	}
+}
+
+const CODES: Record<number, string> = {
+	400: 'bad-request',
+	401: 'unauthenticated',
+	403: 'forbidden',
+	404: 'not-found',
+	405: 'method-not-allowed',
+	409: 'conflict',
+	413: 'too-large',
+	415: 'unsupported-media-type',
+	429: 'too-many-requests',
+	503: 'unavailable'
+};
+
+/** The API's error response. */
+export function errorResponse(
+	status: number,
+	code: string,
+	message: string,
+	fields?: Record<string, string>,
+	headers?: HeadersInit
+): Response {
+	return json({ error: fields ? { code, message, fields } : { code, message } }, { status, headers });
+}
+
+/** Field messages from a zod error, keyed by dotted path. */
+export function zodFields(err: ZodError): Record<string, string> {
+	const fields: Record<string, string> = {};
+	for (const issue of err.issues) {
+		const key = issue.path.length ? issue.path.join('.') : '_';
+		if (!fields[key]) fields[key] = issue.message;
+	}
+	return fields;
+}
+
+/** Turns anything thrown inside an API handler into the API's error shape. */
+export function toErrorResponse(err: unknown): Response {
+	if (err instanceof ApiError || err instanceof DomainError) {
+		return errorResponse(err.status, err.code, err.message, err.fields);
+	}
+	if (err instanceof ZodError) {
+		return errorResponse(400, 'invalid-input', 'Some fields are not valid.', zodFields(err));
+	}
+	if (isHttpError(err)) {
+		const body = err.body as App.Error;
+		return errorResponse(err.status, body.code ?? CODES[err.status] ?? 'error', body.message);
+	}
+	throw err; // unexpected: handleError logs it and answers 500
+}
+
+/** Wraps an API handler so that every expected failure gets the JSON error shape. */
+export function endpoint<E extends RequestEvent>(handler: (event: E) => Promise<Response> | Response) {
+	return (async (event: E) => {
+		try {
+			return await handler(event);
+		} catch (err) {
+			return toErrorResponse(err);
+		}
+	}) as unknown as RequestHandler;
+}
+
+/** Reads a JSON body; 415 when the request is not JSON, 400 when it does not parse. */
+export async function readJson(request: Request): Promise<unknown> {
+	const type = request.headers.get('content-type') ?? '';
+	if (!type.toLowerCase().startsWith('application/json')) {
+		throw new ApiError(415, 'unsupported-media-type', 'Send the body as application/json.');
+	}
+	try {
+		return await request.json();
+	} catch {
+		throw new ApiError(400, 'invalid-json', 'The body is not valid JSON.');
+	}
+}

@@ -1,0 +1,12 @@
+import type { LayoutServerLoad } from './$types';
+import { navFor } from '$lib/nav';
+import { ROLE_LABELS } from '$lib/server/auth/roles';
+
+// Shapes only what the shell shows; each page's own load checks its role again.
+export const load = (async ({ locals }) => {
+	const user = locals.user;
+	return {
+		user: user ? { name: user.name, email: user.email, role: user.role, roleLabel: ROLE_LABELS[user.role] } : null,
+		nav: navFor(user?.role).map(({ href, label }) => ({ href, label }))
+	};
+}) satisfies LayoutServerLoad;

@@ -1,0 +1,61 @@
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { chromium, type BrowserContext, type Page } from 'playwright-core';
+
+/** Flags for Debian's Chromium on this closed network (see STACK.md). */
+export const CHROMIUM_ARGS = [
+	'--headless',
+	'--no-sandbox',
+	'--disable-gpu',
+	'--disable-quic',
+	'--no-first-run',
+	'--disable-background-networking',
+	'--disable-component-update',
+	'--disable-sync'
+];
+
+/** A fresh headless Chromium with an empty profile; close it with `close()`. */
+export async function openBrowser(): Promise<{ context: BrowserContext; page: Page; close: () => Promise<void> }> {
+	const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'glasscrib-chromium-'));
+	const context = await chromium.launchPersistentContext(dir, {
+		executablePath: process.env.CHROMIUM_PATH || '/usr/bin/chromium',
+		args: CHROMIUM_ARGS,
+		viewport: { width: 1280, height: 860 }
+	});
+	const page = context.pages()[0] ?? (await context.newPage());
+	return {
+		context,
+		page,
+		close: async () => {
+			await context.close();
+			fs.rmSync(dir, { recursive: true, force: true });
+		}
+	};
+}
+
+/** The app under test, started by `npm test`. */
+export function appUrl(pathname = '/'): string {
+	const base = process.env.APP_URL;
+	if (!base) throw new Error('APP_URL is not set: run the browser tests through `npm test`');
+	return new URL(pathname, base).toString();
+}
+
+export const DEMO_PASSWORD = () => process.env.DEMO_PASSWORD || 'tarnwell-bench-2026';
+
+/** Signs in through the real form and waits for the overview. */
+export async function signIn(page: Page, email: string, password = DEMO_PASSWORD()) {
+	await page.goto(appUrl('/signin'));
+	await page.fill('input[name=email]', email);
+	await page.fill('input[name=password]', password);
+	await Promise.all([page.waitForURL((u) => !u.pathname.startsWith('/signin')), page.click('button:has-text("Sign in")')]);
+}
+
+/** Saves a screenshot under TEST_TMP (or the OS temp dir) and returns its path. */
+export async function screenshot(page: Page, name: string) {
+	const dir = path.join(process.env.SCREENSHOT_DIR || process.env.TEST_TMP || os.tmpdir(), 'screenshots');
+	fs.mkdirSync(dir, { recursive: true });
+	const file = path.join(dir, `${name}.png`);
+	await page.screenshot({ path: file, fullPage: true });
+	return file;
+}

@@ -1,0 +1,45 @@
+import { sveltekit } from '@sveltejs/kit/vite';
+import tailwindcss from '@tailwindcss/vite';
+import { defineConfig } from 'vitest/config';
+
+export default defineConfig({
+	plugins: [tailwindcss(), sveltekit()],
+	server: { host: '127.0.0.1', port: 5173 },
+	preview: { host: '127.0.0.1', port: 4173 },
+	// Plugin timing reports are noise in our logs.
+	build: { rolldownOptions: { checks: { pluginTimings: false } } },
+	test: {
+		projects: [
+			{
+				extends: true,
+				test: {
+					name: 'unit',
+					include: ['tests/unit/**/*.test.ts', 'src/**/*.test.ts'],
+					environment: 'node'
+				}
+			},
+			{
+				extends: true,
+				test: {
+					name: 'integration',
+					include: ['tests/integration/**/*.test.ts'],
+					environment: 'node',
+					testTimeout: 60_000,
+					hookTimeout: 120_000,
+					fileParallelism: false
+				}
+			},
+			{
+				extends: true,
+				test: {
+					name: 'e2e',
+					include: ['tests/e2e/**/*.test.ts'],
+					environment: 'node',
+					testTimeout: 90_000,
+					hookTimeout: 180_000,
+					fileParallelism: false
+				}
+			}
+		]
+	}
+});
