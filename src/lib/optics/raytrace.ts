@@ -1,0 +1,168 @@
+/**
+ * Exact meridional real-ray trace through spherical and flat surfaces (Snell's law in
+ * vector form), for the solver's final check and the drawings.
+ *
+ * A ray is (z, y) in mm with unit direction (dirZ, dirY) in the meridional plane. The
+ * object plane is z = 0, object space is air. Rays that miss a surface or meet total
+ * internal reflection stop there with a status; they are counted, never silently lost.
+ */
+import { type Result, ok, fail, NoPrescriptionError } from './errors';
+import type { Layout } from './system';
+import { firstVertexPositionsMm, trackLengthMm } from './system';
+
+/** A layout's surfaces in absolute position, ready to trace (struct of arrays). */
+export interface TraceSystem {
+	/** Number of surfaces. */
+	readonly count: number;
+	/** Vertex z of each surface from the object plane, mm. */
+	readonly zMm: Float64Array;
+	/** Curvature 1/R of each surface, 1/mm (0 = flat). */
+	readonly curvaturePerMm: Float64Array;
+	/** Refractive index after each surface (before surface 0 it is 1, air). */
+	readonly indexAfter: Float64Array;
+	/** Clear semi-aperture at each surface, mm (Infinity when unknown). */
+	readonly semiApertureMm: Float64Array;
+	/** Which element (index into the layout) each surface belongs to. */
+	readonly elementIndex: Int32Array;
+	/** z of the target (image) plane, mm. */
+	readonly imageZMm: number;
+}
+
+/**
+ * The surfaces of a layout for tracing. Fails with 'no-prescription' when an element is
+ * a black box (it has no surfaces to trace; the solver then ranks it paraxially only).
+ */
+export function traceSystemFromLayout(layout: Layout): Result<TraceSystem> {
+	const vertices = firstVertexPositionsMm(layout);
+	let count = 0;
+	for (const e of layout.elements) {
+		if (e.surfaces === null) {
+			return fail(new NoPrescriptionError('A black-box part has no surfaces; real rays cannot be traced through it.'));
+		}
+		count += e.surfaces.length;
+	}
+	const sys = {
+		count,
+		zMm: new Float64Array(count),
+		curvaturePerMm: new Float64Array(count),
+		indexAfter: new Float64Array(count),
+		semiApertureMm: new Float64Array(count),
+		elementIndex: new Int32Array(count),
+		imageZMm: trackLengthMm(layout)
+	};
+	let k = 0;
+	layout.elements.forEach((e, ei) => {
+		for (const s of e.surfaces ?? []) {
+			sys.zMm[k] = vertices[ei] + s.vertexMm;
+			sys.curvaturePerMm[k] = s.radiusMm === null ? 0 : 1 / s.radiusMm;
+			sys.indexAfter[k] = s.indexAfter;
+			sys.semiApertureMm[k] = e.clearApertureMm === null ? Infinity : e.clearApertureMm / 2;
+			sys.elementIndex[k] = ei;
+			k++;
+		}
+	});
+	return ok(sys);
+}
+
+/** Numbers in a ray state buffer: z, y, dirZ, dirY, status, surface. */
+export const RAY_STRIDE = 6;
+/** Trace status: the ray passed every surface. */
+export const TRACE_OK = 0;
+/** Trace status: the ray misses the sphere of a surface. */
+export const TRACE_MISSED = 1;
+/** Trace status: total internal reflection at a surface. */
+export const TRACE_TIR = 2;
+
+/**
+ * Traces the ray in `ray` ([z, y, dirZ, dirY] with a unit direction, in air before the
+ * first surface) through every surface, in place: on return `ray` holds the ray just
+ * after the last surface, ray[4] the status (TRACE_*) and ray[5] the index of the
+ * surface where it stopped (−1 when it passed all). `heightsMm`, if given, receives the
+ * ray height at each surface met. Returns the status. Allocates nothing.
+ *
+ * Intersection: with the ray written relative to the vertex, the sphere
+ * c(Z² + Y²) − 2Z = 0 is met at t = F / (B + √(B² − cF)), F = c(Z² + Y²) − 2Z,
+ * B = dirZ − c(Z·dirZ + Y·dirY), the root on the vertex side, exact also for c = 0.
+ * Refraction: n'·d' = n·d + (n' cos I' − n cos I)·N with N = (1 − cZ, −cY).
+ */
+export function traceRay(sys: TraceSystem, ray: Float64Array, heightsMm: Float64Array | null = null): number {
+	let z = ray[0],
+		y = ray[1],
+		dz = ray[2],
+		dy = ray[3];
+	let nBefore = 1;
+	for (let k = 0; k < sys.count; k++) {
+		const c = sys.curvaturePerMm[k];
+		const z0 = z - sys.zMm[k];
+		const f = c * (z0 * z0 + y * y) - 2 * z0;
+		const b = dz - c * (z0 * dz + y * dy);
+		const disc = b * b - c * f;
+		const den = disc >= 0 ? b + Math.sqrt(disc) : -1;
+		if (!(den > 0)) return stop(ray, z, y, dz, dy, TRACE_MISSED, k);
+		const t = f / den;
+		z += t * dz;
+		y += t * dy;
+		if (heightsMm !== null) heightsMm[k] = y;
+		const nz = 1 - c * (z - sys.zMm[k]),
+			ny = -c * y;
+		const cosI = dz * nz + dy * ny;
+		const nAfter = sys.indexAfter[k];
+		const mu = nBefore / nAfter;
+		const k2 = 1 - mu * mu * (1 - cosI * cosI);
+		if (k2 < 0) return stop(ray, z, y, dz, dy, TRACE_TIR, k);
+		const cosIp = cosI >= 0 ? Math.sqrt(k2) : -Math.sqrt(k2);
+		const g = cosIp - mu * cosI;
+		dz = mu * dz + g * nz;
+		dy = mu * dy + g * ny;
+		nBefore = nAfter;
+	}
+	return stop(ray, z, y, dz, dy, TRACE_OK, -1);
+}
+
+function stop(ray: Float64Array, z: number, y: number, dz: number, dy: number, status: number, k: number): number {
+	ray[0] = z;
+	ray[1] = y;
+	ray[2] = dz;
+	ray[3] = dy;
+	ray[4] = status;
+	ray[5] = k;
+	return status;
+}
+
+/**
+ * Sets `ray` to start at the object point (0, objectYMm) with direction sine
+ * `sinAngle` (the sine of the angle to the axis, + upwards). Returns false (and leaves
+ * the ray untouched) when |sinAngle| ≥ 1.
+ */
+export function startRay(ray: Float64Array, objectYMm: number, sinAngle: number): boolean {
+	if (!(Math.abs(sinAngle) < 1)) return false;
+	ray[0] = 0;
+	ray[1] = objectYMm;
+	ray[2] = Math.sqrt(1 - sinAngle * sinAngle);
+	ray[3] = sinAngle;
+	ray[4] = TRACE_OK;
+	ray[5] = -1;
+	return true;
+}
+
+/**
+ * Height of a traced ray (state after the last surface) at the plane z = zMm, mm.
+ * Null when the ray runs parallel to that plane.
+ */
+export function heightAtPlane(ray: Float64Array, zMm: number): number | null {
+	if (!(Math.abs(ray[2]) > 1e-15)) return null;
+	return ray[1] + ((zMm - ray[0]) * ray[3]) / ray[2];
+}
+
+/**
+ * Where a real ray from the axial object point, leaving at direction sine `sinAngle`,
+ * crosses the axis after the last surface (z from the object plane, mm). As
+ * sinAngle → 0 this tends to the paraxial image; its shift is the longitudinal
+ * spherical aberration. Null when the ray fails or leaves parallel to the axis.
+ */
+export function axialCrossingMm(sys: TraceSystem, sinAngle: number): number | null {
+	const ray = new Float64Array(RAY_STRIDE);
+	if (!startRay(ray, 0, sinAngle) || traceRay(sys, ray) !== TRACE_OK) return null;
+	if (!(Math.abs(ray[3]) > 1e-300)) return null;
+	return ray[0] - (ray[1] * ray[2]) / ray[3];
+}

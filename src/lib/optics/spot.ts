@@ -1,0 +1,224 @@
+/**
+ * Ray fans, RMS spot radii, vignetting against the clear apertures, and the Airy radius:
+ * the figures the solver ranks by.
+ *
+ * Fans are set by the object-side NA (object in air, NA = sin θ of the marginal ray).
+ * Each field point's cone is NA wide in direction sine around its chief ray; the chief
+ * ray aims at the axial point of the pupil plane z = pupilZMm (default: the first
+ * surface's vertex, right for a stop at or near the first part).
+ */
+import { type TraceSystem, RAY_STRIDE, TRACE_OK, traceRay, startRay, heightAtPlane } from './raytrace';
+
+/** Options shared by the spot and aperture functions. */
+export interface FanOptions {
+	/** Object-side numerical aperture of the marginal ray (0 < NA < 1). */
+	readonly na: number;
+	/** Plane the spot is evaluated in, z from the object plane (default: the system's image plane). */
+	readonly imageZMm?: number;
+	/** Pupil plane the chief ray aims at (default: first surface vertex). */
+	readonly pupilZMm?: number;
+	/** Rays per fan (default 32). */
+	readonly rays?: number;
+}
+
+/** An RMS spot figure with its sampling stated. */
+export interface SpotResult {
+	/** 'axial-area-weighted': true 2-D RMS on axis; 'tangential': 1-D RMS of the tangential fan. */
+	readonly kind: 'axial-area-weighted' | 'tangential';
+	/** RMS of the ray heights about the chief ray's height, mm. */
+	readonly rmsAboutChiefMm: number;
+	/** RMS about the centroid of the rays, mm. */
+	readonly rmsAboutCentroidMm: number;
+	/** Centroid height in the evaluation plane, mm. */
+	readonly centroidMm: number;
+	/** Chief ray height in the evaluation plane, mm. */
+	readonly chiefMm: number;
+	/** Rays that reached the plane. */
+	readonly raysTraced: number;
+	/** Rays that missed a surface, met total internal reflection or had no direction. */
+	readonly raysFailed: number;
+}
+
+const scratch = new Float64Array(RAY_STRIDE);
+
+function firstVertex(sys: TraceSystem): number {
+	return sys.count > 0 ? sys.zMm[0] : 0;
+}
+
+/** Height of one ray at `zMm`, or null when it fails. */
+function landing(sys: TraceSystem, objectYMm: number, sinAngle: number, zMm: number): number | null {
+	if (!startRay(scratch, objectYMm, sinAngle) || traceRay(sys, scratch) !== TRACE_OK) return null;
+	return heightAtPlane(scratch, zMm);
+}
+
+/**
+ * RMS spot radius of the axial object point, in the plane `imageZMm`.
+ *
+ * Sampling rule: K rays of the meridional fan at normalised pupil radius
+ * ρₖ = √((k − ½)/K), k = 1..K, direction sine ρₖ·NA: the midpoints of K rings of equal
+ * area in the disc of direction sines (equal power per ring for a Lambertian object).
+ * By rotational symmetry every ray of ring k lands at the same distance |yₖ| from the
+ * axis, so the mean of yₖ² is the true 2-D mean square radius. The chief ray is the
+ * axis and the 2-D centroid lies on the axis, so both RMS figures coincide.
+ * Null when no ray arrives.
+ */
+export function axialSpot(sys: TraceSystem, options: FanOptions): SpotResult | null {
+	const K = options.rays ?? 32;
+	const zImg = options.imageZMm ?? sys.imageZMm;
+	let sum2 = 0,
+		traced = 0,
+		failed = 0;
+	for (let k = 1; k <= K; k++) {
+		const rho = Math.sqrt((k - 0.5) / K);
+		const y = landing(sys, 0, rho * options.na, zImg);
+		if (y === null) failed++;
+		else {
+			sum2 += y * y;
+			traced++;
+		}
+	}
+	if (traced === 0) return null;
+	const rms = Math.sqrt(sum2 / traced);
+	return {
+		kind: 'axial-area-weighted',
+		rmsAboutChiefMm: rms,
+		rmsAboutCentroidMm: rms,
+		centroidMm: 0,
+		chiefMm: 0,
+		raysTraced: traced,
+		raysFailed: failed
+	};
+}
+
+/**
+ * RMS spot of the off-axis object point at height `objectHeightMm`, in the plane
+ * `imageZMm`, from its tangential fan only (no skew rays), labelled 'tangential'.
+ *
+ * Sampling rule: K rays with direction sines sin θc + ρₖ·NA, ρₖ = −1 + (2k − 1)/K
+ * (midpoints of K equal steps across the fan), each weighted equally, where θc is the
+ * chief ray's angle (aimed at the pupil centre). The result is the 1-D RMS of the
+ * tangential section about the chief ray and about the fan's centroid.
+ * Null when the chief ray or every fan ray fails.
+ */
+export function tangentialSpot(sys: TraceSystem, objectHeightMm: number, options: FanOptions): SpotResult | null {
+	const K = options.rays ?? 32;
+	const zImg = options.imageZMm ?? sys.imageZMm;
+	const sinChief = chiefSine(sys, objectHeightMm, options.pupilZMm);
+	const chief = landing(sys, objectHeightMm, sinChief, zImg);
+	if (chief === null) return null;
+	let sum = 0,
+		sum2 = 0,
+		traced = 0,
+		failed = 0;
+	for (let k = 1; k <= K; k++) {
+		const rho = -1 + (2 * k - 1) / K;
+		const y = landing(sys, objectHeightMm, sinChief + rho * options.na, zImg);
+		if (y === null) failed++;
+		else {
+			const e = y - chief;
+			sum += e;
+			sum2 += e * e;
+			traced++;
+		}
+	}
+	if (traced === 0) return null;
+	const mean = sum / traced;
+	return {
+		kind: 'tangential',
+		rmsAboutChiefMm: Math.sqrt(sum2 / traced),
+		rmsAboutCentroidMm: Math.sqrt(Math.max(0, sum2 / traced - mean * mean)),
+		centroidMm: chief + mean,
+		chiefMm: chief,
+		raysTraced: traced,
+		raysFailed: failed
+	};
+}
+
+/** Direction sine of the chief ray from (0, objectHeightMm) to the pupil centre. */
+export function chiefSine(sys: TraceSystem, objectHeightMm: number, pupilZMm?: number): number {
+	const zp = pupilZMm ?? firstVertex(sys);
+	return -objectHeightMm / Math.hypot(zp, objectHeightMm);
+}
+
+/** Ray heights at one surface against its clear aperture. */
+export interface SurfaceClearance {
+	/** Surface index in the trace system. */
+	readonly surface: number;
+	/** Clear semi-aperture, mm (Infinity when unknown). */
+	readonly semiApertureMm: number;
+	/** |height| of the axial marginal ray (direction sine NA), mm; null if it failed before. */
+	readonly marginalMm: number | null;
+	/** |height| of the chief ray from the field edge, mm; null if it failed before. */
+	readonly chiefMm: number | null;
+	/** Largest |height| of the field edge's rim rays (sin θc ± NA), mm; null if both failed. */
+	readonly edgeRimMm: number | null;
+	/** Some of these rays pass outside the clear aperture here. */
+	readonly vignetted: boolean;
+}
+
+/** Vignetting report of a fan configuration. */
+export interface ApertureReport {
+	/** One entry per surface, in order. */
+	readonly surfaces: readonly SurfaceClearance[];
+	/** Any surface vignettes. */
+	readonly vignetted: boolean;
+	/** A ray of the report missed a surface or met total internal reflection. */
+	readonly raysFailed: number;
+}
+
+function heights(sys: TraceSystem, objectYMm: number, sinAngle: number): { h: Float64Array; upTo: number } {
+	const h = new Float64Array(sys.count);
+	const ray = new Float64Array(RAY_STRIDE);
+	if (!startRay(ray, objectYMm, sinAngle)) return { h, upTo: 0 };
+	const status = traceRay(sys, ray, h);
+	return { h, upTo: status === TRACE_OK ? sys.count : ray[5] };
+}
+
+/**
+ * The marginal ray (axial point, direction sine NA), the chief ray and the two rim rays
+ * of the field edge (`objectHeightMm`), heights at every surface against its clear
+ * aperture: the vignetting check of the solver.
+ */
+export function apertureReport(sys: TraceSystem, objectHeightMm: number, options: FanOptions): ApertureReport {
+	const sc = chiefSine(sys, objectHeightMm, options.pupilZMm);
+	const marginal = heights(sys, 0, options.na);
+	const chief = heights(sys, objectHeightMm, sc);
+	const upper = heights(sys, objectHeightMm, sc + options.na);
+	const lower = heights(sys, objectHeightMm, sc - options.na);
+	const traces = [marginal, chief, upper, lower];
+	const failed = traces.filter((t) => t.upTo < sys.count).length;
+	const at = (t: { h: Float64Array; upTo: number }, k: number) => (k < t.upTo ? Math.abs(t.h[k]) : null);
+	const surfaces: SurfaceClearance[] = [];
+	let any = false;
+	for (let k = 0; k < sys.count; k++) {
+		const semi = sys.semiApertureMm[k];
+		const m = at(marginal, k),
+			c = at(chief, k),
+			u = at(upper, k),
+			l = at(lower, k);
+		const rim = u === null ? l : l === null ? u : Math.max(u, l);
+		const vignetted = [m, c, rim].some((v) => v !== null && v > semi);
+		any ||= vignetted;
+		surfaces.push({ surface: k, semiApertureMm: semi, marginalMm: m, chiefMm: c, edgeRimMm: rim, vignetted });
+	}
+	return { surfaces, vignetted: any, raysFailed: failed };
+}
+
+/**
+ * Airy radius (first dark ring of a diffraction-limited spot), mm: r = 1.22·λ·N with
+ * λ in nm and N the working f-number in image space (Born & Wolf, Principles of Optics,
+ * 7th ed. 1999, §8.5.2, the first zero of J₁ at 3.8317 = 1.2197·π; from memory).
+ */
+export function airyRadiusMm(wavelengthNm: number, workingFNumber: number): number {
+	return 1.22 * wavelengthNm * 1e-6 * workingFNumber;
+}
+
+/** Working f-number N = 1/(2·NA') from the image-side NA (paraxial, image in air). */
+export function workingFNumber(imageSideNA: number): number {
+	return 1 / (2 * imageSideNA);
+}
+
+/** Image-side NA of an imaging system in air: NA' = NA/|m| (paraxial; the sine condition). */
+export function imageSideNA(objectNA: number, magnification: number): number {
+	return objectNA / Math.abs(magnification);
+}
