@@ -5,7 +5,9 @@ import { vitePreprocess } from '@sveltejs/vite-plugin-svelte';
 const config = {
 	preprocess: vitePreprocess(),
 	kit: {
-		adapter: adapter({ out: 'build', precompress: false }),
+		// npm test builds into its own temp dirs so several test runs can share a checkout.
+		adapter: adapter({ out: process.env.GLASSCRIB_BUILD_DIR ?? 'build', precompress: false }),
+		outDir: process.env.GLASSCRIB_KIT_DIR ?? '.svelte-kit',
 		csp: {
 			mode: 'auto',
 			directives: {

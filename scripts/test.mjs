@@ -18,7 +18,10 @@ let exitCode = 0;
 
 async function cleanup() {
 	await stopChildren();
-	if (!process.env.KEEP_TEST_TMP) fs.rmSync(tmp, { recursive: true, force: true });
+	if (!process.env.KEEP_TEST_TMP) {
+		fs.rmSync(tmp, { recursive: true, force: true });
+		fs.rmSync(path.join(ROOT, '.test-builds', path.basename(tmp)), { recursive: true, force: true });
+	}
 }
 process.on('SIGINT', async () => {
 	await cleanup();
@@ -66,9 +69,17 @@ try {
 	}
 
 	console.log('\n== build ==');
-	await ensureBuild();
+	// Inside the checkout (so the build resolves node_modules), unique per run, removed afterwards.
+	const buildRoot = path.join(ROOT, '.test-builds', path.basename(tmp));
+	const buildDir = path.join(buildRoot, 'app');
+	await ensureBuild({ force: true, buildDir, kitDir: path.join(buildRoot, 'kit') });
 	const appPort = await freePort();
-	const { origin } = await startApp({ port: appPort, env, logStream: fs.createWriteStream(path.join(tmp, 'logs', 'app.log')) });
+	const { origin } = await startApp({
+		port: appPort,
+		env,
+		buildDir,
+		logStream: fs.createWriteStream(path.join(tmp, 'logs', 'app.log'))
+	});
 	const chromium = chromiumPath();
 	const testEnv = {
 		...env,

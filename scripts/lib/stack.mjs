@@ -88,21 +88,25 @@ function newestMtime(paths) {
 	return newest;
 }
 
-/** Builds the app with adapter-node unless build/ is newer than every source file. */
-export async function ensureBuild({ force = false, quiet = false } = {}) {
-	const stamp = path.join(ROOT, 'build', '.built-at');
+/**
+ * Builds the app with adapter-node unless the build is newer than every source file.
+ * `buildDir`/`kitDir` let a test run build into a temp dir of its own.
+ */
+export async function ensureBuild({ force = false, quiet = false, buildDir = path.join(ROOT, 'build'), kitDir } = {}) {
+	const stamp = path.join(buildDir, '.built-at');
 	const sources = ['src', 'static', 'package-lock.json', 'svelte.config.js', 'vite.config.ts', 'tailwind.config.ts'];
 	if (!force && fs.existsSync(stamp) && fs.statSync(stamp).mtimeMs > newestMtime(sources)) return false;
 	if (!quiet) console.log('- building the app (vite build)');
-	await run('npx', ['vite', 'build', '--logLevel', 'warn'], { cwd: ROOT, quiet });
+	const env = { GLASSCRIB_BUILD_DIR: buildDir, ...(kitDir ? { GLASSCRIB_KIT_DIR: kitDir } : {}) };
+	await run('npx', ['vite', 'build', '--logLevel', 'warn'], { cwd: ROOT, quiet, env });
 	fs.writeFileSync(stamp, new Date().toISOString());
 	return true;
 }
 
 /** Starts the built app (node build) and waits until /health answers. */
-export async function startApp({ port, env, logStream }) {
+export async function startApp({ port, env, logStream, buildDir = path.join(ROOT, 'build') }) {
 	const origin = `http://127.0.0.1:${port}`;
-	const child = startChild('app', process.execPath, [path.join(ROOT, 'build/index.js')], {
+	const child = startChild('app', process.execPath, [path.join(buildDir, 'index.js')], {
 		cwd: ROOT,
 		env: {
 			...env,
