@@ -1,0 +1,8 @@
+import type { OpenApiPaths } from './types';
+import { jsonResponse } from './types';
+
+export const foundationPaths: OpenApiPaths = {
+	'/openapi.json': {
+		get: { summary: 'This document', security: [], responses: { '200': jsonResponse('OpenAPI 3.1 document') } }
+	}
+};
