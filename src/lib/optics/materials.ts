@@ -180,8 +180,9 @@ function glassCodeName(nd: number, vd: number): string {
 export function parseGlassCode(code: string): { nd: number; vd: number } | null {
 	const m = GLASS_CODE.exec(code.trim());
 	if (!m) return null;
-	const nd = 1 + Number(m[1]) / 1000;
-	const vd = Number(m[2]) / 10;
+	// Parsed as decimal text, so 785 gives exactly the double nearest 1.785.
+	const nd = Number(`1.${m[1]}`);
+	const vd = Number(`${m[2].slice(0, 2)}.${m[2][2]}`);
 	// No optical glass has vd below 10 or nd below 1.25 (common practice, no source).
 	if (vd < 10 || nd < 1.25) return null;
 	return { nd, vd };
