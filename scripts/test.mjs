@@ -72,7 +72,7 @@ try {
 	// Inside the checkout (so the build resolves node_modules), unique per run, removed afterwards.
 	const buildRoot = path.join(ROOT, '.test-builds', path.basename(tmp));
 	const buildDir = path.join(buildRoot, 'app');
-	await ensureBuild({ force: true, buildDir, kitDir: path.join(buildRoot, 'kit') });
+	await ensureBuild({ force: true, quiet: true, buildDir, kitDir: path.join(buildRoot, 'kit') });
 	const appPort = await freePort();
 	const { origin } = await startApp({
 		port: appPort,

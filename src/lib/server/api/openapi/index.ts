@@ -43,6 +43,6 @@ export function openApiDocument() {
 			}
 		},
 		security: [{ bearer: [] }, { session: [] }],
-		paths: Object.assign({}, ...areas)
+		paths: Object.assign({}, ...areas) as OpenApiPaths
 	};
 }
