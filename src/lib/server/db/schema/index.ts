@@ -1,3 +1,5 @@
 export * from './auth';
 export * from './catalogue';
 export * from './stock';
+export * from './files';
+export * from './imports';
