@@ -1,0 +1,167 @@
+/**
+ * Validation of part input (API bodies, the part form, CSV import rows): one zod schema
+ * with the surfaces, checked against the optics core so a stored prescription always
+ * builds into a lens. Field messages are keyed by dotted path (`surfaces.1.radiusMm`).
+ */
+import { z } from 'zod';
+import { buildElement, resolveMaterial, thicknessesAtHeight, type SurfaceSpec } from '$lib/optics';
+import { PART_KINDS } from '$lib/server/db/schema';
+
+const optionalNumber = (schema: z.ZodNumber) => schema.nullable().optional();
+const optionalText = (max: number) =>
+	z
+		.string()
+		.trim()
+		.max(max, `At most ${max} characters.`)
+		.transform((s) => (s === '' ? null : s))
+		.nullable()
+		.optional();
+
+/** One surface; `thicknessMm` and `material` describe the medium after it (none on the last). */
+export const surfaceInputSchema = z
+	.object({
+		radiusMm: z
+			.number({ error: 'Enter the radius in mm, or leave it empty for a flat surface.' })
+			.refine((v) => v !== 0, 'A radius cannot be 0: leave it empty for a flat surface.')
+			.refine((v) => Math.abs(v) <= 1e7, 'That radius is too large: leave it empty for a flat surface.')
+			.nullable(),
+		thicknessMm: optionalNumber(z.number({ error: 'Enter a thickness in mm.' }).min(0, 'The thickness cannot be negative.').max(1000)),
+		material: optionalText(32)
+	})
+	.strict();
+
+/** Fields a purchaser may change (see `assertPatchAllowed`). */
+export const PURCHASING_FIELDS = [
+	'supplier',
+	'supplierPartNumber',
+	'unitPrice',
+	'currency',
+	'leadTimeDays',
+	'reorderPoint',
+	'reorderQuantity'
+] as const;
+
+const fields = {
+	sku: z
+		.string()
+		.trim()
+		.min(1, 'Enter a SKU.')
+		.max(40, 'At most 40 characters.')
+		.regex(/^[A-Za-z0-9][A-Za-z0-9._/-]*$/, 'Use letters, digits and . _ / - only, starting with a letter or digit.'),
+	name: z.string().trim().min(1, 'Enter a name.').max(200, 'At most 200 characters.'),
+	kind: z.enum(PART_KINDS, { error: 'Choose a kind.' }),
+	diameterMm: z.number({ error: 'Enter the diameter in mm.' }).positive('The diameter must be more than 0 mm.').max(1000),
+	clearApertureMm: optionalNumber(z.number().positive('The clear aperture must be more than 0 mm.').max(1000)),
+	surfaces: z.array(surfaceInputSchema).max(12, 'At most 12 surfaces.'),
+	eflMm: optionalNumber(z.number().refine((v) => v !== 0 && Math.abs(v) <= 1e6, 'Enter a non-zero EFL in mm.')),
+	bflMm: optionalNumber(z.number().min(-1e6).max(1e6)),
+	centerThicknessMm: optionalNumber(z.number().min(0, 'The thickness cannot be negative.').max(1000)),
+	designWavelengthNm: z.number().min(200, 'Between 200 and 20000 nm.').max(20000, 'Between 200 and 20000 nm.'),
+	coating: optionalText(80),
+	supplier: optionalText(120),
+	supplierPartNumber: optionalText(80),
+	/** Unit price in integer minor units (cents) of `currency`. */
+	unitPrice: optionalNumber(z.number().int('Whole cents only.').min(0).max(1e9)),
+	currency: z
+		.string()
+		.trim()
+		.regex(/^[A-Z]{3}$/, 'Three capital letters (ISO 4217), e.g. EUR.'),
+	leadTimeDays: optionalNumber(z.number().int('Whole days.').min(0).max(3650)),
+	reorderPoint: z.number().int('A whole number.').min(0).max(1e6),
+	reorderQuantity: z.number().int('A whole number.').min(0).max(1e6),
+	notes: optionalText(5000)
+};
+
+/** The fields of a part as the API and the form take them (Part JSON without computed fields). */
+export const partFieldsSchema = z
+	.object({
+		...fields,
+		surfaces: fields.surfaces.default([]),
+		designWavelengthNm: fields.designWavelengthNm.default(587.6),
+		currency: fields.currency.default('EUR'),
+		reorderPoint: fields.reorderPoint.default(0),
+		reorderQuantity: fields.reorderQuantity.default(0)
+	})
+	.strict();
+
+export type PartFields = z.infer<typeof partFieldsSchema>;
+
+/** Cross-field and optics checks of a whole part; adds issues at the field they concern. */
+export function checkPart(p: PartFields, ctx: { addIssue: (i: { code: 'custom'; message: string; path: (string | number)[] }) => void }) {
+	const issue = (path: (string | number)[], message: string) => ctx.addIssue({ code: 'custom', message, path });
+	if (p.clearApertureMm != null && p.clearApertureMm > p.diameterMm) {
+		issue(['clearApertureMm'], 'The clear aperture cannot exceed the diameter.');
+	}
+	const s = p.surfaces;
+	if (s.length === 0) {
+		if (p.eflMm == null) issue(['eflMm'], 'A part without surfaces needs its datasheet EFL.');
+		return;
+	}
+	if (s.length === 1) {
+		issue(['surfaces'], 'A lens has at least two surfaces.');
+		return;
+	}
+	let bad = false;
+	s.forEach((surface, i) => {
+		const last = i === s.length - 1;
+		if (last) {
+			if (surface.thicknessMm != null && surface.thicknessMm !== 0) {
+				issue(['surfaces', i, 'thicknessMm'], 'The last surface has no thickness after it.');
+				bad = true;
+			}
+			if (surface.material) {
+				issue(['surfaces', i, 'material'], 'The last surface has no material after it.');
+				bad = true;
+			}
+			return;
+		}
+		if (surface.thicknessMm == null) {
+			issue(['surfaces', i, 'thicknessMm'], 'Enter the thickness after this surface.');
+			bad = true;
+		}
+		if (surface.material) {
+			try {
+				resolveMaterial(surface.material);
+			} catch {
+				issue(['surfaces', i, 'material'], `Unknown material "${surface.material}": use a six-digit glass code or a listed material.`);
+				bad = true;
+			}
+		}
+		if (surface.radiusMm !== null && Math.abs(surface.radiusMm) < p.diameterMm / 2) {
+			issue(['surfaces', i, 'radiusMm'], `A sphere of radius ${Math.abs(surface.radiusMm)} mm cannot span a ${p.diameterMm} mm diameter.`);
+			bad = true;
+		}
+	});
+	const last = s[s.length - 1];
+	if (last.radiusMm !== null && Math.abs(last.radiusMm) < p.diameterMm / 2) {
+		issue(['surfaces', s.length - 1, 'radiusMm'], `A sphere of radius ${Math.abs(last.radiusMm)} mm cannot span a ${p.diameterMm} mm diameter.`);
+		bad = true;
+	}
+	if (bad) return;
+	const built = buildElement(toSurfaceSpecs(s), p.designWavelengthNm, { clearApertureMm: p.clearApertureMm ?? null });
+	if (!built.ok) {
+		issue(['surfaces'], built.error.message);
+		return;
+	}
+	const edges = thicknessesAtHeight(built.value, p.diameterMm / 2);
+	edges?.forEach((t, i) => {
+		if (t < 0) {
+			issue(['surfaces', i, 'thicknessMm'], `Surfaces ${i + 1} and ${i + 2} cross before the rim (edge thickness ${t.toFixed(2)} mm).`);
+		}
+	});
+}
+
+/** A whole part: fields plus the optics checks. */
+export const partInputSchema = partFieldsSchema.superRefine(checkPart);
+export type PartInput = z.infer<typeof partInputSchema>;
+
+/** A PATCH body: any subset of the fields (checked as a whole after merging with the stored part). */
+export const partPatchSchema = z.object(fields).partial().strict();
+export type PartPatch = z.infer<typeof partPatchSchema>;
+
+/** The surfaces in the optics core's shape (last surface without thickness or material). */
+export function toSurfaceSpecs(surfaces: readonly { radiusMm: number | null; thicknessMm?: number | null; material?: string | null }[]): SurfaceSpec[] {
+	return surfaces.map((s, i) =>
+		i === surfaces.length - 1 ? { radiusMm: s.radiusMm } : { radiusMm: s.radiusMm, thicknessMm: s.thicknessMm ?? 0, material: s.material ?? null }
+	);
+}

@@ -1,0 +1,101 @@
+/**
+ * The Part JSON of the API (DESIGN.md): one serializer used by the API, the CSV export
+ * and anyone else who hands a part to the outside.
+ */
+import type { Measurement, Part, PartSurface } from '$lib/server/db/schema';
+import type { Totals } from '$lib/server/stock/availability';
+import type { EflSource } from './derived';
+
+/** A surface in Part JSON: thickness and material describe the medium after it; the last has neither. */
+export interface SurfaceJson {
+	radiusMm: number | null;
+	thicknessMm?: number;
+	material?: string | null;
+}
+
+export interface PartJson {
+	id: number;
+	sku: string;
+	name: string;
+	kind: Part['kind'];
+	diameterMm: number;
+	clearApertureMm: number | null;
+	surfaces: SurfaceJson[];
+	/** Datasheet (nominal) EFL at designWavelengthNm, mm. */
+	eflMm: number | null;
+	bflMm: number | null;
+	centerThicknessMm: number | null;
+	designWavelengthNm: number;
+	coating: string | null;
+	supplier: string | null;
+	supplierPartNumber: string | null;
+	/** Unit price in integer minor units (cents) of `currency`. */
+	unitPrice: number | null;
+	currency: string;
+	leadTimeDays: number | null;
+	reorderPoint: number;
+	reorderQuantity: number;
+	notes: string | null;
+	/** Usable units in all locations. */
+	onHand: number;
+	/** On hand minus active, unexpired reservations. */
+	available: number;
+	/** The latest measurement (the solver uses it), or null. */
+	measured: { eflMm: number; wavelengthNm: number; uncertaintyMm: number | null; measuredAt: string } | null;
+	/** EFL the catalogue sorts and filters on: at the lab's default wavelength, from `source`. */
+	computed: { eflMm: number | null; source: EflSource | null; wavelengthNm: number };
+	archived: boolean;
+	updatedAt: string;
+}
+
+/** Surfaces rows (any order) → Part JSON surfaces in catalogue order. */
+export function surfacesJson(rows: readonly Pick<PartSurface, 'position' | 'radiusMm' | 'thicknessMm' | 'materialCode'>[]): SurfaceJson[] {
+	const sorted = [...rows].sort((a, b) => a.position - b.position);
+	return sorted.map((s, i) =>
+		i === sorted.length - 1 ? { radiusMm: s.radiusMm } : { radiusMm: s.radiusMm, thicknessMm: s.thicknessMm ?? 0, material: s.materialCode }
+	);
+}
+
+/** Builds the Part JSON from a row, its surfaces, supplier name, totals and latest measurement. */
+export function toPartJson(
+	part: Part,
+	extra: {
+		surfaces: readonly Pick<PartSurface, 'position' | 'radiusMm' | 'thicknessMm' | 'materialCode'>[];
+		supplierName: string | null;
+		totals: Totals;
+		measured: Pick<Measurement, 'eflMm' | 'wavelengthNm' | 'uncertaintyMm' | 'measuredAt'> | null;
+		defaultWavelengthNm: number;
+	}
+): PartJson {
+	const m = extra.measured;
+	return {
+		id: part.id,
+		sku: part.sku,
+		name: part.name,
+		kind: part.kind,
+		diameterMm: part.diameterMm,
+		clearApertureMm: part.clearApertureMm,
+		surfaces: surfacesJson(extra.surfaces),
+		eflMm: part.eflMm,
+		bflMm: part.bflMm,
+		centerThicknessMm: part.centerThicknessMm,
+		designWavelengthNm: part.designWavelengthNm,
+		coating: part.coating,
+		supplier: extra.supplierName,
+		supplierPartNumber: part.supplierPartNumber,
+		unitPrice: part.unitPriceMinor,
+		currency: part.currency,
+		leadTimeDays: part.leadTimeDays,
+		reorderPoint: part.reorderPoint,
+		reorderQuantity: part.reorderQuantity,
+		notes: part.notes,
+		onHand: extra.totals.onHand,
+		available: extra.totals.available,
+		measured: m
+			? { eflMm: m.eflMm, wavelengthNm: m.wavelengthNm, uncertaintyMm: m.uncertaintyMm, measuredAt: m.measuredAt.toISOString() }
+			: null,
+		computed: { eflMm: part.paraxialEflMm, source: part.eflSource, wavelengthNm: extra.defaultWavelengthNm },
+		archived: part.archivedAt !== null,
+		updatedAt: part.updatedAt.toISOString()
+	};
+}

@@ -1,0 +1,353 @@
+/**
+ * The parts service: create, update, archive, read and list catalogue parts. Every write
+ * validates with `partInputSchema` (zod + optics checks), stores the surfaces, refreshes
+ * the derived EFL columns, bumps the stock version and records an audit event, in one
+ * transaction. The data layer knows nothing of HTTP: failures are `ZodError` (bad input)
+ * or `DomainError` (404 not found, 409 duplicate SKU / supplier part number).
+ *
+ * Used by the part pages and API, by CSV imports (validate rows with `partInputSchema`,
+ * then `createPart` / `updatePart`) and by the solver (`getPart`).
+ *
+ * @example
+ *   import * as parts from '$lib/server/catalogue/parts';
+ *   const { id } = await parts.createPart(db, body, { id: user.id });
+ *   const json = await parts.getPartJson(db, id);
+ */
+import { and, desc, eq, inArray } from 'drizzle-orm';
+import { ZodError } from 'zod';
+import type { DbOrTx } from '$lib/server/db';
+import { measurements, movements, partSurfaces, parts, reservations, stock, suppliers, type Part } from '$lib/server/db/schema';
+import type { Role } from '$lib/server/db/schema';
+import { DomainError } from '$lib/server/api/http';
+import { recordAudit } from '$lib/server/audit';
+import { bumpStockVersion } from '$lib/server/stock/version';
+import { totalsFor } from '$lib/server/stock/availability';
+import { paraxialColumns, type MeasuredEfl } from './derived';
+import { partInputSchema, partPatchSchema, PURCHASING_FIELDS, toSurfaceSpecs, type PartInput, type PartPatch } from './part-input';
+import { toPartJson, type PartJson } from './part-json';
+import { getDefaultWavelengthNm } from './settings';
+
+export { partInputSchema, partPatchSchema, partFieldsSchema, PURCHASING_FIELDS } from './part-input';
+export type { PartInput, PartPatch } from './part-input';
+export { toPartJson, type PartJson } from './part-json';
+export { computeDerived, paraxialColumns } from './derived';
+export { listParts, listQuerySchema, type ListQuery } from './list';
+
+export interface Actor {
+	id: number;
+	role?: Role;
+}
+
+export class PartNotFound extends DomainError {
+	constructor(id: number | string) {
+		super(404, 'not-found', `There is no part ${id}.`);
+	}
+}
+
+/** A part with everything the part page and Part JSON need. */
+export interface PartRecord {
+	part: Part;
+	surfaces: (typeof partSurfaces.$inferSelect)[];
+	supplierName: string | null;
+	latestMeasurement: typeof measurements.$inferSelect | null;
+}
+
+async function supplierIdFor(tx: DbOrTx, name: string | null | undefined, actor: Actor): Promise<number | null> {
+	if (!name) return null;
+	const [found] = await tx.select({ id: suppliers.id }).from(suppliers).where(eq(suppliers.name, name)).limit(1);
+	if (found) return found.id;
+	// A new supplier name (typed in the form or met in an import) becomes a supplier.
+	const [{ id }] = await tx.insert(suppliers).values({ name }).$returningId();
+	await recordAudit(tx, { actorId: actor.id, action: 'supplier.create', targetType: 'supplier', targetId: id, detail: { name } });
+	return id;
+}
+
+function columnsOf(input: PartInput, supplierId: number | null) {
+	const firstGlass = input.surfaces.find((s, i) => i < input.surfaces.length - 1 && s.material)?.material ?? null;
+	return {
+		sku: input.sku,
+		name: input.name,
+		kind: input.kind,
+		diameterMm: input.diameterMm,
+		clearApertureMm: input.clearApertureMm ?? null,
+		eflMm: input.eflMm ?? null,
+		bflMm: input.bflMm ?? null,
+		centerThicknessMm: input.centerThicknessMm ?? null,
+		designWavelengthNm: input.designWavelengthNm,
+		primaryMaterial: firstGlass ? firstGlass.toLowerCase() : null,
+		coating: input.coating ?? null,
+		supplierId,
+		supplierPartNumber: input.supplierPartNumber ?? null,
+		unitPriceMinor: input.unitPrice ?? null,
+		currency: input.currency,
+		leadTimeDays: input.leadTimeDays ?? null,
+		reorderPoint: input.reorderPoint,
+		reorderQuantity: input.reorderQuantity,
+		notes: input.notes ?? null
+	};
+}
+
+async function assertUnique(tx: DbOrTx, cols: ReturnType<typeof columnsOf>, exceptId: number | null) {
+	const [sku] = await tx.select({ id: parts.id }).from(parts).where(eq(parts.sku, cols.sku)).limit(1);
+	if (sku && sku.id !== exceptId) {
+		throw new DomainError(409, 'duplicate-sku', `The SKU ${cols.sku} is already in the catalogue.`, { sku: 'This SKU is already in use.' });
+	}
+	if (cols.supplierId !== null && cols.supplierPartNumber) {
+		const [pn] = await tx
+			.select({ id: parts.id })
+			.from(parts)
+			.where(and(eq(parts.supplierId, cols.supplierId), eq(parts.supplierPartNumber, cols.supplierPartNumber)))
+			.limit(1);
+		if (pn && pn.id !== exceptId) {
+			throw new DomainError(409, 'duplicate-supplier-part-number', 'Another part already has this supplier part number.', {
+				supplierPartNumber: 'Another part of this supplier has this number.'
+			});
+		}
+	}
+}
+
+async function writeSurfaces(tx: DbOrTx, partId: number, input: PartInput) {
+	await tx.delete(partSurfaces).where(eq(partSurfaces.partId, partId));
+	if (!input.surfaces.length) return;
+	const specs = toSurfaceSpecs(input.surfaces);
+	await tx.insert(partSurfaces).values(
+		specs.map((s, i) => ({
+			partId,
+			position: i,
+			radiusMm: s.radiusMm,
+			thicknessMm: i === specs.length - 1 ? null : (s.thicknessMm ?? 0),
+			materialCode: i === specs.length - 1 ? null : (s.material ?? null)
+		}))
+	);
+}
+
+async function latestMeasurementOf(db: DbOrTx, partId: number) {
+	const [m] = await db
+		.select()
+		.from(measurements)
+		.where(eq(measurements.partId, partId))
+		.orderBy(desc(measurements.measuredAt), desc(measurements.id))
+		.limit(1);
+	return m ?? null;
+}
+
+/**
+ * Recomputes and stores the part's EFL at the lab's default wavelength (from its
+ * prescription, its latest measurement rescaled, or its datasheet numbers). Call it
+ * inside the transaction that changed the part or its measurements.
+ */
+export async function refreshDerived(tx: DbOrTx, partId: number, defaultWavelengthNm?: number) {
+	const [part] = await tx.select().from(parts).where(eq(parts.id, partId)).limit(1);
+	if (!part) throw new PartNotFound(partId);
+	const rows = await tx.select().from(partSurfaces).where(eq(partSurfaces.partId, partId)).orderBy(partSurfaces.position);
+	const m = await latestMeasurementOf(tx, partId);
+	const wl = defaultWavelengthNm ?? (await getDefaultWavelengthNm(tx));
+	const cols = paraxialColumns(
+		{
+			surfaces: toSurfaceSpecs(rows.map((r) => ({ radiusMm: r.radiusMm, thicknessMm: r.thicknessMm, material: r.materialCode }))),
+			eflMm: part.eflMm,
+			bflMm: part.bflMm,
+			centerThicknessMm: part.centerThicknessMm,
+			designWavelengthNm: part.designWavelengthNm,
+			diameterMm: part.diameterMm,
+			clearApertureMm: part.clearApertureMm,
+			primaryMaterial: part.primaryMaterial
+		},
+		wl,
+		m ? ({ eflMm: m.eflMm, wavelengthNm: m.wavelengthNm } satisfies MeasuredEfl) : null
+	);
+	await tx.update(parts).set(cols).where(eq(parts.id, partId));
+	return cols;
+}
+
+/** Recomputes the derived columns of every part (after the default wavelength changed, or by the seed). */
+export async function refreshAllDerived(db: DbOrTx): Promise<number> {
+	const wl = await getDefaultWavelengthNm(db);
+	const ids = await db.select({ id: parts.id }).from(parts);
+	for (const { id } of ids) await refreshDerived(db, id, wl);
+	return ids.length;
+}
+
+/** Creates a part from unknown input (throws ZodError / DomainError 409). Returns its id. */
+export async function createPart(db: DbOrTx, input: unknown, actor: Actor): Promise<{ id: number }> {
+	const data = partInputSchema.parse(input);
+	return db.transaction(async (tx) => {
+		const cols = columnsOf(data, await supplierIdFor(tx, data.supplier, actor));
+		await assertUnique(tx, cols, null);
+		const [{ id }] = await tx.insert(parts).values(cols).$returningId();
+		await writeSurfaces(tx, id, data);
+		await refreshDerived(tx, id);
+		await bumpStockVersion(tx);
+		await recordAudit(tx, { actorId: actor.id, action: 'part.create', targetType: 'part', targetId: id, detail: { sku: data.sku } });
+		return { id };
+	});
+}
+
+/** The stored part in input form (what the edit form starts from and a PATCH merges into). */
+export function toInput(record: PartRecord): PartInput {
+	const p = record.part;
+	const specs = [...record.surfaces].sort((a, b) => a.position - b.position);
+	return {
+		sku: p.sku,
+		name: p.name,
+		kind: p.kind,
+		diameterMm: p.diameterMm,
+		clearApertureMm: p.clearApertureMm,
+		surfaces: specs.map((s, i) =>
+			i === specs.length - 1 ? { radiusMm: s.radiusMm } : { radiusMm: s.radiusMm, thicknessMm: s.thicknessMm ?? 0, material: s.materialCode }
+		),
+		eflMm: p.eflMm,
+		bflMm: p.bflMm,
+		centerThicknessMm: p.centerThicknessMm,
+		designWavelengthNm: p.designWavelengthNm,
+		coating: p.coating,
+		supplier: record.supplierName,
+		supplierPartNumber: p.supplierPartNumber,
+		unitPrice: p.unitPriceMinor,
+		currency: p.currency,
+		leadTimeDays: p.leadTimeDays,
+		reorderPoint: p.reorderPoint,
+		reorderQuantity: p.reorderQuantity,
+		notes: p.notes
+	};
+}
+
+/**
+ * Field-level rule of PATCH: stock editors (admin, stockroom) may change any field; a
+ * purchaser only the purchasing fields (supplier, supplier part number, price, currency,
+ * lead time, reorder point and quantity). Anything else is 403.
+ */
+export function assertPatchAllowed(role: Role | undefined, patch: PartPatch) {
+	if (role === 'admin' || role === 'stockroom') return;
+	if (role === 'purchaser') {
+		const other = Object.keys(patch).filter((k) => !(PURCHASING_FIELDS as readonly string[]).includes(k));
+		if (other.length) {
+			throw new DomainError(403, 'forbidden', `A purchaser may change only the purchasing fields, not: ${other.join(', ')}.`);
+		}
+		return;
+	}
+	throw new DomainError(403, 'forbidden', 'Your role may not change parts.');
+}
+
+/**
+ * Updates a part with a partial input (any subset of the fields; `surfaces` replaces all
+ * surfaces). The merged part is validated as a whole. Applies `assertPatchAllowed` when
+ * the actor carries a role.
+ */
+export async function updatePart(db: DbOrTx, id: number, patch: unknown, actor: Actor): Promise<{ id: number }> {
+	const data = partPatchSchema.parse(patch);
+	if (actor.role) assertPatchAllowed(actor.role, data);
+	return db.transaction(async (tx) => {
+		const record = await getPart(tx, id, { forUpdate: true });
+		if (!record) throw new PartNotFound(id);
+		const merged = partInputSchema.parse({ ...toInput(record), ...data });
+		const cols = columnsOf(merged, await supplierIdFor(tx, merged.supplier, actor));
+		await assertUnique(tx, cols, id);
+		await tx.update(parts).set(cols).where(eq(parts.id, id));
+		if (data.surfaces) await writeSurfaces(tx, id, merged);
+		await refreshDerived(tx, id);
+		await bumpStockVersion(tx);
+		await recordAudit(tx, { actorId: actor.id, action: 'part.update', targetType: 'part', targetId: id, detail: { fields: Object.keys(data) } });
+		return { id };
+	});
+}
+
+/**
+ * Removes a part from the catalogue. A part that has stock, a ledger, reservations or
+ * measurements is archived (hidden from the catalogue and the solver, its history kept);
+ * one that never had any is deleted outright.
+ */
+export async function archivePart(db: DbOrTx, id: number, actor: Actor): Promise<{ id: number; outcome: 'archived' | 'deleted' }> {
+	return db.transaction(async (tx) => {
+		const [part] = await tx.select().from(parts).where(eq(parts.id, id)).for('update');
+		if (!part) throw new PartNotFound(id);
+		const has = async (table: typeof stock | typeof movements | typeof reservations | typeof measurements) =>
+			(await tx.select({ id: table.id }).from(table).where(eq(table.partId, id)).limit(1)).length > 0;
+		const history = (await has(stock)) || (await has(movements)) || (await has(reservations)) || (await has(measurements));
+		let outcome: 'archived' | 'deleted' = 'archived';
+		if (history) {
+			if (!part.archivedAt) await tx.update(parts).set({ archivedAt: new Date() }).where(eq(parts.id, id));
+		} else {
+			try {
+				await tx.transaction(async (sp) => {
+					await sp.delete(partSurfaces).where(eq(partSurfaces.partId, id));
+					await sp.delete(parts).where(eq(parts.id, id));
+				});
+				outcome = 'deleted';
+			} catch {
+				// Referenced from another area (e.g. a datasheet or a purchase request): keep it, archived.
+				await tx.update(parts).set({ archivedAt: new Date() }).where(eq(parts.id, id));
+			}
+		}
+		await bumpStockVersion(tx);
+		await recordAudit(tx, { actorId: actor.id, action: `part.${outcome === 'deleted' ? 'delete' : 'archive'}`, targetType: 'part', targetId: id, detail: { sku: part.sku } });
+		return { id, outcome };
+	});
+}
+
+/** Brings an archived part back into the catalogue. */
+export async function restorePart(db: DbOrTx, id: number, actor: Actor) {
+	return db.transaction(async (tx) => {
+		const [part] = await tx.select({ id: parts.id }).from(parts).where(eq(parts.id, id)).for('update');
+		if (!part) throw new PartNotFound(id);
+		await tx.update(parts).set({ archivedAt: null }).where(eq(parts.id, id));
+		await bumpStockVersion(tx);
+		await recordAudit(tx, { actorId: actor.id, action: 'part.restore', targetType: 'part', targetId: id });
+		return { id };
+	});
+}
+
+/** One part with its surfaces, supplier name and latest measurement, or null. */
+export async function getPart(db: DbOrTx, id: number, opts: { forUpdate?: boolean } = {}): Promise<PartRecord | null> {
+	const q = db.select().from(parts).where(eq(parts.id, id));
+	const [part] = opts.forUpdate ? await q.for('update') : await q;
+	if (!part) return null;
+	const surfaces = await db.select().from(partSurfaces).where(eq(partSurfaces.partId, id)).orderBy(partSurfaces.position);
+	const supplier = part.supplierId
+		? ((await db.select({ name: suppliers.name }).from(suppliers).where(eq(suppliers.id, part.supplierId)))[0]?.name ?? null)
+		: null;
+	return { part, surfaces, supplierName: supplier, latestMeasurement: await latestMeasurementOf(db, id) };
+}
+
+/** Finds a part id by SKU (for imports), or null. */
+export async function findPartIdBySku(db: DbOrTx, sku: string): Promise<number | null> {
+	const [row] = await db.select({ id: parts.id }).from(parts).where(eq(parts.sku, sku)).limit(1);
+	return row?.id ?? null;
+}
+
+/** Part JSON of many parts at once (one query per table), in the order of `rows`. */
+export async function partsJson(db: DbOrTx, rows: readonly Part[]): Promise<PartJson[]> {
+	if (!rows.length) return [];
+	const ids = rows.map((r) => r.id);
+	const [surfaceRows, supplierRows, measurementRows, totals, wl] = await Promise.all([
+		db.select().from(partSurfaces).where(inArray(partSurfaces.partId, ids)),
+		db.select({ id: suppliers.id, name: suppliers.name }).from(suppliers),
+		db.select().from(measurements).where(inArray(measurements.partId, ids)).orderBy(desc(measurements.measuredAt), desc(measurements.id)),
+		totalsFor(db, ids),
+		getDefaultWavelengthNm(db)
+	]);
+	const supplierName = new Map(supplierRows.map((s) => [s.id, s.name]));
+	const latest = new Map<number, (typeof measurementRows)[number]>();
+	for (const m of measurementRows) if (!latest.has(m.partId)) latest.set(m.partId, m);
+	return rows.map((p) =>
+		toPartJson(p, {
+			surfaces: surfaceRows.filter((s) => s.partId === p.id),
+			supplierName: p.supplierId ? (supplierName.get(p.supplierId) ?? null) : null,
+			totals: totals.get(p.id)!,
+			measured: latest.get(p.id) ?? null,
+			defaultWavelengthNm: wl
+		})
+	);
+}
+
+/** Part JSON of one part; throws 404 when it does not exist. */
+export async function getPartJson(db: DbOrTx, id: number): Promise<PartJson> {
+	const [part] = await db.select().from(parts).where(eq(parts.id, id));
+	if (!part) throw new PartNotFound(id);
+	return (await partsJson(db, [part]))[0];
+}
+
+/** True when `err` is a validation failure of part input (for forms that show field messages). */
+export function isInvalidInput(err: unknown): err is ZodError {
+	return err instanceof ZodError;
+}
