@@ -80,9 +80,11 @@ export const TRACE_TIR = 2;
  * surface where it stopped (−1 when it passed all). `heightsMm`, if given, receives the
  * ray height at each surface met. Returns the status. Allocates nothing.
  *
- * Intersection: with the ray written relative to the vertex, the sphere
- * c(Z² + Y²) − 2Z = 0 is met at t = F / (B + √(B² − cF)), F = c(Z² + Y²) − 2Z,
- * B = dirZ − c(Z·dirZ + Y·dirY), the root on the vertex side, exact also for c = 0.
+ * Intersection: the ray is first carried to the vertex tangent plane (height Y there),
+ * then the sphere c(Z² + Y²) − 2Z = 0 is met at t = F / (B + √(B² − cF)) further on,
+ * F = cY², B = dirZ − c·Y·dirY: the root on the vertex side, exact also for c = 0
+ * (the classical two-step transfer; t may be negative when the surface bulges
+ * towards the ray). A ray not moving towards +z, or beside the sphere, has missed.
  * Refraction: n'·d' = n·d + (n' cos I' − n cos I)·N with N = (1 − cZ, −cY).
  */
 export function traceRay(sys: TraceSystem, ray: Float64Array, heightsMm: Float64Array | null = null): number {
@@ -93,9 +95,14 @@ export function traceRay(sys: TraceSystem, ray: Float64Array, heightsMm: Float64
 	let nBefore = 1;
 	for (let k = 0; k < sys.count; k++) {
 		const c = sys.curvaturePerMm[k];
-		const z0 = z - sys.zMm[k];
-		const f = c * (z0 * z0 + y * y) - 2 * z0;
-		const b = dz - c * (z0 * dz + y * dy);
+		if (!(dz > 0)) return stop(ray, z, y, dz, dy, TRACE_MISSED, k);
+		// First to the vertex tangent plane (so the near-root form below stays valid
+		// however far away the ray starts), then on to the sphere.
+		const t0 = (sys.zMm[k] - z) / dz;
+		z = sys.zMm[k];
+		y += t0 * dy;
+		const f = c * y * y;
+		const b = dz - c * y * dy;
 		const disc = b * b - c * f;
 		const den = disc >= 0 ? b + Math.sqrt(disc) : -1;
 		if (!(den > 0)) return stop(ray, z, y, dz, dy, TRACE_MISSED, k);
