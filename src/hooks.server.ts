@@ -6,6 +6,7 @@ import { resolveSession } from '$lib/server/auth/sessions';
 import { resolveBearer } from '$lib/server/auth/tokens';
 import { errorResponse } from '$lib/server/api/http';
 import { isPublicPath } from '$lib/server/auth/public-paths';
+import { env } from '$env/dynamic/private';
 
 /** Resolves the user once per request: a bearer token on the API, else the session cookie. */
 const resolveUser: Handle = async ({ event, resolve }) => {
@@ -43,6 +44,25 @@ const gate: Handle = async ({ event, resolve }) => {
 	return new Response(null, { status: 303, headers: { location: `/signin?redirectTo=${encodeURIComponent(back)}` } });
 };
 
+const SAFE_METHODS = new Set(['GET', 'HEAD', 'OPTIONS']);
+
+/**
+ * CSRF net for the API: a write (POST, PUT, PATCH, DELETE) under /api/ without a bearer token must
+ * come from our own origin (ORIGIN). When a session cookie signed it in, the Origin header is
+ * required; a foreign Origin is refused in any case. Bearer requests carry no ambient credential
+ * and are exempt. Form posts to pages are checked by SvelteKit's own origin check.
+ */
+const apiOrigin: Handle = async ({ event, resolve }) => {
+	const { request, url } = event;
+	if (!url.pathname.startsWith('/api/') || SAFE_METHODS.has(request.method) || event.locals.authVia === 'token') return resolve(event);
+	const origin = request.headers.get('origin');
+	const ours = (env.ORIGIN ?? url.origin).replace(/\/+$/, '');
+	if (origin ? origin !== ours : event.locals.authVia === 'session') {
+		return errorResponse(403, 'cross-site', 'This request must come from the Glasscrib pages (Origin header missing or foreign).');
+	}
+	return resolve(event);
+};
+
 /** Security headers on every response; no caching of anything a signed-in user sees. */
 const securityHeaders: Handle = async ({ event, resolve }) => {
 	const response = await resolve(event);
@@ -63,7 +83,7 @@ const securityHeaders: Handle = async ({ event, resolve }) => {
 	return response;
 };
 
-export const handle: Handle = sequence(resolveUser, gate, securityHeaders);
+export const handle: Handle = sequence(securityHeaders, resolveUser, gate, apiOrigin);
 
 export const handleError: HandleServerError = ({ error: err, event, status, message }) => {
 	const id = event.locals?.requestId ?? randomUUID();

@@ -12,7 +12,11 @@ const ALL: readonly Role[] = ['admin', 'stockroom', 'engineer', 'purchaser'];
  * The main navigation. Add an entry here when its page exists; the layout shows each role only
  * what it may use (the server checks again on every request).
  */
-export const NAV: NavItem[] = [{ href: '/', label: 'Overview', roles: ALL }];
+export const NAV: NavItem[] = [
+	{ href: '/', label: 'Overview', roles: ALL },
+	{ href: '/admin/users', label: 'Users', roles: ['admin'] },
+	{ href: '/admin/outbox', label: 'Outbox', roles: ['admin'] }
+];
 
 export function navFor(role: Role | undefined): NavItem[] {
 	return role ? NAV.filter((item) => item.roles.includes(role)) : [];

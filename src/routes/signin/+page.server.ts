@@ -2,28 +2,34 @@ import { fail, redirect } from '@sveltejs/kit';
 import { env } from '$env/dynamic/private';
 import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
-import { checkCredentials, safeRedirect, signinSchema } from '$lib/server/accounts/signin';
+import { attemptSignin, INVALID_CREDENTIALS, safeRedirect, signinSchema, throttledMessage } from '$lib/server/accounts/signin';
 import { startSession } from '$lib/server/auth/sessions';
+import { requireRole } from '$lib/server/auth/guard';
+import { PUBLIC } from '$lib/server/auth/roles';
 
-export const load = (async ({ locals, url }) => {
-	// Public page: no role needed. A signed-in user goes straight on.
-	if (locals.user) redirect(303, safeRedirect(url.searchParams.get('redirectTo')));
-	return { redirectTo: safeRedirect(url.searchParams.get('redirectTo')) };
+export const load = (async (event) => {
+	// Public page. A signed-in user goes straight on.
+	const user = requireRole(event, PUBLIC);
+	if (user) redirect(303, safeRedirect(event.url.searchParams.get('redirectTo')));
+	return { redirectTo: safeRedirect(event.url.searchParams.get('redirectTo')), reset: event.url.searchParams.get('reset') === 'sent' };
 }) satisfies PageServerLoad;
 
 export const actions = {
-	default: async ({ request, cookies, url }) => {
+	default: async (event) => {
+		requireRole(event, PUBLIC);
+		const { request, cookies, url } = event;
 		const form = await request.formData();
 		const values = { email: String(form.get('email') ?? ''), password: String(form.get('password') ?? '') };
 		const parsed = signinSchema.safeParse(values);
 		if (!parsed.success) {
 			return fail(400, { email: values.email, message: 'Enter your e-mail address and password.' });
 		}
-		const user = await checkCredentials(db, parsed.data.email, parsed.data.password, env.AUTH_PEPPER);
-		if (!user) {
-			return fail(400, { email: values.email, message: 'That e-mail and password do not match an active account.' });
+		const result = await attemptSignin(db, { ...parsed.data, clientAddress: event.getClientAddress(), pepper: env.AUTH_PEPPER });
+		if (!result.ok && result.reason === 'throttled') {
+			return fail(429, { email: values.email, message: throttledMessage(result.retryAfterSeconds) });
 		}
-		await startSession(user.id, cookies, request.headers.get('user-agent'));
+		if (!result.ok) return fail(400, { email: values.email, message: INVALID_CREDENTIALS });
+		await startSession(result.user.id, cookies, request.headers.get('user-agent'));
 		redirect(303, safeRedirect(url.searchParams.get('redirectTo')));
 	}
 } satisfies Actions;

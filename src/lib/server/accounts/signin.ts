@@ -4,6 +4,7 @@ import type { DbOrTx } from '$lib/server/db';
 import { users } from '$lib/server/db/schema';
 import { randomBytes } from 'node:crypto';
 import { hashPassword, verifyPassword } from '$lib/server/auth/password';
+import * as throttle from '$lib/server/auth/throttle';
 
 export const signinSchema = z
 	.object({
@@ -27,6 +28,36 @@ export async function checkCredentials(db: DbOrTx, email: string, password: stri
 	if (!ok || user.status !== 'active') return null;
 	return user;
 }
+
+export type SigninResult =
+	| { ok: true; user: typeof users.$inferSelect }
+	| { ok: false; reason: 'throttled'; retryAfterSeconds: number }
+	| { ok: false; reason: 'invalid' };
+
+/**
+ * A sign-in attempt, throttled per account and per client address (5 failures in 15 minutes).
+ * A blocked attempt is refused without looking at the password. A failure counts in both buckets;
+ * a success clears only the account's own counter, never the address counter.
+ */
+export async function attemptSignin(
+	db: DbOrTx,
+	input: { email: string; password: string; clientAddress: string; pepper?: string }
+): Promise<SigninResult> {
+	const names = [throttle.buckets.account(input.email), throttle.buckets.ip(input.clientAddress)];
+	const wait = await throttle.retryAfterSeconds(db, names);
+	if (wait > 0) return { ok: false, reason: 'throttled', retryAfterSeconds: wait };
+	const user = await checkCredentials(db, input.email, input.password, input.pepper);
+	if (!user) {
+		await throttle.countAttempt(db, names);
+		return { ok: false, reason: 'invalid' };
+	}
+	await throttle.clearBucket(db, names[0]);
+	return { ok: true, user };
+}
+
+export const INVALID_CREDENTIALS = 'That e-mail and password do not match an active account.';
+export const throttledMessage = (seconds: number) =>
+	`Too many failed sign-ins for this account or from this network. Try again in ${throttle.waitText(seconds)}.`;
 
 /** Only local paths may be redirected to after sign-in. */
 export function safeRedirect(target: string | null | undefined): string {

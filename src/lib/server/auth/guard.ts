@@ -1,15 +1,22 @@
 import { error, redirect, type RequestEvent } from '@sveltejs/kit';
 import type { Role } from '$lib/server/db/schema';
+import type { PUBLIC } from './roles';
 
 export type SignedInUser = NonNullable<App.Locals['user']>;
+
+type GuardEvent = Pick<RequestEvent, 'locals' | 'url'>;
 
 /**
  * The one role check. Call it at the top of every load, form action and `+server.ts` handler with
  * the named role set it needs (see roles.ts). Not signed in: a page is redirected to /signin, an API
- * call gets 401. Signed in with another role: 403.
+ * call gets 401. Signed in with another role: 403. With `PUBLIC` it lets everyone through and
+ * returns the user or null, so a public handler states its role the same way.
  */
-export function requireRole(event: Pick<RequestEvent, 'locals' | 'url'>, roles: readonly Role[]): SignedInUser {
+export function requireRole(event: GuardEvent, roles: typeof PUBLIC): SignedInUser | null;
+export function requireRole(event: GuardEvent, roles: readonly Role[]): SignedInUser;
+export function requireRole(event: GuardEvent, roles: readonly Role[] | typeof PUBLIC): SignedInUser | null {
 	const user = event.locals.user;
+	if (roles === 'public') return user;
 	if (!user) {
 		if (!event.url.pathname.startsWith('/api/')) {
 			const back = event.url.pathname + event.url.search;

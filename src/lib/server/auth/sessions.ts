@@ -7,6 +7,7 @@ import { DrizzleMySQLAdapter } from '@lucia-auth/adapter-drizzle';
 import { env } from '$env/dynamic/private';
 import type { Cookies } from '@sveltejs/kit';
 import { db } from '$lib/server/db';
+import { and, eq, ne } from 'drizzle-orm';
 import { sessions, users, type Role } from '$lib/server/db/schema';
 
 export const IDLE_TIMEOUT = new TimeSpan(30, 'm');
@@ -83,6 +84,11 @@ export async function endSession(session: Session, cookies: Cookies) {
 /** Ends every session of a user (password reset, deactivation). */
 export function endAllSessions(userId: number) {
 	return lucia.invalidateUserSessions(userId);
+}
+
+/** Ends every session of a user except one (after a password change in that session). */
+export async function endOtherSessions(userId: number, keepSessionId: string) {
+	await db.delete(sessions).where(and(eq(sessions.userId, userId), ne(sessions.id, keepSessionId)));
 }
 
 function clearCookie(cookies: Cookies) {

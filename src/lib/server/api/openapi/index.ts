@@ -5,8 +5,9 @@
  */
 import type { OpenApiPaths } from './types';
 import { foundationPaths } from './foundation';
+import { accountsPaths } from './accounts';
 
-const areas: OpenApiPaths[] = [foundationPaths];
+const areas: OpenApiPaths[] = [foundationPaths, accountsPaths];
 
 export function openApiDocument() {
 	return {

@@ -1,0 +1,117 @@
+import { afterAll, beforeEach, describe, expect, it } from 'vitest';
+import { eq, sql } from 'drizzle-orm';
+import { testDb } from '../../support/env';
+import { sessions } from '../../../src/lib/server/db/schema';
+import { api, APP, clearThrottle, cookieFor, signInApi, url } from './helpers';
+
+const { db, pool } = testDb();
+afterAll(() => pool.end());
+beforeEach(() => clearThrottle(db));
+
+const sessionId = (cookie: string) => cookie.split('=')[1];
+
+describe('sessions over the API', () => {
+	it('signs in with a fresh HttpOnly, SameSite=Lax cookie (not Secure on an http origin) and answers /me', async () => {
+		const a = await signInApi('engineer@tarnwell.example');
+		expect(a.res.status).toBe(200);
+		expect(await a.res.json()).toMatchObject({ user: { email: 'engineer@tarnwell.example', role: 'engineer' } });
+		const raw = a.res.headers.getSetCookie().find((c) => c.startsWith('gc_session='))!;
+		expect(raw).toMatch(/HttpOnly/i);
+		expect(raw).toMatch(/SameSite=Lax/i);
+		expect(raw).toMatch(/Path=\//i);
+		expect(raw).not.toMatch(/Domain=/i);
+		expect(APP().startsWith('http:')).toBe(true);
+		expect(raw).not.toMatch(/Secure/i);
+		const b = await signInApi('engineer@tarnwell.example');
+		expect(b.cookie).not.toBe(a.cookie);
+		const me = await api('GET', '/api/v1/me', { cookie: a.cookie! });
+		expect(me.status).toBe(200);
+		expect(await me.json()).toMatchObject({ user: { role: 'engineer' }, authVia: 'session' });
+	});
+
+	it('gives the same 401 for a wrong password and for an unknown address', async () => {
+		const wrong = await signInApi('engineer@tarnwell.example', 'not-the-password-at-all');
+		const unknown = await signInApi('nobody@tarnwell.example', 'not-the-password-at-all');
+		expect(wrong.res.status).toBe(401);
+		expect(unknown.res.status).toBe(401);
+		expect(await wrong.res.json()).toEqual(await unknown.res.json());
+		expect(wrong.cookie).toBeNull();
+	});
+
+	it('answers bad input with 400 and a non-JSON body with 415', async () => {
+		const bad = await api('POST', '/api/v1/session', {}, { email: 'x', password: '' });
+		expect(bad.status).toBe(400);
+		expect((await bad.json()).error.fields).toHaveProperty('email');
+		const extra = await api('POST', '/api/v1/session', {}, { email: 'engineer@tarnwell.example', password: 'x', role: 'admin' });
+		expect(extra.status).toBe(400);
+		const text = await fetch(url('/api/v1/session'), { method: 'POST', headers: { 'content-type': 'application/xml', origin: APP() }, body: '<hi/>' });
+		expect(text.status).toBe(415);
+	});
+
+	it('ends the session on the server at sign-out', async () => {
+		const cookie = await cookieFor('purchaser@tarnwell.example');
+		const out = await api('DELETE', '/api/v1/session', { cookie });
+		expect(out.status).toBe(204);
+		const rows = await db.select().from(sessions).where(eq(sessions.id, sessionId(cookie)));
+		expect(rows).toHaveLength(0);
+		expect((await api('GET', '/api/v1/me', { cookie })).status).toBe(401);
+	});
+
+	it('refuses a session past its idle expiry', async () => {
+		const cookie = await cookieFor('stockroom@tarnwell.example');
+		await db.update(sessions).set({ expiresAt: new Date(Date.now() - 1000) }).where(eq(sessions.id, sessionId(cookie)));
+		const res = await api('GET', '/api/v1/me', { cookie });
+		expect(res.status).toBe(401);
+		expect((await res.json()).error.code).toBe('unauthenticated');
+	});
+
+	it('refuses a session older than 12 hours even while it is being used', async () => {
+		const cookie = await cookieFor('stockroom@tarnwell.example');
+		expect((await api('GET', '/api/v1/me', { cookie })).status).toBe(200);
+		await db
+			.update(sessions)
+			.set({ createdAt: new Date(Date.now() - 12 * 3600_000 - 60_000) })
+			.where(eq(sessions.id, sessionId(cookie)));
+		expect((await api('GET', '/api/v1/me', { cookie })).status).toBe(401);
+	});
+
+	it('renews a session when half of its idle time has passed', async () => {
+		const cookie = await cookieFor('stockroom@tarnwell.example');
+		const soon = new Date(Date.now() + 10 * 60_000);
+		await db.update(sessions).set({ expiresAt: soon }).where(eq(sessions.id, sessionId(cookie)));
+		const res = await api('GET', '/api/v1/me', { cookie });
+		expect(res.status).toBe(200);
+		const [row] = await db.select().from(sessions).where(eq(sessions.id, sessionId(cookie)));
+		expect(new Date(row.expiresAt).getTime()).toBeGreaterThan(soon.getTime() + 60_000);
+		expect(res.headers.getSetCookie().some((c) => c.startsWith('gc_session='))).toBe(true);
+	});
+
+	it('refuses cookie API writes without our Origin (CSRF), but not bearer requests', async () => {
+		const cookie = await cookieFor('engineer@tarnwell.example');
+		const none = await api('DELETE', '/api/v1/session', { cookie, origin: null });
+		expect(none.status).toBe(403);
+		const evil = await api('DELETE', '/api/v1/session', { cookie, origin: 'https://evil.example' });
+		expect(evil.status).toBe(403);
+		expect((await evil.json()).error.code).toBe('cross-site');
+		// the session survived both attempts
+		expect((await api('GET', '/api/v1/me', { cookie })).status).toBe(200);
+		const login = await api('POST', '/api/v1/session', { origin: 'https://evil.example' }, { email: 'engineer@tarnwell.example', password: 'x' });
+		expect(login.status).toBe(403);
+	});
+
+	it('keeps SvelteKit’s origin check on form posts', async () => {
+		const res = await fetch(url('/signin'), {
+			method: 'POST',
+			headers: { 'content-type': 'application/x-www-form-urlencoded', origin: 'https://evil.example' },
+			body: 'email=engineer%40tarnwell.example&password=x'
+		});
+		expect(res.status).toBe(403);
+	});
+
+	it('stores no plain session ids beyond lucia’s random ids and keeps them unguessable', async () => {
+		const cookie = await cookieFor('engineer@tarnwell.example');
+		expect(sessionId(cookie).length).toBeGreaterThanOrEqual(20);
+		const [{ n }] = (await db.execute(sql`select count(*) as n from sessions where id = ${sessionId(cookie)}`))[0] as unknown as { n: number }[];
+		expect(Number(n)).toBe(1);
+	});
+});
