@@ -48,7 +48,7 @@ export function api(method: string, path: string, auth: Auth = {}, body?: unknow
 
 /** A plain (not enhanced) form post, as a browser without JavaScript sends it. */
 export function postForm(path: string, fields: Record<string, string>, auth: Auth = {}) {
-	const headers: Record<string, string> = { 'content-type': 'application/x-www-form-urlencoded', origin: auth.origin ?? APP() };
+	const headers: Record<string, string> = { 'content-type': 'application/x-www-form-urlencoded', accept: 'text/html', origin: auth.origin ?? APP() };
 	if (auth.cookie) headers.cookie = auth.cookie;
 	return fetch(url(path), { method: 'POST', headers, body: new URLSearchParams(fields).toString(), redirect: 'manual' });
 }

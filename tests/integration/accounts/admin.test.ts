@@ -1,0 +1,76 @@
+import { afterAll, beforeEach, describe, expect, it } from 'vitest';
+import { and, eq } from 'drizzle-orm';
+import { testDb } from '../../support/env';
+import { auditEvents, users } from '../../../src/lib/server/db/schema';
+import { api, clearThrottle, cookieFor, DEMO_PASSWORD, lastOutboxId, postForm, waitForMail } from './helpers';
+
+const { db, pool } = testDb();
+afterAll(async () => {
+	await db.update(users).set({ role: 'purchaser' }).where(eq(users.email, 'purchaser@tarnwell.example'));
+	await pool.end();
+});
+beforeEach(() => clearThrottle(db));
+
+const idOf = async (email: string) => (await db.select().from(users).where(eq(users.email, email)))[0].id;
+
+describe('user administration', () => {
+	it('changes a role (the new role applies at once), audits it and tells the person by mail', async () => {
+		const admin = await cookieFor('admin@tarnwell.example');
+		const purchaser = await cookieFor('purchaser@tarnwell.example');
+		expect((await api('GET', '/api/v1/outbox', { cookie: purchaser })).status).toBe(403);
+		const since = await lastOutboxId(db);
+		const id = await idOf('purchaser@tarnwell.example');
+		const res = await postForm('/admin/users?/role', { userId: String(id), role: 'admin' }, { cookie: admin });
+		expect(res.status).toBe(200);
+		expect((await api('GET', '/api/v1/outbox', { cookie: purchaser })).status).toBe(200);
+		const mail = await waitForMail(db, 'purchaser@tarnwell.example', since, 'role');
+		expect(mail.textBody).toContain('Administrator');
+		const ev = await db.select().from(auditEvents).where(and(eq(auditEvents.action, 'user.role-changed'), eq(auditEvents.targetId, String(id))));
+		expect(ev.at(-1)?.detail).toEqual({ from: 'purchaser', to: 'admin' });
+		await postForm('/admin/users?/role', { userId: String(id), role: 'purchaser' }, { cookie: admin });
+		expect((await api('GET', '/api/v1/outbox', { cookie: purchaser })).status).toBe(403);
+	});
+
+	it('will not demote or deactivate the last active administrator', async () => {
+		const admin = await cookieFor('admin@tarnwell.example');
+		const id = await idOf('admin@tarnwell.example');
+		const demote = await postForm('/admin/users?/role', { userId: String(id), role: 'engineer' }, { cookie: admin });
+		expect(demote.status).toBe(409);
+		expect(await demote.text()).toContain('last active administrator');
+		const off = await postForm('/admin/users?/deactivate', { userId: String(id) }, { cookie: admin });
+		expect(off.status).toBe(409);
+		const [me] = await db.select().from(users).where(eq(users.id, id));
+		expect(me.role).toBe('admin');
+		expect(me.status).toBe('active');
+	});
+
+	it('refuses an invitation to an address that has an account, keeping the typed values', async () => {
+		const admin = await cookieFor('admin@tarnwell.example');
+		const res = await postForm('/admin/users?/invite', { email: 'engineer@tarnwell.example', name: 'Dup Licate', role: 'engineer' }, { cookie: admin });
+		expect(res.status).toBe(409);
+		const html = await res.text();
+		expect(html).toContain('already has an account');
+		expect(html).toContain('Dup Licate');
+		const bad = await postForm('/admin/users?/invite', { email: 'not-an-address', name: '', role: 'wizard' }, { cookie: admin });
+		expect(bad.status).toBe(400);
+	});
+
+	it('changes the password with the current one, ends the other sessions and sends a notice', async () => {
+		const email = 'stockroom@tarnwell.example';
+		const a = await cookieFor(email);
+		const b = await cookieFor(email);
+		const wrong = await postForm('/account?/password', { current: 'not-my-password', password: 'a long new password here', confirm: 'a long new password here' }, { cookie: a });
+		expect(wrong.status).toBe(400);
+		const short = await postForm('/account?/password', { current: DEMO_PASSWORD(), password: 'short', confirm: 'short' }, { cookie: a });
+		expect(short.status).toBe(400);
+		const since = await lastOutboxId(db);
+		const ok = await postForm('/account?/password', { current: DEMO_PASSWORD(), password: 'a long new password here', confirm: 'a long new password here' }, { cookie: a });
+		expect(ok.status).toBe(200);
+		expect((await api('GET', '/api/v1/me', { cookie: a })).status).toBe(200);
+		expect((await api('GET', '/api/v1/me', { cookie: b })).status).toBe(401);
+		await waitForMail(db, email, since, 'password was changed');
+		// put the demo password back for the other tests
+		const back = await postForm('/account?/password', { current: 'a long new password here', password: DEMO_PASSWORD(), confirm: DEMO_PASSWORD() }, { cookie: a });
+		expect(back.status).toBe(200);
+	});
+});
