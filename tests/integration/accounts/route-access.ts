@@ -1,0 +1,73 @@
+/**
+ * Who may use which route: the table the role matrix test (role-matrix.test.ts) walks.
+ *
+ * One entry per route id (the folder under src/routes, e.g. '/parts/[id]'), with the access of
+ * each thing the route exports: the page load as GET, each form action under `actions` (the unnamed
+ * one is 'default'), and each HTTP method of a +server.ts. Access is `PUBLIC` or one of the named
+ * role sets from src/lib/server/auth/roles.ts. The test fails when a route exists that the table
+ * does not list (or the table lists one that no longer exists), so add your route here with it.
+ *
+ * - A route with a dynamic param needs `url`, a sample address. The walk really sends the requests
+ *   (writes with an empty body `{}` or an empty form), so for a route that changes things use an id
+ *   that does not exist (e.g. /api/v1/parts/99999999): allowed roles then get 404 or 400, which
+ *   count as allowed; only 401/403 count as denied.
+ * - `endsSession: true` for a request that signs the caller out; the walk uses a throwaway session.
+ */
+import type { Role } from '../../../src/lib/server/db/schema';
+import { ADMINS, ANY_ROLE, PUBLIC, PURCHASERS, RESERVERS, STOCK_EDITORS, STOCK_HANDLERS } from '../../../src/lib/server/auth/roles';
+
+export type Access = typeof PUBLIC | readonly Role[];
+export type Method = 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE';
+
+export type RouteAccess = Partial<Record<Method, Access>> & {
+	url?: string;
+	actions?: Record<string, Access>;
+	endsSession?: boolean;
+};
+
+const PART_PATCHERS: readonly Role[] = [...new Set([...STOCK_EDITORS, ...PURCHASERS])];
+
+export const ROUTE_ACCESS: Record<string, RouteAccess> = {
+	// ── foundation ──
+	'/': { GET: ANY_ROLE },
+	'/health': { GET: PUBLIC },
+	'/api/v1/openapi.json': { GET: PUBLIC },
+
+	// ── accounts ──
+	'/signin': { GET: PUBLIC, actions: { default: PUBLIC } },
+	'/signin/forgot': { GET: PUBLIC, actions: { default: PUBLIC } },
+	'/signout': { GET: ANY_ROLE, actions: { default: ANY_ROLE }, endsSession: true },
+	'/welcome/[token]': { url: '/welcome/no-such-link-0000000000000000000000', GET: PUBLIC, actions: { default: PUBLIC } },
+	'/account': { GET: ANY_ROLE, actions: { password: ANY_ROLE, createToken: ANY_ROLE, revokeToken: ANY_ROLE } },
+	'/admin/users': { GET: ADMINS, actions: { invite: ADMINS, role: ADMINS, deactivate: ADMINS, reactivate: ADMINS, resend: ADMINS } },
+	'/admin/outbox': { GET: ADMINS },
+	'/admin/outbox/[id]': { url: '/admin/outbox/99999999', GET: ADMINS },
+	'/api/v1/session': { POST: PUBLIC, DELETE: ANY_ROLE, endsSession: true },
+	'/api/v1/me': { GET: ANY_ROLE },
+	'/api/v1/tokens': { GET: ANY_ROLE, POST: ANY_ROLE },
+	'/api/v1/tokens/[id]': { url: '/api/v1/tokens/99999999', DELETE: ANY_ROLE },
+	'/api/v1/outbox': { GET: ADMINS },
+
+	// ── catalogue ──
+	'/api/v1/parts': { GET: ANY_ROLE, POST: STOCK_EDITORS },
+	'/api/v1/parts/[id]': { url: '/api/v1/parts/99999999', GET: ANY_ROLE, PATCH: PART_PATCHERS, DELETE: STOCK_EDITORS },
+	'/api/v1/parts/[id]/measurements': { url: '/api/v1/parts/99999999/measurements', GET: ANY_ROLE, POST: STOCK_EDITORS },
+	'/api/v1/parts/[id]/movements': { url: '/api/v1/parts/99999999/movements', GET: ANY_ROLE },
+
+	// ── stock ──
+	'/api/v1/locations': { GET: ANY_ROLE, POST: STOCK_EDITORS },
+	'/api/v1/locations/[id]': { url: '/api/v1/locations/99999999', GET: ANY_ROLE, PATCH: STOCK_EDITORS },
+	'/api/v1/stock': { GET: ANY_ROLE },
+	'/api/v1/stock/export.csv': { GET: ANY_ROLE },
+	'/api/v1/stock/receive': { POST: STOCK_EDITORS },
+	'/api/v1/stock/move': { POST: STOCK_EDITORS },
+	'/api/v1/stock/adjust': { POST: STOCK_EDITORS },
+	'/api/v1/stock/scrap': { POST: STOCK_EDITORS },
+	'/api/v1/stock/condition': { POST: STOCK_EDITORS },
+	'/api/v1/stock/issue': { POST: STOCK_HANDLERS },
+	'/api/v1/stock/return': { POST: STOCK_HANDLERS },
+	'/api/v1/reservations': { GET: ANY_ROLE, POST: RESERVERS },
+	'/api/v1/reservations/[id]': { url: '/api/v1/reservations/99999999', DELETE: RESERVERS }
+
+	// ── imports, solver, purchasing: add your routes here ──
+};
