@@ -67,7 +67,16 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	'/api/v1/stock/issue': { POST: STOCK_HANDLERS },
 	'/api/v1/stock/return': { POST: STOCK_HANDLERS },
 	'/api/v1/reservations': { GET: ANY_ROLE, POST: RESERVERS },
-	'/api/v1/reservations/[id]': { url: '/api/v1/reservations/99999999', DELETE: RESERVERS }
+	'/api/v1/reservations/[id]': { url: '/api/v1/reservations/99999999', DELETE: RESERVERS },
+
+	// ── imports, exports, datasheets ──
+	'/api/v1/parts/export.csv': { GET: ANY_ROLE },
+	'/api/v1/parts/[id]/datasheets': { url: '/api/v1/parts/99999999/datasheets', GET: ANY_ROLE, POST: STOCK_EDITORS },
+	'/api/v1/datasheets/[id]': { url: '/api/v1/datasheets/99999999', GET: ANY_ROLE, DELETE: STOCK_EDITORS },
+	'/api/v1/datasheets/[id]/thumbnail': { url: '/api/v1/datasheets/99999999/thumbnail', GET: ANY_ROLE },
+	'/api/v1/datasheets/match': { POST: STOCK_EDITORS },
+	'/api/v1/imports': { GET: STOCK_EDITORS, POST: STOCK_EDITORS },
+	'/api/v1/imports/[id]': { url: '/api/v1/imports/99999999', GET: STOCK_EDITORS }
 
 	// ── imports, solver, purchasing: add your routes here ──
 };

@@ -6,9 +6,10 @@
 import type { OpenApiPaths } from './types';
 import { foundationPaths } from './foundation';
 import { accountsPaths } from './accounts';
+import { importsPaths } from './imports';
 import { cataloguePaths } from './catalogue';
 
-const areas: OpenApiPaths[] = [foundationPaths, accountsPaths, cataloguePaths];
+const areas: OpenApiPaths[] = [foundationPaths, accountsPaths, importsPaths, cataloguePaths];
 
 export function openApiDocument() {
 	return {

@@ -1,0 +1,279 @@
+/**
+ * Datasheets and photos of parts: bytes in S3, one row each in `datasheets`. The type comes from the
+ * magic bytes; images get a PNG thumbnail. Consistency between the two stores:
+ * - upload: objects first, then the row; if the row cannot be written the objects are deleted again;
+ *   if S3 is down nothing reaches the database (503).
+ * - delete: the row is deleted inside a transaction that only commits once S3 has deleted the objects;
+ *   if S3 is down the row stays with its object (503).
+ */
+import { createHash, randomUUID } from 'node:crypto';
+import { and, desc, eq, inArray, isNull } from 'drizzle-orm';
+import type { DbOrTx } from '$lib/server/db';
+import { datasheets, parts, users, type Datasheet, type DatasheetType } from '$lib/server/db/schema';
+import { ApiError, DomainError } from '$lib/server/api/http';
+import { recordAudit } from '$lib/server/audit';
+import { describeRefused, EXTENSIONS, isImageType, maxBytesFor, sniffType, MAX_IMAGE_BYTES, MAX_PDF_BYTES } from './magic';
+import { makeThumbnail } from './thumbnails';
+import type { ObjectStore, StoredObject } from './s3';
+
+export interface DatasheetJson {
+	id: number;
+	partId: number;
+	filename: string;
+	contentType: DatasheetType;
+	kind: 'document' | 'photo';
+	sizeBytes: number;
+	sha256: string;
+	uploadedAt: string;
+	uploadedBy: { id: number; name: string | null };
+	/** Streams the file (signed-in users only). */
+	downloadUrl: string;
+	/** The PNG thumbnail of a photo, or null. */
+	thumbnailUrl: string | null;
+	thumbnail: { width: number; height: number } | null;
+}
+
+const mb = (n: number) => `${Math.round(n / (1024 * 1024))} MB`;
+
+/** The name the client gave, reduced to a plain file name for display (never used as a key). */
+export function cleanFilename(name: string): string {
+	const base = name.split(/[\\/]/).pop() ?? '';
+	// eslint-disable-next-line no-control-regex
+	const cleaned = base.replace(/[\u0000-\u001f\u007f]/g, '').trim().slice(0, 255);
+	return cleaned || 'unnamed';
+}
+
+export class DatasheetNotFound extends DomainError {
+	constructor(id: number) {
+		super(404, 'not-found', `There is no datasheet ${id}.`);
+	}
+}
+
+/**
+ * Checks the bytes of an upload and says what they are. Throws ApiError 400 (empty, wrong type,
+ * unreadable image) or 413 (too large) with a message for people.
+ */
+export function checkUpload(bytes: Uint8Array): DatasheetType {
+	if (bytes.byteLength === 0) throw new ApiError(400, 'empty-file', 'The file is empty.');
+	const type = sniffType(bytes);
+	if (!type) {
+		throw new ApiError(
+			400,
+			'unsupported-type',
+			`This looks like ${describeRefused(bytes)}. Upload a PDF, PNG or JPEG file; the type is read from the file itself, not its name.`
+		);
+	}
+	if (type === 'image/webp') {
+		throw new ApiError(400, 'unsupported-type', 'WebP images are not accepted (no thumbnail can be made): save the photo as PNG or JPEG.');
+	}
+	if (bytes.byteLength > maxBytesFor(type)) {
+		throw new ApiError(
+			413,
+			'too-large',
+			`The file is ${(bytes.byteLength / (1024 * 1024)).toFixed(1)} MB; ${isImageType(type) ? `photos may be at most ${mb(MAX_IMAGE_BYTES)}` : `PDFs may be at most ${mb(MAX_PDF_BYTES)}`}.`
+		);
+	}
+	return type;
+}
+
+function toJson(row: Datasheet, uploaderName: string | null): DatasheetJson {
+	return {
+		id: row.id,
+		partId: row.partId,
+		filename: row.filename,
+		contentType: row.contentType,
+		kind: isImageType(row.contentType) ? 'photo' : 'document',
+		sizeBytes: row.sizeBytes,
+		sha256: row.sha256,
+		uploadedAt: row.uploadedAt.toISOString(),
+		uploadedBy: { id: row.uploadedBy, name: uploaderName },
+		downloadUrl: `/api/v1/datasheets/${row.id}`,
+		thumbnailUrl: row.thumbnailKey ? `/api/v1/datasheets/${row.id}/thumbnail` : null,
+		thumbnail: row.thumbnailKey && row.thumbnailWidth && row.thumbnailHeight ? { width: row.thumbnailWidth, height: row.thumbnailHeight } : null
+	};
+}
+
+async function assertPart(db: DbOrTx, partId: number) {
+	const [part] = await db.select({ id: parts.id, sku: parts.sku }).from(parts).where(eq(parts.id, partId)).limit(1);
+	if (!part) throw new DomainError(404, 'not-found', `There is no part ${partId}.`);
+	return part;
+}
+
+/** Stores a datasheet or photo for a part. */
+export async function uploadDatasheet(
+	db: DbOrTx,
+	store: ObjectStore,
+	input: { partId: number; filename: string; bytes: Uint8Array; actorId: number }
+): Promise<DatasheetJson> {
+	const part = await assertPart(db, input.partId);
+	const contentType = checkUpload(input.bytes);
+	const filename = cleanFilename(input.filename);
+	const sha256 = createHash('sha256').update(input.bytes).digest('hex');
+	let thumb = null;
+	if (isImageType(contentType)) {
+		thumb = await makeThumbnail(input.bytes);
+		if (!thumb) throw new ApiError(400, 'unreadable-image', 'The image could not be read: the file may be damaged or not really an image.');
+	}
+	const uuid = randomUUID();
+	const key = `datasheets/${uuid}`;
+	const thumbnailKey = thumb ? `thumbnails/${uuid}.png` : null;
+	const written: string[] = [];
+	const undo = async () => {
+		for (const k of written) await store.delete(k).catch(() => undefined);
+	};
+	try {
+		await store.put(key, input.bytes, contentType, { 'original-filename': filename, sha256, 'part-sku': part.sku });
+		written.push(key);
+		if (thumb && thumbnailKey) {
+			await store.put(thumbnailKey, thumb.png, 'image/png', { 'thumbnail-of': key });
+			written.push(thumbnailKey);
+		}
+	} catch (err) {
+		await undo();
+		throw err;
+	}
+	try {
+		const id = await db.transaction(async (tx) => {
+			const [{ id }] = await tx
+				.insert(datasheets)
+				.values({
+					partId: input.partId,
+					s3Key: key,
+					thumbnailKey,
+					thumbnailWidth: thumb?.width ?? null,
+					thumbnailHeight: thumb?.height ?? null,
+					filename,
+					contentType,
+					sizeBytes: input.bytes.byteLength,
+					sha256,
+					uploadedBy: input.actorId
+				})
+				.$returningId();
+			await recordAudit(tx, {
+				actorId: input.actorId,
+				action: 'datasheet.upload',
+				targetType: 'part',
+				targetId: input.partId,
+				detail: { datasheetId: id, filename, contentType, sizeBytes: input.bytes.byteLength, sha256 }
+			});
+			return id;
+		});
+		return (await getDatasheet(db, id))!;
+	} catch (err) {
+		await undo();
+		throw err;
+	}
+}
+
+/** The datasheets and photos of a part, newest first. */
+export async function listDatasheets(db: DbOrTx, partId: number): Promise<DatasheetJson[]> {
+	const rows = await db
+		.select({ d: datasheets, name: users.name })
+		.from(datasheets)
+		.leftJoin(users, eq(users.id, datasheets.uploadedBy))
+		.where(eq(datasheets.partId, partId))
+		.orderBy(desc(datasheets.uploadedAt), desc(datasheets.id));
+	return rows.map((r) => toJson(r.d, r.name));
+}
+
+export async function getDatasheet(db: DbOrTx, id: number): Promise<DatasheetJson | null> {
+	const [r] = await db
+		.select({ d: datasheets, name: users.name })
+		.from(datasheets)
+		.leftJoin(users, eq(users.id, datasheets.uploadedBy))
+		.where(eq(datasheets.id, id))
+		.limit(1);
+	return r ? toJson(r.d, r.name) : null;
+}
+
+/** Headers for a download: never rendered by the browser as a page (SECURITY.md V12). */
+export function downloadHeaders(d: { contentType: string; filename: string; sizeBytes?: number }, downloadName: string, disposition: 'attachment' | 'inline' = 'attachment') {
+	const ascii = downloadName.replace(/[^A-Za-z0-9._-]/g, '_');
+	const h: Record<string, string> = {
+		'Content-Type': d.contentType,
+		'Content-Disposition': `${disposition}; filename="${ascii}"; filename*=UTF-8''${encodeURIComponent(d.filename)}`,
+		'X-Content-Type-Options': 'nosniff',
+		'Content-Security-Policy': "default-src 'none'; sandbox",
+		'Cache-Control': 'private, no-store'
+	};
+	if (d.sizeBytes !== undefined) h['Content-Length'] = String(d.sizeBytes);
+	return h;
+}
+
+/** Opens a datasheet's bytes (or its thumbnail) for streaming, with the headers to send. */
+export async function openDatasheet(
+	db: DbOrTx,
+	store: ObjectStore,
+	id: number,
+	which: 'file' | 'thumbnail' = 'file'
+): Promise<{ object: StoredObject; headers: Record<string, string> }> {
+	const [row] = await db
+		.select({ d: datasheets, sku: parts.sku })
+		.from(datasheets)
+		.innerJoin(parts, eq(parts.id, datasheets.partId))
+		.where(eq(datasheets.id, id))
+		.limit(1);
+	if (!row) throw new DatasheetNotFound(id);
+	const d = row.d;
+	if (which === 'thumbnail') {
+		if (!d.thumbnailKey) throw new DomainError(404, 'not-found', 'This datasheet has no thumbnail.');
+		const object = await store.get(d.thumbnailKey);
+		return {
+			object,
+			headers: downloadHeaders({ contentType: 'image/png', filename: `${d.filename}.thumbnail.png`, sizeBytes: object.contentLength }, `${row.sku}-${d.id}-thumbnail.png`, 'inline')
+		};
+	}
+	const object = await store.get(d.s3Key);
+	return { object, headers: downloadHeaders(d, `${row.sku}-${d.id}.${EXTENSIONS[d.contentType]}`) };
+}
+
+/** Deletes a datasheet: its objects and its row, both or neither. */
+export async function deleteDatasheet(db: DbOrTx, store: ObjectStore, id: number, actorId: number): Promise<void> {
+	await db.transaction(async (tx) => {
+		const [d] = await tx.select().from(datasheets).where(eq(datasheets.id, id)).for('update');
+		if (!d) throw new DatasheetNotFound(id);
+		await tx.delete(datasheets).where(eq(datasheets.id, id));
+		await recordAudit(tx, {
+			actorId,
+			action: 'datasheet.delete',
+			targetType: 'part',
+			targetId: d.partId,
+			detail: { datasheetId: id, filename: d.filename, sha256: d.sha256 }
+		});
+		// Only when S3 has let go of the objects does the row go (a throw here rolls the delete back).
+		await store.delete(d.s3Key);
+		if (d.thumbnailKey) await store.delete(d.thumbnailKey);
+	});
+}
+
+/** How a dropped file's name is matched to a SKU: the name without its extension, or that name up to " ", "_" or "(". */
+export function skuCandidates(filename: string): string[] {
+	const base = cleanFilename(filename);
+	const stem = base.includes('.') ? base.slice(0, base.lastIndexOf('.')) : base;
+	const out = [stem.trim()];
+	const cut = stem.search(/[ _(]/);
+	if (cut > 0) out.push(stem.slice(0, cut).trim());
+	return [...new Set(out.filter(Boolean))];
+}
+
+export interface BulkMatch {
+	filename: string;
+	part: { id: number; sku: string; name: string } | null;
+}
+
+/** Matches file names to parts by SKU (case-insensitive; archived parts are left out). */
+export async function matchFilenames(db: DbOrTx, filenames: readonly string[]): Promise<BulkMatch[]> {
+	const candidates = filenames.map(skuCandidates);
+	const all = [...new Set(candidates.flat())];
+	const found = all.length
+		? await db
+				.select({ id: parts.id, sku: parts.sku, name: parts.name })
+				.from(parts)
+				.where(and(inArray(parts.sku, all), isNull(parts.archivedAt)))
+		: [];
+	const bySku = new Map(found.map((p) => [p.sku.toLowerCase(), p]));
+	return filenames.map((filename, i) => {
+		const hit = candidates[i].map((c) => bySku.get(c.toLowerCase())).find(Boolean) ?? null;
+		return { filename, part: hit };
+	});
+}

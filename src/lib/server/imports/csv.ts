@@ -1,0 +1,159 @@
+/**
+ * CSV reading and writing for imports and exports (papaparse). Files are UTF-8 with or without a
+ * byte order mark; the delimiter is a comma, semicolon or tab, found from the header row.
+ */
+import type { Readable } from 'node:stream';
+import Papa from 'papaparse';
+import { ApiError } from '$lib/server/api/http';
+
+/** Caps on an uploaded CSV. 16 MB holds about 80,000 rows of the export's format (~200 bytes a row). */
+export const CSV_MAX_BYTES = 16 * 1024 * 1024;
+export const CSV_MAX_ROWS = 100_000;
+
+export type Delimiter = ',' | ';' | '\t';
+export const DELIMITER_NAMES: Record<Delimiter, string> = { ',': 'comma', ';': 'semicolon', '\t': 'tab' };
+
+/** Text cells that a spreadsheet could run as a formula get a leading ' on export (SECURITY.md V5). */
+const FORMULA_START = /^'*[=+\-@\t\r]/;
+
+/** The cell as the export writes it: a leading ' where a spreadsheet would read a formula. */
+export function escapeFormula(text: string): string {
+	return FORMULA_START.test(text) ? `'${text}` : text;
+}
+
+/** Undoes `escapeFormula` (only for cells that it would have escaped), so a round trip is exact. */
+export function unescapeFormula(text: string): string {
+	return text.startsWith("'") && FORMULA_START.test(text.slice(1)) ? text.slice(1) : text;
+}
+
+/** Counts delimiters outside quotes in the first line. */
+export function detectDelimiter(text: string): Delimiter {
+	const counts: Record<Delimiter, number> = { ',': 0, ';': 0, '\t': 0 };
+	let quoted = false;
+	for (let i = 0; i < text.length; i++) {
+		const c = text[i];
+		if (c === '"') quoted = !quoted;
+		else if (!quoted && (c === '\n' || c === '\r')) break;
+		else if (!quoted && (c === ',' || c === ';' || c === '\t')) counts[c]++;
+	}
+	const best = (Object.keys(counts) as Delimiter[]).sort((a, b) => counts[b] - counts[a])[0];
+	return counts[best] > 0 ? best : ',';
+}
+
+export interface CheckedCsv {
+	/** The text without its BOM. */
+	text: string;
+	delimiter: Delimiter;
+	header: string[];
+	/** The first data rows, for the mapping screen. */
+	preview: string[][];
+	rowCount: number;
+}
+
+const BINARY_SIGNATURES: [number[], string][] = [
+	[[0x25, 0x50, 0x44, 0x46], 'a PDF document'],
+	[[0x50, 0x4b, 0x03, 0x04], 'a ZIP archive or a spreadsheet workbook (save it as CSV first)'],
+	[[0xd0, 0xcf, 0x11, 0xe0], 'an old-style office document (save it as CSV first)'],
+	[[0x89, 0x50, 0x4e, 0x47], 'a PNG image'],
+	[[0xff, 0xd8, 0xff], 'a JPEG image']
+];
+
+/**
+ * Checks an uploaded file before anything is stored: size, not empty, text in UTF-8, a header row
+ * with distinct names and at least one data row, no more than CSV_MAX_ROWS rows.
+ * Throws ApiError (400, or 413 for size) with a message for people.
+ */
+export function checkCsv(bytes: Uint8Array, opts: { maxBytes?: number; maxRows?: number } = {}): CheckedCsv {
+	const maxBytes = opts.maxBytes ?? CSV_MAX_BYTES;
+	const maxRows = opts.maxRows ?? CSV_MAX_ROWS;
+	if (bytes.byteLength > maxBytes) {
+		throw new ApiError(413, 'too-large', `The file is ${(bytes.byteLength / (1024 * 1024)).toFixed(1)} MB; a CSV may be at most ${Math.round(maxBytes / (1024 * 1024))} MB. Split it into smaller files.`);
+	}
+	if (bytes.byteLength === 0) throw new ApiError(400, 'empty-file', 'The file is empty.', { file: 'The file is empty.' });
+	for (const [sig, what] of BINARY_SIGNATURES) {
+		if (sig.every((b, i) => bytes[i] === b)) {
+			throw new ApiError(400, 'not-csv', `This is ${what}, not a CSV file.`, { file: `This is ${what}, not a CSV file.` });
+		}
+	}
+	const sample = bytes.subarray(0, 8192);
+	if (sample.includes(0)) {
+		throw new ApiError(400, 'not-csv', 'This is not a text file (it contains binary data). Upload a CSV file.', { file: 'This is not a CSV file.' });
+	}
+	let text: string;
+	try {
+		text = new TextDecoder('utf-8', { fatal: true }).decode(bytes);
+	} catch {
+		throw new ApiError(400, 'not-utf8', 'The file is not UTF-8 text. Save it from your spreadsheet as "CSV UTF-8".', {
+			file: 'Save the file as CSV UTF-8.'
+		});
+	}
+	if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
+	if (text.trim() === '') throw new ApiError(400, 'empty-file', 'The file is empty.', { file: 'The file is empty.' });
+	const delimiter = detectDelimiter(text);
+	let header: string[] | null = null;
+	const preview: string[][] = [];
+	let rowCount = 0;
+	let tooMany = false;
+	Papa.parse<string[]>(text, {
+		delimiter,
+		skipEmptyLines: 'greedy',
+		step: (r, parser) => {
+			if (!header) header = r.data.map((c) => c.trim());
+			else {
+				rowCount++;
+				if (preview.length < 5) preview.push(r.data);
+				if (rowCount > maxRows) {
+					tooMany = true;
+					parser.abort();
+				}
+			}
+		}
+	});
+	if (tooMany) {
+		throw new ApiError(400, 'too-many-rows', `The file has more than ${maxRows.toLocaleString('en')} rows. Split it into smaller files.`, { file: 'Too many rows.' });
+	}
+	const h = header as string[] | null;
+	if (!h || h.every((c) => c === '')) throw new ApiError(400, 'no-header', 'The file has no header row.', { file: 'No header row.' });
+	if (rowCount === 0) {
+		throw new ApiError(400, 'header-only', 'The file has a header row but no data rows.', { file: 'The file has a header row but no data rows.' });
+	}
+	const seen = new Set<string>();
+	h.forEach((c, i) => {
+		if (c === '') throw new ApiError(400, 'blank-header', `Column ${i + 1} of the header row has no name.`, { file: `Column ${i + 1} has no name.` });
+		if (seen.has(c)) throw new ApiError(400, 'duplicate-header', `Two columns of the header row are named "${c}".`, { file: `Two columns are named "${c}".` });
+		seen.add(c);
+	});
+	return { text, delimiter, header: h, preview, rowCount };
+}
+
+/**
+ * Streams the records of a stored CSV (header first) as string arrays; memory stays flat whatever
+ * the file size. `source` is a byte stream (S3 body or file).
+ */
+export async function* csvRecords(source: Readable, delimiter: Delimiter): AsyncGenerator<string[]> {
+	source.setEncoding('utf8'); // decodes multibyte characters split across chunks (STACK.md)
+	const parser = Papa.parse(Papa.NODE_STREAM_INPUT, { delimiter, skipEmptyLines: 'greedy' }) as unknown as NodeJS.ReadWriteStream;
+	let first = true;
+	source.pipe(parser);
+	source.on('error', (err) => parser.emit('error', err));
+	for await (const record of parser as AsyncIterable<string[]>) {
+		if (first) {
+			first = false;
+			if (record.length && record[0].charCodeAt(0) === 0xfeff) record[0] = record[0].slice(1);
+		}
+		yield record;
+	}
+}
+
+/** One CSV line (with CRLF) from cells; quotes where needed. */
+export function csvLine(cells: readonly (string | number | null | undefined)[], delimiter: Delimiter = ','): string {
+	return (
+		cells
+			.map((c) => {
+				if (c === null || c === undefined) return '';
+				const s = typeof c === 'number' ? String(c) : c;
+				return /["\r\n]/.test(s) || s.includes(delimiter) || /^\s|\s$/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
+			})
+			.join(delimiter) + '\r\n'
+	);
+}

@@ -1,0 +1,232 @@
+/**
+ * The columns of a Glasscrib CSV: the Part JSON field names (DESIGN.md), with the surfaces
+ * flattened as r1Mm, t1Mm, material1, r2Mm, ... The export writes exactly these headers, so an
+ * exported file imports without any mapping; a supplier's list is mapped onto them.
+ */
+import { unit } from 'mathjs';
+
+/** Surfaces a CSV row may describe (the part schema allows 12). */
+export const MAX_SURFACES = 12;
+
+export const SCALAR_FIELDS = [
+	'sku',
+	'name',
+	'kind',
+	'diameterMm',
+	'clearApertureMm',
+	'eflMm',
+	'bflMm',
+	'centerThicknessMm',
+	'designWavelengthNm',
+	'coating',
+	'supplier',
+	'supplierPartNumber',
+	'unitPrice',
+	'currency',
+	'leadTimeDays',
+	'reorderPoint',
+	'reorderQuantity',
+	'notes'
+] as const;
+export type ScalarField = (typeof SCALAR_FIELDS)[number];
+
+export const surfaceFields = (k: number) => [`r${k}Mm`, `t${k}Mm`, `material${k}`] as const;
+
+/** Every importable field, in the export's column order. */
+export const IMPORT_FIELDS: readonly string[] = [
+	...SCALAR_FIELDS,
+	...Array.from({ length: MAX_SURFACES }, (_, i) => surfaceFields(i + 1)).flat()
+];
+const FIELD_SET = new Set(IMPORT_FIELDS);
+export const isImportField = (f: string) => FIELD_SET.has(f);
+
+/** Columns the export writes that the importer reads but never writes (computed or stock values). */
+export const READ_ONLY_COLUMNS = ['id', 'onHand', 'available', 'computedEflMm'] as const;
+
+const NUMERIC = new Set<string>([
+	'diameterMm',
+	'clearApertureMm',
+	'eflMm',
+	'bflMm',
+	'centerThicknessMm',
+	'designWavelengthNm',
+	'unitPrice',
+	'leadTimeDays',
+	'reorderPoint',
+	'reorderQuantity'
+]);
+export const isNumericField = (f: string) => NUMERIC.has(f) || /^[rt]\d+Mm$/.test(f);
+
+/** Fields holding a length: the file may give them in mm or inches. */
+export const isLengthField = (f: string) => ['diameterMm', 'clearApertureMm', 'eflMm', 'bflMm', 'centerThicknessMm'].includes(f) || /^[rt]\d+Mm$/.test(f);
+
+export const LENGTH_UNITS = ['mm', 'in'] as const;
+export type LengthUnit = (typeof LENGTH_UNITS)[number];
+/** unitPrice: 'minor' = integer cents as in Part JSON (and the export); 'major' = 42.50 style, ×100. */
+export const PRICE_UNITS = ['minor', 'major'] as const;
+
+/** Millimetres per unit, from mathjs (so the factor is the standard one, 25.4 mm per inch exactly). */
+export const MM_PER: Record<LengthUnit, number> = {
+	mm: 1,
+	in: unit(1, 'inch').toNumber('mm')
+};
+
+/** Human labels for the mapping screen. */
+export function fieldLabel(f: string): string {
+	const labels: Record<string, string> = {
+		sku: 'SKU',
+		name: 'Name',
+		kind: 'Kind',
+		diameterMm: 'Diameter',
+		clearApertureMm: 'Clear aperture',
+		eflMm: 'EFL (datasheet)',
+		bflMm: 'BFL (datasheet)',
+		centerThicknessMm: 'Centre thickness (no prescription)',
+		designWavelengthNm: 'Design wavelength (nm)',
+		coating: 'Coating',
+		supplier: 'Supplier',
+		supplierPartNumber: 'Supplier part number',
+		unitPrice: 'Unit price',
+		currency: 'Currency',
+		leadTimeDays: 'Lead time (days)',
+		reorderPoint: 'Reorder point',
+		reorderQuantity: 'Reorder quantity',
+		notes: 'Notes'
+	};
+	if (labels[f]) return labels[f];
+	const m = /^(r|t|material)(\d+)(Mm)?$/.exec(f);
+	if (m) return `${m[1] === 'r' ? 'Radius' : m[1] === 't' ? 'Thickness after' : 'Material after'} surface ${m[2]}`;
+	return f;
+}
+
+const norm = (s: string) =>
+	s
+		.toLowerCase()
+		.replace(/\(.*?\)|\[.*?\]/g, ' ')
+		.replace(/[^a-z0-9]+/g, '');
+
+/** Header words (normalised: lower case, letters and digits only, bracketed units dropped) → field. */
+const SYNONYMS: Record<string, string> = {
+	sku: 'sku',
+	stockcode: 'sku',
+	ourcode: 'sku',
+	internalcode: 'sku',
+	name: 'name',
+	description: 'name',
+	title: 'name',
+	productname: 'name',
+	kind: 'kind',
+	type: 'kind',
+	lenstype: 'kind',
+	shape: 'kind',
+	diameter: 'diameterMm',
+	diametermm: 'diameterMm',
+	dia: 'diameterMm',
+	od: 'diameterMm',
+	outerdiameter: 'diameterMm',
+	clearaperture: 'clearApertureMm',
+	clearaperturemm: 'clearApertureMm',
+	ca: 'clearApertureMm',
+	efl: 'eflMm',
+	eflmm: 'eflMm',
+	focallength: 'eflMm',
+	effectivefocallength: 'eflMm',
+	f: 'eflMm',
+	bfl: 'bflMm',
+	bflmm: 'bflMm',
+	backfocallength: 'bflMm',
+	centerthickness: 'centerThicknessMm',
+	centrethickness: 'centerThicknessMm',
+	centerthicknessmm: 'centerThicknessMm',
+	ct: 'centerThicknessMm',
+	designwavelength: 'designWavelengthNm',
+	designwavelengthnm: 'designWavelengthNm',
+	wavelength: 'designWavelengthNm',
+	coating: 'coating',
+	arcoating: 'coating',
+	supplier: 'supplier',
+	vendor: 'supplier',
+	manufacturer: 'supplier',
+	supplierpartnumber: 'supplierPartNumber',
+	partnumber: 'supplierPartNumber',
+	partno: 'supplierPartNumber',
+	pn: 'supplierPartNumber',
+	catalognumber: 'supplierPartNumber',
+	cataloguenumber: 'supplierPartNumber',
+	itemnumber: 'supplierPartNumber',
+	itemno: 'supplierPartNumber',
+	article: 'supplierPartNumber',
+	unitprice: 'unitPrice',
+	price: 'unitPrice',
+	currency: 'currency',
+	leadtime: 'leadTimeDays',
+	leadtimedays: 'leadTimeDays',
+	reorderpoint: 'reorderPoint',
+	reorderquantity: 'reorderQuantity',
+	notes: 'notes',
+	comment: 'notes',
+	remarks: 'notes',
+	glass: 'material1',
+	material: 'material1',
+	substrate: 'material1'
+};
+
+/** The field a header cell most likely means, or null. */
+export function suggestField(header: string): string | null {
+	const h = header.trim();
+	if (isImportField(h)) return h; // the export's own names
+	const n = norm(h);
+	if (SYNONYMS[n]) return SYNONYMS[n];
+	let m = /^(?:r|radius|roc|radiusofcurvature)(\d{1,2})(?:mm)?$/.exec(n);
+	if (m && Number(m[1]) >= 1 && Number(m[1]) <= MAX_SURFACES) return `r${Number(m[1])}Mm`;
+	m = /^(?:t|thickness|d)(\d{1,2})(?:mm)?$/.exec(n);
+	if (m && Number(m[1]) >= 1 && Number(m[1]) <= MAX_SURFACES) return `t${Number(m[1])}Mm`;
+	m = /^(?:material|glass|n)(\d{1,2})$/.exec(n);
+	if (m && Number(m[1]) >= 1 && Number(m[1]) <= MAX_SURFACES) return `material${Number(m[1])}`;
+	return null;
+}
+
+/** The unit a header names, e.g. "Diameter (in)" or "EFL [inch]"; null when it names none. */
+export function suggestUnit(header: string): LengthUnit | null {
+	const h = header.toLowerCase();
+	if (/[([]\s*(in|inch|inches|")\s*[)\]]|\binch(es)?\b/.test(h)) return 'in';
+	if (/[([]\s*mm\s*[)\]]|mm$/.test(h)) return 'mm';
+	return null;
+}
+
+export interface Suggestion {
+	mapping: Record<string, string>;
+	units: Record<string, string>;
+}
+
+/**
+ * A mapping for a header row: the supplier's saved mapping where its columns still exist, then
+ * the header names. Each field gets at most one column and each column at most one field.
+ */
+export function suggestMapping(header: readonly string[], saved?: Suggestion | null): Suggestion {
+	const mapping: Record<string, string> = {};
+	const units: Record<string, string> = {};
+	const used = new Set<string>();
+	if (saved) {
+		for (const [field, col] of Object.entries(saved.mapping ?? {})) {
+			if (isImportField(field) && header.includes(col) && !used.has(col)) {
+				mapping[field] = col;
+				used.add(col);
+				if (saved.units?.[field]) units[field] = saved.units[field];
+			}
+		}
+	}
+	for (const col of header) {
+		if (used.has(col)) continue;
+		const field = suggestField(col);
+		if (!field || mapping[field]) continue;
+		mapping[field] = col;
+		used.add(col);
+		if (isLengthField(field)) {
+			const u = suggestUnit(col);
+			if (u) units[field] = u;
+		}
+		if (field === 'unitPrice') units[field] = col.trim() === 'unitPrice' ? 'minor' : 'major';
+	}
+	return { mapping, units };
+}

@@ -1,0 +1,156 @@
+/**
+ * One CSV record → the part input fields it gives (only the mapped ones), with cell errors.
+ * Validation of the whole part is the catalogue's `partInputSchema` (see run.ts); this file only
+ * reads cells: numbers (decimal comma allowed in ;- and tab-separated files), units, blanks.
+ */
+import { unit } from 'mathjs';
+import { isLengthField, isNumericField, MAX_SURFACES, MM_PER, SCALAR_FIELDS, surfaceFields, type LengthUnit } from './fields';
+import { unescapeFormula, type Delimiter } from './csv';
+
+export interface CellError {
+	field: string;
+	value: string;
+	message: string;
+}
+
+/** A mapping resolved to column indexes, ready for fast row reading. */
+export interface CompiledMapping {
+	/** field → column index */
+	index: Map<string, number>;
+	units: Record<string, string>;
+	delimiter: Delimiter;
+	/** Highest surface number with any mapped column (0: surfaces are not in the file). */
+	surfaceCount: number;
+}
+
+export function compileMapping(header: readonly string[], mapping: Record<string, string>, units: Record<string, string>, delimiter: Delimiter): CompiledMapping {
+	const index = new Map<string, number>();
+	let surfaceCount = 0;
+	for (const [field, col] of Object.entries(mapping)) {
+		const i = header.indexOf(col);
+		if (i < 0) continue;
+		index.set(field, i);
+		const m = /^(?:r|t|material)(\d+)/.exec(field);
+		if (m) surfaceCount = Math.max(surfaceCount, Number(m[1]));
+	}
+	return { index, units, delimiter, surfaceCount: Math.min(surfaceCount, MAX_SURFACES) };
+}
+
+// A number, optionally followed by a length unit: "25.4", "1 in", "25,4 mm" (the comma only when it cannot be the delimiter).
+const NUMBER_WITH_UNIT = /^([-+]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:e[-+]?\d+)?)\s*(mm|cm|m|in|inch|inches|")?$/i;
+const UNIT_NAMES: Record<string, string> = { mm: 'mm', cm: 'cm', m: 'm', in: 'inch', inch: 'inch', inches: 'inch', '"': 'inch' };
+
+/** Parses a numeric cell; returns a number or an error message. */
+export function parseNumberCell(raw: string, field: string, defaultUnit: LengthUnit | 'minor' | 'major' | undefined, delimiter: Delimiter): number | string {
+	const m = NUMBER_WITH_UNIT.exec(raw);
+	if (!m) return isLengthField(field) ? 'Not a number (a length such as 25.4 or 1 in).' : 'Not a number.';
+	let digits = m[1];
+	if (digits.includes(',')) {
+		if (delimiter === ',' || digits.includes('.')) return 'Not a number.';
+		digits = digits.replace(',', '.');
+	}
+	const value = Number(digits);
+	if (!Number.isFinite(value)) return 'Not a number.';
+	if (m[2]) {
+		if (!isLengthField(field)) return 'This field takes a plain number, without a unit.';
+		// mathjs converts the unit written in the cell (the regex above keeps the text to a number and a known unit).
+		return unit(value, UNIT_NAMES[m[2].toLowerCase()]).toNumber('mm');
+	}
+	if (isLengthField(field)) return value * MM_PER[(defaultUnit as LengthUnit) ?? 'mm'];
+	if (field === 'unitPrice' && defaultUnit === 'major') return Math.round(value * 100);
+	return value;
+}
+
+/** Kinds as a supplier may write them → ours. */
+const KIND_WORDS: Record<string, string> = {
+	planoconvex: 'plano-convex',
+	pcx: 'plano-convex',
+	biconvex: 'biconvex',
+	dcx: 'biconvex',
+	doubleconvex: 'biconvex',
+	planoconcave: 'plano-concave',
+	pcv: 'plano-concave',
+	biconcave: 'biconcave',
+	dcv: 'biconcave',
+	doubleconcave: 'biconcave',
+	positivemeniscus: 'positive-meniscus',
+	negativemeniscus: 'negative-meniscus',
+	achromaticdoublet: 'achromatic-doublet',
+	achromat: 'achromatic-doublet',
+	doublet: 'achromatic-doublet',
+	other: 'other'
+};
+
+export interface ReadRow {
+	/** The mapped fields in part input form (surfaces only when the file has surface columns). */
+	input: Record<string, unknown>;
+	errors: CellError[];
+	/** The raw cell of each mapped field (for error reports). */
+	cell: (field: string) => string;
+}
+
+/** Reads the mapped cells of one record. */
+export function readRow(record: readonly string[], cm: CompiledMapping): ReadRow {
+	const errors: CellError[] = [];
+	const input: Record<string, unknown> = {};
+	const cell = (field: string) => {
+		const i = cm.index.get(field);
+		return i === undefined ? '' : unescapeFormula((record[i] ?? '').trim());
+	};
+	const value = (field: string): unknown => {
+		const raw = cell(field);
+		if (raw === '') return null;
+		if (isNumericField(field)) {
+			const n = parseNumberCell(raw, field, cm.units[field] as LengthUnit, cm.delimiter);
+			if (typeof n === 'string') {
+				errors.push({ field, value: raw, message: n });
+				return undefined;
+			}
+			return n;
+		}
+		if (field === 'kind') return KIND_WORDS[raw.toLowerCase().replace(/[^a-z]/g, '')] ?? raw;
+		if (field === 'currency') return raw.toUpperCase();
+		return raw;
+	};
+	for (const field of SCALAR_FIELDS) {
+		if (!cm.index.has(field)) continue;
+		const v = value(field);
+		if (v === undefined) continue;
+		// Blank cells of fields with a default take the default; others become null (cleared).
+		if (v === null && ['designWavelengthNm', 'currency', 'reorderPoint', 'reorderQuantity'].includes(field)) continue;
+		input[field] = v;
+	}
+	if (cm.surfaceCount > 0) {
+		// Surface k exists when any of its cells is filled, or when surface k-1 has a medium after it
+		// (thickness or material): a blank last surface is then a flat one.
+		const surfaces: { radiusMm: number | null; thicknessMm?: number | null; material?: string | null }[] = [];
+		let last = 0;
+		for (let k = 1; k <= Math.min(cm.surfaceCount + 1, MAX_SURFACES); k++) {
+			const [rf, tf, mf] = surfaceFields(k);
+			const r = cm.index.has(rf) ? value(rf) : null;
+			const t = cm.index.has(tf) ? value(tf) : null;
+			const m = cm.index.has(mf) ? value(mf) : null;
+			const s: { radiusMm: number | null; thicknessMm?: number | null; material?: string | null } = { radiusMm: typeof r === 'number' ? r : null };
+			if (t !== null && t !== undefined) s.thicknessMm = t as number;
+			if (m !== null && m !== undefined) s.material = m as string;
+			surfaces.push(s);
+			if (cell(rf) !== '') last = Math.max(last, k);
+			if (cell(tf) !== '' || cell(mf) !== '') last = Math.max(last, Math.min(k + 1, MAX_SURFACES));
+		}
+		input.surfaces = surfaces.slice(0, last);
+	}
+	return { input, errors, cell };
+}
+
+/** The surface-aware CSV field of a zod issue path (['surfaces', 1, 'radiusMm'] → 'r2Mm'). */
+export function fieldOfPath(path: readonly PropertyKey[]): string {
+	if (path[0] === 'surfaces' && typeof path[1] === 'number') {
+		const k = path[1] + 1;
+		if (path[2] === 'radiusMm') return `r${k}Mm`;
+		if (path[2] === 'thicknessMm') return `t${k}Mm`;
+		if (path[2] === 'material') return `material${k}`;
+		return `r${k}Mm`;
+	}
+	if (path[0] === 'surfaces') return 'r1Mm';
+	return String(path[0] ?? 'row');
+}

@@ -1,0 +1,376 @@
+/**
+ * Runs an import over its stored file: a dry run ("check") validates every row and classifies it
+ * (new, update, unchanged, rejected) without writing; a commit does the same inside ONE transaction
+ * and writes in batches, so a failure anywhere leaves the catalogue as it was. Progress and row
+ * errors go to the database on their own connection, so every app instance (and a reloaded page)
+ * sees them while the run is going.
+ *
+ * Rows are keyed by (supplier, supplier part number) first, then by SKU. Memory: one batch of rows
+ * plus one small key per row for the duplicate check; the file itself is streamed from S3.
+ */
+import { and, eq, inArray, or, type SQL } from 'drizzle-orm';
+import type { Db, DbOrTx, Tx } from '$lib/server/db';
+import { importRowErrors, imports, partSurfaces, parts, suppliers, type ImportRecord } from '$lib/server/db/schema';
+import { recordAudit } from '$lib/server/audit';
+import { bumpStockVersion } from '$lib/server/stock/version';
+import { partInputSchema, type PartInput } from '$lib/server/catalogue/part-input';
+import { toInput } from '$lib/server/catalogue/parts';
+import { getDefaultWavelengthNm } from '$lib/server/catalogue/settings';
+import type { ObjectStore } from '$lib/server/files/s3';
+import { csvRecords, type Delimiter } from './csv';
+import { fieldLabel } from './fields';
+import { compileMapping, fieldOfPath, readRow, type CompiledMapping } from './rows';
+import { SupplierIds, writeBatch } from './writer';
+
+export const BATCH_ROWS = 1000;
+/** Row errors kept per import (the count is always exact). */
+export const MAX_STORED_ERRORS = 5000;
+
+export interface RowError {
+	row: number;
+	column: string;
+	value: string;
+	message: string;
+}
+
+export interface RunCounts {
+	created: number;
+	updated: number;
+	unchanged: number;
+	rejected: number;
+	errorCount: number;
+	rows: number;
+}
+
+export interface RunHooks {
+	/** Called after each batch (inside the commit transaction); a throw aborts the run (tests inject failures here). */
+	afterBatch?: (info: { batch: number; rowsDone: number }) => void | Promise<void>;
+}
+
+/** Thrown inside the commit when rows were rejected and the user did not ask to skip them. */
+class RowsRejected extends Error {}
+
+type Existing = { part: typeof parts.$inferSelect; surfaces: (typeof partSurfaces.$inferSelect)[]; supplierName: string | null };
+
+/** Parts that rows of a batch may refer to, by SKU and by (supplier id, supplier part number). */
+async function existingFor(db: DbOrTx, skus: string[], pairs: Map<number, string[]>, supplierNames: Map<number, string>) {
+	const conds: SQL[] = [];
+	if (skus.length) conds.push(inArray(parts.sku, skus));
+	for (const [sid, pns] of pairs) conds.push(and(eq(parts.supplierId, sid), inArray(parts.supplierPartNumber, pns))!);
+	const bySku = new Map<string, Existing>();
+	const byPn = new Map<string, Existing>();
+	if (!conds.length) return { bySku, byPn };
+	const rows = await db.select().from(parts).where(or(...conds));
+	if (!rows.length) return { bySku, byPn };
+	const surf = await db
+		.select()
+		.from(partSurfaces)
+		.where(
+			inArray(
+				partSurfaces.partId,
+				rows.map((r) => r.id)
+			)
+		);
+	for (const p of rows) {
+		const e: Existing = {
+			part: p,
+			surfaces: surf.filter((s) => s.partId === p.id).sort((a, b) => a.position - b.position),
+			supplierName: p.supplierId ? (supplierNames.get(p.supplierId) ?? null) : null
+		};
+		bySku.set(p.sku.toLowerCase(), e);
+		if (p.supplierId && p.supplierPartNumber) byPn.set(`${p.supplierId}|${p.supplierPartNumber.toLowerCase()}`, e);
+	}
+	return { bySku, byPn };
+}
+
+const canonical = (p: PartInput) => JSON.stringify(p);
+
+/** 32-bit FNV-1a of a string: a small fingerprint of a row's values for the duplicate check. */
+function hash(s: string): number {
+	let h = 0x811c9dc5;
+	for (let i = 0; i < s.length; i++) {
+		h ^= s.charCodeAt(i);
+		h = Math.imul(h, 0x01000193);
+	}
+	return h >>> 0;
+}
+
+interface Ctx {
+	db: Db;
+	rec: ImportRecord;
+	cm: CompiledMapping;
+	header: string[];
+	importSupplier: string | null;
+	skuPrefix: string | null;
+	suppliers: SupplierIds;
+	supplierNames: Map<number, string>;
+	seen: Map<string, { row: number; hash: number }>;
+	counts: RunCounts;
+	storedErrors: number;
+	defaultWavelengthNm: number;
+	actorId: number;
+}
+
+/** Validates and classifies one batch; in a commit, writes it through `tx`. */
+async function processBatch(ctx: Ctx, batch: { row: number; record: string[] }[], tx: Tx | null) {
+	const errors: RowError[] = [];
+	const columnOf = (field: string) => {
+		const i = ctx.cm.index.get(field);
+		return i === undefined ? fieldLabel(field) : ctx.header[i];
+	};
+	const read = batch.map(({ row, record }) => {
+		const r = readRow(record, ctx.cm);
+		if (r.input.supplier == null && ctx.importSupplier) r.input.supplier = ctx.importSupplier;
+		if (!r.input.sku && ctx.skuPrefix && typeof r.input.supplierPartNumber === 'string') {
+			r.input.sku = `${ctx.skuPrefix}${r.input.supplierPartNumber}`;
+		}
+		return { row, ...r };
+	});
+	const skus = new Set<string>();
+	const pairs = new Map<number, string[]>();
+	for (const r of read) {
+		if (typeof r.input.sku === 'string' && r.input.sku) skus.add(r.input.sku);
+		const sid = ctx.suppliers.known(r.input.supplier as string | null);
+		if (sid !== null && typeof r.input.supplierPartNumber === 'string') {
+			const list = pairs.get(sid) ?? [];
+			list.push(r.input.supplierPartNumber);
+			pairs.set(sid, list);
+		}
+	}
+	const existing = await existingFor(tx ?? ctx.db, [...skus], pairs, ctx.supplierNames);
+	const creates: PartInput[] = [];
+	const updates: { id: number; input: PartInput }[] = [];
+
+	for (const r of read) {
+		const rowErrors: RowError[] = r.errors.map((e) => ({ row: r.row, column: columnOf(e.field), value: e.value, message: e.message }));
+		const sku = typeof r.input.sku === 'string' ? r.input.sku : null;
+		const supplierName = (r.input.supplier as string | null) ?? null;
+		const pn = typeof r.input.supplierPartNumber === 'string' ? r.input.supplierPartNumber : null;
+		const sid = ctx.suppliers.known(supplierName);
+		const byPn = sid !== null && pn ? existing.byPn.get(`${sid}|${pn.toLowerCase()}`) : undefined;
+		const bySku = sku ? existing.bySku.get(sku.toLowerCase()) : undefined;
+		if (byPn && bySku && byPn.part.id !== bySku.part.id) {
+			rowErrors.push({
+				row: r.row,
+				column: columnOf('sku'),
+				value: sku ?? '',
+				message: `The SKU ${sku} belongs to another part than ${supplierName} ${pn} (which is ${byPn.part.sku}).`
+			});
+		}
+		const target = byPn ?? bySku;
+		// The same part, SKU or supplier part number twice in one file.
+		const keys = [target ? `p:${target.part.id}` : null, sku ? `s:${sku.toLowerCase()}` : null, supplierName && pn ? `n:${supplierName.toLowerCase()}|${pn.toLowerCase()}` : null].filter(
+			(k): k is string => k !== null
+		);
+		let data: PartInput | null = null;
+		if (!rowErrors.length) {
+			const merged = target ? { ...toInput({ ...target, latestMeasurement: null }), ...r.input } : r.input;
+			const parsed = partInputSchema.safeParse(merged);
+			if (parsed.success) data = parsed.data;
+			else {
+				const fieldsDone = new Set<string>();
+				for (const issue of parsed.error.issues) {
+					const field = fieldOfPath(issue.path);
+					if (fieldsDone.has(field + issue.message)) continue;
+					fieldsDone.add(field + issue.message);
+					const message = field === 'sku' && !sku && !target ? 'Each new part needs a SKU (map a SKU column, or set a SKU prefix).' : issue.message;
+					rowErrors.push({ row: r.row, column: columnOf(field), value: r.cell(field), message });
+				}
+			}
+		}
+		const fingerprint = data ? hash(canonical(data)) : 0;
+		const dupe = keys.map((k) => ctx.seen.get(k)).find((v) => v !== undefined);
+		if (dupe && data) {
+			if (dupe.hash === fingerprint) {
+				// The same part with the same values again (a stock export lists a part once per location): nothing to do.
+				ctx.counts.unchanged++;
+				continue;
+			}
+			const onPn = !sku || !ctx.seen.has(`s:${sku.toLowerCase()}`);
+			rowErrors.push({
+				row: r.row,
+				column: columnOf(onPn && pn ? 'supplierPartNumber' : 'sku'),
+				value: (onPn && pn ? pn : sku) ?? '',
+				message: `Row ${dupe.row} of this file is for the same part with other values: each part may appear only once.`
+			});
+		}
+		if (rowErrors.length || !data) {
+			ctx.counts.rejected++;
+			errors.push(...rowErrors);
+			continue;
+		}
+		const mark = { row: r.row, hash: fingerprint };
+		for (const k of keys) ctx.seen.set(k, mark);
+		ctx.seen.set(`s:${data.sku.toLowerCase()}`, mark);
+		if (target) {
+			const before = partInputSchema.safeParse(toInput({ ...target, latestMeasurement: null }));
+			if (before.success && canonical(before.data) === canonical(data)) ctx.counts.unchanged++;
+			else {
+				ctx.counts.updated++;
+				updates.push({ id: target.part.id, input: data });
+			}
+		} else {
+			ctx.counts.created++;
+			creates.push(data);
+		}
+	}
+	ctx.counts.errorCount += errors.length;
+	const room = MAX_STORED_ERRORS - ctx.storedErrors;
+	if (room > 0 && errors.length) {
+		const keep = errors.slice(0, room).map((e) => ({
+			importId: ctx.rec.id,
+			row: e.row,
+			column: e.column.slice(0, 120),
+			value: e.value.slice(0, 300),
+			message: e.message.slice(0, 300)
+		}));
+		await ctx.db.insert(importRowErrors).values(keep);
+		ctx.storedErrors += keep.length;
+	}
+	if (tx && (creates.length || updates.length)) {
+		await writeBatch(tx, { creates, updates }, { suppliers: ctx.suppliers, defaultWavelengthNm: ctx.defaultWavelengthNm, actorId: ctx.actorId });
+	}
+}
+
+async function progress(db: Db, id: number, counts: RunCounts) {
+	await db
+		.update(imports)
+		.set({
+			rowsDone: counts.rows,
+			created: counts.created,
+			updated: counts.updated,
+			unchanged: counts.unchanged,
+			rejected: counts.rejected,
+			errorCount: counts.errorCount,
+			heartbeatAt: new Date()
+		})
+		.where(eq(imports.id, id));
+}
+
+/**
+ * Runs a started import (status 'checking' or 'committing', see service.beginRun) to its end and
+ * records the outcome. Never throws for a failure of the run itself: it ends in status 'failed' with a message.
+ */
+export async function runImport(
+	db: Db,
+	store: ObjectStore,
+	importId: number,
+	mode: 'check' | 'commit',
+	opts: { actorId: number; hooks?: RunHooks; batchRows?: number }
+): Promise<RunCounts & { status: 'checked' | 'committed' | 'failed'; message: string | null }> {
+	const [rec] = await db.select().from(imports).where(eq(imports.id, importId));
+	const counts: RunCounts = { created: 0, updated: 0, unchanged: 0, rejected: 0, errorCount: 0, rows: 0 };
+	const batchRows = opts.batchRows ?? BATCH_ROWS;
+	let message: string | null = null;
+	let status: 'checked' | 'committed' | 'failed' = mode === 'check' ? 'checked' : 'committed';
+	try {
+		await db.delete(importRowErrors).where(eq(importRowErrors.importId, importId));
+		const supplierRows = await db.select({ id: suppliers.id, name: suppliers.name }).from(suppliers);
+		const supplierNames = new Map(supplierRows.map((s) => [s.id, s.name]));
+		const options = (rec.options ?? {}) as { skuPrefix?: string; skipRejected?: boolean };
+		const ctx: Ctx = {
+			db,
+			rec,
+			header: rec.header,
+			cm: compileMapping(rec.header, rec.mapping ?? {}, rec.units ?? {}, rec.delimiter as Delimiter),
+			importSupplier: rec.supplierId ? (supplierNames.get(rec.supplierId) ?? null) : null,
+			skuPrefix: options.skuPrefix || null,
+			suppliers: new SupplierIds(supplierRows),
+			supplierNames,
+			seen: new Map(),
+			counts,
+			storedErrors: 0,
+			defaultWavelengthNm: await getDefaultWavelengthNm(db),
+			actorId: opts.actorId
+		};
+		const pass = async (tx: Tx | null) => {
+			const object = await store.get(rec.s3Key);
+			let batch: { row: number; record: string[] }[] = [];
+			let rowNo = 1;
+			let batches = 0;
+			const flush = async () => {
+				await processBatch(ctx, batch, tx);
+				counts.rows += batch.length;
+				batch = [];
+				batches++;
+				await progress(db, importId, counts);
+				await opts.hooks?.afterBatch?.({ batch: batches, rowsDone: counts.rows });
+			};
+			let first = true;
+			for await (const record of csvRecords(object.body, rec.delimiter as Delimiter)) {
+				if (first) {
+					first = false;
+					continue; // the header, checked at upload
+				}
+				rowNo++;
+				batch.push({ row: rowNo, record });
+				if (batch.length >= batchRows) await flush();
+			}
+			if (batch.length) await flush();
+		};
+		if (mode === 'check') {
+			await pass(null);
+		} else {
+			await db.transaction(async (tx) => {
+				await pass(tx);
+				if (counts.rejected > 0 && !options.skipRejected) {
+					throw new RowsRejected(
+						`${counts.rejected} row${counts.rejected === 1 ? ' was' : 's were'} rejected, so nothing was written. Fix the file, or choose to skip the rejected rows.`
+					);
+				}
+				await bumpStockVersion(tx);
+				await recordAudit(tx, {
+					actorId: opts.actorId,
+					action: 'import.commit',
+					targetType: 'import',
+					targetId: importId,
+					detail: { filename: rec.filename, created: counts.created, updated: counts.updated, unchanged: counts.unchanged, rejected: counts.rejected }
+				});
+				if (rec.supplierId && rec.mapping) {
+					// Next time a file of this supplier comes in, the wizard starts from this mapping.
+					await tx
+						.update(suppliers)
+						.set({ importMapping: { mapping: rec.mapping, units: rec.units ?? {} } })
+						.where(eq(suppliers.id, rec.supplierId));
+				}
+			});
+		}
+	} catch (err) {
+		status = 'failed';
+		message =
+			err instanceof RowsRejected
+				? err.message
+				: `The import stopped: ${err instanceof Error ? err.message.slice(0, 300) : String(err)}. ${mode === 'commit' ? 'Nothing was written to the catalogue.' : ''}`.trim();
+		if (!(err instanceof RowsRejected)) console.error(`[import ${importId}] ${mode} failed:`, err);
+		if (mode === 'commit' && !(err instanceof RowsRejected)) {
+			// The counts described rows of a transaction that was rolled back.
+			counts.created = counts.updated = counts.unchanged = 0;
+		}
+	}
+	const now = new Date();
+	await db
+		.update(imports)
+		.set({
+			status,
+			message,
+			rowsDone: counts.rows,
+			created: counts.created,
+			updated: counts.updated,
+			unchanged: counts.unchanged,
+			rejected: counts.rejected,
+			errorCount: counts.errorCount,
+			heartbeatAt: now,
+			...(status === 'checked' ? { checkedAt: now } : {}),
+			...(status === 'committed' ? { committedAt: now } : {})
+		})
+		.where(eq(imports.id, importId));
+	return { ...counts, status, message };
+}
+
+/** Marks a step as interrupted when its heartbeat stopped (the app restarted mid-run). */
+export const STALE_AFTER_MS = 60_000;
+
+export function isStale(rec: Pick<ImportRecord, 'status' | 'heartbeatAt'>, now = Date.now()): boolean {
+	return (rec.status === 'checking' || rec.status === 'committing') && (!rec.heartbeatAt || now - rec.heartbeatAt.getTime() > STALE_AFTER_MS);
+}
+

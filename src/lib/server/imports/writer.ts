@@ -1,0 +1,169 @@
+/**
+ * Batched writes of validated part inputs: multi-row inserts of new parts and their surfaces,
+ * multi-row upserts (by id) of changed parts. The rules stay the catalogue's: rows arrive already
+ * validated by `partInputSchema`, and the stored EFL columns come from the catalogue's
+ * `paraxialColumns` (the same computation as `refreshDerived`), so an imported part is stored
+ * exactly as the part form would store it.
+ */
+import { desc, inArray, sql } from 'drizzle-orm';
+import type { Tx } from '$lib/server/db';
+import { measurements, partSurfaces, parts, suppliers } from '$lib/server/db/schema';
+import { recordAudit } from '$lib/server/audit';
+import { paraxialColumns } from '$lib/server/catalogue/derived';
+import { toSurfaceSpecs, type PartInput } from '$lib/server/catalogue/part-input';
+
+/**
+ * The parts row of an input. Mirrors `columnsOf` in catalogue/parts.ts (not exported there);
+ * keep the two in step. primaryMaterial: the first glass of the prescription, lower case.
+ */
+export function partColumns(input: PartInput, supplierId: number | null) {
+	const firstGlass = input.surfaces.find((s, i) => i < input.surfaces.length - 1 && s.material)?.material ?? null;
+	return {
+		sku: input.sku,
+		name: input.name,
+		kind: input.kind,
+		diameterMm: input.diameterMm,
+		clearApertureMm: input.clearApertureMm ?? null,
+		eflMm: input.eflMm ?? null,
+		bflMm: input.bflMm ?? null,
+		centerThicknessMm: input.centerThicknessMm ?? null,
+		designWavelengthNm: input.designWavelengthNm,
+		primaryMaterial: firstGlass ? firstGlass.toLowerCase() : null,
+		coating: input.coating ?? null,
+		supplierId,
+		supplierPartNumber: input.supplierPartNumber ?? null,
+		unitPriceMinor: input.unitPrice ?? null,
+		currency: input.currency,
+		leadTimeDays: input.leadTimeDays ?? null,
+		reorderPoint: input.reorderPoint,
+		reorderQuantity: input.reorderQuantity,
+		notes: input.notes ?? null
+	};
+}
+
+function derivedFor(input: PartInput, cols: ReturnType<typeof partColumns>, wl: number, measured: { eflMm: number; wavelengthNm: number } | null) {
+	return paraxialColumns(
+		{
+			surfaces: toSurfaceSpecs(input.surfaces),
+			eflMm: cols.eflMm,
+			bflMm: cols.bflMm,
+			centerThicknessMm: cols.centerThicknessMm,
+			designWavelengthNm: cols.designWavelengthNm,
+			diameterMm: cols.diameterMm,
+			clearApertureMm: cols.clearApertureMm,
+			primaryMaterial: cols.primaryMaterial
+		},
+		wl,
+		measured
+	);
+}
+
+function surfaceRows(partId: number, input: PartInput) {
+	const specs = toSurfaceSpecs(input.surfaces);
+	return specs.map((s, i) => ({
+		partId,
+		position: i,
+		radiusMm: s.radiusMm,
+		thicknessMm: i === specs.length - 1 ? null : (s.thicknessMm ?? 0),
+		materialCode: i === specs.length - 1 ? null : (s.material ?? null)
+	}));
+}
+
+/** Supplier name (any case) → id, creating suppliers that do not exist yet. */
+export class SupplierIds {
+	private byName = new Map<string, number>();
+	constructor(rows: readonly { id: number; name: string }[]) {
+		for (const r of rows) this.byName.set(r.name.toLowerCase(), r.id);
+	}
+	known(name: string | null | undefined): number | null {
+		return name ? (this.byName.get(name.toLowerCase()) ?? null) : null;
+	}
+	async resolve(tx: Tx, name: string | null | undefined, actorId: number): Promise<number | null> {
+		if (!name) return null;
+		const found = this.known(name);
+		if (found !== null) return found;
+		const [{ id }] = await tx.insert(suppliers).values({ name }).$returningId();
+		await recordAudit(tx, { actorId, action: 'supplier.create', targetType: 'supplier', targetId: id, detail: { name, via: 'import' } });
+		this.byName.set(name.toLowerCase(), id);
+		return id;
+	}
+}
+
+const UPDATE_COLUMNS = [
+	'sku',
+	'name',
+	'kind',
+	'diameterMm',
+	'clearApertureMm',
+	'eflMm',
+	'bflMm',
+	'centerThicknessMm',
+	'designWavelengthNm',
+	'primaryMaterial',
+	'coating',
+	'supplierId',
+	'supplierPartNumber',
+	'unitPriceMinor',
+	'currency',
+	'leadTimeDays',
+	'reorderPoint',
+	'reorderQuantity',
+	'notes',
+	'paraxialEflMm',
+	'eflSource'
+] as const;
+
+/** Writes one batch: `creates` are new parts, `updates` carry the id of the part they replace. */
+export async function writeBatch(
+	tx: Tx,
+	batch: { creates: PartInput[]; updates: { id: number; input: PartInput }[] },
+	ctx: { suppliers: SupplierIds; defaultWavelengthNm: number; actorId: number }
+) {
+	const wl = ctx.defaultWavelengthNm;
+	if (batch.creates.length) {
+		const rows = [];
+		for (const input of batch.creates) {
+			const cols = partColumns(input, await ctx.suppliers.resolve(tx, input.supplier, ctx.actorId));
+			rows.push({ ...cols, ...derivedFor(input, cols, wl, null) });
+		}
+		await tx.insert(parts).values(rows);
+		const ids = await tx
+			.select({ id: parts.id, sku: parts.sku })
+			.from(parts)
+			.where(
+				inArray(
+					parts.sku,
+					rows.map((r) => r.sku)
+				)
+			);
+		const idBySku = new Map(ids.map((r) => [r.sku.toLowerCase(), r.id]));
+		const surfaces = batch.creates.flatMap((input) => surfaceRows(idBySku.get(input.sku.toLowerCase())!, input));
+		if (surfaces.length) await tx.insert(partSurfaces).values(surfaces);
+	}
+	if (batch.updates.length) {
+		const ids = batch.updates.map((u) => u.id);
+		const latest = new Map<number, { eflMm: number; wavelengthNm: number }>();
+		const ms = await tx
+			.select({ partId: measurements.partId, eflMm: measurements.eflMm, wavelengthNm: measurements.wavelengthNm })
+			.from(measurements)
+			.where(inArray(measurements.partId, ids))
+			.orderBy(desc(measurements.measuredAt), desc(measurements.id));
+		for (const m of ms) if (!latest.has(m.partId)) latest.set(m.partId, m);
+		const rows = [];
+		for (const u of batch.updates) {
+			const cols = partColumns(u.input, await ctx.suppliers.resolve(tx, u.input.supplier, ctx.actorId));
+			rows.push({ id: u.id, ...cols, ...derivedFor(u.input, cols, wl, latest.get(u.id) ?? null) });
+		}
+		// Rows carry their primary key, so ON DUPLICATE KEY turns each into an update of that part.
+		const set = Object.fromEntries(UPDATE_COLUMNS.map((c) => [c, sql.raw(`values(\`${columnName(c)}\`)`)]));
+		await tx.insert(parts).values(rows).onDuplicateKeyUpdate({ set });
+		await tx.delete(partSurfaces).where(inArray(partSurfaces.partId, ids));
+		const surfaces = batch.updates.flatMap((u) => surfaceRows(u.id, u.input));
+		if (surfaces.length) await tx.insert(partSurfaces).values(surfaces);
+	}
+}
+
+/** snake_case column of a parts key (our constant list only; never user input). */
+function columnName(key: (typeof UPDATE_COLUMNS)[number]): string {
+	return (parts[key] as unknown as { name: string }).name;
+}

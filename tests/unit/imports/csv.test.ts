@@ -1,0 +1,82 @@
+import { describe, expect, it } from 'vitest';
+import { Readable } from 'node:stream';
+import { checkCsv, csvLine, csvRecords, detectDelimiter, escapeFormula, unescapeFormula } from '$lib/server/imports/csv';
+import { ApiError } from '$lib/server/api/http';
+
+const enc = (s: string) => new TextEncoder().encode(s);
+const refused = (bytes: Uint8Array) => {
+	try {
+		checkCsv(bytes);
+	} catch (err) {
+		expect(err).toBeInstanceOf(ApiError);
+		return err as ApiError;
+	}
+	throw new Error('the file was accepted');
+};
+
+describe('checkCsv', () => {
+	it('reads comma, semicolon and tab files, with or without BOM, with quoted fields', () => {
+		const a = checkCsv(enc('sku,name\nA-1,"Lens, 25 mm ""best"""\n'));
+		expect(a.delimiter).toBe(',');
+		expect(a.header).toEqual(['sku', 'name']);
+		expect(a.preview[0]).toEqual(['A-1', 'Lens, 25 mm "best"']);
+		const b = checkCsv(enc('\uFEFFsku;name\r\nA-1;"x;y"\r\n'));
+		expect(b.delimiter).toBe(';');
+		expect(b.header).toEqual(['sku', 'name']);
+		expect(b.preview[0]).toEqual(['A-1', 'x;y']);
+		const c = checkCsv(enc('sku\tname\nA-1\tLens\nA-2\tLens 2\n'));
+		expect(c.delimiter).toBe('\t');
+		expect(c.rowCount).toBe(2);
+	});
+
+	it('refuses an empty file, a header-only file, binary and non-UTF-8 files with a clear message', () => {
+		expect(refused(new Uint8Array()).message).toBe('The file is empty.');
+		expect(refused(enc('  \n\n')).message).toBe('The file is empty.');
+		expect(refused(enc('sku,name\n')).message).toBe('The file has a header row but no data rows.');
+		expect(refused(enc('%PDF-1.7\n...')).message).toMatch(/PDF document, not a CSV/);
+		expect(refused(new Uint8Array([0x50, 0x4b, 0x03, 0x04, 1, 2])).message).toMatch(/spreadsheet workbook/);
+		expect(refused(new Uint8Array([0x61, 0x00, 0x62])).message).toMatch(/not a text file/);
+		expect(refused(new Uint8Array([0x73, 0x6b, 0x75, 0x0a, 0xe9, 0x0a])).message).toMatch(/not UTF-8/); // latin-1 é
+		expect(refused(enc('sku,sku\n1,2\n')).message).toMatch(/Two columns of the header row are named "sku"/);
+	});
+
+	it('refuses a file over the size limit with 413 and too many rows with 400', () => {
+		const big = new Uint8Array(17 * 1024 * 1024).fill(0x61);
+		expect(refused(big).status).toBe(413);
+		expect(() => checkCsv(enc('sku\n1\n2\n3\n'), { maxRows: 2 })).toThrow(/more than 2 rows/);
+	});
+});
+
+describe('formula escaping (SECURITY.md V5)', () => {
+	it('prefixes cells a spreadsheet would run and strips the prefix back exactly', () => {
+		for (const s of ['=HYPERLINK("x")', '+1', '-2', '@SUM(A1)', '\tx', '\rx', "'=x", "''+y", 'plain', "it's", "'quoted'", '']) {
+			expect(unescapeFormula(escapeFormula(s))).toBe(s);
+		}
+		expect(escapeFormula('=HYPERLINK("x")')).toBe('\'=HYPERLINK("x")');
+		expect(escapeFormula('plain')).toBe('plain');
+		expect(unescapeFormula("'plain")).toBe("'plain");
+	});
+});
+
+describe('delimiter detection and streaming', () => {
+	it('ignores delimiters inside quotes', () => {
+		expect(detectDelimiter('"a,b,c";"d"\n1;2')).toBe(';');
+	});
+
+	it('streams records and keeps multibyte characters split across chunks', async () => {
+		const text = '\uFEFFsku,name\n' + Array.from({ length: 3000 }, (_, i) => `S-${i},Linse µ ${i} “ø”`).join('\n');
+		const bytes = Buffer.from(text, 'utf8');
+		// 7-byte chunks cut characters in half.
+		const chunks: Buffer[] = [];
+		for (let i = 0; i < bytes.length; i += 7) chunks.push(bytes.subarray(i, i + 7));
+		const rows: string[][] = [];
+		for await (const r of csvRecords(Readable.from(chunks), ',')) rows.push(r);
+		expect(rows[0]).toEqual(['sku', 'name']);
+		expect(rows).toHaveLength(3001);
+		expect(rows[2999]).toEqual(['S-2998', 'Linse µ 2998 “ø”']);
+	});
+
+	it('writes lines that quote delimiters, quotes and newlines', () => {
+		expect(csvLine(['a', 'b,c', 'd"e', 'f\ng', 1.5, null])).toBe('a,"b,c","d""e","f\ng",1.5,\r\n');
+	});
+});
