@@ -3,3 +3,4 @@ export * from './catalogue';
 export * from './stock';
 export * from './files';
 export * from './imports';
+export * from './purchasing';
