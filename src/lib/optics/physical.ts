@@ -12,7 +12,6 @@ import {
 	EL_FRONT_SAG,
 	EL_BACK_SAG
 } from './snapshot';
-import { minAirGapMm } from './sag';
 
 /** Object distance (object plane to first vertex) below the minimum working distance. */
 export const PHYS_OBJECT_DISTANCE = 1;
@@ -28,6 +27,17 @@ export const PHYS_OBJECT_PLANE = 16;
 export const PHYS_TARGET_PLANE = 32;
 /** A clear aperture is larger than the sphere of a facing surface reaches. */
 export const PHYS_APERTURE = 64;
+
+if (
+	ELEMENT_STRIDE !== 10 ||
+	EL_FRONT_CURVATURE !== 5 ||
+	EL_BACK_CURVATURE !== 6 ||
+	EL_SEMI_APERTURE !== 7 ||
+	EL_FRONT_SAG !== 8 ||
+	EL_BACK_SAG !== 9
+) {
+	throw new Error('optics: snapshot layout changed; update the literal offsets in physical.ts');
+}
 
 /**
  * Physical check of a single-element placement (object distance s, back distance d, mm).
@@ -57,8 +67,8 @@ export function checkSinglePhysical(
  * Returns 0 when it can be built, else a sum of PHYS_* bits:
  * - s, d ≥ minWorkingDistanceMm and g ≥ minGapMm (at the vertices, as the request states);
  * - the last surface of i and the first of j keep a positive air gap at every height up
- *   to the smaller of the two clear semi-apertures (exact: `minAirGapMm` shows the gap is
- *   monotone in height, so vertex and rim decide). Beyond the smaller aperture the
+ *   to the smaller of the two clear semi-apertures (exact: as `minAirGapMm` shows, the
+ *   gap is monotone in height, so vertex and rim decide). Beyond the smaller aperture the
  *   mounts and bevels are not modelled. Parts without a known clear aperture are
  *   checked at the vertices only; black boxes count as flat.
  * - the rims of the outer surfaces stay off the object and target planes.
@@ -73,20 +83,36 @@ export function checkPairPhysical(
 	minWorkingDistanceMm: number,
 	minGapMm: number
 ): number {
-	const o1 = i * ELEMENT_STRIDE,
-		o2 = j * ELEMENT_STRIDE;
+	// Literal offsets (hot path; asserted against snapshot.ts at load below):
+	// 5 front curvature, 6 back curvature, 7 semi-aperture, 8 front sag, 9 back sag.
+	const o1 = i * 10,
+		o2 = j * 10;
 	let bad = 0;
-	if (!(s >= minWorkingDistanceMm)) bad |= PHYS_OBJECT_DISTANCE;
-	if (!(d >= minWorkingDistanceMm)) bad |= PHYS_BACK_DISTANCE;
-	if (!(g >= minGapMm)) bad |= PHYS_GAP;
-	if (!(s + Math.min(0, snapshot[o1 + EL_FRONT_SAG]) > 0)) bad |= PHYS_OBJECT_PLANE;
-	if (!(d - Math.max(0, snapshot[o2 + EL_BACK_SAG]) > 0)) bad |= PHYS_TARGET_PLANE;
-	const h1 = snapshot[o1 + EL_SEMI_APERTURE],
-		h2 = snapshot[o2 + EL_SEMI_APERTURE];
-	let rimGap: number | null;
-	if (h1 === h2) rimGap = g + snapshot[o2 + EL_FRONT_SAG] - snapshot[o1 + EL_BACK_SAG];
-	else rimGap = minAirGapMm(snapshot[o1 + EL_BACK_CURVATURE], snapshot[o2 + EL_FRONT_CURVATURE], g, h1 < h2 ? h1 : h2);
-	if (rimGap === null) bad |= PHYS_APERTURE;
-	else if (!(g > 0 && rimGap > 0)) bad |= PHYS_SURFACES_TOUCH;
+	if (!(s >= minWorkingDistanceMm)) bad |= 1; // PHYS_OBJECT_DISTANCE
+	if (!(d >= minWorkingDistanceMm)) bad |= 2; // PHYS_BACK_DISTANCE
+	if (!(g >= minGapMm)) bad |= 4; // PHYS_GAP
+	const frontSag = snapshot[o1 + 8],
+		backSag = snapshot[o2 + 9];
+	if (!(s + (frontSag < 0 ? frontSag : 0) > 0)) bad |= 16; // PHYS_OBJECT_PLANE
+	if (!(d - (backSag > 0 ? backSag : 0) > 0)) bad |= 32; // PHYS_TARGET_PLANE
+	const h1 = snapshot[o1 + 7],
+		h2 = snapshot[o2 + 7];
+	if (h1 === h2) {
+		// Same aperture: the precomputed rim sags decide.
+		const rimGap = g + snapshot[o2 + 8] - snapshot[o1 + 9];
+		if (!(g > 0 && rimGap > 0)) bad |= 8; // PHYS_SURFACES_TOUCH
+		return bad;
+	}
+	// Different apertures: sags at the smaller one (minAirGapMm written out, as module
+	// bindings cost in this loop).
+	const h = h1 < h2 ? h1 : h2;
+	const cb = snapshot[o1 + 6],
+		cf = snapshot[o2 + 5];
+	const qb = 1 - cb * cb * h * h,
+		qf = 1 - cf * cf * h * h;
+	if (qb < 0 || qf < 0) return bad | 64; // PHYS_APERTURE
+	const sagBack = (cb * h * h) / (1 + Math.sqrt(qb)),
+		sagFront = (cf * h * h) / (1 + Math.sqrt(qf));
+	if (!(g > 0 && g + sagFront - sagBack > 0)) bad |= 8; // PHYS_SURFACES_TOUCH
 	return bad;
 }

@@ -7,8 +7,6 @@ import type { ThickElement } from './element';
 import type { Layout } from './system';
 import { packElements } from './snapshot';
 import {
-	solveSingleKernel,
-	solvePairKernel,
 	ROOT_STRIDE,
 	ROOT_OBJECT_DISTANCE,
 	ROOT_GAP,
@@ -22,7 +20,9 @@ import {
 	ROOT_NEGATIVE_GAP,
 	ROOT_NEGATIVE_BACK,
 	ROOT_UNVERIFIED
-} from './imaging';
+} from './roots';
+import { solveSingleKernel } from './imaging';
+import { solvePairKernel } from './pair-kernel';
 
 /** One configuration that images the object plane onto the target plane. */
 export interface Placement {
