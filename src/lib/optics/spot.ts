@@ -7,7 +7,7 @@
  * ray aims at the axial point of the pupil plane z = pupilZMm (default: the first
  * surface's vertex, right for a stop at or near the first part).
  */
-import { type TraceSystem, RAY_STRIDE, TRACE_OK, traceRay, startRay, heightAtPlane } from './raytrace';
+import { type TraceSystem, RAY_STRIDE, TRACE_OK, TRACE_MISSED, traceRay, startRay, heightAtPlane } from './raytrace';
 
 /** Options shared by the spot and aperture functions. */
 export interface FanOptions {
@@ -132,6 +132,58 @@ export function tangentialSpot(sys: TraceSystem, objectHeightMm: number, options
 		raysTraced: traced,
 		raysFailed: failed
 	};
+}
+
+/** One traced ray of a fan, as a polyline for drawings. */
+export interface FanRay {
+	/** Normalised pupil coordinate ρ in [−1, 1] (0 = chief ray). */
+	readonly rho: number;
+	/** Direction sine at the object point. */
+	readonly sinAngle: number;
+	/** TRACE_OK, TRACE_MISSED or TRACE_TIR. */
+	readonly status: number;
+	/** Object point, each surface met, and (when it passed all) the point in the image plane; mm. */
+	readonly points: readonly { readonly zMm: number; readonly yMm: number }[];
+}
+
+/**
+ * The tangential fan of the object point at `objectHeightMm` as polylines: `count` rays
+ * with ρ evenly from −1 to 1 (direction sines sin θc + ρ·NA, the chief ray aimed at the
+ * pupil centre), each from the object point through every surface it meets to the
+ * image plane. Failed rays end at the surface where they stopped, with their status.
+ */
+export function traceFan(sys: TraceSystem, objectHeightMm: number, options: FanOptions & { count?: number }): FanRay[] {
+	const count = Math.max(2, options.count ?? 7);
+	const zImg = options.imageZMm ?? sys.imageZMm;
+	const sc = chiefSine(sys, objectHeightMm, options.pupilZMm);
+	const heightsMm = new Float64Array(sys.count);
+	const ray = new Float64Array(RAY_STRIDE);
+	const fan: FanRay[] = [];
+	for (let k = 0; k < count; k++) {
+		const rho = -1 + (2 * k) / (count - 1);
+		const sinAngle = sc + rho * options.na;
+		const points = [{ zMm: 0, yMm: objectHeightMm }];
+		if (!startRay(ray, objectHeightMm, sinAngle)) {
+			fan.push({ rho, sinAngle, status: TRACE_MISSED, points });
+			continue;
+		}
+		const status = traceRay(sys, ray, heightsMm);
+		const reached = status === TRACE_OK ? sys.count : ray[5] + (status === TRACE_MISSED ? 0 : 1);
+		for (let s = 0; s < reached; s++) points.push({ zMm: surfaceZ(sys, s, heightsMm[s]), yMm: heightsMm[s] });
+		if (status === TRACE_OK) {
+			const y = heightAtPlane(ray, zImg);
+			if (y !== null) points.push({ zMm: zImg, yMm: y });
+		}
+		fan.push({ rho, sinAngle, status, points });
+	}
+	return fan;
+}
+
+/** z of surface `s` at height y (vertex plus sag), mm. */
+function surfaceZ(sys: TraceSystem, s: number, yMm: number): number {
+	const c = sys.curvaturePerMm[s];
+	const q = 1 - c * c * yMm * yMm;
+	return sys.zMm[s] + (q >= 0 ? (c * yMm * yMm) / (1 + Math.sqrt(q)) : 0);
 }
 
 /** Direction sine of the chief ray from (0, objectHeightMm) to the pupil centre. */

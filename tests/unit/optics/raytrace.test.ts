@@ -8,6 +8,7 @@ import {
 	axialSpot,
 	tangentialSpot,
 	apertureReport,
+	traceFan,
 	airyRadiusMm,
 	workingFNumber,
 	imageSideNA,
@@ -227,5 +228,35 @@ describe('Airy radius', () => {
 
 	it('working f-number from the image-side NA: N = 1/(2 NA), NA′ = NA/|m|', () => {
 		expect(workingFNumber(imageSideNA(0.1, -2))).toBeCloseTo(10, 14);
+	});
+});
+
+describe('fans for drawing', () => {
+	it('traceFan gives polylines from the object point through every surface to the image plane, on the sphere at each hit', () => {
+		const e = element(singlet(51.5, -51.5, 4.2), LAMBDA, 20);
+		const layout = imagingLayout([e], 160);
+		const s = sys(layout);
+		const fan = traceFan(s, 5, { na: 0.05, count: 5 });
+		expect(fan).toHaveLength(5);
+		expect(fan[2].rho).toBe(0);
+		for (const ray of fan) {
+			expect(ray.status).toBe(TRACE_OK);
+			expect(ray.points).toHaveLength(4); // object, two surfaces, image plane
+			expect(ray.points[0]).toEqual({ zMm: 0, yMm: 5 });
+			// the surface points lie on their spheres: (z − zc)² + y² = R²
+			const p1 = ray.points[1];
+			expect((p1.zMm - (s.zMm[0] + 51.5)) ** 2 + p1.yMm ** 2).toBeCloseTo(51.5 ** 2, 8);
+			expect(ray.points[3].zMm).toBeCloseTo(s.imageZMm, 12);
+		}
+		// Inverted image of an object point above the axis: the chief ray lands below it.
+		expect(fan[2].points[3].yMm).toBeLessThan(0);
+	});
+
+	it('a fan ray stopped by total internal reflection ends at the surface where it stopped', () => {
+		const e = element([{ radiusMm: null, thicknessMm: 10, material: '517642' }, { radiusMm: -10 }]);
+		const s = sys({ objectDistanceMm: 5, elements: [e], gapsMm: [], backDistanceMm: 30 });
+		const fan = traceFan(s, 9, { na: 0.001, count: 3, pupilZMm: 1e9 });
+		expect(fan.every((r) => r.status === TRACE_TIR)).toBe(true);
+		expect(fan[0].points).toHaveLength(3); // object, entrance, the TIR surface
 	});
 });
