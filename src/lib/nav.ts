@@ -14,6 +14,11 @@ const ALL: readonly Role[] = ['admin', 'stockroom', 'engineer', 'purchaser'];
  */
 export const NAV: NavItem[] = [
 	{ href: '/', label: 'Overview', roles: ALL },
+	{ href: '/parts', label: 'Catalogue', roles: ALL },
+	{ href: '/stock', label: 'Stock', roles: ALL },
+	{ href: '/locations', label: 'Locations', roles: ALL },
+	{ href: '/build', label: 'Build from stock', roles: ['admin', 'stockroom', 'engineer'] },
+	{ href: '/imports', label: 'Imports', roles: ['admin', 'stockroom'] },
 	{ href: '/admin/users', label: 'Users', roles: ['admin'] },
 	{ href: '/admin/outbox', label: 'Outbox', roles: ['admin'] }
 ];

@@ -8,8 +8,9 @@ import { foundationPaths } from './foundation';
 import { accountsPaths } from './accounts';
 import { importsPaths } from './imports';
 import { cataloguePaths } from './catalogue';
+import { solverPaths } from './solver';
 
-const areas: OpenApiPaths[] = [foundationPaths, accountsPaths, importsPaths, cataloguePaths];
+const areas: OpenApiPaths[] = [foundationPaths, accountsPaths, importsPaths, cataloguePaths, solverPaths];
 
 export function openApiDocument() {
 	return {

@@ -1,0 +1,129 @@
+/**
+ * The /build form: URL parameters (the form state lives in the URL, so a link reproduces
+ * the question) → a validated solve request, with per-field messages. Lengths may carry
+ * units ("2 in", "25.4 mm", "0.3 m"), wavelengths too ("632.8 nm", "1.064 um"): parsed
+ * with mathjs `unit()` behind a strict regex, never `evaluate()`.
+ */
+import { unit } from 'mathjs';
+import { ZodError } from 'zod';
+import { solveRequestSchema, magnificationFromSizes, naFromFNumber, type ParsedSolveRequest } from '$lib/solver/request';
+import { zodFields } from '$lib/server/api/http';
+
+/** The form fields, as text, with their defaults. */
+export const FORM_DEFAULTS = {
+	objectHeight: '2 mm',
+	track: '300 mm',
+	magnification: '-0.5',
+	objectSize: '',
+	imageSize: '',
+	na: '0.05',
+	fNumber: '',
+	wavelength: '587.6 nm',
+	minGap: '1 mm',
+	minWd: '5 mm',
+	available: 'true',
+	maxParts: '2'
+};
+export type FormValues = typeof FORM_DEFAULTS;
+
+const QUANTITY = /^\s*([+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:e[+-]?\d+)?)\s*(mm|cm|m|in|inch|inches|um|µm|nm)?\s*$/i;
+const UNIT_NAME: Record<string, string> = { mm: 'mm', cm: 'cm', m: 'm', in: 'inch', inch: 'inch', inches: 'inch', um: 'um', µm: 'um', nm: 'nm' };
+
+/** A length or wavelength text → number in `target` ('mm' or 'nm'); null when it does not parse. */
+export function parseQuantity(text: string, target: 'mm' | 'nm'): number | null {
+	const m = QUANTITY.exec(text);
+	if (!m) return null;
+	const value = Number(m[1]);
+	const u = m[2] ? UNIT_NAME[m[2].toLowerCase()] : target;
+	try {
+		return unit(value, u).toNumber(target);
+	} catch {
+		return null;
+	}
+}
+
+const plain = (text: string): number | null => (/^\s*[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:e[+-]?\d+)?\s*$/i.test(text) ? Number(text) : null);
+
+/** Reads the form from URL parameters; `submitted` is false when the URL holds no question. */
+export function readForm(params: URLSearchParams): {
+	values: FormValues;
+	submitted: boolean;
+	errors: Record<string, string>;
+	request: ParsedSolveRequest | null;
+} {
+	const values = { ...FORM_DEFAULTS };
+	let submitted = false;
+	for (const k of Object.keys(FORM_DEFAULTS) as (keyof FormValues)[]) {
+		const v = params.get(k);
+		if (v !== null) {
+			values[k] = v.slice(0, 60);
+			submitted = true;
+		}
+	}
+	if (!submitted) return { values, submitted, errors: {}, request: null };
+	const errors: Record<string, string> = {};
+	const length = (key: keyof FormValues, label: string, optional = false) => {
+		if (optional && values[key].trim() === '') return undefined;
+		const n = parseQuantity(values[key], 'mm');
+		if (n === null) errors[key] = `${label}: enter a length such as "25 mm" or "1 in".`;
+		return n ?? undefined;
+	};
+	const objectHeightMm = length('objectHeight', 'Object height');
+	const trackMm = length('track', 'Track');
+	const minGapMm = length('minGap', 'Minimum gap');
+	const minWorkingDistanceMm = length('minWd', 'Minimum working distance');
+	let magnification: number | undefined;
+	if (values.objectSize.trim() || values.imageSize.trim()) {
+		const o = length('objectSize', 'Object size'),
+			i = length('imageSize', 'Image size');
+		const m = o !== undefined && i !== undefined ? magnificationFromSizes(o, i) : null;
+		if (m === null && !errors.objectSize && !errors.imageSize) errors.imageSize = 'Give both sizes, larger than 0, or a magnification instead.';
+		magnification = m ?? undefined;
+	} else {
+		const m = plain(values.magnification);
+		if (m === null) errors.magnification = 'Enter a magnification such as -0.5 (negative: inverted image).';
+		magnification = m ?? undefined;
+	}
+	let objectNA: number | undefined;
+	if (values.fNumber.trim()) {
+		const n = plain(values.fNumber);
+		const na = n === null ? null : naFromFNumber(n);
+		if (na === null) errors.fNumber = 'Enter an object-side f-number above 0.5, or an NA instead.';
+		objectNA = na ?? undefined;
+	} else {
+		const na = plain(values.na);
+		if (na === null) errors.na = 'Enter the object-side NA, such as 0.05.';
+		objectNA = na ?? undefined;
+	}
+	const wavelengthNm = parseQuantity(values.wavelength, 'nm');
+	if (wavelengthNm === null) errors.wavelength = 'Enter a wavelength such as "632.8 nm" or "1.064 um".';
+	if (Object.keys(errors).length) return { values, submitted, errors, request: null };
+	try {
+		const request = solveRequestSchema.parse({
+			wavelengthNm,
+			trackMm,
+			magnification,
+			objectHeightMm,
+			objectNA,
+			minGapMm,
+			minWorkingDistanceMm,
+			availableOnly: values.available !== 'false',
+			maxElements: values.maxParts === '1' ? 1 : 2
+		});
+		return { values, submitted, errors, request };
+	} catch (e) {
+		if (!(e instanceof ZodError)) throw e;
+		const f = zodFields(e);
+		const map: Record<string, keyof FormValues> = {
+			wavelengthNm: 'wavelength',
+			trackMm: 'track',
+			magnification: values.objectSize.trim() ? 'imageSize' : 'magnification',
+			objectHeightMm: 'objectHeight',
+			objectNA: values.fNumber.trim() ? 'fNumber' : 'na',
+			minGapMm: 'minGap',
+			minWorkingDistanceMm: 'minWd'
+		};
+		for (const [k, msg] of Object.entries(f)) errors[map[k] ?? k] = msg;
+		return { values, submitted, errors, request: null };
+	}
+}

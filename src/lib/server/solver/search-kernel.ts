@@ -1,0 +1,483 @@
+/**
+ * The search over one shard of the candidate elements: every single element and every
+ * ordered pair (first element in this shard), closed-form roots from the optics core's
+ * kernels, the physical filter, then a cheap screen (paraxial marginal and chief rays
+ * against the clear apertures, third-order spherical aberration) that keeps the best K.
+ *
+ * Runs in a worker thread (search-worker.ts) and, for tests, on the main thread. Reads
+ * only typed arrays; allocates nothing per configuration. No framework or database imports.
+ */
+import {
+	ELEMENT_STRIDE,
+	EL_A,
+	EL_B,
+	EL_C,
+	EL_D,
+	EL_THICKNESS,
+	EL_SEMI_APERTURE
+} from '../../optics/snapshot';
+import {
+	solveSingleKernel,
+	solvePairKernel,
+	ROOT_STRIDE,
+	ROOT_OBJECT_DISTANCE,
+	ROOT_GAP,
+	ROOT_BACK_DISTANCE,
+	ROOT_MAGNIFICATION,
+	ROOT_FLAGS,
+	ROOT_NON_PHYSICAL
+} from '../../optics/imaging';
+import { checkSinglePhysical, checkPairPhysical } from '../../optics/physical';
+import { evalSeidel } from './seidel-poly';
+
+/** Numbers per candidate record. */
+export const REC_STRIDE = 12;
+export const REC_I = 0;
+/** Second element, −1 for a single part. */
+export const REC_J = 1;
+export const REC_S = 2;
+export const REC_G = 3;
+export const REC_D = 4;
+export const REC_M = 5;
+export const REC_FLAGS = 6;
+/** Screen score: lower is better (third-order spot over Airy, times aperture penalties). */
+export const REC_SCORE = 7;
+/** Largest paraxial marginal-ray height over clear semi-aperture. */
+export const REC_FILL_AXIAL = 8;
+/** Largest paraxial (marginal + chief) height over clear semi-aperture. */
+export const REC_FILL_EDGE = 9;
+/** Third-order transverse spherical aberration estimate, mm (RMS at the paraxial focus). */
+export const REC_SA_MM = 10;
+/** 1 when an element of the configuration is a black box (no surfaces). */
+export const REC_UNTRACEABLE = 11;
+
+/** Score offset that puts configurations with a black-box part behind every traceable one. */
+export const UNTRACEABLE_OFFSET = 1e6;
+
+/** The question as the kernel needs it (plain numbers). */
+export interface SearchParams {
+	trackMm: number;
+	magnification: number;
+	magnificationTolerance: number;
+	objectNA: number;
+	objectHeightMm: number;
+	minGapMm: number;
+	minWorkingDistanceMm: number;
+	maxElements: number;
+	wavelengthNm: number;
+}
+
+/** What one shard found. */
+export interface ShardResult {
+	/** REC_STRIDE numbers per kept candidate, best first. */
+	records: Float64Array;
+	count: number;
+	configurationsEvaluated: number;
+	rootsFound: number;
+	physicalRoots: number;
+	truncated: boolean;
+}
+
+/** Inputs of `searchShard`. */
+export interface ShardInput {
+	packed: Float64Array;
+	seidel: Float64Array;
+	/** Part index of each element. */
+	partIndex: Int32Array;
+	/** 1 for an element without surfaces. */
+	untraceable: Uint8Array;
+	/** Units a setup may use of each part (a part may appear twice only with ≥ 2). */
+	partUnits: Int32Array;
+	/** Element indices allowed in this search. */
+	candidates: Int32Array;
+	params: SearchParams;
+	shardIndex: number;
+	shardCount: number;
+	/** Keep this many best candidates (Infinity: keep every physical root, for tests). */
+	topK: number;
+	/** Stop (truncated) after this time (Date.now() ms). */
+	deadline: number;
+	/** Stop when cancel[0] becomes non-zero (SharedArrayBuffer from the pool). */
+	cancel?: Int32Array | null;
+}
+
+const roots = new Float64Array(2 * ROOT_STRIDE);
+/** Scratch for the screen: fills and the spherical estimate. */
+const screenOut = new Float64Array(3);
+
+/**
+ * Paraxial screen of a placement (s, g, d) of element i (then j, or j < 0): marginal ray
+ * from the axial object point at slope tan(asin NA), chief ray from the field edge aimed at
+ * the first vertex, heights at each element's vertices against its clear semi-aperture;
+ * the elements' Seidel quartics give S_I and δy' = S_I / (2u'). Writes
+ * [fillAxial, fillEdge, rmsSphericalMm] into screenOut.
+ */
+function screen(packed: Float64Array, seidel: Float64Array, i: number, j: number, s: number, g: number, p: SearchParams): void {
+	const na = p.objectNA;
+	const u0 = na / Math.sqrt(1 - na * na);
+	const h = p.objectHeightMm;
+	let o = i * ELEMENT_STRIDE;
+	// Marginal (y, u) and chief (yc, uc) at the first vertex.
+	let y = s * u0,
+		u = u0;
+	let uc = s > 0 ? -h / s : 0,
+		yc = 0;
+	let semi = packed[o + EL_SEMI_APERTURE];
+	let fillA = 0,
+		fillE = 0;
+	if (semi > 0) {
+		fillA = Math.abs(y) / semi;
+		fillE = (Math.abs(y) + Math.abs(yc)) / semi;
+	}
+	let si = evalSeidel(seidel, i, y, u);
+	let a = packed[o + EL_A],
+		b = packed[o + EL_B],
+		c = packed[o + EL_C],
+		dd = packed[o + EL_D];
+	let y2 = a * y + b * u,
+		u2 = c * y + dd * u;
+	let yc2 = a * yc + b * uc,
+		uc2 = c * yc + dd * uc;
+	if (semi > 0) {
+		fillA = Math.max(fillA, Math.abs(y2) / semi);
+		fillE = Math.max(fillE, (Math.abs(y2) + Math.abs(yc2)) / semi);
+	}
+	if (j >= 0) {
+		y = y2 + g * u2;
+		u = u2;
+		yc = yc2 + g * uc2;
+		uc = uc2;
+		o = j * ELEMENT_STRIDE;
+		semi = packed[o + EL_SEMI_APERTURE];
+		if (semi > 0) {
+			fillA = Math.max(fillA, Math.abs(y) / semi);
+			fillE = Math.max(fillE, (Math.abs(y) + Math.abs(yc)) / semi);
+		}
+		si += evalSeidel(seidel, j, y, u);
+		a = packed[o + EL_A];
+		b = packed[o + EL_B];
+		c = packed[o + EL_C];
+		dd = packed[o + EL_D];
+		y2 = a * y + b * u;
+		u2 = c * y + dd * u;
+		yc2 = a * yc + b * uc;
+		if (semi > 0) {
+			fillA = Math.max(fillA, Math.abs(y2) / semi);
+			fillE = Math.max(fillE, (Math.abs(y2) + Math.abs(yc2)) / semi);
+		}
+	}
+	screenOut[0] = fillA;
+	screenOut[1] = fillE;
+	// δy' at the paraxial focus; for δy' = Tρ³ over a uniform pupil the RMS is T/2.
+	screenOut[2] = Math.abs(u2) > 1e-15 ? Math.abs(si / (2 * u2)) / 2 : Infinity;
+}
+
+/**
+ * A fixed-size max-heap of records keyed by REC_SCORE: the root is the worst kept record,
+ * so a better newcomer replaces it in O(log K).
+ */
+class TopK {
+	readonly data: Float64Array;
+	count = 0;
+	readonly cap: number;
+	private readonly grow: boolean;
+	constructor(k: number) {
+		this.grow = !Number.isFinite(k);
+		this.cap = this.grow ? 1024 : Math.max(1, k);
+		this.data = new Float64Array(this.cap * REC_STRIDE);
+	}
+	private buf: Float64Array | null = null;
+	get records(): Float64Array {
+		return this.buf ?? this.data;
+	}
+	/** True when a record with this score would be kept. */
+	admits(score: number): boolean {
+		return this.grow || this.count < this.cap || score < this.records[REC_SCORE];
+	}
+	push(rec: Float64Array): void {
+		if (this.grow) {
+			let b = this.records;
+			if ((this.count + 1) * REC_STRIDE > b.length) {
+				const nb = new Float64Array(b.length * 2);
+				nb.set(b);
+				this.buf = b = nb;
+			}
+			b.set(rec, this.count * REC_STRIDE);
+			this.count++;
+			return;
+		}
+		const d = this.data;
+		if (this.count < this.cap) {
+			let k = this.count++;
+			d.set(rec, k * REC_STRIDE);
+			while (k > 0) {
+				const parent = (k - 1) >> 1;
+				if (d[parent * REC_STRIDE + REC_SCORE] >= d[k * REC_STRIDE + REC_SCORE]) break;
+				this.swap(k, parent);
+				k = parent;
+			}
+			return;
+		}
+		if (!(rec[REC_SCORE] < d[REC_SCORE])) return;
+		d.set(rec, 0);
+		let k = 0;
+		for (;;) {
+			const l = 2 * k + 1,
+				r = l + 1;
+			let big = k;
+			if (l < this.count && d[l * REC_STRIDE + REC_SCORE] > d[big * REC_STRIDE + REC_SCORE]) big = l;
+			if (r < this.count && d[r * REC_STRIDE + REC_SCORE] > d[big * REC_STRIDE + REC_SCORE]) big = r;
+			if (big === k) break;
+			this.swap(k, big);
+			k = big;
+		}
+	}
+	private swap(a: number, b: number): void {
+		const d = this.data;
+		const oa = a * REC_STRIDE,
+			ob = b * REC_STRIDE;
+		for (let q = 0; q < REC_STRIDE; q++) {
+			const t = d[oa + q];
+			d[oa + q] = d[ob + q];
+			d[ob + q] = t;
+		}
+	}
+	/** The kept records sorted best first. */
+	sorted(): Float64Array {
+		const n = this.count;
+		const src = this.records;
+		const order = Array.from({ length: n }, (_, k) => k).sort((x, y) => src[x * REC_STRIDE + REC_SCORE] - src[y * REC_STRIDE + REC_SCORE]);
+		const out = new Float64Array(n * REC_STRIDE);
+		order.forEach((k, q) => out.set(src.subarray(k * REC_STRIDE, (k + 1) * REC_STRIDE), q * REC_STRIDE));
+		return out;
+	}
+}
+
+/** Airy radius at the image for magnification m: 0.61·λ·|m|/NA (mm); see optics/spot.ts airyRadiusMm. */
+export function airyForMagnification(wavelengthNm: number, objectNA: number, m: number): number {
+	return (0.61 * wavelengthNm * 1e-6 * Math.abs(m)) / objectNA;
+}
+
+/** Screen score of a candidate from its estimate and fills (lower is better). */
+function scoreOf(saMm: number, airyMm: number, fillA: number, fillE: number, untraceable: boolean): number {
+	let score = saMm / airyMm;
+	if (fillA > 1) score = (score + 1) * 4 * fillA;
+	else if (fillE > 1) score = (score + 1) * 1.5 * fillE;
+	return untraceable ? UNTRACEABLE_OFFSET + score : score;
+}
+
+/** Counters of a search: configurations evaluated, roots found, physical roots. */
+const counters = new Float64Array(3);
+const rec = new Float64Array(REC_STRIDE);
+
+/** Screens one physical root (in `roots` at `base`) and offers it to the top-K. */
+function consider(top: TopK, packed: Float64Array, seidel: Float64Array, p: SearchParams, i: number, j: number, base: number, untr: boolean): void {
+	const s = roots[base + ROOT_OBJECT_DISTANCE],
+		g = roots[base + ROOT_GAP],
+		mAch = roots[base + ROOT_MAGNIFICATION];
+	screen(packed, seidel, i, j, s, g, p);
+	const airy = airyForMagnification(p.wavelengthNm, p.objectNA, mAch);
+	const score = scoreOf(screenOut[2], airy, screenOut[0], screenOut[1], untr);
+	if (!top.admits(score)) return;
+	rec[REC_I] = i;
+	rec[REC_J] = j;
+	rec[REC_S] = s;
+	rec[REC_G] = g;
+	rec[REC_D] = roots[base + ROOT_BACK_DISTANCE];
+	rec[REC_M] = mAch;
+	rec[REC_FLAGS] = roots[base + ROOT_FLAGS];
+	rec[REC_SCORE] = score;
+	rec[REC_FILL_AXIAL] = screenOut[0];
+	rec[REC_FILL_EDGE] = screenOut[1];
+	rec[REC_SA_MM] = screenOut[2];
+	rec[REC_UNTRACEABLE] = untr ? 1 : 0;
+	top.push(rec);
+}
+
+/** Every single element of the candidates. */
+function singles(input: ShardInput, top: TopK): void {
+	const { packed, seidel, untraceable, candidates, params: p } = input;
+	const m = p.magnification;
+	for (let q = 0; q < candidates.length; q++) {
+		const i = candidates[q];
+		counters[0]++;
+		const k = solveSingleKernel(packed, i, p.trackMm, roots, 0);
+		for (let r = 0; r < k; r++) {
+			const base = r * ROOT_STRIDE;
+			counters[1]++;
+			if ((roots[base + ROOT_FLAGS] & ROOT_NON_PHYSICAL) !== 0) continue;
+			const mAch = roots[base + ROOT_MAGNIFICATION];
+			if (!(Math.abs(mAch / m - 1) <= p.magnificationTolerance)) continue;
+			if (checkSinglePhysical(packed, i, roots[base + ROOT_OBJECT_DISTANCE], roots[base + ROOT_BACK_DISTANCE], p.minWorkingDistanceMm) !== 0) continue;
+			counters[2]++;
+			consider(top, packed, seidel, p, i, -1, base, untraceable[i] === 1);
+		}
+	}
+}
+
+/** The element matrices as separate arrays, with 1/C (0 for afocal elements), for the prefilter. */
+interface Soa {
+	a: Float64Array;
+	b: Float64Array;
+	c: Float64Array;
+	d: Float64Array;
+	t: Float64Array;
+	rc: Float64Array;
+}
+
+function toSoa(packed: Float64Array): Soa {
+	const n = packed.length / ELEMENT_STRIDE;
+	const soa = { a: new Float64Array(n), b: new Float64Array(n), c: new Float64Array(n), d: new Float64Array(n), t: new Float64Array(n), rc: new Float64Array(n) };
+	for (let k = 0; k < n; k++) {
+		const o = k * ELEMENT_STRIDE;
+		soa.a[k] = packed[o + EL_A];
+		soa.b[k] = packed[o + EL_B];
+		soa.c[k] = packed[o + EL_C];
+		soa.d[k] = packed[o + EL_D];
+		soa.t[k] = packed[o + EL_THICKNESS];
+		soa.rc[k] = packed[o + EL_C] === 0 ? 0 : 1 / packed[o + EL_C];
+	}
+	return soa;
+}
+
+/** Every ordered pair with element i first. */
+function pairRow(
+	packed: Float64Array,
+	seidel: Float64Array,
+	partIndex: Int32Array,
+	untraceable: Uint8Array,
+	partUnits: Int32Array,
+	candidates: Int32Array,
+	p: SearchParams,
+	top: TopK,
+	soa: Soa,
+	i: number
+): void {
+	const n = candidates.length;
+	const m = p.magnification;
+	const mu = m + 1 / m,
+		im = 1 / m;
+	const slack = 1e-6 * (Math.abs(p.trackMm) + 1);
+	const minS = p.minWorkingDistanceMm - slack,
+		minG = p.minGapMm - slack;
+	const pi = partIndex[i];
+	const ui = untraceable[i] === 1;
+	const untr1 = ui;
+	const airyPair = airyForMagnification(p.wavelengthNm, p.objectNA, m);
+	const sa = soa.a,
+		sb = soa.b,
+		sc = soa.c,
+		sd = soa.d,
+		st = soa.t,
+		src = soa.rc;
+	const a1 = soa.a[i],
+		b1 = soa.b[i],
+		c1 = soa.c[i],
+		d1 = soa.d[i];
+	const rc1 = soa.rc[i];
+	const lam1 = p.trackMm - soa.t[i];
+	let evaluated = 0;
+	for (let w = 0; w < n; w++) {
+		const j = candidates[w];
+		if (partIndex[j] === pi && partUnits[pi] < 2) continue;
+		evaluated++;
+		// Conservative prefilter, the same algebra as solvePairKernel (optics/imaging.ts):
+		// skip the pair only when its gap quadratic clearly has no real root, or every
+		// root clearly has a gap or a working distance below the minimum. Near a limit,
+		// a double root or an afocal root the optics core's kernel decides. Measured hot
+		// path (tests/bench/solver-3000.ts): most pairs never reach the full kernel, and
+		// the test avoids divisions (one reciprocal per pair).
+		const a2 = sa[j],
+			b2 = sb[j],
+			c2 = sc[j],
+			d2 = sd[j];
+		const lam = lam1 - st[j];
+		const A0 = a2 * a1 + b2 * c1,
+			A1 = a2 * c1,
+			C0 = c2 * a1 + d2 * c1,
+			C1 = c2 * c1,
+			D0 = c2 * b1 + d2 * d1,
+			D1 = c2 * d1;
+		const qb = C0 - A1 - D1 - C1 * lam;
+		const qc = mu - A0 - D0 - C0 * lam;
+		if (C1 !== 0) {
+			const disc = qb * qb - 4 * C1 * qc;
+			const scale = qb * qb + 4 * Math.abs(C1 * qc);
+			if (disc < -1e-6 * scale) continue;
+			if (disc > 1e-6 * scale) {
+				const sq = Math.sqrt(disc);
+				const qq = -0.5 * (qb + (qb >= 0 ? sq : -sq));
+				// Roots g₀ = qq/C₁ = qq·(1/c₁)(1/c₂) and g₁ = qc/qq. A root that may be
+				// physical is screened right here with its approximate (s, g): the full kernel
+				// and the physical check run only when the top-K would keep it.
+				let need = false;
+				for (let r = 0; r < 2 && !need; r++) {
+					const g = r === 0 ? qq * rc1 * src[j] : qc / qq;
+					if (!(g >= minG)) continue;
+					const kC = C0 + g * C1,
+						kA = A0 + g * A1,
+						kD = D0 + g * D1;
+					const size = Math.abs(kA) + Math.abs(kD) + Math.abs(m) + Math.abs(im);
+					if (!(Math.abs(kC) > 1e-9 * size)) {
+						need = true; // nearly afocal: the kernel handles it
+						break;
+					}
+					const lim = kC * kC * minS;
+					if (!((im - kD) * kC >= lim && (m - kA) * kC >= lim)) continue;
+					screen(packed, seidel, i, j, (im - kD) / kC, g, p);
+					need = top.admits(scoreOf(screenOut[2], airyPair, screenOut[0], screenOut[1], untr1 || untraceable[j] === 1) * (1 - 1e-9));
+				}
+				if (!need) continue;
+			}
+		}
+		const k = solvePairKernel(packed, i, j, p.trackMm, m, roots, 0);
+		for (let r = 0; r < k; r++) {
+			const base = r * ROOT_STRIDE;
+			counters[1]++;
+			if ((roots[base + ROOT_FLAGS] & ROOT_NON_PHYSICAL) !== 0) continue;
+			const bad = checkPairPhysical(
+				packed,
+				i,
+				j,
+				roots[base + ROOT_OBJECT_DISTANCE],
+				roots[base + ROOT_GAP],
+				roots[base + ROOT_BACK_DISTANCE],
+				p.minWorkingDistanceMm,
+				p.minGapMm
+			);
+			if (bad !== 0) continue;
+			counters[2]++;
+			consider(top, packed, seidel, p, i, j, base, ui || untraceable[j] === 1);
+		}
+	}
+	counters[0] += evaluated;
+}
+
+/** Runs the search of one shard (see the module comment). */
+export function searchShard(input: ShardInput): ShardResult {
+	const top = new TopK(input.topK);
+	counters.fill(0);
+	let truncated = false;
+	const cancel = input.cancel ?? null;
+	// Single parts: shard 0 does them all (there are few).
+	if (input.shardIndex === 0) singles(input, top);
+	if (input.params.maxElements >= 2) {
+		const { packed, seidel, partIndex, untraceable, partUnits, candidates, params } = input;
+		const soa = toSoa(packed);
+		for (let q = input.shardIndex; q < candidates.length; q += input.shardCount) {
+			if (Date.now() > input.deadline || (cancel !== null && Atomics.load(cancel, 0) !== 0)) {
+				truncated = true;
+				break;
+			}
+			pairRow(packed, seidel, partIndex, untraceable, partUnits, candidates, params, top, soa, candidates[q]);
+		}
+	}
+	return {
+		records: top.sorted(),
+		count: top.count,
+		configurationsEvaluated: counters[0],
+		rootsFound: counters[1],
+		physicalRoots: counters[2],
+		truncated
+	};
+}

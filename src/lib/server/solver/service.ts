@@ -1,0 +1,41 @@
+/**
+ * The solve service the routes call: validate, admit (a light concurrency cap), load the
+ * stock view (cached by stock version), search on the pool with the request's abort signal.
+ *
+ * Rate limit: per instance, at most MAX_PER_USER solves of one user and MAX_ACTIVE solves
+ * in all at the same time; beyond that 429. Kept in memory on purpose: it protects this
+ * instance's two cores, which is a per-instance resource (a lab-wide quota would live in
+ * MariaDB).
+ */
+import type { DbOrTx } from '$lib/server/db';
+import { DomainError } from '$lib/server/api/http';
+import { solveRequestSchema } from '$lib/solver/request';
+import type { SolveResponse } from '$lib/solver/types';
+import { stockView } from './load-stock';
+import { solveWithStock } from './solve';
+
+export const MAX_PER_USER = 2;
+export const MAX_ACTIVE = 6;
+
+const active = new Map<number, number>();
+let total = 0;
+
+/** Validates `body` and solves it for `user`; aborting `signal` cancels the search. */
+export async function solve(db: DbOrTx, body: unknown, user: { id: number }, signal?: AbortSignal): Promise<SolveResponse> {
+	const req = solveRequestSchema.parse(body);
+	const mine = active.get(user.id) ?? 0;
+	if (mine >= MAX_PER_USER || total >= MAX_ACTIVE) {
+		throw new DomainError(429, 'too-many-requests', 'The solver is busy with your earlier questions; try again in a moment.');
+	}
+	active.set(user.id, mine + 1);
+	total++;
+	try {
+		const stock = await stockView(db);
+		return await solveWithStock(stock, req, { signal });
+	} finally {
+		total--;
+		const n = (active.get(user.id) ?? 1) - 1;
+		if (n <= 0) active.delete(user.id);
+		else active.set(user.id, n);
+	}
+}

@@ -1,0 +1,209 @@
+/**
+ * Setups: a solver question saved with the solution chosen, for a project. The server never
+ * stores a solution a client sends: it takes the choice (which parts, which way round, where)
+ * and re-evaluates it from the catalogue (matrix check, real rays, tolerance) before saving.
+ * Reserving a setup reserves all its parts in one transaction (stock's `reserve`).
+ */
+import { and, desc, eq } from 'drizzle-orm';
+import { z } from 'zod';
+import type { DbOrTx } from '$lib/server/db';
+import { setups, projects, users, reservations } from '$lib/server/db/schema';
+import { DomainError } from '$lib/server/api/http';
+import { reserve, reservationRows } from '$lib/server/stock/reservations';
+import { solveRequestSchema, type ParsedSolveRequest } from '$lib/solver/request';
+import type { Solution } from '$lib/solver/types';
+import { buildElementSnapshot } from './elements';
+import { evaluatePlacement } from './evaluate';
+import { candidatePartsById } from './load-stock';
+
+export const choiceSchema = z
+	.object({
+		elements: z
+			.array(z.object({ partId: z.number().int().positive(), reversed: z.boolean() }).strict())
+			.min(1, 'A setup has one or two parts.')
+			.max(2, 'A setup has one or two parts.'),
+		objectDistanceMm: z.number().finite(),
+		gapsMm: z.array(z.number().finite()).max(1),
+		backDistanceMm: z.number().finite()
+	})
+	.strict()
+	.refine((c) => c.gapsMm.length === c.elements.length - 1, { message: 'Give one gap between two parts, none for one part.', path: ['gapsMm'] });
+export type Choice = z.infer<typeof choiceSchema>;
+
+export const setupInputSchema = z
+	.object({
+		name: z.string({ error: 'Give the setup a name.' }).trim().min(1, 'Give the setup a name.').max(160, 'At most 160 characters.'),
+		projectId: z.number().int().positive().nullable().optional(),
+		query: solveRequestSchema,
+		choice: choiceSchema
+	})
+	.strict();
+
+export const reserveInputSchema = z
+	.object({
+		until: z.coerce.date({ error: 'Enter a date.' }),
+		projectId: z.number().int().positive().nullable().optional()
+	})
+	.strict();
+
+/** The choice of a solution (what a client sends back to save it). */
+export function choiceOf(s: Solution): Choice {
+	return {
+		elements: s.elements.map((e) => ({ partId: e.partId, reversed: e.reversed })),
+		objectDistanceMm: s.objectDistanceMm,
+		gapsMm: s.gapsMm,
+		backDistanceMm: s.backDistanceMm
+	};
+}
+
+/** Re-evaluates a choice from the catalogue; 400 when it does not image as the question asks. */
+export async function evaluateChoice(db: DbOrTx, query: ParsedSolveRequest, choice: Choice): Promise<Solution> {
+	const byId = await candidatePartsById(db, choice.elements.map((e) => e.partId));
+	const list = [...new Set(choice.elements.map((e) => e.partId))].map((id) => {
+		const p = byId.get(id);
+		if (!p) throw new DomainError(400, 'invalid-input', `Part ${id} is not in the catalogue (or archived).`, { choice: `Unknown part ${id}.` });
+		return p;
+	});
+	const snap = buildElementSnapshot(list, query.wavelengthNm);
+	if (snap.skipped.length) {
+		throw new DomainError(400, 'invalid-input', `${snap.skipped[0].sku}: ${snap.skipped[0].reason}`, { choice: snap.skipped[0].reason });
+	}
+	const picked = choice.elements.map((c) => {
+		const pi = snap.parts.findIndex((p) => p.partId === c.partId);
+		let e = -1;
+		for (let k = 0; k < snap.elements.length; k++) {
+			if (snap.partIndex[k] === pi && (snap.reversed[k] === 1) === c.reversed) e = k;
+		}
+		if (e < 0 && snap.symmetricPart[pi]) e = snap.partIndex.indexOf(pi); // symmetric: one orientation
+		return { part: snap.parts[pi], element: snap.elements[e], symmetric: snap.symmetricPart[pi] };
+	});
+	const track =
+		choice.objectDistanceMm + choice.backDistanceMm + choice.gapsMm.reduce((a, g) => a + g, 0) + picked.reduce((a, p) => a + p.element.thicknessMm, 0);
+	if (Math.abs(track - query.trackMm) > 1e-6 * Math.max(1, query.trackMm)) {
+		throw new DomainError(400, 'invalid-input', 'The positions do not add up to the track.', { choice: 'Positions and thicknesses must add up to the track.' });
+	}
+	const ev = evaluatePlacement(
+		{
+			parts: picked.map((p) => p.part),
+			elements: picked.map((p) => p.element),
+			objectDistanceMm: choice.objectDistanceMm,
+			gapsMm: choice.gapsMm,
+			backDistanceMm: choice.backDistanceMm,
+			targetMagnification: query.magnification,
+			afocalFamily: false,
+			doubleRoot: false,
+			screenEstimateMm: NaN
+		},
+		query,
+		picked.map((p) => p.symmetric)
+	);
+	const magOk = Math.abs(ev.solution.magnification / query.magnification - 1) <= Math.max(query.magnificationTolerance, 1e-6);
+	if (!ev.verified || !magOk) {
+		throw new DomainError(400, 'invalid-input', 'This placement does not image the object onto the target plane at the magnification asked.', {
+			choice: 'Not an imaging placement for this question.'
+		});
+	}
+	const family = picked.length === 2 && Math.abs(ev.solution.systemMatrix.C) * query.trackMm < 1e-9;
+	return { rank: 1, ...ev.solution, afocalFamily: family, spot: { ...ev.solution.spot, screenEstimateMm: 0 } };
+}
+
+/** Saves a setup; returns its id. */
+export async function createSetup(db: DbOrTx, input: unknown, user: { id: number }): Promise<{ id: number }> {
+	const d = setupInputSchema.parse(input);
+	if (d.projectId != null) {
+		const [p] = await db.select({ id: projects.id }).from(projects).where(eq(projects.id, d.projectId));
+		if (!p) throw new DomainError(400, 'invalid-input', 'No such project.', { projectId: 'No such project.' });
+	}
+	const solution = await evaluateChoice(db, d.query, d.choice);
+	const [{ id }] = await db
+		.insert(setups)
+		.values({ name: d.name, userId: user.id, projectId: d.projectId ?? null, query: d.query, solution })
+		.$returningId();
+	return { id };
+}
+
+export interface SetupView {
+	id: number;
+	name: string;
+	userId: number;
+	userName: string;
+	projectId: number | null;
+	projectCode: string | null;
+	projectName: string | null;
+	query: ParsedSolveRequest;
+	solution: Solution;
+	createdAt: string;
+	reservations: Awaited<ReturnType<typeof reservationRows>>;
+}
+
+/** A setup with its active reservations; 404 when there is none. */
+export async function getSetup(db: DbOrTx, id: number): Promise<SetupView> {
+	const [row] = await db
+		.select({ s: setups, userName: users.name, projectCode: projects.code, projectName: projects.name })
+		.from(setups)
+		.innerJoin(users, eq(users.id, setups.userId))
+		.leftJoin(projects, eq(projects.id, setups.projectId))
+		.where(eq(setups.id, id));
+	if (!row) throw new DomainError(404, 'not-found', `There is no setup ${id}.`);
+	const res = await db
+		.select({ id: reservations.id })
+		.from(reservations)
+		.where(and(eq(reservations.setupId, id), eq(reservations.status, 'active')))
+		.orderBy(desc(reservations.id));
+	const rows = (await Promise.all(res.map((r) => reservationRows(db, { id: r.id })))).flat();
+	return {
+		id: row.s.id,
+		name: row.s.name,
+		userId: row.s.userId,
+		userName: row.userName,
+		projectId: row.s.projectId,
+		projectCode: row.projectCode,
+		projectName: row.projectName,
+		query: row.s.query as ParsedSolveRequest,
+		solution: row.s.solution as Solution,
+		createdAt: row.s.createdAt.toISOString(),
+		reservations: rows.filter((r) => r.state === 'active')
+	};
+}
+
+/** Recent setups (newest first). */
+export async function listSetups(db: DbOrTx, limit = 20) {
+	const rows = await db
+		.select({ id: setups.id, name: setups.name, userName: users.name, projectCode: projects.code, createdAt: setups.createdAt })
+		.from(setups)
+		.innerJoin(users, eq(users.id, setups.userId))
+		.leftJoin(projects, eq(projects.id, setups.projectId))
+		.orderBy(desc(setups.id))
+		.limit(limit);
+	return rows.map((r) => ({ ...r, createdAt: r.createdAt.toISOString() }));
+}
+
+/**
+ * Reserves every part of the setup in one transaction (a part used twice reserves two units).
+ * Parts are locked in id order so two reservers cannot deadlock. 409 'insufficient-stock'
+ * when someone took the last unit; then nothing is reserved.
+ */
+export async function reserveSetup(db: DbOrTx, id: number, input: unknown, user: { id: number }) {
+	const d = reserveInputSchema.parse(input);
+	const setup = await getSetup(db, id);
+	const need = new Map<number, number>();
+	for (const e of setup.solution.elements) need.set(e.partId, (need.get(e.partId) ?? 0) + 1);
+	const ids = [...need.keys()].sort((a, b) => a - b);
+	return db.transaction(async (tx) => {
+		const out = [];
+		for (const partId of ids) {
+			out.push(
+				await reserve(tx, {
+					partId,
+					quantity: need.get(partId)!,
+					until: d.until,
+					projectId: d.projectId ?? setup.projectId,
+					setupId: id,
+					note: `Setup "${setup.name}"`,
+					userId: user.id
+				})
+			);
+		}
+		return out;
+	});
+}

@@ -1,0 +1,59 @@
+import { fail, redirect } from '@sveltejs/kit';
+import { ZodError } from 'zod';
+import type { Actions, PageServerLoad } from './$types';
+import { db } from '$lib/server/db';
+import { requireRole } from '$lib/server/auth/guard';
+import { SOLVER_USERS } from '$lib/server/auth/roles';
+import { DomainError, zodFields } from '$lib/server/api/http';
+import { listProjects } from '$lib/server/stock/projects';
+import * as form from '$lib/server/solver/form';
+import * as setups from '$lib/server/solver/setups';
+import * as solver from '$lib/server/solver/service';
+
+/**
+ * The question lives in the URL. With JavaScript the page fetches the answer from
+ * POST /api/v1/solve; without it (the form sends `nojs=1`) the load solves on the server.
+ */
+export const load = (async (event) => {
+	const user = requireRole(event, SOLVER_USERS);
+	const parsed = form.readForm(event.url.searchParams);
+	let ssr: Awaited<ReturnType<typeof solver.solve>> | null = null;
+	let ssrError: string | null = null;
+	if (parsed.request && event.url.searchParams.get('nojs') === '1') {
+		try {
+			ssr = await solver.solve(db, parsed.request, { id: user.id });
+		} catch (e) {
+			if (e instanceof DomainError) ssrError = e.fields ? Object.values(e.fields).join(' ') : e.message;
+			else throw e;
+		}
+	}
+	return { ...parsed, ssr, ssrError, projects: await listProjects(db) };
+}) satisfies PageServerLoad;
+
+export const actions = {
+	save: async (event) => {
+		const user = requireRole(event, SOLVER_USERS);
+		const data = await event.request.formData();
+		const values = { name: String(data.get('name') ?? ''), projectId: String(data.get('projectId') ?? '') };
+		let body: unknown;
+		try {
+			body = {
+				name: values.name,
+				projectId: values.projectId ? Number(values.projectId) : null,
+				query: JSON.parse(String(data.get('query') ?? 'null')),
+				choice: JSON.parse(String(data.get('choice') ?? 'null'))
+			};
+		} catch {
+			return fail(400, { save: { errors: { choice: 'Choose a solution first.' }, values } });
+		}
+		let id: number;
+		try {
+			id = (await setups.createSetup(db, body, { id: user.id })).id;
+		} catch (e) {
+			if (e instanceof ZodError) return fail(400, { save: { errors: zodFields(e), values } });
+			if (e instanceof DomainError) return fail(e.status, { save: { errors: e.fields ?? { choice: e.message }, values } });
+			throw e;
+		}
+		redirect(303, `/build/${id}`);
+	}
+} satisfies Actions;

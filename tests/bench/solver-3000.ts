@@ -1,0 +1,68 @@
+/**
+ * Build from stock on a 3,000-part invented stock (about 36 million ordered pair
+ * configurations with both orientations): end-to-end solve time through the worker pool,
+ * with the element snapshot already cached (as after the first solve of a stock version)
+ * and, once, cold. Target: under 1 s on the 2-core machine. No database: the stock is built
+ * in memory (the DB loader adds one cheap version query per solve when the cache is warm).
+ * Prints the figures and a final JSON line.
+ */
+import { syntheticStock } from './_synthetic-stock';
+import { solveWithStock, type StockView } from '../../src/lib/server/solver/solve';
+import { solveRequestSchema } from '../../src/lib/solver/request';
+import { warmUp } from '../../src/lib/server/solver/pool';
+
+const PARTS = 3000;
+const stock: StockView = { key: 'bench-3000', parts: syntheticStock(PARTS) };
+const questions = [
+	{ trackMm: 300, magnification: -0.5, objectNA: 0.05, objectHeightMm: 2 },
+	{ trackMm: 250, magnification: -1, objectNA: 0.08, objectHeightMm: 1 },
+	{ trackMm: 500, magnification: -4, objectNA: 0.1, objectHeightMm: 0.5 },
+	{ trackMm: 180, magnification: -0.25, objectNA: 0.03, objectHeightMm: 4 }
+].map((q) => solveRequestSchema.parse({ ...q, wavelengthNm: 587.6, minGapMm: 1, minWorkingDistanceMm: 5, limit: 10 }));
+
+const workers = await warmUp();
+const tCold = performance.now();
+const cold = await solveWithStock(stock, questions[0]);
+const coldMs = performance.now() - tCold;
+console.log(
+	`cold (snapshot build + search): ${coldMs.toFixed(0)} ms, ${cold.stats.elementsConsidered} elements, ` +
+		`${cold.stats.configurationsEvaluated.toLocaleString('en')} configurations, ${workers} workers`
+);
+
+const times: number[] = [];
+let configs = 0;
+for (let round = 0; round < 3; round++) {
+	for (const q of questions) {
+		const t = performance.now();
+		const r = await solveWithStock(stock, q);
+		const ms = performance.now() - t;
+		times.push(ms);
+		configs = r.stats.configurationsEvaluated;
+		if (round === 0) {
+			const best = r.solutions[0];
+			console.log(
+				`m = ${q.magnification}, L = ${q.trackMm} mm: ${ms.toFixed(0)} ms (search ${r.stats.searchMs} ms), ` +
+					`${r.solutions.length} solutions, best ${best ? best.elements.map((e) => e.sku).join(' + ') + ` spot/Airy ${best.spot.ratioToAiry?.toFixed(2)}` : 'none'}` +
+					(r.stats.truncated ? ' (TRUNCATED)' : '')
+			);
+		}
+	}
+}
+times.sort((a, b) => a - b);
+const median = times[Math.floor(times.length / 2)];
+const worst = times[times.length - 1];
+console.log(`warm end-to-end over ${times.length} solves: median ${median.toFixed(0)} ms, worst ${worst.toFixed(0)} ms (target < 1000 ms)`);
+console.log(
+	JSON.stringify({
+		bench: 'solver-3000',
+		parts: PARTS,
+		configurations: configs,
+		workers,
+		coldMs: Math.round(coldMs),
+		medianMs: Math.round(median),
+		worstMs: Math.round(worst),
+		targetMs: 1000,
+		pass: worst < 1000
+	})
+);
+process.exit(0);
