@@ -14,7 +14,7 @@
  * - `endsSession: true` for a request that signs the caller out; the walk uses a throwaway session.
  */
 import type { Role } from '../../../src/lib/server/db/schema';
-import { ADMINS, ANY_ROLE, PUBLIC, PURCHASERS, RESERVERS, STOCK_EDITORS, STOCK_HANDLERS } from '../../../src/lib/server/auth/roles';
+import { ADMINS, ANY_ROLE, PUBLIC, PURCHASERS, RESERVERS, SOLVER_USERS, STOCK_EDITORS, STOCK_HANDLERS } from '../../../src/lib/server/auth/roles';
 
 export type Access = typeof PUBLIC | readonly Role[];
 export type Method = 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE';
@@ -76,7 +76,21 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	'/api/v1/datasheets/[id]/thumbnail': { url: '/api/v1/datasheets/99999999/thumbnail', GET: ANY_ROLE },
 	'/api/v1/datasheets/match': { POST: STOCK_EDITORS },
 	'/api/v1/imports': { GET: STOCK_EDITORS, POST: STOCK_EDITORS },
-	'/api/v1/imports/[id]': { url: '/api/v1/imports/99999999', GET: STOCK_EDITORS }
+	'/api/v1/imports/[id]': { url: '/api/v1/imports/99999999', GET: STOCK_EDITORS },
+	'/imports': { GET: STOCK_EDITORS },
+	'/imports/new': { GET: STOCK_EDITORS, actions: { default: STOCK_EDITORS } },
+	'/imports/[id]': { url: '/imports/99999999', GET: STOCK_EDITORS, actions: { check: STOCK_EDITORS, commit: STOCK_EDITORS } },
+	'/imports/[id]/errors.csv': { url: '/imports/99999999/errors.csv', GET: STOCK_EDITORS },
+	'/imports/datasheets': { GET: STOCK_EDITORS },
+
+	// ── Build from stock (solver) ──
+	'/build': { GET: SOLVER_USERS, actions: { save: SOLVER_USERS } },
+	'/build/[setup]': { url: '/build/99999999', GET: SOLVER_USERS, actions: { reserve: RESERVERS } },
+	'/build/[setup]/sheet': { url: '/build/99999999/sheet', GET: SOLVER_USERS },
+	'/api/v1/solve': { POST: SOLVER_USERS },
+	'/api/v1/setups': { GET: SOLVER_USERS, POST: SOLVER_USERS },
+	'/api/v1/setups/[id]': { url: '/api/v1/setups/99999999', GET: SOLVER_USERS },
+	'/api/v1/setups/[id]/reservations': { url: '/api/v1/setups/99999999/reservations', POST: RESERVERS }
 
 	// ── imports, solver, purchasing: add your routes here ──
 };

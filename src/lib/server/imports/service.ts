@@ -11,7 +11,7 @@ import { importRowErrors, imports, suppliers, users, type ImportRecord, type Imp
 import { ApiError, DomainError } from '$lib/server/api/http';
 import { recordAudit } from '$lib/server/audit';
 import type { ObjectStore } from '$lib/server/files/s3';
-import { checkCsv, csvLine, escapeFormula, type CheckedCsv } from './csv';
+import { checkCsv, csvLine, csvRecords, escapeFormula, type CheckedCsv, type Delimiter } from './csv';
 import { IMPORT_FIELDS, isImportField, isLengthField, LENGTH_UNITS, PRICE_UNITS, suggestMapping, type Suggestion } from './fields';
 import { isStale, runImport, STALE_AFTER_MS, type RunHooks } from './run';
 
@@ -281,3 +281,24 @@ export async function* errorReportCsv(db: DbOrTx, id: number): AsyncGenerator<st
 
 /** The fields the mapping screen offers, in order. */
 export const MAPPABLE_FIELDS = IMPORT_FIELDS;
+
+/** The first `n` data rows of the stored file (for the mapping screen). */
+export async function previewRows(db: DbOrTx, store: ObjectStore, id: number, n = 5): Promise<string[][]> {
+	const rec = await record(db, id);
+	const object = await store.get(rec.s3Key);
+	const out: string[][] = [];
+	let first = true;
+	try {
+		for await (const r of csvRecords(object.body, rec.delimiter as Delimiter)) {
+			if (first) {
+				first = false;
+				continue;
+			}
+			out.push(r);
+			if (out.length >= n) break;
+		}
+	} finally {
+		object.body.destroy();
+	}
+	return out;
+}

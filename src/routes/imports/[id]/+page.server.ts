@@ -1,0 +1,95 @@
+import { error, fail } from '@sveltejs/kit';
+import { eq } from 'drizzle-orm';
+import { ZodError } from 'zod';
+import type { Actions, PageServerLoad } from './$types';
+import { db } from '$lib/server/db';
+import { imports } from '$lib/server/db/schema';
+import { DomainError, zodFields } from '$lib/server/api/http';
+import { requireRole } from '$lib/server/auth/guard';
+import { STOCK_EDITORS } from '$lib/server/auth/roles';
+import { appStore } from '$lib/server/files/store';
+import { fieldLabel, isLengthField, MAX_SURFACES, SCALAR_FIELDS, surfaceFields } from '$lib/server/imports/fields';
+import * as importsService from '$lib/server/imports/service';
+
+function idOf(params: { id: string }): number {
+	if (!/^\d{1,12}$/.test(params.id)) error(404, { code: 'not-found', message: 'There is no such import.' });
+	return Number(params.id);
+}
+
+export const load = (async (event) => {
+	requireRole(event, STOCK_EDITORS);
+	const id = idOf(event.params);
+	let report;
+	try {
+		report = await importsService.getReport(db, id, 200);
+	} catch (err) {
+		if (err instanceof importsService.ImportNotFound) error(404, { code: 'not-found', message: err.message });
+		throw err;
+	}
+	const editable = report.status === 'uploaded' || report.status === 'checked' || report.status === 'failed' || report.interrupted;
+	let preview: string[][] = [];
+	let previewError: string | null = null;
+	if (editable) {
+		preview = await importsService.previewRows(db, appStore(), id).catch((err) => {
+			previewError = err instanceof DomainError ? err.message : 'The stored file could not be read.';
+			return [];
+		});
+	}
+	const mappedSurfaces = Math.max(0, ...Object.keys(report.mapping).map((f) => Number(/^(?:r|t|material)(\d+)/.exec(f)?.[1] ?? 0)));
+	const surfaceRows = Math.min(MAX_SURFACES, Math.max(3, mappedSurfaces + 1));
+	const fields = [...SCALAR_FIELDS, ...Array.from({ length: surfaceRows }, (_, i) => surfaceFields(i + 1)).flat()].map((f) => ({
+		field: f,
+		label: fieldLabel(f),
+		unit: f === 'unitPrice' ? 'price' : isLengthField(f) ? 'length' : null
+	}));
+	return { report, preview, previewError, fields, editable };
+}) satisfies PageServerLoad;
+
+function mappingFrom(form: FormData) {
+	const mapping: Record<string, string> = {};
+	const units: Record<string, string> = {};
+	for (const [k, v] of form.entries()) {
+		if (typeof v !== 'string') continue;
+		if (k.startsWith('map.') && v) mapping[k.slice(4)] = v;
+		if (k.startsWith('unit.') && v) units[k.slice(5)] = v;
+	}
+	return { mapping, units, skuPrefix: String(form.get('skuPrefix') ?? ''), skipRejected: form.get('skipRejected') === 'on' };
+}
+
+export const actions = {
+	check: async (event) => {
+		const user = requireRole(event, STOCK_EDITORS);
+		const id = idOf(event.params);
+		const values = mappingFrom(await event.request.formData());
+		try {
+			await importsService.saveMapping(db, id, values);
+			await importsService.beginRun(db, id, 'check');
+		} catch (err) {
+			if (err instanceof ZodError) return fail(400, { errors: zodFields(err), values });
+			if (err instanceof DomainError) return fail(err.status, { errors: { _: err.message }, values });
+			throw err;
+		}
+		importsService.startRun(db, appStore(), id, 'check', user.id);
+		return { started: 'check' };
+	},
+	commit: async (event) => {
+		const user = requireRole(event, STOCK_EDITORS);
+		const id = idOf(event.params);
+		const form = await event.request.formData();
+		const skipRejected = form.get('skipRejected') === 'on';
+		try {
+			const [rec] = await db.select({ options: imports.options }).from(imports).where(eq(imports.id, id));
+			if (!rec) throw new importsService.ImportNotFound(id);
+			await db
+				.update(imports)
+				.set({ options: { ...(rec.options ?? {}), skipRejected } })
+				.where(eq(imports.id, id));
+			await importsService.beginRun(db, id, 'commit');
+		} catch (err) {
+			if (err instanceof DomainError) return fail(err.status, { errors: { _: err.message } });
+			throw err;
+		}
+		importsService.startRun(db, appStore(), id, 'commit', user.id);
+		return { started: 'commit' };
+	}
+} satisfies Actions;
