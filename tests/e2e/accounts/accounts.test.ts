@@ -60,7 +60,7 @@ describe('accounts in Chromium', () => {
 		await page.fill('#invite-name', 'Sela Marrowby');
 		await page.fill('#invite-email', `sela-${Date.now()}@tarnwell.example`);
 		await page.selectOption('#invite-role', 'stockroom');
-		await page.click('button:has-text("Send invitation")');
+		await page.click('button:text-is("Send invitation")'); // not the rows' "Send invitation again"
 		await page.waitForSelector('text=Invitation sent to');
 		expect(await page.locator('[data-testid=user-table]').innerText()).toContain('Sela Marrowby');
 		await screenshot(page, 'accounts-admin-users');
