@@ -11,6 +11,7 @@ import {
 	packElement,
 	ELEMENT_STRIDE,
 	resolveMaterial,
+	GLASS_CODE_RANGE_NM,
 	type ThickElement,
 	type SurfaceSpec
 } from '../../optics';
@@ -77,6 +78,9 @@ export function partElement(part: CandidatePart, wavelengthNm: number): { ok: tr
 	if (part.surfaces.length >= 2) {
 		const r = buildElement(part.surfaces, wavelengthNm, { clearApertureMm, measured });
 		return r.ok ? { ok: true, element: r.value } : { ok: false, reason: r.error.message };
+	}
+	if (wavelengthNm < GLASS_CODE_RANGE_NM[0] || wavelengthNm > GLASS_CODE_RANGE_NM[1]) {
+		return { ok: false, reason: `A datasheet-only part is taken to be optical glass, known ${GLASS_CODE_RANGE_NM[0]}–${GLASS_CODE_RANGE_NM[1]} nm.` };
 	}
 	if (part.eflMm === null || part.bflMm === null || part.centerThicknessMm === null) {
 		return { ok: false, reason: 'No prescription and no EFL, BFL and centre thickness to model it from.' };
@@ -161,13 +165,14 @@ export function buildElementSnapshot(parts: readonly CandidatePart[], wavelength
 
 /**
  * True when at least one material the parts use has a dispersion formula covering the
- * wavelength (or a part is a black box without material): otherwise the question names a
- * wavelength outside every material's range.
+ * wavelength (a datasheet-only part counts as glass, 365–1100 nm): otherwise the question
+ * names a wavelength outside every material's range.
  */
 export function wavelengthCoveredByAnyMaterial(parts: readonly CandidatePart[], wavelengthNm: number): boolean {
 	const seen = new Set<string>();
 	for (const p of parts) {
-		if (p.surfaces.length < 2) return true;
+		// A datasheet-only part is taken to be optical glass (the glass-code range).
+		if (p.surfaces.length < 2 && wavelengthNm >= GLASS_CODE_RANGE_NM[0] && wavelengthNm <= GLASS_CODE_RANGE_NM[1]) return true;
 		for (const s of p.surfaces) if (s.material) seen.add(s.material);
 	}
 	for (const name of seen) {
