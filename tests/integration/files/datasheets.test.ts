@@ -40,7 +40,7 @@ function pdf(size: number) {
 
 async function post(bytes: Uint8Array, filename: string, cookie = stockroom) {
 	const body = new FormData();
-	body.append('file', new Blob([bytes]), filename);
+	body.append('file', new Blob([bytes as Uint8Array<ArrayBuffer>]), filename);
 	return fetch(`${APP()}/api/v1/parts/${partId}/datasheets`, { method: 'POST', body, headers: { cookie, origin: APP() } });
 }
 

@@ -8,7 +8,7 @@
  * Rows are keyed by (supplier, supplier part number) first, then by SKU. Memory: one batch of rows
  * plus one small key per row for the duplicate check; the file itself is streamed from S3.
  */
-import { and, eq, inArray, or, type SQL } from 'drizzle-orm';
+import { and, eq, inArray } from 'drizzle-orm';
 import type { Db, DbOrTx, Tx } from '$lib/server/db';
 import { importRowErrors, imports, partSurfaces, parts, suppliers, type ImportRecord } from '$lib/server/db/schema';
 import { recordAudit } from '$lib/server/audit';
@@ -54,13 +54,15 @@ type Existing = { part: typeof parts.$inferSelect; surfaces: (typeof partSurface
 
 /** Parts that rows of a batch may refer to, by SKU and by (supplier id, supplier part number). */
 async function existingFor(db: DbOrTx, skus: string[], pairs: Map<number, string[]>, supplierNames: Map<number, string>) {
-	const conds: SQL[] = [];
-	if (skus.length) conds.push(inArray(parts.sku, skus));
-	for (const [sid, pns] of pairs) conds.push(and(eq(parts.supplierId, sid), inArray(parts.supplierPartNumber, pns))!);
 	const bySku = new Map<string, Existing>();
 	const byPn = new Map<string, Existing>();
-	if (!conds.length) return { bySku, byPn };
-	const rows = await db.select().from(parts).where(or(...conds));
+	// Separate queries, so each uses its unique index (an OR of the two would scan the table).
+	const found = new Map<number, typeof parts.$inferSelect>();
+	if (skus.length) for (const p of await db.select().from(parts).where(inArray(parts.sku, skus))) found.set(p.id, p);
+	for (const [sid, pns] of pairs) {
+		for (const p of await db.select().from(parts).where(and(eq(parts.supplierId, sid), inArray(parts.supplierPartNumber, pns)))) found.set(p.id, p);
+	}
+	const rows = [...found.values()];
 	if (!rows.length) return { bySku, byPn };
 	const surf = await db
 		.select()
@@ -71,10 +73,12 @@ async function existingFor(db: DbOrTx, skus: string[], pairs: Map<number, string
 				rows.map((r) => r.id)
 			)
 		);
+	const surfacesOf = new Map<number, (typeof surf)[number][]>();
+	for (const s of surf) surfacesOf.set(s.partId, [...(surfacesOf.get(s.partId) ?? []), s]);
 	for (const p of rows) {
 		const e: Existing = {
 			part: p,
-			surfaces: surf.filter((s) => s.partId === p.id).sort((a, b) => a.position - b.position),
+			surfaces: (surfacesOf.get(p.id) ?? []).sort((a, b) => a.position - b.position),
 			supplierName: p.supplierId ? (supplierNames.get(p.supplierId) ?? null) : null
 		};
 		bySku.set(p.sku.toLowerCase(), e);
