@@ -89,7 +89,6 @@ describe('every returned solution, re-verified from its positions', () => {
 			expect(s.objectDistanceMm).toBeGreaterThanOrEqual(10);
 			expect(s.backDistanceMm).toBeGreaterThanOrEqual(10);
 			for (const g of s.gapsMm) expect(g).toBeGreaterThanOrEqual(2);
-			expect(s.stats).toBeUndefined();
 		}
 		expect(r.stats.configurationsEvaluated).toBeGreaterThan(0);
 	});

@@ -173,6 +173,23 @@ function screen(packed: Float64Array, seidel: Float64Array, i: number, j: number
 }
 
 /**
+ * The spherical part of `screen` alone (marginal ray only): RMS of the third-order
+ * transverse aberration at the paraxial focus, mm, for a pair placement (s, g) of i then j.
+ */
+function sphericalRms(packed: Float64Array, seidel: Float64Array, i: number, j: number, s: number, g: number, u0: number): number {
+	let o = i * ELEMENT_STRIDE;
+	const y1 = s * u0;
+	const si1 = evalSeidel(seidel, i, y1, u0);
+	const y1b = packed[o + EL_A] * y1 + packed[o + EL_B] * u0,
+		u1b = packed[o + EL_C] * y1 + packed[o + EL_D] * u0;
+	const y2 = y1b + g * u1b;
+	o = j * ELEMENT_STRIDE;
+	const si = si1 + evalSeidel(seidel, j, y2, u1b);
+	const uf = packed[o + EL_C] * y2 + packed[o + EL_D] * u1b;
+	return Math.abs(uf) > 1e-15 ? Math.abs(si / (2 * uf)) / 2 : Infinity;
+}
+
+/**
  * A fixed-size max-heap of records keyed by REC_SCORE: the root is the worst kept record,
  * so a better newcomer replaces it in O(log K).
  */
@@ -364,6 +381,7 @@ function pairRow(
 	const ui = untraceable[i] === 1;
 	const untr1 = ui;
 	const airyPair = airyForMagnification(p.wavelengthNm, p.objectNA, m);
+	const u0 = p.objectNA / Math.sqrt(1 - p.objectNA * p.objectNA);
 	const sa = soa.a,
 		sb = soa.b,
 		sc = soa.c,
@@ -424,8 +442,9 @@ function pairRow(
 					}
 					const lim = kC * kC * minS;
 					if (!((im - kD) * kC >= lim && (m - kA) * kC >= lim)) continue;
-					screen(packed, seidel, i, j, (im - kD) / kC, g, p);
-					need = top.admits(scoreOf(screenOut[2], airyPair, screenOut[0], screenOut[1], untr1 || untraceable[j] === 1) * (1 - 1e-9));
+					// Lower bound of the screen score (aperture penalties only raise it).
+					const bound = sphericalRms(packed, seidel, i, j, (im - kD) / kC, g, u0) / airyPair;
+					need = top.admits((untr1 || untraceable[j] === 1 ? UNTRACEABLE_OFFSET + bound : bound) * (1 - 1e-9));
 				}
 				if (!need) continue;
 			}
