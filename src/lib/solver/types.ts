@@ -155,8 +155,11 @@ export interface ToleranceRow {
 export interface SolveStats {
 	partsConsidered: number;
 	elementsConsidered: number;
+	/** Oriented elements' singles and ordered pairs looked at. */
 	configurationsEvaluated: number;
+	/** Roots the optics core's kernel wrote; the prefilter skips the kernel for pairs whose roots are clearly non-physical or cannot enter the top-K, so this counts only those. */
 	rootsFound: number;
+	/** Of those, roots that passed the physical filter. */
 	physicalRoots: number;
 	traced: number;
 	elapsedMs: number;
