@@ -7,6 +7,7 @@ import { resolveBearer } from '$lib/server/auth/tokens';
 import { errorResponse } from '$lib/server/api/http';
 import { isPublicPath } from '$lib/server/auth/public-paths';
 import { env } from '$env/dynamic/private';
+import { watchFlags } from '$lib/server/purchasing/watch';
 
 /** Resolves the user once per request: a bearer token on the API, else the session cookie. */
 const resolveUser: Handle = async ({ event, resolve }) => {
@@ -83,7 +84,8 @@ const securityHeaders: Handle = async ({ event, resolve }) => {
 	return response;
 };
 
-export const handle: Handle = sequence(securityHeaders, resolveUser, gate, apiOrigin);
+// watchFlags runs after the others: it schedules the reorder digest check after successful writes (purchasing/watch.ts).
+export const handle: Handle = sequence(securityHeaders, resolveUser, gate, apiOrigin, watchFlags);
 
 export const handleError: HandleServerError = ({ error: err, event, status, message }) => {
 	const id = event.locals?.requestId ?? randomUUID();

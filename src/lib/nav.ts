@@ -19,6 +19,8 @@ export const NAV: NavItem[] = [
 	{ href: '/locations', label: 'Locations', roles: ALL },
 	{ href: '/build', label: 'Build from stock', roles: ['admin', 'stockroom', 'engineer'] },
 	{ href: '/imports', label: 'Imports', roles: ['admin', 'stockroom'] },
+	{ href: '/reorder', label: 'Reorder board', roles: ['admin', 'purchaser'] },
+	{ href: '/requests', label: 'Requests', roles: ['admin', 'purchaser', 'stockroom'] },
 	{ href: '/admin/users', label: 'Users', roles: ['admin'] },
 	{ href: '/admin/outbox', label: 'Outbox', roles: ['admin'] }
 ];

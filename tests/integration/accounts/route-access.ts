@@ -26,6 +26,7 @@ export type RouteAccess = Partial<Record<Method, Access>> & {
 };
 
 const PART_PATCHERS: readonly Role[] = [...new Set([...STOCK_EDITORS, ...PURCHASERS])];
+const REQUEST_VIEWERS: readonly Role[] = [...PURCHASERS, 'stockroom'];
 
 export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	// ── foundation ──
@@ -90,7 +91,17 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	'/api/v1/solve': { POST: SOLVER_USERS },
 	'/api/v1/setups': { GET: SOLVER_USERS, POST: SOLVER_USERS },
 	'/api/v1/setups/[id]': { url: '/api/v1/setups/99999999', GET: SOLVER_USERS },
-	'/api/v1/setups/[id]/reservations': { url: '/api/v1/setups/99999999/reservations', POST: RESERVERS }
+	'/api/v1/setups/[id]/reservations': { url: '/api/v1/setups/99999999/reservations', POST: RESERVERS },
+
+	// ── purchasing (request viewers: purchasers and the stockroom, which may receive goods) ──
+	'/reorder': { GET: PURCHASERS, actions: { create: PURCHASERS } },
+	'/requests': { GET: REQUEST_VIEWERS, actions: { create: PURCHASERS } },
+	'/requests/[id]': { url: '/requests/99999999', GET: REQUEST_VIEWERS, actions: { step: PURCHASERS, receive: REQUEST_VIEWERS, edit: PURCHASERS } },
+	'/api/v1/reorder': { GET: PURCHASERS },
+	'/api/v1/reorder/export.csv': { GET: PURCHASERS },
+	'/api/v1/reorder/unlock': { POST: ANY_ROLE },
+	'/api/v1/purchase-requests': { GET: REQUEST_VIEWERS, POST: PURCHASERS },
+	'/api/v1/purchase-requests/[id]': { url: '/api/v1/purchase-requests/99999999', GET: REQUEST_VIEWERS, PATCH: REQUEST_VIEWERS }
 
 	// ── imports, solver, purchasing: add your routes here ──
 };

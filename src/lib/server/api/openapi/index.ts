@@ -9,8 +9,9 @@ import { accountsPaths } from './accounts';
 import { importsPaths } from './imports';
 import { cataloguePaths } from './catalogue';
 import { solverPaths } from './solver';
+import { purchasingPaths } from './purchasing';
 
-const areas: OpenApiPaths[] = [foundationPaths, accountsPaths, importsPaths, cataloguePaths, solverPaths];
+const areas: OpenApiPaths[] = [foundationPaths, accountsPaths, importsPaths, cataloguePaths, solverPaths, purchasingPaths];
 
 export function openApiDocument() {
 	return {

@@ -1,0 +1,140 @@
+/**
+ * The reorder board: flagged parts and parts whose purchase would unlock a saved setup, with
+ * the figures a purchaser orders by. Usage is taken from the ledger over the last
+ * USAGE_DAYS days: units issued + scrapped − returned (net consumption), not below 0.
+ */
+import { and, eq, gt, inArray, isNull, sql } from 'drizzle-orm';
+import type { DbOrTx } from '$lib/server/db';
+import { movements, parts, setups, suppliers } from '$lib/server/db/schema';
+import { totalsFor } from '$lib/server/stock/availability';
+import { availableOf, flagReason, suggestedQuantity, type FlagReason } from './rules';
+import { setupIndex, type ElementRef, type SetupRef } from './unlocks';
+import { onOrderByPart } from './requests';
+import { openNotices } from './flags';
+
+export const USAGE_DAYS = 90;
+
+export interface BoardRow {
+	partId: number;
+	sku: string;
+	name: string;
+	supplier: string | null;
+	supplierPartNumber: string | null;
+	unitPrice: number | null;
+	currency: string;
+	leadTimeDays: number | null;
+	reorderPoint: number;
+	reorderQuantity: number;
+	onHand: number;
+	reserved: number;
+	available: number;
+	/** Net units used over the last USAGE_DAYS days (from the ledger). */
+	usage90d: number;
+	/** Units on open requests, not yet received. */
+	onOrder: number;
+	suggestedQuantity: number;
+	/** Why the part is flagged; null when it is on the board only because it unlocks setups. */
+	flag: FlagReason | null;
+	/** Since when the current flag has been reported (the digest), or null. */
+	flaggedSince: string | null;
+	/** Saved setups that use the part. */
+	setupsUsing: number;
+	/** Saved setups that cannot be built now and that buying this part alone would unlock. */
+	setupsUnlocked: number;
+	unlocks: { setupId: number; name: string; missing: number }[];
+}
+
+/** Net usage per part over the last `days` days. */
+export async function usageByPart(db: DbOrTx, days = USAGE_DAYS): Promise<Map<number, number>> {
+	const rows = await db
+		.select({
+			partId: movements.partId,
+			q: sql<string>`sum(case when ${movements.kind} in ('issue', 'scrap') then ${movements.quantity} when ${movements.kind} = 'return' then -${movements.quantity} else 0 end)`
+		})
+		.from(movements)
+		.where(and(inArray(movements.kind, ['issue', 'scrap', 'return']), gt(movements.at, sql`utc_timestamp() - interval ${days} day`)))
+		.groupBy(movements.partId);
+	return new Map(rows.map((r) => [r.partId, Math.max(0, Number(r.q))]));
+}
+
+/** Saved setups with the elements of their saved solution. */
+export async function savedSetups(db: DbOrTx): Promise<SetupRef[]> {
+	const rows = await db.select({ id: setups.id, name: setups.name, solution: setups.solution }).from(setups);
+	return rows.map((r) => {
+		const sol = r.solution as { elements?: ElementRef[] } | null;
+		const elements = Array.isArray(sol?.elements) ? sol.elements.filter((e) => Number.isInteger(e?.partId)) : [];
+		return { id: r.id, name: r.name, elements };
+	});
+}
+
+/**
+ * The board's rows: every flagged part, and every part that alone would unlock a saved setup.
+ * `partIds` limits the rows to those parts whether they are flagged or not (the CSV export of a selection).
+ */
+export async function boardRows(db: DbOrTx, opts: { partIds?: readonly number[] } = {}): Promise<BoardRow[]> {
+	const only = opts.partIds ? new Set(opts.partIds) : null;
+	const list = await db
+		.select({ p: parts, supplier: suppliers.name })
+		.from(parts)
+		.leftJoin(suppliers, eq(suppliers.id, parts.supplierId))
+		.where(isNull(parts.archivedAt))
+		.orderBy(parts.sku);
+	const ids = list.map((r) => r.p.id);
+	const [totals, usage, onOrder, saved, notices] = await Promise.all([
+		totalsFor(db, ids),
+		usageByPart(db),
+		onOrderByPart(db),
+		savedSetups(db),
+		openNotices(db)
+	]);
+	// Setups may name archived parts: those count as not available.
+	const { using, unlocking } = setupIndex(saved, (id) => (totals.has(id) ? availableOf(totals.get(id)!) : 0));
+	const since = new Map(notices.map((n) => [n.partId, n.reportedAt.toISOString()]));
+	const rows: BoardRow[] = [];
+	for (const { p, supplier } of list) {
+		const t = totals.get(p.id)!;
+		const flag = flagReason({ onHand: t.onHand, reserved: t.reserved, reorderPoint: p.reorderPoint });
+		const unlocks = unlocking.get(p.id) ?? [];
+		if (only ? !only.has(p.id) : !flag && !unlocks.length) continue;
+		const u = usage.get(p.id) ?? 0;
+		const ordered = onOrder.get(p.id) ?? 0;
+		const suggested = Math.max(
+			suggestedQuantity({
+				onHand: t.onHand,
+				reserved: t.reserved,
+				reorderPoint: p.reorderPoint,
+				reorderQuantity: p.reorderQuantity,
+				usage: u,
+				usageDays: USAGE_DAYS,
+				leadTimeDays: p.leadTimeDays,
+				onOrder: ordered
+			}),
+			// a part on the board only for an unlock: at least the units the setups miss
+			flag ? 0 : Math.max(0, Math.max(0, ...unlocks.map((x) => x.missing)) - ordered)
+		);
+		rows.push({
+			partId: p.id,
+			sku: p.sku,
+			name: p.name,
+			supplier,
+			supplierPartNumber: p.supplierPartNumber,
+			unitPrice: p.unitPriceMinor,
+			currency: p.currency,
+			leadTimeDays: p.leadTimeDays,
+			reorderPoint: p.reorderPoint,
+			reorderQuantity: p.reorderQuantity,
+			onHand: t.onHand,
+			reserved: t.reserved,
+			available: availableOf(t),
+			usage90d: u,
+			onOrder: ordered,
+			suggestedQuantity: suggested,
+			flag,
+			flaggedSince: since.get(p.id) ?? null,
+			setupsUsing: using.get(p.id)?.length ?? 0,
+			setupsUnlocked: unlocks.length,
+			unlocks
+		});
+	}
+	return rows;
+}

@@ -1,0 +1,178 @@
+/**
+ * Flagged parts and the purchasers' digest.
+ *
+ * `flaggedParts` applies rules.ts to every catalogue part with the stock figures of
+ * availability.ts (one definition of available for the whole product).
+ *
+ * `checkFlags` compares the flagged set with the open flag notices and
+ *   - opens a notice for each newly flagged part and mails every active purchaser ONE digest
+ *     listing those parts (nothing is mailed when no part is new);
+ *   - clears the notices of parts that recovered, so that a later flag is reported again.
+ * De-duplication holds across app instances: a notice is opened with `INSERT IGNORE` on the
+ * unique `open_part_id` index, so of two instances checking at once only one opens (and mails)
+ * a given part; the second blocks on the index until the first commits, then skips the part.
+ * The digest is sent before the transaction commits: if the mail server refuses it, the
+ * notices roll back and the next check tries again (a part is reported at least once, never
+ * twice while its flag stands, except when the commit itself fails after a successful send).
+ */
+import { and, eq, inArray, isNotNull, isNull } from 'drizzle-orm';
+import type { DbOrTx } from '$lib/server/db';
+import { flagNotices, parts, suppliers, users } from '$lib/server/db/schema';
+import { totalsFor } from '$lib/server/stock/availability';
+import { availableOf, flagReason, type FlagReason } from './rules';
+
+export interface FlaggedPart {
+	partId: number;
+	sku: string;
+	name: string;
+	onHand: number;
+	reserved: number;
+	available: number;
+	reorderPoint: number;
+	reorderQuantity: number;
+	supplier: string | null;
+	leadTimeDays: number | null;
+	reason: FlagReason;
+}
+
+/** Every part that is flagged now (see rules.ts), ordered by SKU. */
+export async function flaggedParts(db: DbOrTx): Promise<FlaggedPart[]> {
+	const rows = await db
+		.select({
+			id: parts.id,
+			sku: parts.sku,
+			name: parts.name,
+			reorderPoint: parts.reorderPoint,
+			reorderQuantity: parts.reorderQuantity,
+			leadTimeDays: parts.leadTimeDays,
+			supplier: suppliers.name
+		})
+		.from(parts)
+		.leftJoin(suppliers, eq(suppliers.id, parts.supplierId))
+		.where(isNull(parts.archivedAt))
+		.orderBy(parts.sku);
+	const totals = await totalsFor(
+		db,
+		rows.map((r) => r.id)
+	);
+	const out: FlaggedPart[] = [];
+	for (const r of rows) {
+		const t = totals.get(r.id)!;
+		const reason = flagReason({ onHand: t.onHand, reserved: t.reserved, reorderPoint: r.reorderPoint });
+		if (!reason) continue;
+		out.push({
+			partId: r.id,
+			sku: r.sku,
+			name: r.name,
+			onHand: t.onHand,
+			reserved: t.reserved,
+			available: availableOf(t),
+			reorderPoint: r.reorderPoint,
+			reorderQuantity: r.reorderQuantity,
+			supplier: r.supplier,
+			leadTimeDays: r.leadTimeDays,
+			reason
+		});
+	}
+	return out;
+}
+
+export type Mailer = (message: { to: string | string[]; subject: string; text: string }) => Promise<void>;
+
+export interface CheckResult {
+	/** Parts reported in this check's digest. */
+	reported: FlaggedPart[];
+	/** Part ids whose notice was cleared (recovered). */
+	cleared: number[];
+	/** Addresses the digest went to (empty when nothing was new or no purchaser exists). */
+	recipients: string[];
+}
+
+/** Active purchasers' addresses: the digest's recipients. */
+export async function purchaserAddresses(db: DbOrTx): Promise<string[]> {
+	const rows = await db
+		.select({ email: users.email })
+		.from(users)
+		.where(and(eq(users.role, 'purchaser'), eq(users.status, 'active')));
+	return rows.map((r) => r.email).sort();
+}
+
+const REASON_WORDS: Record<FlagReason, string> = {
+	'reorder-point': 'at or below its reorder point',
+	'over-reserved': 'reserved beyond what is on hand'
+};
+
+/** The digest's text: one line per part. */
+export function digestText(list: readonly FlaggedPart[], boardUrl: string): string {
+	const lines = list.map(
+		(p) =>
+			`- ${p.sku} ${p.name}: ${p.available} available (${p.onHand} on hand, ${p.reserved} reserved), reorder point ${p.reorderPoint}; ${REASON_WORDS[p.reason]}.` +
+			(p.supplier ? ` Supplier ${p.supplier}` + (p.leadTimeDays != null ? `, lead time ${p.leadTimeDays} days.` : '.') : '')
+	);
+	return [
+		`${list.length} part${list.length === 1 ? ' needs' : 's need'} reordering:`,
+		'',
+		...lines,
+		'',
+		`Open the reorder board: ${boardUrl}`,
+		'',
+		'You get one message when parts become flagged; a part is listed again only after it has recovered.'
+	].join('\n');
+}
+
+/** Runs one check (see the module comment). `origin` builds the board link. */
+export async function checkFlags(db: DbOrTx, opts: { send: Mailer; origin: string }): Promise<CheckResult> {
+	return db.transaction(async (tx) => {
+		const flagged = await flaggedParts(tx);
+		const flaggedIds = new Set(flagged.map((f) => f.partId));
+		const open = await tx.select({ id: flagNotices.id, partId: flagNotices.partId }).from(flagNotices).where(isNotNull(flagNotices.openPartId));
+		const openIds = new Set(open.map((o) => o.partId));
+
+		const recovered = open.filter((o) => !flaggedIds.has(o.partId));
+		if (recovered.length) {
+			await tx
+				.update(flagNotices)
+				.set({ openPartId: null, clearedAt: new Date() })
+				.where(inArray(
+					flagNotices.id,
+					recovered.map((r) => r.id)
+				));
+		}
+
+		const reported: FlaggedPart[] = [];
+		const now = new Date();
+		for (const f of flagged) {
+			if (openIds.has(f.partId)) continue;
+			const [res] = await tx
+				.insert(flagNotices)
+				.ignore()
+				.values({ partId: f.partId, openPartId: f.partId, reason: f.reason, available: f.available, reportedAt: now });
+			if (res.affectedRows === 1) reported.push(f);
+		}
+
+		let recipients: string[] = [];
+		if (reported.length) {
+			recipients = await purchaserAddresses(tx);
+			if (recipients.length) {
+				const board = new URL('/reorder', opts.origin).toString();
+				await opts.send({
+					to: recipients,
+					subject: `Reorder: ${reported.length} part${reported.length === 1 ? '' : 's'} flagged (${reported
+						.slice(0, 3)
+						.map((p) => p.sku)
+						.join(', ')}${reported.length > 3 ? ', …' : ''})`,
+					text: digestText(reported, board)
+				});
+			}
+		}
+		return { reported, cleared: recovered.map((r) => r.partId), recipients };
+	});
+}
+
+/** Open notices (for the board: since when a part has been flagged). */
+export async function openNotices(db: DbOrTx) {
+	return db
+		.select({ partId: flagNotices.partId, reportedAt: flagNotices.reportedAt })
+		.from(flagNotices)
+		.where(isNotNull(flagNotices.openPartId));
+}

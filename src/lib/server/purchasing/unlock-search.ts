@@ -1,0 +1,109 @@
+/**
+ * "Which one purchase would give the best setup?", answered with the solver: the question is
+ * searched over the whole catalogue (availableOnly: false), and the best-ranked solution that
+ * needs exactly one part beyond what is available is reported with that part's price, supplier
+ * and lead time. For a saved setup, the same search runs on its saved question; the setup's own
+ * solution also says directly which part it is short of.
+ */
+import { eq, inArray } from 'drizzle-orm';
+import { z } from 'zod';
+import type { DbOrTx } from '$lib/server/db';
+import { parts, suppliers } from '$lib/server/db/schema';
+import * as solver from '$lib/server/solver/service';
+import { stockView } from '$lib/server/solver/load-stock';
+import { getSetup } from '$lib/server/solver/setups';
+import type { Solution } from '$lib/solver/types';
+import { bestSinglePurchase, shortfalls, type Shortfall } from './unlocks';
+
+/** Solutions the search returns for the unlock (the solver's own upper limit). */
+const SEARCH_LIMIT = 50;
+
+export const unlockInputSchema = z.union([
+	z.object({ setupId: z.number({ error: 'Give a setup id.' }).int().positive() }).strict(),
+	z.object({ question: z.record(z.string(), z.unknown()) }).strict()
+]);
+
+export interface PurchaseOffer {
+	partId: number;
+	sku: string;
+	name: string;
+	/** Units to buy. */
+	quantity: number;
+	unitPrice: number | null;
+	currency: string;
+	supplier: string | null;
+	leadTimeDays: number | null;
+}
+
+export interface SolutionBrief {
+	rank: number;
+	skus: string[];
+	magnification: number;
+	/** max(axial, edge) RMS spot over the Airy radius (null: not traced). */
+	ratioToAiry: number | null;
+	vignetted: boolean;
+}
+
+export interface UnlockAnswer {
+	/** The best solution buildable from available stock now, or null. */
+	bestFromStock: SolutionBrief | null;
+	/** The best solution one purchase would unlock, with the purchase; null when none needs exactly one. */
+	purchase: (PurchaseOffer & { solution: SolutionBrief; betterThanStock: boolean }) | null;
+	/** For a saved setup: the setup can be built from available stock now. */
+	setupBuildable?: boolean;
+	/** For a saved setup: what its own saved solution is short of. */
+	setupShort?: PurchaseOffer[];
+	stats: { solutionsSearched: number; elapsedMs: number };
+}
+
+const brief = (s: Solution): SolutionBrief => ({
+	rank: s.rank,
+	skus: s.elements.map((e) => e.sku),
+	magnification: s.magnification,
+	ratioToAiry: s.spot.ratioToAiry,
+	vignetted: s.vignetting.axial || s.vignetting.edge
+});
+
+async function offers(db: DbOrTx, short: readonly Shortfall[]): Promise<PurchaseOffer[]> {
+	if (!short.length) return [];
+	const rows = await db
+		.select({ p: parts, supplier: suppliers.name })
+		.from(parts)
+		.leftJoin(suppliers, eq(suppliers.id, parts.supplierId))
+		.where(inArray(
+			parts.id,
+			short.map((s) => s.partId)
+		));
+	const byId = new Map(rows.map((r) => [r.p.id, r]));
+	return short.flatMap((s) => {
+		const r = byId.get(s.partId);
+		if (!r) return [];
+		return [{ partId: s.partId, sku: r.p.sku, name: r.p.name, quantity: s.missing, unitPrice: r.p.unitPriceMinor, currency: r.p.currency, supplier: r.supplier, leadTimeDays: r.p.leadTimeDays }];
+	});
+}
+
+/** Runs the search for `question` over the catalogue and picks the best single purchase. */
+export async function unlockForQuestion(db: DbOrTx, question: Record<string, unknown>, user: { id: number }, signal?: AbortSignal): Promise<UnlockAnswer> {
+	const res = await solver.solve(db, { ...question, availableOnly: false, limit: SEARCH_LIMIT }, user, signal);
+	const view = await stockView(db);
+	const available = new Map(view.parts.map((p) => [p.partId, p.available]));
+	const avail = (id: number) => available.get(id) ?? 0;
+	const fromStock = res.solutions.find((s) => shortfalls(s.elements, avail).length === 0) ?? null;
+	const best = bestSinglePurchase(res.solutions, avail);
+	let purchase: UnlockAnswer['purchase'] = null;
+	if (best) {
+		const [offer] = await offers(db, [best.purchase]);
+		if (offer) purchase = { ...offer, solution: brief(best.solution), betterThanStock: !fromStock || best.solution.rank < fromStock.rank };
+	}
+	return { bestFromStock: fromStock ? brief(fromStock) : null, purchase, stats: { solutionsSearched: res.solutions.length, elapsedMs: res.stats.elapsedMs } };
+}
+
+/** The unlock of a saved setup: its own shortfall, and the solver's best single purchase for its question. */
+export async function unlockForSetup(db: DbOrTx, setupId: number, user: { id: number }, signal?: AbortSignal): Promise<UnlockAnswer> {
+	const setup = await getSetup(db, setupId);
+	const view = await stockView(db);
+	const available = new Map(view.parts.map((p) => [p.partId, p.available]));
+	const short = shortfalls(setup.solution.elements, (id) => available.get(id) ?? 0);
+	const answer = await unlockForQuestion(db, setup.query as unknown as Record<string, unknown>, user, signal);
+	return { ...answer, setupBuildable: short.length === 0, setupShort: await offers(db, short) };
+}
