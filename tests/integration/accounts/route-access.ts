@@ -55,7 +55,31 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	'/api/v1/parts/[id]/measurements': { url: '/api/v1/parts/99999999/measurements', GET: ANY_ROLE, POST: STOCK_EDITORS },
 	'/api/v1/parts/[id]/movements': { url: '/api/v1/parts/99999999/movements', GET: ANY_ROLE },
 
+	'/parts': { GET: ANY_ROLE },
+	'/parts/new': { GET: STOCK_EDITORS, actions: { default: STOCK_EDITORS } },
+	'/parts/[id]/edit': { url: '/parts/99999999/edit', GET: STOCK_EDITORS, actions: { default: STOCK_EDITORS } },
+	'/parts/[id]': {
+		url: '/parts/99999999',
+		GET: ANY_ROLE,
+		actions: {
+			receive: STOCK_EDITORS,
+			move: STOCK_EDITORS,
+			issue: STOCK_HANDLERS,
+			return: STOCK_HANDLERS,
+			adjust: STOCK_EDITORS,
+			scrap: STOCK_EDITORS,
+			condition: STOCK_EDITORS,
+			measure: STOCK_EDITORS,
+			reserve: RESERVERS,
+			release: RESERVERS,
+			archive: STOCK_EDITORS,
+			restore: STOCK_EDITORS
+		}
+	},
+
 	// ── stock ──
+	'/stock': { GET: ANY_ROLE },
+	'/locations': { GET: ANY_ROLE, actions: { create: STOCK_EDITORS, rename: STOCK_EDITORS, archive: STOCK_EDITORS } },
 	'/api/v1/locations': { GET: ANY_ROLE, POST: STOCK_EDITORS },
 	'/api/v1/locations/[id]': { url: '/api/v1/locations/99999999', GET: ANY_ROLE, PATCH: STOCK_EDITORS },
 	'/api/v1/stock': { GET: ANY_ROLE },
@@ -81,7 +105,7 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	'/imports': { GET: STOCK_EDITORS },
 	'/imports/new': { GET: STOCK_EDITORS, actions: { default: STOCK_EDITORS } },
 	'/imports/[id]': { url: '/imports/99999999', GET: STOCK_EDITORS, actions: { check: STOCK_EDITORS, commit: STOCK_EDITORS } },
-	'/imports/[id]/errors.csv': { url: '/imports/99999999/errors.csv', GET: STOCK_EDITORS },
+	'/api/v1/imports/[id]/errors.csv': { url: '/api/v1/imports/99999999/errors.csv', GET: STOCK_EDITORS },
 	'/imports/datasheets': { GET: STOCK_EDITORS },
 
 	// ── Build from stock (solver) ──

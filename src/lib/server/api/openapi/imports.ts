@@ -109,6 +109,13 @@ export const importsPaths: OpenApiPaths = {
 			responses: { '200': jsonResponse('The import', importReport), ...errors(400, 401, 403, 404) }
 		}
 	},
+	'/imports/{id}/errors.csv': {
+		get: {
+			summary: 'The row errors of an import as CSV (row, column, value, message)',
+			parameters: [idParam('Import id')],
+			responses: { '200': csvResponse('CSV'), ...errors(400, 401, 403, 404) }
+		}
+	},
 	'/parts/export.csv': {
 		get: {
 			summary: 'The catalogue as CSV (same filters and sort as GET /parts, all pages)',
