@@ -7,11 +7,13 @@ import { ApiError, DomainError, zodFields } from '$lib/server/api/http';
 import * as board from '$lib/server/purchasing/board';
 import * as requests from '$lib/server/purchasing/requests';
 import { exportQuery } from '$lib/server/purchasing/params';
+import { unlockForSetup } from '$lib/server/purchasing/unlock-search';
 import { ZodError } from 'zod';
 
 export const load = (async (event) => {
 	requireRole(event, PURCHASERS);
-	return { rows: await board.boardRows(db), usageDays: board.USAGE_DAYS };
+	const [rows, waiting] = await Promise.all([board.boardRows(db), board.waitingSetups(db)]);
+	return { rows, waiting: waiting.slice(0, 50), waitingTotal: waiting.length, usageDays: board.USAGE_DAYS };
 }) satisfies PageServerLoad;
 
 export const actions = {
@@ -36,5 +38,19 @@ export const actions = {
 			throw err;
 		}
 		redirect(303, `/requests?created=${ids.join(',')}`);
+	},
+	/** Searches the whole catalogue for the best single purchase for a saved setup (the solver with availableOnly: false). */
+	unlock: async (event) => {
+		const user = requireRole(event, PURCHASERS);
+		const raw = String((await event.request.formData()).get('setupId') ?? '');
+		if (!/^[1-9]\d{0,15}$/.test(raw)) return fail(400, { unlockError: 'Choose a setup.', setupId: null });
+		const setupId = Number(raw);
+		try {
+			return { setupId, unlock: await unlockForSetup(db, setupId, user, event.request.signal) };
+		} catch (err) {
+			if (err instanceof DomainError || err instanceof ApiError) return fail(err.status, { setupId, unlockError: err.message });
+			if (err instanceof ZodError) return fail(400, { setupId, unlockError: 'The saved question of this setup is no longer valid for the solver.' });
+			throw err;
+		}
 	}
 } satisfies Actions;

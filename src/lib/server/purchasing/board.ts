@@ -8,7 +8,7 @@ import type { DbOrTx } from '$lib/server/db';
 import { movements, parts, setups, suppliers } from '$lib/server/db/schema';
 import { totalsFor } from '$lib/server/stock/availability';
 import { availableOf, flagReason, suggestedQuantity, type FlagReason } from './rules';
-import { setupIndex, type ElementRef, type SetupRef } from './unlocks';
+import { setupIndex, shortfalls, type ElementRef, type SetupRef } from './unlocks';
 import { onOrderByPart } from './requests';
 import { openNotices } from './flags';
 
@@ -137,4 +137,47 @@ export async function boardRows(db: DbOrTx, opts: { partIds?: readonly number[] 
 		});
 	}
 	return rows;
+}
+
+export interface WaitingSetup {
+	setupId: number;
+	name: string;
+	/** Parts the saved solution is short of, with the units missing and what buying them costs. */
+	short: { partId: number; sku: string; missing: number; unitPrice: number | null; currency: string; leadTimeDays: number | null; supplier: string | null }[];
+}
+
+/** Saved setups that cannot be built from available stock now, with what they are short of (from the saved solution). */
+export async function waitingSetups(db: DbOrTx): Promise<WaitingSetup[]> {
+	const saved = await savedSetups(db);
+	const ids = [...new Set(saved.flatMap((s) => s.elements.map((e) => e.partId)))];
+	if (!ids.length) return [];
+	const [totals, info] = await Promise.all([
+		totalsFor(db, ids),
+		db
+			.select({ p: parts, supplier: suppliers.name })
+			.from(parts)
+			.leftJoin(suppliers, eq(suppliers.id, parts.supplierId))
+			.where(inArray(parts.id, ids))
+	]);
+	const byId = new Map(info.map((r) => [r.p.id, r]));
+	const avail = (id: number) => (byId.get(id)?.p.archivedAt ? 0 : (totals.get(id)?.available ?? 0));
+	return saved
+		.map((s) => ({
+			setupId: s.id,
+			name: s.name,
+			short: shortfalls(s.elements, avail).map((x) => {
+				const r = byId.get(x.partId);
+				return {
+					partId: x.partId,
+					sku: r?.p.sku ?? `#${x.partId}`,
+					missing: x.missing,
+					unitPrice: r?.p.unitPriceMinor ?? null,
+					currency: r?.p.currency ?? 'EUR',
+					leadTimeDays: r?.p.leadTimeDays ?? null,
+					supplier: r?.supplier ?? null
+				};
+			})
+		}))
+		.filter((s) => s.short.length > 0)
+		.sort((a, b) => a.short.length - b.short.length || a.setupId - b.setupId);
 }
