@@ -72,4 +72,24 @@ describe('purchasing in Chromium', () => {
 		const moves = await db.select().from(t.movements).where(and(eq(t.movements.partId, partId), eq(t.movements.kind, 'receive')));
 		expect(moves.map((m) => m.quantity).sort()).toEqual([1, 5]);
 	});
+
+	it('changes the reorder point of the part from the board, which takes it off the board', async () => {
+		await page.goto(appUrl('/reorder'));
+		await page.fill('#settings-sku', sku);
+		await Promise.all([page.waitForURL((u) => u.pathname === `/reorder/parts/${partId}`), page.click('button:has-text("Open")')]);
+		await page.fill('#rs-reorderPoint', 'two');
+		await page.click('button:has-text("Save reorder settings")');
+		await page.locator('.field-error').first().waitFor();
+		await expect(page.inputValue('#rs-reorderPoint')).resolves.toBe('two'); // the value typed is kept
+		await page.fill('#rs-reorderPoint', '4');
+		await page.fill('#rs-leadTimeDays', '15');
+		await page.click('button:has-text("Save reorder settings")');
+		await page.locator('[role=status]:has-text("Saved")').waitFor();
+		await screenshot(page, 'reorder-settings');
+		const [row] = await db.select().from(t.parts).where(eq(t.parts.id, partId));
+		expect([row.reorderPoint, row.leadTimeDays]).toEqual([4, 15]);
+		// 6 on hand now, above the new reorder point 4: no longer on the board
+		await page.goto(appUrl('/reorder'));
+		await expect(page.locator(`[data-testid=reorder-row][data-sku="${sku}"]`).count()).resolves.toBe(0);
+	});
 });

@@ -118,7 +118,9 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	'/api/v1/setups/[id]/reservations': { url: '/api/v1/setups/99999999/reservations', POST: RESERVERS },
 
 	// ── purchasing (request viewers: purchasers and the stockroom, which may receive goods) ──
-	'/reorder': { GET: PURCHASERS, actions: { create: PURCHASERS } },
+	'/reorder': { GET: PURCHASERS, actions: { create: PURCHASERS, unlock: PURCHASERS } },
+	'/reorder/parts': { GET: PURCHASERS },
+	'/reorder/parts/[id]': { url: '/reorder/parts/99999999', GET: PURCHASERS, actions: { default: PURCHASERS } },
 	'/requests': { GET: REQUEST_VIEWERS, actions: { create: PURCHASERS } },
 	'/requests/[id]': { url: '/requests/99999999', GET: REQUEST_VIEWERS, actions: { step: PURCHASERS, receive: REQUEST_VIEWERS, edit: PURCHASERS } },
 	'/api/v1/reorder': { GET: PURCHASERS },
