@@ -3,10 +3,11 @@
  * when the database already has users. Only for the local demo: refuses when NODE_ENV=production.
  * Usage: DATABASE_URL=... DEMO_PASSWORD=... AUTH_PEPPER=... tsx seed/run.ts
  */
-import { count } from 'drizzle-orm';
+import { count, eq } from 'drizzle-orm';
 import { createDb, type Db } from '../src/lib/server/db/client';
 import * as t from '../src/lib/server/db/schema';
 import { hashPassword } from '../src/lib/server/auth/password';
+import { paraxialColumns } from '../src/lib/server/catalogue/derived';
 import {
 	DEMO_LOCATIONS,
 	DEMO_MATERIALS,
@@ -18,6 +19,7 @@ import {
 } from './demo-data';
 
 export const DEFAULT_DEMO_PASSWORD = 'tarnwell-bench-2026';
+const DEFAULT_WAVELENGTH_NM = 587.6;
 
 export async function seedDemo(db: Db, opts: { password: string; pepper?: string }) {
 	const [{ n }] = await db.select({ n: count() }).from(t.users);
@@ -28,7 +30,7 @@ export async function seedDemo(db: Db, opts: { password: string; pepper?: string
 
 	await db.transaction(async (tx) => {
 		await tx.insert(t.settings).values([
-			{ key: 'defaultWavelengthNm', value: 587.6 },
+			{ key: 'defaultWavelengthNm', value: DEFAULT_WAVELENGTH_NM },
 			{ key: 'labName', value: 'Tarnwell Institute imaging lab' }
 		]);
 		await tx.insert(t.stockVersion).values({ id: 1, version: 1 });
@@ -120,18 +122,43 @@ export async function seedDemo(db: Db, opts: { password: string; pepper?: string
 				});
 			}
 			// Measured EFLs at the HeNe line for some of the most used lenses.
+			let measured: { eflMm: number; wavelengthNm: number } | null = null;
 			if (p.kind !== 'other' && rnd() < 0.15) {
 				const deviation = 1 + (rnd() - 0.5) * 0.012;
+				measured = { eflMm: Number((p.eflMm * deviation).toFixed(3)), wavelengthNm: 632.8 };
 				await tx.insert(t.measurements).values({
 					partId,
-					eflMm: Number((p.eflMm * deviation).toFixed(3)),
-					wavelengthNm: 632.8,
+					eflMm: measured.eflMm,
+					wavelengthNm: measured.wavelengthNm,
 					uncertaintyMm: Number((Math.abs(p.eflMm) * 0.002).toFixed(3)),
 					method: 'Nodal slide on bench 3',
 					measuredAt: daysAgo(10 + Math.floor(rnd() * 60)),
 					measuredBy: stockroomId
 				});
 			}
+			// The catalogue sorts and filters on the EFL at the default wavelength, computed by the optics core
+			// from the prescription (or the latest measurement, rescaled; datasheet numbers for black boxes).
+			await tx
+				.update(t.parts)
+				.set(
+					paraxialColumns(
+						{
+							surfaces: p.surfaces.map((s, i) =>
+								i === p.surfaces.length - 1 ? { radiusMm: s.radiusMm } : { radiusMm: s.radiusMm, thicknessMm: s.thicknessMm ?? 0, material: s.materialCode ?? null }
+							),
+							eflMm: p.eflMm,
+							bflMm: p.bflMm,
+							centerThicknessMm: p.centerThicknessMm,
+							designWavelengthNm: p.designWavelengthNm,
+							diameterMm: p.diameterMm,
+							clearApertureMm: null,
+							primaryMaterial: first
+						},
+						DEFAULT_WAVELENGTH_NM,
+						measured
+					)
+				)
+				.where(eq(t.parts.id, partId));
 		}
 	});
 	return { seeded: true };

@@ -19,7 +19,7 @@ import {
 	type Result,
 	type SurfaceSpec,
 	type ThickElement
-} from '$lib/optics';
+} from '../../optics'; // relative, so the seed (plain tsx, no $lib alias) can use this module
 
 /** Where a computed EFL comes from (stored in parts.efl_source). */
 export type EflSource = 'prescription' | 'nominal' | 'measured';

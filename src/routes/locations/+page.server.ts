@@ -1,0 +1,35 @@
+import { fail } from '@sveltejs/kit';
+import type { Actions, PageServerLoad } from './$types';
+import { db } from '$lib/server/db';
+import { hasRole, requireRole } from '$lib/server/auth/guard';
+import { ANY_ROLE, STOCK_EDITORS } from '$lib/server/auth/roles';
+import * as locations from '$lib/server/stock/locations';
+import { guarded } from '$lib/server/stock/form-actions';
+import { readForm } from '$lib/server/catalogue/forms';
+
+export const load = (async (event) => {
+	const user = requireRole(event, ANY_ROLE);
+	return { locations: await locations.listLocations(db, { includeArchived: true }), canEdit: hasRole(user, STOCK_EDITORS) };
+}) satisfies PageServerLoad;
+
+export const actions = {
+	create: async (event) => {
+		const user = requireRole(event, STOCK_EDITORS);
+		const form = await event.request.formData();
+		return guarded('create', form, () => locations.createLocation(db, readForm(form, [], ['code', 'name']), { id: user.id }));
+	},
+	rename: async (event) => {
+		const user = requireRole(event, STOCK_EDITORS);
+		const form = await event.request.formData();
+		const id = Number(form.get('id'));
+		if (!Number.isInteger(id) || id <= 0) return fail(404, { op: 'rename', errors: { _: 'There is no such location.' }, values: {} });
+		return guarded(`rename-${id}`, form, () => locations.updateLocation(db, id, readForm(form, [], ['code', 'name']), { id: user.id }));
+	},
+	archive: async (event) => {
+		const user = requireRole(event, STOCK_EDITORS);
+		const form = await event.request.formData();
+		const id = Number(form.get('id'));
+		if (!Number.isInteger(id) || id <= 0) return fail(404, { op: 'archive', errors: { _: 'There is no such location.' }, values: {} });
+		return guarded(`archive-${id}`, form, () => locations.setLocationArchived(db, id, form.get('archived') === 'true', { id: user.id }));
+	}
+} satisfies Actions;
