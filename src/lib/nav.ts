@@ -4,6 +4,8 @@ export interface NavItem {
 	href: string;
 	label: string;
 	roles: readonly Role[];
+	/** Path prefix that marks the entry as current (defaults to href). */
+	match?: string;
 }
 
 const ALL: readonly Role[] = ['admin', 'stockroom', 'engineer', 'purchaser'];
@@ -21,6 +23,11 @@ export const NAV: NavItem[] = [
 	{ href: '/imports', label: 'Imports', roles: ['admin', 'stockroom'] },
 	{ href: '/reorder', label: 'Reorder board', roles: ['admin', 'purchaser'] },
 	{ href: '/requests', label: 'Requests', roles: ['admin', 'purchaser', 'stockroom'] },
+	{ href: '/admin/users', label: 'Admin', roles: ['admin'], match: '/admin' }
+];
+
+/** The admin pages, shown as tabs on every /admin page. */
+export const ADMIN_NAV: NavItem[] = [
 	{ href: '/admin/users', label: 'Users', roles: ['admin'] },
 	{ href: '/admin/outbox', label: 'Outbox', roles: ['admin'] }
 ];

@@ -7,6 +7,6 @@ export const load = (async ({ locals }) => {
 	const user = locals.user;
 	return {
 		user: user ? { name: user.name, email: user.email, role: user.role, roleLabel: ROLE_LABELS[user.role] } : null,
-		nav: navFor(user?.role).map(({ href, label }) => ({ href, label }))
+		nav: navFor(user?.role).map(({ href, label, match }) => ({ href, label, match: match ?? href }))
 	};
 }) satisfies LayoutServerLoad;

@@ -37,6 +37,7 @@ describe('accounts in Chromium', () => {
 		expect(new URL(page.url()).pathname).toBe('/');
 		const nav = await page.locator('nav[aria-label=Main]').innerText();
 		expect(nav).not.toContain('Users');
+		expect(nav).not.toContain('Admin');
 		await page.click('[data-testid=user-menu]');
 		await page.waitForURL((u) => u.pathname === '/account');
 		await page.fill('#token-name', 'e2e script');
@@ -54,9 +55,11 @@ describe('accounts in Chromium', () => {
 		await page.context().clearCookies();
 		await signIn(page, 'admin@tarnwell.example');
 		const nav = await page.locator('nav[aria-label=Main]').innerText();
-		expect(nav).toContain('Users');
-		expect(nav).toContain('Outbox');
+		expect(nav).toContain('Admin');
 		await page.goto(appUrl('/admin/users'));
+		const adminTabs = await page.locator('nav[aria-label=Admin]').innerText();
+		expect(adminTabs).toContain('Users');
+		expect(adminTabs).toContain('Outbox');
 		await page.fill('#invite-name', 'Sela Marrowby');
 		await page.fill('#invite-email', `sela-${Date.now()}@tarnwell.example`);
 		await page.selectOption('#invite-role', 'stockroom');
