@@ -1,0 +1,1 @@
+CREATE INDEX `parts_updated_idx` ON `parts` (`updated_at`);
