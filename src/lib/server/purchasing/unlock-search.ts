@@ -11,9 +11,10 @@ import type { DbOrTx } from '$lib/server/db';
 import { parts, suppliers } from '$lib/server/db/schema';
 import * as solver from '$lib/server/solver/service';
 import { stockView } from '$lib/server/solver/load-stock';
-import { getSetup } from '$lib/server/solver/setups';
+import { getSetup, type SetupView } from '$lib/server/solver/setups';
+import { totalsFor } from '$lib/server/stock/availability';
 import type { Solution } from '$lib/solver/types';
-import { bestSinglePurchase, shortfalls, type Shortfall } from './unlocks';
+import { bestSinglePurchase, shortfalls, unitsNeeded, type Shortfall } from './unlocks';
 
 /** Solutions the search returns for the unlock (the solver's own upper limit). */
 const SEARCH_LIMIT = 50;
@@ -38,10 +39,28 @@ export interface PurchaseOffer {
 export interface SolutionBrief {
 	rank: number;
 	skus: string[];
+	/** Part ids in the order light meets them (a part used twice appears twice). */
+	partIds: number[];
 	magnification: number;
 	/** max(axial, edge) RMS spot over the Airy radius (null: not traced). */
 	ratioToAiry: number | null;
+	/** max(axial, edge) RMS spot radius at the target plane, mm (null: not traced). */
+	spotRmsMm: number | null;
+	/** Airy radius at the working f-number, mm. */
+	airyRadiusMm: number;
+	/** Object plane to the first vertex, mm. */
+	objectDistanceMm: number;
+	/** Last vertex to the target plane, mm. */
+	backDistanceMm: number;
 	vignetted: boolean;
+}
+
+/** A part a saved setup needs more of than is available to it now. */
+export interface SetupShortPart extends PurchaseOffer {
+	/** Units the setup's solution uses. */
+	needed: number;
+	/** Units available to this setup: available stock plus units its own active reservations hold. */
+	available: number;
 }
 
 export interface UnlockAnswer {
@@ -52,15 +71,20 @@ export interface UnlockAnswer {
 	/** For a saved setup: the setup can be built from available stock now. */
 	setupBuildable?: boolean;
 	/** For a saved setup: what its own saved solution is short of. */
-	setupShort?: PurchaseOffer[];
+	setupShort?: SetupShortPart[];
 	stats: { solutionsSearched: number; elapsedMs: number };
 }
 
 const brief = (s: Solution): SolutionBrief => ({
 	rank: s.rank,
 	skus: s.elements.map((e) => e.sku),
+	partIds: s.elements.map((e) => e.partId),
 	magnification: s.magnification,
 	ratioToAiry: s.spot.ratioToAiry,
+	spotRmsMm: s.spot.axialRmsMm === null && s.spot.edgeRmsMm === null ? null : Math.max(s.spot.axialRmsMm ?? 0, s.spot.edgeRmsMm ?? 0),
+	airyRadiusMm: s.spot.airyRadiusMm,
+	objectDistanceMm: s.objectDistanceMm,
+	backDistanceMm: s.backDistanceMm,
 	vignetted: s.vignetting.axial || s.vignetting.edge
 });
 
@@ -98,12 +122,34 @@ export async function unlockForQuestion(db: DbOrTx, question: Record<string, unk
 	return { bestFromStock: fromStock ? brief(fromStock) : null, purchase, stats: { solutionsSearched: res.solutions.length, elapsedMs: res.stats.elapsedMs } };
 }
 
+/**
+ * What a saved setup is short of now: per part of its saved solution, the units it uses against
+ * the units available to it (available stock plus what the setup's own active reservations
+ * hold, since those units are kept for it). Empty when it can be built from stock now.
+ */
+export async function setupShortfall(db: DbOrTx, setup: Pick<SetupView, 'solution' | 'reservations'>): Promise<SetupShortPart[]> {
+	const ids = [...new Set(setup.solution.elements.map((e) => e.partId))];
+	const [totals, archived] = await Promise.all([
+		totalsFor(db, ids),
+		ids.length ? db.select({ id: parts.id, archivedAt: parts.archivedAt }).from(parts).where(inArray(parts.id, ids)) : []
+	]);
+	const gone = new Set(archived.filter((p) => p.archivedAt).map((p) => p.id));
+	const held = new Map<number, number>();
+	for (const r of setup.reservations) if (r.state === 'active') held.set(r.partId, (held.get(r.partId) ?? 0) + r.quantity);
+	const availableTo = (id: number) => (gone.has(id) ? 0 : (totals.get(id)?.available ?? 0) + (held.get(id) ?? 0));
+	const short = shortfalls(setup.solution.elements, availableTo);
+	const need = unitsNeeded(setup.solution.elements);
+	const byId = new Map((await offers(db, short)).map((o) => [o.partId, o]));
+	return short.flatMap((s) => {
+		const o = byId.get(s.partId);
+		return o ? [{ ...o, needed: need.get(s.partId) ?? 0, available: availableTo(s.partId) }] : [];
+	});
+}
+
 /** The unlock of a saved setup: its own shortfall, and the solver's best single purchase for its question. */
 export async function unlockForSetup(db: DbOrTx, setupId: number, user: { id: number }, signal?: AbortSignal): Promise<UnlockAnswer> {
 	const setup = await getSetup(db, setupId);
-	const view = await stockView(db);
-	const available = new Map(view.parts.map((p) => [p.partId, p.available]));
-	const short = shortfalls(setup.solution.elements, (id) => available.get(id) ?? 0);
+	const short = await setupShortfall(db, setup);
 	const answer = await unlockForQuestion(db, setup.query as unknown as Record<string, unknown>, user, signal);
-	return { ...answer, setupBuildable: short.length === 0, setupShort: await offers(db, short) };
+	return { ...answer, setupBuildable: short.length === 0, setupShort: short };
 }

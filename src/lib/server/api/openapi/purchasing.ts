@@ -94,7 +94,21 @@ const offer = {
 };
 const brief = {
 	type: 'object',
-	properties: { rank: int, skus: { type: 'array', items: { type: 'string' } }, magnification: { type: 'number' }, ratioToAiry: { type: ['number', 'null'] }, vignetted: { type: 'boolean' } }
+	properties: {
+		rank: int,
+		skus: { type: 'array', items: { type: 'string' } },
+		partIds: { type: 'array', items: int, description: 'in the order light meets them' },
+		magnification: { type: 'number' },
+		ratioToAiry: { type: ['number', 'null'], description: 'max(axial, edge) RMS spot over the Airy radius' },
+		spotRmsMm: { type: ['number', 'null'] },
+		airyRadiusMm: { type: 'number' },
+		objectDistanceMm: { type: 'number' },
+		backDistanceMm: { type: 'number' },
+		vignetted: { type: 'boolean' }
+	}
+};
+const shortPart = {
+	allOf: [offer, { type: 'object', properties: { needed: int, available: { ...int, description: "available stock plus units the setup's own active reservations hold" } } }]
 };
 
 export const purchasingPaths: OpenApiPaths = {
@@ -136,7 +150,7 @@ export const purchasingPaths: OpenApiPaths = {
 						bestFromStock: { oneOf: [brief, { type: 'null' }] },
 						purchase: { oneOf: [{ allOf: [offer, { type: 'object', properties: { solution: brief, betterThanStock: { type: 'boolean' } } }] }, { type: 'null' }] },
 						setupBuildable: { type: 'boolean' },
-						setupShort: { type: 'array', items: offer },
+						setupShort: { type: 'array', items: shortPart },
 						stats: { type: 'object', properties: { solutionsSearched: int, elapsedMs: { type: 'number' } } }
 					}
 				}),
