@@ -2,9 +2,10 @@ import { fail, redirect } from '@sveltejs/kit';
 import { ZodError } from 'zod';
 import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
-import { requireRole } from '$lib/server/auth/guard';
-import { SOLVER_USERS } from '$lib/server/auth/roles';
-import { DomainError, zodFields } from '$lib/server/api/http';
+import { hasRole, requireRole } from '$lib/server/auth/guard';
+import { PURCHASERS, SOLVER_USERS } from '$lib/server/auth/roles';
+import { ApiError, DomainError, zodFields } from '$lib/server/api/http';
+import { unlockForQuestion } from '$lib/server/purchasing/unlock-search';
 import { listProjects } from '$lib/server/stock/projects';
 import * as form from '$lib/server/solver/form';
 import * as setups from '$lib/server/solver/setups';
@@ -27,7 +28,7 @@ export const load = (async (event) => {
 			else throw e;
 		}
 	}
-	return { ...parsed, ssr, ssrError, projects: await listProjects(db) };
+	return { ...parsed, ssr, ssrError, projects: await listProjects(db), canRequest: hasRole(user, PURCHASERS) };
 }) satisfies PageServerLoad;
 
 export const actions = {
@@ -55,5 +56,21 @@ export const actions = {
 			throw e;
 		}
 		redirect(303, `/build/${id}`);
+	},
+	/**
+	 * "What purchase would help?": the question in the URL, searched over the whole catalogue for the
+	 * best setup that one purchase makes buildable (the same service as POST /api/v1/reorder/unlock).
+	 */
+	unlock: async (event) => {
+		const user = requireRole(event, SOLVER_USERS);
+		const parsed = form.readForm(event.url.searchParams);
+		if (!parsed.request) return fail(400, { unlock: { error: 'Ask a complete question first: the form above has a field to fix.' } });
+		try {
+			return { unlock: { answer: await unlockForQuestion(db, parsed.request, { id: user.id }, event.request.signal) } };
+		} catch (e) {
+			if (e instanceof DomainError || e instanceof ApiError) return fail(e.status, { unlock: { error: e.message } });
+			if (e instanceof ZodError) return fail(400, { unlock: { error: Object.values(zodFields(e)).join(' ') } });
+			throw e;
+		}
 	}
 } satisfies Actions;

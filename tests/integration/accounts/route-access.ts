@@ -109,8 +109,8 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	'/imports/datasheets': { GET: STOCK_EDITORS },
 
 	// ── Build from stock (solver) ──
-	'/build': { GET: SOLVER_USERS, actions: { save: SOLVER_USERS } },
-	'/build/[setup]': { url: '/build/99999999', GET: SOLVER_USERS, actions: { reserve: RESERVERS } },
+	'/build': { GET: SOLVER_USERS, actions: { save: SOLVER_USERS, unlock: SOLVER_USERS } },
+	'/build/[setup]': { url: '/build/99999999', GET: SOLVER_USERS, actions: { reserve: RESERVERS, unlock: SOLVER_USERS } },
 	'/build/[setup]/sheet': { url: '/build/99999999/sheet', GET: SOLVER_USERS },
 	'/api/v1/solve': { POST: SOLVER_USERS },
 	'/api/v1/setups': { GET: SOLVER_USERS, POST: SOLVER_USERS },

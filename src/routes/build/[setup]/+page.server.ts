@@ -3,8 +3,10 @@ import { z, ZodError } from 'zod';
 import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { requireRole, hasRole } from '$lib/server/auth/guard';
-import { SOLVER_USERS, RESERVERS } from '$lib/server/auth/roles';
-import { DomainError, zodFields } from '$lib/server/api/http';
+import { SOLVER_USERS, RESERVERS, PURCHASERS } from '$lib/server/auth/roles';
+import { ApiError, DomainError, zodFields } from '$lib/server/api/http';
+import { setupShortfall, unlockForSetup } from '$lib/server/purchasing/unlock-search';
+import { totalsFor } from '$lib/server/stock/availability';
 import { listProjects } from '$lib/server/stock/projects';
 import * as setups from '$lib/server/solver/setups';
 
@@ -24,7 +26,14 @@ async function find(raw: string) {
 export const load = (async (event) => {
 	const user = requireRole(event, SOLVER_USERS);
 	const setup = await find(event.params.setup);
-	return { setup, projects: await listProjects(db), canReserve: hasRole(user, RESERVERS) };
+	const [projects, short, totals] = await Promise.all([
+		listProjects(db),
+		setupShortfall(db, setup),
+		totalsFor(db, [...new Set(setup.solution.elements.map((e) => e.partId))])
+	]);
+	// Live availability (the saved solution carries the numbers of the day it was saved).
+	const availableNow = Object.fromEntries([...totals].map(([id, t]) => [id, t.available]));
+	return { setup, projects, short, availableNow, canReserve: hasRole(user, RESERVERS), canRequest: hasRole(user, PURCHASERS) };
 }) satisfies PageServerLoad;
 
 export const actions = {
@@ -44,6 +53,18 @@ export const actions = {
 		} catch (e) {
 			if (e instanceof ZodError) return fail(400, { errors: zodFields(e), values });
 			if (e instanceof DomainError) return fail(e.status, { errors: e.fields ?? {}, message: e.message, values });
+			throw e;
+		}
+	},
+	/** "What purchase would help?" for this setup's question (the same service as POST /api/v1/reorder/unlock). */
+	unlock: async (event) => {
+		const user = requireRole(event, SOLVER_USERS);
+		const setup = await find(event.params.setup);
+		try {
+			return { unlock: { answer: await unlockForSetup(db, setup.id, { id: user.id }, event.request.signal) } };
+		} catch (e) {
+			if (e instanceof DomainError || e instanceof ApiError) return fail(e.status, { unlock: { error: e.message } });
+			if (e instanceof ZodError) return fail(400, { unlock: { error: 'The saved question of this setup is no longer valid for the solver.' } });
 			throw e;
 		}
 	}
