@@ -111,7 +111,9 @@ export const parts = mysqlTable(
 		// The catalogue's "recently changed" sort. (A FULLTEXT index parts_text_ft on sku, name and
 		// supplier part number, for the list's text search, comes from a hand-written migration:
 		// drizzle-kit has no FULLTEXT indexes.)
-		index('parts_updated_idx').on(t.updatedAt)
+		index('parts_updated_idx').on(t.updatedAt),
+		// Covers the default view (not archived, by SKU) down to deep pages: the list reads ids from it.
+		index('parts_archived_sku_idx').on(t.archivedAt, t.sku)
 	]
 );
 

@@ -1,0 +1,1 @@
+CREATE INDEX `parts_archived_sku_idx` ON `parts` (`archived_at`,`sku`);
