@@ -1,9 +1,12 @@
-import { afterAll, afterEach, describe, expect, it } from 'vitest';
+import { afterAll, afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { testDb } from '../../support/env';
 import * as throttle from '../../../src/lib/server/auth/throttle';
 import { api, clearThrottle, DEMO_PASSWORD, postForm, signInApi } from './helpers';
 
 const { db, pool } = testDb();
+// Every test request comes from 127.0.0.1, so the address bucket is shared with every other test file:
+// start each test from empty counters (whatever ran before) and leave none behind.
+beforeEach(() => clearThrottle(db));
 afterEach(() => clearThrottle(db));
 afterAll(() => pool.end());
 
