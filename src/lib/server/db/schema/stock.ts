@@ -52,7 +52,9 @@ export const stock = mysqlTable(
 	},
 	(t) => [
 		uniqueIndex('stock_part_loc_cond_uq').on(t.partId, t.locationId, t.condition),
-		index('stock_location_idx').on(t.locationId)
+		index('stock_location_idx').on(t.locationId),
+		// Usable units per part read from the index alone (the catalogue's "available only" count).
+		index('stock_usable_part_idx').on(t.condition, t.partId, t.quantity)
 	]
 );
 

@@ -1,0 +1,1 @@
+CREATE INDEX `stock_usable_part_idx` ON `stock` (`condition`,`part_id`,`quantity`);
