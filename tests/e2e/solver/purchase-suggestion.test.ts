@@ -2,7 +2,8 @@
  * "What purchase would help?" on Build from stock in Chromium: a question nothing on the shelf
  * answers offers the catalogue-wide search; the engineer sees the single purchase (SKU, units,
  * price, supplier, lead time, the setup it gives) and is told a purchaser places the Request;
- * an administrator (a purchaser too) can create the draft Request from there.
+ * an administrator (a purchaser too) can create the draft Request from there. A saved setup whose
+ * part someone else holds shows which part is short and the same search.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
@@ -58,5 +59,37 @@ describe('What purchase would help? on /build', () => {
 		expect(body).toContain(sku);
 		expect(body).toMatch(/Build from stock/);
 		await screenshot(page, 'build-purchase-request');
+	});
+
+	it('a saved setup short of a part shows the short part and the suggestion', async () => {
+		await page.context().clearCookies();
+		await signIn(page, 'engineer2@tarnwell.example');
+		const origin = new URL(appUrl('/')).origin;
+		const post = (path: string, data: unknown) => page.request.post(appUrl(path), { data, headers: { origin } });
+		// one part, m = −0.25 over 1250 mm: f ≈ 200 mm, of which the shelf has several
+		const solved = await (await post('/api/v1/solve', { maxElements: 1, trackMm: 1250, magnification: -0.25, objectNA: 0.005, objectHeightMm: 1, limit: 1 })).json();
+		expect(solved.solutions.length).toBe(1);
+		const s = solved.solutions[0];
+		const choice = { elements: s.elements.map((e: { partId: number; reversed: boolean }) => ({ partId: e.partId, reversed: e.reversed })), objectDistanceMm: s.objectDistanceMm, gapsMm: s.gapsMm, backDistanceMm: s.backDistanceMm };
+		const setup = await (await post('/api/v1/setups', { name: 'E2E camera relay waiting for parts', query: solved.request, choice })).json();
+		const part = await (await page.request.get(appUrl(`/api/v1/parts/${s.elements[0].partId}`))).json();
+		expect(part.available).toBeGreaterThan(0);
+		// a plain reservation (not the setup's) holds every available unit for a day
+		const held = await post('/api/v1/reservations', { partId: part.id, quantity: part.available, until: new Date(Date.now() + 86_400_000).toISOString(), note: 'e2e: hold for another bench' });
+		expect(held.status(), await held.text()).toBe(201);
+		const reservation = await held.json();
+		try {
+			await page.goto(appUrl(`/build/${setup.id}`));
+			await page.waitForSelector('[data-testid=setup-short]');
+			const row = await page.locator('[data-testid=short-row]').innerText();
+			expect(row).toContain(part.sku);
+			await expect(page.locator('[data-testid=laser-caution]').isVisible()).resolves.toBe(true);
+			await page.click('[data-testid=setup-short] [data-testid=unlock-button]');
+			await page.waitForSelector('[data-testid=purchase-suggestion]', { timeout: 30_000 });
+			await expect(page.locator('[data-testid=purchase-suggestion]').innerText()).resolves.toMatch(/Buy \d+ × GC-|No single purchase/);
+			await screenshot(page, 'setup-short-suggestion');
+		} finally {
+			await page.request.delete(appUrl(`/api/v1/reservations/${reservation.id}`), { headers: { origin } });
+		}
 	});
 });
