@@ -8,7 +8,7 @@
  * achromat condition φ1/V1 + φ2/V2 = 0 (Hecht §6.3.2, from memory). Centre thicknesses
  * leave about 1.5 mm of edge for positive lenses and 1.5 mm of centre for negative ones.
  */
-import { refractiveIndex, sagFromRadiusMm } from '$lib/optics';
+import { buildElement, cardinalPoints, refractiveIndex, sagFromRadiusMm } from '$lib/optics';
 
 export interface TemplateSurface {
 	radiusMm: number | null;
@@ -32,6 +32,27 @@ function centreThickness(r1: number | null, r2: number | null, h: number): numbe
 	const s2 = sagFromRadiusMm(r2, h) ?? 0;
 	// edge = t + s2 − s1, so t = edge − s2 + s1
 	return round(Math.max(1.5, 1.5 - s2 + s1), 1);
+}
+
+/**
+ * The thin-lens radii miss the target once the lens has thickness (by the (n − 1)² d / (n R1 R2)
+ * term of the thick-lens formula, up to ~10 % for a strong meniscus). Scale all radii together,
+ * keeping the thicknesses, until the thick lens has the target EFL at the d line (a few passes).
+ */
+function matchEfl(surfaces: TemplateSurface[], targetMm: number): TemplateSurface[] {
+	let out = surfaces;
+	for (let pass = 0; pass < 4; pass++) {
+		const built = buildElement(
+			out.map((s, i) => (i === out.length - 1 ? { radiusMm: s.radiusMm } : { radiusMm: s.radiusMm, thicknessMm: s.thicknessMm ?? 0, material: s.material })),
+			587.5618
+		);
+		const cp = built.ok ? cardinalPoints(built.value.matrix) : null;
+		if (!cp || !(cp.eflMm / targetMm > 0)) return out;
+		const k = targetMm / cp.eflMm;
+		if (Math.abs(k - 1) < 2e-4) return out;
+		out = out.map((s) => ({ ...s, radiusMm: s.radiusMm === null ? null : round(s.radiusMm * k) }));
+	}
+	return out;
 }
 
 /**
@@ -61,11 +82,11 @@ export function surfaceTemplate(
 			return singlet(-2 * (n - 1) * f, 2 * (n - 1) * f);
 		case 'positive-meniscus': {
 			const r1 = 0.6 * (n - 1) * f;
-			return singlet(r1, 2.5 * r1);
+			return matchEfl(singlet(r1, 2.5 * r1), f);
 		}
 		case 'negative-meniscus': {
 			const r2 = 0.6 * (n - 1) * f;
-			return singlet(2.5 * r2, r2);
+			return matchEfl(singlet(2.5 * r2, r2), -f);
 		}
 		case 'achromatic-doublet': {
 			const flint = opts.flint || '620364';
