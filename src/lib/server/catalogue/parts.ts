@@ -62,7 +62,8 @@ async function supplierIdFor(tx: DbOrTx, name: string | null | undefined, actor:
 	return id;
 }
 
-function columnsOf(input: PartInput, supplierId: number | null) {
+/** The parts row of a validated input (without the derived EFL columns); also used by CSV imports. */
+export function columnsOf(input: PartInput, supplierId: number | null) {
 	const firstGlass = input.surfaces.find((s, i) => i < input.surfaces.length - 1 && s.material)?.material ?? null;
 	return {
 		sku: input.sku,

@@ -1,47 +1,22 @@
 /**
- * Batched writes of validated part inputs: multi-row inserts of new parts and their surfaces,
- * multi-row upserts (by id) of changed parts. The rules stay the catalogue's: rows arrive already
- * validated by `partInputSchema`, and the stored EFL columns come from the catalogue's
- * `paraxialColumns` (the same computation as `refreshDerived`), so an imported part is stored
- * exactly as the part form would store it.
+ * Batched writes of validated part inputs: one multi-row insert of new parts and one of their
+ * surfaces per batch, one multi-row upsert (by id) of changed parts. The rules stay the
+ * catalogue's: rows arrive already validated by `partInputSchema`, the parts row is the
+ * catalogue's `columnsOf`, and the stored EFL columns come from its `paraxialColumns` (the same
+ * computation as `refreshDerived`), so an imported part is stored exactly as the part form would
+ * store it. The statements are built by `insertRows` (bulk-sql.ts), not Drizzle's insert builder,
+ * which was the hot spot of the import benchmark.
  */
-import { desc, inArray, sql } from 'drizzle-orm';
+import { desc, inArray } from 'drizzle-orm';
 import type { Tx } from '$lib/server/db';
 import { measurements, partSurfaces, parts, suppliers } from '$lib/server/db/schema';
 import { recordAudit } from '$lib/server/audit';
 import { paraxialColumns } from '$lib/server/catalogue/derived';
 import { toSurfaceSpecs, type PartInput } from '$lib/server/catalogue/part-input';
+import { columnsOf } from '$lib/server/catalogue/parts';
+import { insertRows } from './bulk-sql';
 
-/**
- * The parts row of an input. Mirrors `columnsOf` in catalogue/parts.ts (not exported there);
- * keep the two in step. primaryMaterial: the first glass of the prescription, lower case.
- */
-export function partColumns(input: PartInput, supplierId: number | null) {
-	const firstGlass = input.surfaces.find((s, i) => i < input.surfaces.length - 1 && s.material)?.material ?? null;
-	return {
-		sku: input.sku,
-		name: input.name,
-		kind: input.kind,
-		diameterMm: input.diameterMm,
-		clearApertureMm: input.clearApertureMm ?? null,
-		eflMm: input.eflMm ?? null,
-		bflMm: input.bflMm ?? null,
-		centerThicknessMm: input.centerThicknessMm ?? null,
-		designWavelengthNm: input.designWavelengthNm,
-		primaryMaterial: firstGlass ? firstGlass.toLowerCase() : null,
-		coating: input.coating ?? null,
-		supplierId,
-		supplierPartNumber: input.supplierPartNumber ?? null,
-		unitPriceMinor: input.unitPrice ?? null,
-		currency: input.currency,
-		leadTimeDays: input.leadTimeDays ?? null,
-		reorderPoint: input.reorderPoint,
-		reorderQuantity: input.reorderQuantity,
-		notes: input.notes ?? null
-	};
-}
-
-function derivedFor(input: PartInput, cols: ReturnType<typeof partColumns>, wl: number, measured: { eflMm: number; wavelengthNm: number } | null) {
+function derivedFor(input: PartInput, cols: ReturnType<typeof columnsOf>, wl: number, measured: { eflMm: number; wavelengthNm: number } | null) {
 	return paraxialColumns(
 		{
 			surfaces: toSurfaceSpecs(input.surfaces),
@@ -89,7 +64,8 @@ export class SupplierIds {
 	}
 }
 
-const UPDATE_COLUMNS = [
+/** Every written column of a parts row (columnsOf plus the derived EFL columns). */
+const PART_KEYS = [
 	'sku',
 	'name',
 	'kind',
@@ -111,7 +87,8 @@ const UPDATE_COLUMNS = [
 	'notes',
 	'paraxialEflMm',
 	'eflSource'
-] as const;
+] as const satisfies readonly (keyof ReturnType<typeof columnsOf> | 'paraxialEflMm' | 'eflSource')[];
+const SURFACE_KEYS = ['partId', 'position', 'radiusMm', 'thicknessMm', 'materialCode'] as const;
 
 /** Writes one batch: `creates` are new parts, `updates` carry the id of the part they replace. */
 export async function writeBatch(
@@ -123,10 +100,11 @@ export async function writeBatch(
 	if (batch.creates.length) {
 		const rows = [];
 		for (const input of batch.creates) {
-			const cols = partColumns(input, await ctx.suppliers.resolve(tx, input.supplier, ctx.actorId));
+			const cols = columnsOf(input, await ctx.suppliers.resolve(tx, input.supplier, ctx.actorId));
 			rows.push({ ...cols, ...derivedFor(input, cols, wl, null) });
 		}
-		await tx.insert(parts).values(rows);
+		await insertRows(tx, parts, PART_KEYS, rows);
+		// The new ids by SKU (unique), in one query on its index.
 		const ids = await tx
 			.select({ id: parts.id, sku: parts.sku })
 			.from(parts)
@@ -138,7 +116,7 @@ export async function writeBatch(
 			);
 		const idBySku = new Map(ids.map((r) => [r.sku.toLowerCase(), r.id]));
 		const surfaces = batch.creates.flatMap((input) => surfaceRows(idBySku.get(input.sku.toLowerCase())!, input));
-		if (surfaces.length) await tx.insert(partSurfaces).values(surfaces);
+		if (surfaces.length) await insertRows(tx, partSurfaces, SURFACE_KEYS, surfaces);
 	}
 	if (batch.updates.length) {
 		const ids = batch.updates.map((u) => u.id);
@@ -151,19 +129,13 @@ export async function writeBatch(
 		for (const m of ms) if (!latest.has(m.partId)) latest.set(m.partId, m);
 		const rows = [];
 		for (const u of batch.updates) {
-			const cols = partColumns(u.input, await ctx.suppliers.resolve(tx, u.input.supplier, ctx.actorId));
+			const cols = columnsOf(u.input, await ctx.suppliers.resolve(tx, u.input.supplier, ctx.actorId));
 			rows.push({ id: u.id, ...cols, ...derivedFor(u.input, cols, wl, latest.get(u.id) ?? null) });
 		}
 		// Rows carry their primary key, so ON DUPLICATE KEY turns each into an update of that part.
-		const set = Object.fromEntries(UPDATE_COLUMNS.map((c) => [c, sql.raw(`values(\`${columnName(c)}\`)`)]));
-		await tx.insert(parts).values(rows).onDuplicateKeyUpdate({ set });
+		await insertRows(tx, parts, ['id', ...PART_KEYS], rows, PART_KEYS);
 		await tx.delete(partSurfaces).where(inArray(partSurfaces.partId, ids));
 		const surfaces = batch.updates.flatMap((u) => surfaceRows(u.id, u.input));
-		if (surfaces.length) await tx.insert(partSurfaces).values(surfaces);
+		if (surfaces.length) await insertRows(tx, partSurfaces, SURFACE_KEYS, surfaces);
 	}
-}
-
-/** snake_case column of a parts key (our constant list only; never user input). */
-function columnName(key: (typeof UPDATE_COLUMNS)[number]): string {
-	return (parts[key] as unknown as { name: string }).name;
 }

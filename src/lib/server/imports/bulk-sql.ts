@@ -1,0 +1,50 @@
+/**
+ * Multi-row INSERT statements for the import's hot path. Drizzle's insert builder turns every value
+ * of a 1000-row batch into its own SQL chunk (about 20,000 per statement), which cost more than the
+ * database itself in the import benchmark; here the statement text is built in one pass with
+ * mysql2's own escaping (`escape`, the function mysql2 applies to `?` placeholders, so the bytes sent
+ * are the same as a Drizzle insert's). Column names come from the Drizzle table, never from input.
+ */
+import { escape } from 'mysql2';
+import { getTableColumns, getTableName, sql } from 'drizzle-orm';
+import type { MySqlTable } from 'drizzle-orm/mysql-core';
+import type { Tx } from '$lib/server/db';
+
+/** The values this writer sends: plain numbers, strings and NULL (no dates, JSON or buffers). */
+type Cell = number | string | null;
+
+/** The result header of an INSERT (mysql2). */
+interface InsertHeader {
+	insertId: number;
+	affectedRows: number;
+}
+
+/**
+ * `INSERT INTO t (cols) VALUES (...),(...)` for `rows` (each has every key of `keys`), optionally
+ * followed by `ON DUPLICATE KEY UPDATE c = VALUES(c), ...` for `updateKeys`. One statement.
+ */
+export async function insertRows<T extends MySqlTable, K extends keyof T['_']['columns'] & string>(
+	tx: Tx,
+	table: T,
+	keys: readonly K[],
+	rows: readonly { [P in NoInfer<K>]: Cell }[],
+	updateKeys: readonly NoInfer<K>[] = []
+): Promise<InsertHeader> {
+	const columns = getTableColumns(table) as Record<string, { name: string }>;
+	const name = (k: K) => '`' + columns[k].name + '`';
+	const parts: string[] = [];
+	for (const row of rows) {
+		let tuple = '(';
+		for (let i = 0; i < keys.length; i++) {
+			const v = row[keys[i]];
+			if (v !== null && typeof v !== 'number' && typeof v !== 'string') throw new TypeError(`insertRows: ${keys[i]} is not a number, string or null`);
+			if (typeof v === 'number' && !Number.isFinite(v)) throw new TypeError(`insertRows: ${keys[i]} is not a finite number`);
+			tuple += (i ? ',' : '') + (v === null ? 'NULL' : typeof v === 'number' ? String(v) : escape(v));
+		}
+		parts.push(tuple + ')');
+	}
+	let text = `insert into \`${getTableName(table)}\` (${keys.map(name).join(', ')}) values ${parts.join(',')}`;
+	if (updateKeys.length) text += ` on duplicate key update ${updateKeys.map((k) => `${name(k)} = values(${name(k)})`).join(', ')}`;
+	const [header] = (await tx.execute(sql.raw(text))) as unknown as [InsertHeader];
+	return header;
+}
