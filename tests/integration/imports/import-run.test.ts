@@ -4,6 +4,7 @@ import * as t from '../../../src/lib/server/db/schema';
 import * as importsService from '../../../src/lib/server/imports/service';
 import { ApiError, DomainError } from '../../../src/lib/server/api/http';
 import { refractiveIndex } from '../../../src/lib/optics';
+import { csvLine } from '../../../src/lib/server/imports/csv';
 import { countParts, db, deleteParts, enc, pcxRow, PCX_HEADER, pool, stockroomId, store, upload } from './helpers';
 
 const tag = `IM${Date.now().toString(36).toUpperCase()}`;
@@ -201,5 +202,88 @@ describe('a failure in the middle of a commit', () => {
 		await expect(importsService.beginRun(db, id, 'check')).rejects.toThrow(/already in the catalogue/);
 		const parts = await db.select().from(t.parts).where(and(like(t.parts.sku, `${tag}-ONCE%`), inArray(t.parts.kind, ['plano-convex'])));
 		expect(parts).toHaveLength(1);
+	});
+});
+
+describe('batched writes store exactly what the file says', () => {
+	it('keeps quotes, backslashes, question marks and non-ASCII text as written', async () => {
+		const sku = `${tag}-TXT-1`;
+		const name = `O'Hare "wide" \\ lens? ¿ü 🔭 ; -- /* x */`;
+		const coating = `BBAR \\' 400?700`;
+		const notes = `line one\nline two, with "quotes" and a trailing backslash \\`;
+		const csv = csvLine(['sku', 'name', 'kind', 'diameterMm', 'eflMm', 'coating', 'notes']) + csvLine([sku, name, 'other', '12.5', '-40', coating, notes]);
+		const up = await upload(csv);
+		const out = await importsService.runNow(db, store, up.id, 'commit', up.actorId);
+		expect(out).toMatchObject({ status: 'committed', created: 1 });
+		const [p] = await db.select().from(t.parts).where(eq(t.parts.sku, sku));
+		expect(p).toMatchObject({ name, coating, notes, diameterMm: 12.5, eflMm: -40, eflSource: 'nominal', paraxialEflMm: -40 });
+	});
+
+	it('updates many parts across batches (surfaces replaced, EFL recomputed) and counts the same in dry run and commit', async () => {
+		const prefix = `${tag}-MANY-`;
+		const n = 230;
+		const first = await upload(PCX_HEADER + '\n' + Array.from({ length: n }, (_, i) => pcxRow(`${prefix}${i}`, i)).join('\n') + '\n');
+		expect(await importsService.runNow(db, store, first.id, 'commit', first.actorId, { batchRows: 50 })).toMatchObject({ status: 'committed', created: n });
+		// The same parts with a 10 mm longer radius for even rows; odd rows unchanged.
+		const rows = Array.from({ length: n }, (_, i) => {
+			const row = pcxRow(`${prefix}${i}`, i);
+			if (i % 2) return row;
+			const cells = row.split(',');
+			cells[4] = (Number(cells[4]) + 10).toFixed(2);
+			return cells.join(',');
+		});
+		const second = await upload(PCX_HEADER + '\n' + rows.join('\n') + '\n');
+		const expected = { created: 0, updated: n / 2, unchanged: n / 2, rejected: 0 };
+		expect(await importsService.runNow(db, store, second.id, 'check', second.actorId, { batchRows: 50 })).toMatchObject({ status: 'checked', ...expected });
+		expect(await importsService.runNow(db, store, second.id, 'commit', second.actorId, { batchRows: 50 })).toMatchObject({ status: 'committed', ...expected });
+		for (const i of [0, 1, 100, 229 - 1]) {
+			const [p] = await db.select().from(t.parts).where(eq(t.parts.sku, `${prefix}${i}`));
+			const surfaces = await db.select().from(t.partSurfaces).where(eq(t.partSurfaces.partId, p.id)).orderBy(t.partSurfaces.position);
+			const r = 50 + (i % 400) * 0.5 + (i % 2 ? 0 : 10);
+			expect(surfaces.map((s) => [s.position, s.radiusMm, s.thicknessMm, s.materialCode])).toEqual([
+				[0, r, 4, '517642'],
+				[1, null, null, null]
+			]);
+			// Plano-convex, flat side last: f = R/(n − 1) (Hecht, Optics, 5th ed. 2017, §6.2.1; from memory).
+			expect(p.paraxialEflMm).toBeCloseTo(r / (refractiveIndex('517642', 587.6) - 1), 4);
+			expect(p.name).toBe(`Imported plano-convex ${i}`);
+		}
+	});
+
+	it('finds a part repeated across batch boundaries, in the dry run as in the commit', async () => {
+		const p = `${tag}-XB-`;
+		const changed = pcxRow(`${p}B`, 2).replace('Imported plano-convex 2', 'Imported plano-convex two');
+		// Batches of 2: [A, B] [A again, C] [B with another name]
+		const csv = PCX_HEADER + '\n' + [pcxRow(`${p}A`, 1), pcxRow(`${p}B`, 2), pcxRow(`${p}A`, 1), pcxRow(`${p}C`, 3), changed].join('\n') + '\n';
+		const up = await upload(csv, { skipRejected: true });
+		const expected = { created: 3, updated: 0, unchanged: 1, rejected: 1, rows: 5 };
+		expect(await importsService.runNow(db, store, up.id, 'check', up.actorId, { batchRows: 2 })).toMatchObject({ status: 'checked', ...expected });
+		const report = await importsService.getReport(db, up.id);
+		expect(report.errors).toEqual([
+			{ row: 6, column: 'sku', value: `${p}B`, message: 'Row 3 of this file is for the same part with other values: each part may appear only once.' }
+		]);
+		expect(await importsService.runNow(db, store, up.id, 'commit', up.actorId, { batchRows: 2 })).toMatchObject({ status: 'committed', ...expected });
+		expect(await countParts(p)).toBe(3);
+	});
+
+	it('rolls back every batch when the database refuses one in the middle', async () => {
+		const prefix = `${tag}-DBF-`;
+		const rows = Array.from({ length: 25 }, (_, i) => pcxRow(`${prefix}${i}`, i));
+		const up = await upload(PCX_HEADER + '\n' + rows.join('\n') + '\n');
+		const out = await importsService.runNow(db, store, up.id, 'commit', up.actorId, {
+			batchRows: 10,
+			hooks: {
+				afterBatch: async ({ batch }) => {
+					// Another connection takes the SKU of a row of batch 2 after the transaction's first read:
+					// the transaction does not see it, takes the row as new, and its insert is refused (duplicate key).
+					if (batch === 1) await db.insert(t.parts).values({ sku: `${prefix}15`, name: 'Taken meanwhile', kind: 'other', diameterMm: 10 });
+				}
+			}
+		});
+		expect(out.status).toBe('failed');
+		expect(out.message).toMatch(/Duplicate entry.*Nothing was written/);
+		const left = await db.select({ sku: t.parts.sku, name: t.parts.name }).from(t.parts).where(like(t.parts.sku, `${prefix}%`));
+		expect(left).toEqual([{ sku: `${prefix}15`, name: 'Taken meanwhile' }]);
+		expect((await importsService.getReport(db, up.id)).status).toBe('failed');
 	});
 });

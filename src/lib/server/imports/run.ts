@@ -5,10 +5,12 @@
  * errors go to the database on their own connection, so every app instance (and a reloaded page)
  * sees them while the run is going.
  *
- * Rows are keyed by (supplier, supplier part number) first, then by SKU. Memory: one batch of rows
- * plus one small key per row for the duplicate check; the file itself is streamed from S3.
+ * Rows are keyed by (supplier, supplier part number) first, then by SKU. Memory: two batches of
+ * rows (the one being written and the next one being read) plus one small entry per row for the
+ * duplicate check (seen-parts.ts); the file itself is streamed from S3, and row errors go to the
+ * database batch by batch, at most MAX_STORED_ERRORS of them.
  */
-import { and, eq, inArray } from 'drizzle-orm';
+import { and, DrizzleQueryError, eq, inArray } from 'drizzle-orm';
 import type { Db, DbOrTx, Tx } from '$lib/server/db';
 import { importRowErrors, imports, partSurfaces, parts, suppliers, type ImportRecord } from '$lib/server/db/schema';
 import { recordAudit } from '$lib/server/audit';
@@ -19,7 +21,8 @@ import { getDefaultWavelengthNm } from '$lib/server/catalogue/settings';
 import type { ObjectStore } from '$lib/server/files/s3';
 import { csvRecords, type Delimiter } from './csv';
 import { fieldLabel } from './fields';
-import { compileMapping, fieldOfPath, readRow, type CompiledMapping } from './rows';
+import { compileMapping, fieldOfPath, readRow, type CompiledMapping, type ReadRow } from './rows';
+import { SeenParts } from './seen-parts';
 import { SupplierIds, writeBatch } from './writer';
 
 export const BATCH_ROWS = 1000;
@@ -87,7 +90,12 @@ async function existingFor(db: DbOrTx, skus: string[], pairs: Map<number, string
 	return { bySku, byPn };
 }
 
-const canonical = (p: PartInput) => JSON.stringify(p);
+/**
+ * A part's values as one string, with empty (null) and absent fields alike: a row that a commit
+ * compares with a part written by an earlier batch of the same run (stored, so every empty field
+ * is null) must compare as the dry run compared it with that batch's row (unmapped fields absent).
+ */
+const canonical = (p: PartInput) => JSON.stringify(p, (_key, value) => (value === null ? undefined : value));
 
 /** 32-bit FNV-1a of a string: a small fingerprint of a row's values for the duplicate check. */
 function hash(s: string): number {
@@ -108,21 +116,18 @@ interface Ctx {
 	skuPrefix: string | null;
 	suppliers: SupplierIds;
 	supplierNames: Map<number, string>;
-	seen: Map<string, { row: number; hash: number }>;
+	seen: SeenParts;
 	counts: RunCounts;
 	storedErrors: number;
 	defaultWavelengthNm: number;
 	actorId: number;
 }
 
-/** Validates and classifies one batch; in a commit, writes it through `tx`. */
-async function processBatch(ctx: Ctx, batch: { row: number; record: string[] }[], tx: Tx | null) {
-	const errors: RowError[] = [];
-	const columnOf = (field: string) => {
-		const i = ctx.cm.index.get(field);
-		return i === undefined ? fieldLabel(field) : ctx.header[i];
-	};
-	const read = batch.map(({ row, record }) => {
+type ReadBatch = ({ row: number } & ReadRow)[];
+
+/** Reads the cells of one batch (no database, no run state changed: it may run ahead of the batch before). */
+function readBatch(ctx: Ctx, batch: readonly { row: number; record: string[] }[]): ReadBatch {
+	return batch.map(({ row, record }) => {
 		const r = readRow(record, ctx.cm);
 		if (r.input.supplier == null && ctx.importSupplier) r.input.supplier = ctx.importSupplier;
 		if (!r.input.sku && ctx.skuPrefix && typeof r.input.supplierPartNumber === 'string') {
@@ -130,6 +135,17 @@ async function processBatch(ctx: Ctx, batch: { row: number; record: string[] }[]
 		}
 		return { row, ...r };
 	});
+}
+
+/** Validates and classifies one read batch; in a commit, writes it through `tx`. */
+async function processBatch(ctx: Ctx, read: ReadBatch, tx: Tx | null) {
+	// Only as many errors as may still be stored are kept (the count stays exact).
+	const errors: RowError[] = [];
+	let errorCount = 0;
+	const columnOf = (field: string) => {
+		const i = ctx.cm.index.get(field);
+		return i === undefined ? fieldLabel(field) : ctx.header[i];
+	};
 	const skus = new Set<string>();
 	const pairs = new Map<number, string[]>();
 	for (const r of read) {
@@ -163,9 +179,7 @@ async function processBatch(ctx: Ctx, batch: { row: number; record: string[] }[]
 		}
 		const target = byPn ?? bySku;
 		// The same part, SKU or supplier part number twice in one file.
-		const keys = [target ? `p:${target.part.id}` : null, sku ? `s:${sku.toLowerCase()}` : null, supplierName && pn ? `n:${supplierName.toLowerCase()}|${pn.toLowerCase()}` : null].filter(
-			(k): k is string => k !== null
-		);
+		const keys = { partId: target ? target.part.id : null, sku, supplier: supplierName, pn };
 		let data: PartInput | null = null;
 		if (!rowErrors.length) {
 			const merged = target ? { ...toInput({ ...target, latestMeasurement: null }), ...r.input } : r.input;
@@ -183,14 +197,14 @@ async function processBatch(ctx: Ctx, batch: { row: number; record: string[] }[]
 			}
 		}
 		const fingerprint = data ? hash(canonical(data)) : 0;
-		const dupe = keys.map((k) => ctx.seen.get(k)).find((v) => v !== undefined);
+		const dupe = ctx.seen.find(keys);
 		if (dupe && data) {
 			if (dupe.hash === fingerprint) {
 				// The same part with the same values again (a stock export lists a part once per location): nothing to do.
 				ctx.counts.unchanged++;
 				continue;
 			}
-			const onPn = !sku || !ctx.seen.has(`s:${sku.toLowerCase()}`);
+			const onPn = !sku || !ctx.seen.hasSku(sku);
 			rowErrors.push({
 				row: r.row,
 				column: columnOf(onPn && pn ? 'supplierPartNumber' : 'sku'),
@@ -200,12 +214,11 @@ async function processBatch(ctx: Ctx, batch: { row: number; record: string[] }[]
 		}
 		if (rowErrors.length || !data) {
 			ctx.counts.rejected++;
-			errors.push(...rowErrors);
+			errorCount += rowErrors.length;
+			for (const e of rowErrors) if (ctx.storedErrors + errors.length < MAX_STORED_ERRORS) errors.push(e);
 			continue;
 		}
-		const mark = { row: r.row, hash: fingerprint };
-		for (const k of keys) ctx.seen.set(k, mark);
-		ctx.seen.set(`s:${data.sku.toLowerCase()}`, mark);
+		ctx.seen.add(keys, data.sku, { row: r.row, hash: fingerprint });
 		if (target) {
 			const before = partInputSchema.safeParse(toInput({ ...target, latestMeasurement: null }));
 			if (before.success && canonical(before.data) === canonical(data)) ctx.counts.unchanged++;
@@ -218,10 +231,9 @@ async function processBatch(ctx: Ctx, batch: { row: number; record: string[] }[]
 			creates.push(data);
 		}
 	}
-	ctx.counts.errorCount += errors.length;
-	const room = MAX_STORED_ERRORS - ctx.storedErrors;
-	if (room > 0 && errors.length) {
-		const keep = errors.slice(0, room).map((e) => ({
+	ctx.counts.errorCount += errorCount;
+	if (errors.length) {
+		const keep = errors.map((e) => ({
 			importId: ctx.rec.id,
 			row: e.row,
 			column: e.column.slice(0, 120),
@@ -281,7 +293,7 @@ export async function runImport(
 			skuPrefix: options.skuPrefix || null,
 			suppliers: new SupplierIds(supplierRows),
 			supplierNames,
-			seen: new Map(),
+			seen: new SeenParts(),
 			counts,
 			storedErrors: 0,
 			defaultWavelengthNm: await getDefaultWavelengthNm(db),
@@ -292,25 +304,40 @@ export async function runImport(
 			let batch: { row: number; record: string[] }[] = [];
 			let rowNo = 1;
 			let batches = 0;
-			const flush = async () => {
-				await processBatch(ctx, batch, tx);
-				counts.rows += batch.length;
-				batch = [];
+			// Batches are validated and written one after another, in file order; only the reading of
+			// the next batch (CSV and cells, no database) goes on while the database works on the last one.
+			let inFlight: Promise<void> = Promise.resolve();
+			const settle = async (read: ReadBatch) => {
+				await processBatch(ctx, read, tx);
+				counts.rows += read.length;
 				batches++;
 				await progress(db, importId, counts);
 				await opts.hooks?.afterBatch?.({ batch: batches, rowsDone: counts.rows });
 			};
-			let first = true;
-			for await (const record of csvRecords(object.body, rec.delimiter as Delimiter)) {
-				if (first) {
-					first = false;
-					continue; // the header, checked at upload
+			const flush = async () => {
+				const read = readBatch(ctx, batch);
+				batch = [];
+				await inFlight; // throws if the batch before failed
+				inFlight = settle(read);
+				inFlight.catch(() => {}); // handled where it is awaited, not as an unhandled rejection
+			};
+			try {
+				let first = true;
+				for await (const record of csvRecords(object.body, rec.delimiter as Delimiter)) {
+					if (first) {
+						first = false;
+						continue; // the header, checked at upload
+					}
+					rowNo++;
+					batch.push({ row: rowNo, record });
+					if (batch.length >= batchRows) await flush();
 				}
-				rowNo++;
-				batch.push({ row: rowNo, record });
-				if (batch.length >= batchRows) await flush();
+				if (batch.length) await flush();
+			} finally {
+				// Never leave the transaction while a batch still sends statements through it.
+				await inFlight.catch(() => {});
 			}
-			if (batch.length) await flush();
+			await inFlight;
 		};
 		if (mode === 'check') {
 			await pass(null);
@@ -339,13 +366,18 @@ export async function runImport(
 				}
 			});
 		}
-	} catch (err) {
+	} catch (thrown) {
+		// A failed statement: the database's own message, not the statement (a batch insert is about 1 MB of SQL).
+		const err = thrown instanceof DrizzleQueryError && thrown.cause instanceof Error ? thrown.cause : thrown;
 		status = 'failed';
 		message =
 			err instanceof RowsRejected
 				? err.message
 				: `The import stopped: ${err instanceof Error ? err.message.slice(0, 300) : String(err)}. ${mode === 'commit' ? 'Nothing was written to the catalogue.' : ''}`.trim();
-		if (!(err instanceof RowsRejected)) console.error(`[import ${importId}] ${mode} failed:`, err);
+		if (!(err instanceof RowsRejected)) {
+			const statement = thrown instanceof DrizzleQueryError ? ` (statement: ${thrown.query.slice(0, 200)}…)` : '';
+			console.error(`[import ${importId}] ${mode} failed${statement}:`, err);
+		}
 		if (mode === 'commit' && !(err instanceof RowsRejected)) {
 			// The counts described rows of a transaction that was rolled back.
 			counts.created = counts.updated = counts.unchanged = 0;
