@@ -235,8 +235,12 @@ try {
 	);
 	process.exitCode = ok ? 0 : 1;
 	if (process.env.BENCH_HOLD) {
-		console.log(`holding the stack: BENCH_DATABASE_URL=${env.DATABASE_URL} (stop this process to end it)`);
-		await new Promise(() => {});
+		console.log(`holding the stack: BENCH_DATABASE_URL=${env.DATABASE_URL} (Ctrl-C or SIGTERM ends it)`);
+		// Resolve on a signal, so the finally block stops the services instead of orphaning them.
+		await new Promise<void>((resolve) => {
+			process.once('SIGINT', resolve);
+			process.once('SIGTERM', resolve);
+		});
 	}
 } finally {
 	await stopChildren();
