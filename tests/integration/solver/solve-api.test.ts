@@ -5,14 +5,30 @@
  * stock consistent (never more reserved than on hand).
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { and, eq, sql } from 'drizzle-orm';
+import { and, eq, inArray, or, sql } from 'drizzle-orm';
 import { testDb } from '../../support/env';
 import { api, cookieFor } from '../accounts/helpers';
 import * as t from '../../../src/lib/server/db/schema';
 import { bumpStockVersion } from '../../../src/lib/server/stock/version';
 
 const { db, pool } = testDb();
-afterAll(() => pool.end());
+// Reservations this file makes on demo parts, released at the end so that later files (unlocks,
+// the browser tests) see the demo stock as available as it was.
+const heldIds: number[] = [];
+const reservedSetups: number[] = [];
+afterAll(async () => {
+	const mine = [
+		...(heldIds.length ? [inArray(t.reservations.id, heldIds)] : []),
+		...(reservedSetups.length ? [inArray(t.reservations.setupId, reservedSetups)] : [])
+	];
+	if (mine.length) {
+		await db.transaction(async (tx) => {
+			await tx.update(t.reservations).set({ status: 'released' }).where(and(eq(t.reservations.status, 'active'), or(...mine)));
+			await bumpStockVersion(tx);
+		});
+	}
+	await pool.end();
+});
 
 let engineer: string, engineer2: string, purchaser: string;
 beforeAll(async () => {
@@ -121,6 +137,7 @@ describe('setups', () => {
 		const partId = solution.elements[0].partId;
 		const res = await api('POST', '/api/v1/setups', { cookie: engineer }, { name: 'Race', query, choice });
 		const setup = await res.json();
+		reservedSetups.push(setup.id);
 		// Reserve all units but one for someone else, so exactly one unit is left.
 		const [{ onHand }] = (await db.execute(sql`select coalesce(sum(quantity),0) as onHand from stock where part_id = ${partId} and \`condition\` = 'usable'`))[0] as unknown as { onHand: number }[];
 		const [{ held }] = (await db.execute(sql`select coalesce(sum(quantity),0) as held from reservations where part_id = ${partId} and status = 'active' and until > utc_timestamp()`))[0] as unknown as { held: number }[];
@@ -128,7 +145,8 @@ describe('setups', () => {
 		const [admin] = await db.select().from(t.users).where(eq(t.users.role, 'admin'));
 		if (spare > 0) {
 			await db.transaction(async (tx) => {
-				await tx.insert(t.reservations).values({ partId, userId: admin.id, quantity: spare, until: new Date(Date.now() + 86_400_000), note: 'test: hold all but one' });
+				const [hold] = await tx.insert(t.reservations).values({ partId, userId: admin.id, quantity: spare, until: new Date(Date.now() + 86_400_000), note: 'test: hold all but one' }).$returningId();
+				heldIds.push(hold.id);
 				await bumpStockVersion(tx);
 			});
 		}
