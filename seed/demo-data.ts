@@ -6,6 +6,7 @@
  * materials (fused silica, calcium fluoride).
  */
 import demoUsers from './demo-users.json' with { type: 'json' };
+import { mulberry32 } from '../src/lib/prng';
 
 export interface DemoSurface {
 	radiusMm: number | null;
@@ -84,17 +85,8 @@ export const DEMO_PROJECTS = [
 	{ code: 'TEACH-LAB', name: 'Undergraduate optics practical' }
 ] as const;
 
-/** Deterministic pseudo-random numbers (mulberry32), so the demo is the same on every machine. */
-export function prng(seed: number) {
-	let a = seed >>> 0;
-	return () => {
-		a = (a + 0x6d2b79f5) >>> 0;
-		let t = a;
-		t = Math.imul(t ^ (t >>> 15), t | 1);
-		t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-	};
-}
+/** Deterministic pseudo-random numbers (mulberry32), the same on every machine. */
+export const prng = mulberry32;
 
 const round = (x: number, step = 0.01) => Number((Math.round(x / step) * step).toFixed(step < 0.1 ? 2 : 1));
 /** Signed sag z(h) of a surface of radius r (null: flat): positive when the edge lies right of the vertex. */

@@ -5,17 +5,9 @@
  * Not taken from any catalogue.
  */
 import type { CandidatePart } from '../../src/lib/server/solver/elements';
+import { mulberry32 } from '../../src/lib/prng';
 
-function prng(seed: number) {
-	let a = seed >>> 0;
-	return () => {
-		a = (a + 0x6d2b79f5) >>> 0;
-		let t = a;
-		t = Math.imul(t ^ (t >>> 15), t | 1);
-		t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-	};
-}
+const prng = mulberry32;
 
 const GLASSES: [string, number][] = [
 	['517642', 1.517],

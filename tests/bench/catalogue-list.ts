@@ -16,6 +16,7 @@ import os from 'node:os';
 import path from 'node:path';
 import crypto from 'node:crypto';
 import { eq, sql } from 'drizzle-orm';
+import { mulberry32 } from '../../src/lib/prng';
 
 // The stack scripts are plain JavaScript; loaded by a computed path so the type check stays out of them.
 const scripts = (name: string) => new URL(`../../scripts/lib/${name}`, import.meta.url).href;
@@ -30,16 +31,7 @@ const WARMUP = 3;
 const TARGET_P95_MS = 150;
 const tmp = fs.mkdtempSync(path.join(os.tmpdir(), 'glasscrib-bench-catalogue-'));
 
-function prng(seed: number) {
-	let a = seed >>> 0;
-	return () => {
-		a = (a + 0x6d2b79f5) >>> 0;
-		let t = a;
-		t = Math.imul(t ^ (t >>> 15), t | 1);
-		t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-	};
-}
+const prng = mulberry32;
 
 const percentile = (xs: number[], p: number) => {
 	const s = [...xs].sort((a, b) => a - b);

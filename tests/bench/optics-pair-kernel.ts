@@ -24,20 +24,12 @@ import {
 	ROOT_BACK_DISTANCE,
 	type ThickElement
 } from '../../src/lib/optics';
+import { mulberry32 } from '../../src/lib/prng';
 
 const PARTS = 300; // → 600 oriented elements, 359 400 ordered pairs per query
 const MIN_SECONDS = 3;
 
-function rng(seed: number): () => number {
-	let a = seed >>> 0;
-	return () => {
-		a = (a + 0x6d2b79f5) >>> 0;
-		let t = a;
-		t = Math.imul(t ^ (t >>> 15), t | 1);
-		t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-	};
-}
+const rng = mulberry32;
 
 function demoElements(): ThickElement[] {
 	const r = rng(2024);

@@ -7,19 +7,11 @@
  */
 import { describe, expect, it } from 'vitest';
 import { fulltextPrefilter } from '../../../src/lib/server/catalogue/list';
+import { mulberry32 } from '../../../src/lib/prng';
 
 const words = (s: string) => s.toLowerCase().split(/[^a-z0-9_]+/).filter(Boolean);
 
-function prng(seed: number) {
-	let a = seed >>> 0;
-	return () => {
-		a = (a + 0x6d2b79f5) >>> 0;
-		let t = a;
-		t = Math.imul(t ^ (t >>> 15), t | 1);
-		t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-	};
-}
+const prng = mulberry32;
 
 describe('fulltextPrefilter', () => {
 	it('uses only the words after the first, of indexable length, not stopword prefixes', () => {

@@ -3,18 +3,10 @@
  * lenses (no catalogue data), and an independent brute-force pair search.
  */
 import { buildElement, type SurfaceSpec, type ThickElement } from '../../../src/lib/optics';
+import { mulberry32 } from '../../../src/lib/prng';
 
-/** mulberry32: a small seeded PRNG so property tests are reproducible. */
-export function rng(seed: number): () => number {
-	let a = seed >>> 0;
-	return () => {
-		a = (a + 0x6d2b79f5) >>> 0;
-		let t = a;
-		t = Math.imul(t ^ (t >>> 15), t | 1);
-		t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-	};
-}
+/** Deterministic pseudo-random numbers (mulberry32), the same on every machine. */
+export const rng = mulberry32;
 
 /** Uniform number in [lo, hi). */
 export function uniform(r: () => number, lo: number, hi: number): number {
