@@ -24,6 +24,20 @@ export async function openBrowser(): Promise<{ context: BrowserContext; page: Pa
 		viewport: { width: 1280, height: 860 }
 	});
 	const page = context.pages()[0] ?? (await context.newPage());
+	// After a full page load, wait until the app has hydrated (the root layout sets html[data-ready]):
+	// typing into a form before that is lost when Svelte hydrates the inputs.
+	const goto = page.goto.bind(page);
+	page.goto = async (url, options) => {
+		const response = await goto(url, options);
+		await waitUntilReady(page);
+		return response;
+	};
+	const reload = page.reload.bind(page);
+	page.reload = async (options) => {
+		const response = await reload(options);
+		await waitUntilReady(page);
+		return response;
+	};
 	return {
 		context,
 		page,
@@ -32,6 +46,13 @@ export async function openBrowser(): Promise<{ context: BrowserContext; page: Pa
 			fs.rmSync(dir, { recursive: true, force: true });
 		}
 	};
+}
+
+/** Waits for the app's hydration marker; pages without it (downloads, plain JSON) pass after a short wait. */
+export async function waitUntilReady(page: Page, timeoutMs = 10_000) {
+	const isApp = await page.evaluate(() => !!document.querySelector('body > div')).catch(() => false);
+	if (!isApp) return;
+	await page.waitForFunction(() => document.documentElement.dataset.ready === '1', null, { timeout: timeoutMs });
 }
 
 /** The app under test, started by `npm test`. */
