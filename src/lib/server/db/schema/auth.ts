@@ -1,5 +1,4 @@
 import {
-	bigint,
 	datetime,
 	index,
 	json,
@@ -12,13 +11,12 @@ import {
 	char,
 	int
 } from 'drizzle-orm/mysql-core';
+import { id, ref } from './columns';
 
 /** The four roles of Glasscrib; one user has one role. */
 export const ROLES = ['admin', 'stockroom', 'engineer', 'purchaser'] as const;
 export type Role = (typeof ROLES)[number];
 
-const id = () => bigint('id', { mode: 'number', unsigned: true }).autoincrement().primaryKey();
-const ref = (name: string) => bigint(name, { mode: 'number', unsigned: true });
 
 export const users = mysqlTable(
 	'users',

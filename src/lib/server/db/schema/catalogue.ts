@@ -1,5 +1,4 @@
 import {
-	bigint,
 	datetime,
 	double,
 	index,
@@ -13,10 +12,9 @@ import {
 	varchar,
 	char
 } from 'drizzle-orm/mysql-core';
+import { id, ref } from './columns';
 import { users } from './auth';
 
-const id = () => bigint('id', { mode: 'number', unsigned: true }).autoincrement().primaryKey();
-const ref = (name: string) => bigint(name, { mode: 'number', unsigned: true });
 
 /** Kinds of catalogue part; each fills a sensible surface template in the part form. */
 export const PART_KINDS = [

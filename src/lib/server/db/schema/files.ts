@@ -1,9 +1,8 @@
-import { bigint, char, index, int, mysqlEnum, mysqlTable, timestamp, uniqueIndex, varchar } from 'drizzle-orm/mysql-core';
+import { char, index, int, mysqlEnum, mysqlTable, timestamp, uniqueIndex, varchar } from 'drizzle-orm/mysql-core';
+import { id, ref } from './columns';
 import { users } from './auth';
 import { parts } from './catalogue';
 
-const id = () => bigint('id', { mode: 'number', unsigned: true }).autoincrement().primaryKey();
-const ref = (name: string) => bigint(name, { mode: 'number', unsigned: true });
 
 /** What an uploaded file is, decided by its magic bytes (never by its name). */
 export const DATASHEET_TYPES = ['application/pdf', 'image/png', 'image/jpeg', 'image/webp'] as const;

@@ -1,9 +1,8 @@
-import { bigint, char, datetime, index, int, json, mysqlEnum, mysqlTable, timestamp, varchar } from 'drizzle-orm/mysql-core';
+import { char, datetime, index, int, json, mysqlEnum, mysqlTable, timestamp, varchar } from 'drizzle-orm/mysql-core';
+import { id, ref } from './columns';
 import { users } from './auth';
 import { suppliers } from './catalogue';
 
-const id = () => bigint('id', { mode: 'number', unsigned: true }).autoincrement().primaryKey();
-const ref = (name: string) => bigint(name, { mode: 'number', unsigned: true });
 
 /**
  * uploaded → (checking → checked)* → committing → committed; any step may end in failed.

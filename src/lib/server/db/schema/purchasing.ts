@@ -1,10 +1,9 @@
-import { bigint, char, datetime, index, int, mysqlEnum, mysqlTable, text, timestamp, uniqueIndex, varchar } from 'drizzle-orm/mysql-core';
+import { char, datetime, index, int, mysqlEnum, mysqlTable, text, timestamp, uniqueIndex, varchar } from 'drizzle-orm/mysql-core';
+import { id, ref } from './columns';
 import { users } from './auth';
 import { parts, suppliers } from './catalogue';
 import { locations, movements } from './stock';
 
-const id = () => bigint('id', { mode: 'number', unsigned: true }).autoincrement().primaryKey();
-const ref = (name: string) => bigint(name, { mode: 'number', unsigned: true });
 
 /**
  * draft → requested → ordered → partly-received → received → closed; cancelled from any state

@@ -11,11 +11,10 @@ import {
 	uniqueIndex,
 	varchar
 } from 'drizzle-orm/mysql-core';
+import { id, ref } from './columns';
 import { users } from './auth';
 import { parts } from './catalogue';
 
-const id = () => bigint('id', { mode: 'number', unsigned: true }).autoincrement().primaryKey();
-const ref = (name: string) => bigint(name, { mode: 'number', unsigned: true });
 
 export const CONDITIONS = ['usable', 'quarantine', 'damaged'] as const;
 export type Condition = (typeof CONDITIONS)[number];
