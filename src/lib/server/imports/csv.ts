@@ -129,19 +129,73 @@ export function checkCsv(bytes: Uint8Array, opts: { maxBytes?: number; maxRows?:
 /**
  * Streams the records of a stored CSV (header first) as string arrays; memory stays flat whatever
  * the file size. `source` is a byte stream (S3 body or file).
+ *
+ * papaparse's chunk mode: it parses each piece of text the stream delivers (typically 16–64 KB)
+ * in one go and hands over its rows; the parser and the stream are paused until the consumer has
+ * taken them, so at most a piece or two is held. (Its Node duplex stream, used before, pauses
+ * every 16 rows and then parses the rest of the piece again from that point: a quadratic cost
+ * that made it the largest item of the import profile.)
  */
 export async function* csvRecords(source: Readable, delimiter: Delimiter): AsyncGenerator<string[]> {
 	source.setEncoding('utf8'); // decodes multibyte characters split across chunks (STACK.md)
-	const parser = Papa.parse(Papa.NODE_STREAM_INPUT, { delimiter, skipEmptyLines: 'greedy' }) as unknown as NodeJS.ReadWriteStream;
-	let first = true;
-	source.pipe(parser);
-	source.on('error', (err) => parser.emit('error', err));
-	for await (const record of parser as AsyncIterable<string[]>) {
-		if (first) {
-			first = false;
-			if (record.length && record[0].charCodeAt(0) === 0xfeff) record[0] = record[0].slice(1);
+	const pieces: string[][][] = [];
+	// Set from papaparse's callbacks (an object, so the checks below are not narrowed away).
+	const state: { paused: Papa.Parser | null; finished: boolean; failure: unknown; wake: (() => void) | null } = { paused: null, finished: false, failure: null, wake: null };
+	const signal = () => {
+		const wake = state.wake;
+		state.wake = null;
+		wake?.();
+	};
+	source.on('error', (err) => {
+		state.failure ??= err;
+		signal();
+	});
+	Papa.parse(source as unknown as Papa.LocalFile, {
+		delimiter,
+		skipEmptyLines: 'greedy',
+		chunk: (results: Papa.ParseResult<string[]>, parser: Papa.Parser) => {
+			pieces.push(results.data);
+			parser.pause();
+			source.pause();
+			state.paused = parser;
+			signal();
+		},
+		complete: () => {
+			state.finished = true;
+			signal();
+		},
+		error: (err: Error) => {
+			state.failure ??= err;
+			signal();
 		}
-		yield record;
+	});
+	let first = true;
+	try {
+		for (;;) {
+			const piece = pieces.shift();
+			if (piece) {
+				for (const record of piece) {
+					if (first) {
+						first = false;
+						if (record.length && record[0].charCodeAt(0) === 0xfeff) record[0] = record[0].slice(1);
+					}
+					yield record;
+				}
+				const parser = state.paused;
+				state.paused = null;
+				if (parser) {
+					source.resume();
+					parser.resume();
+				}
+				continue;
+			}
+			if (state.failure) throw state.failure;
+			if (state.finished) return;
+			await new Promise<void>((resolve) => (state.wake = resolve));
+		}
+	} finally {
+		// The consumer stopped early (a failed batch): let go of the stream.
+		if (!state.finished) source.destroy();
 	}
 }
 
