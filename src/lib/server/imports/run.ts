@@ -10,7 +10,7 @@
  * duplicate check (seen-parts.ts); the file itself is streamed from S3, and row errors go to the
  * database batch by batch, at most MAX_STORED_ERRORS of them.
  */
-import { and, DrizzleQueryError, eq, inArray } from 'drizzle-orm';
+import { and, DrizzleQueryError, eq } from 'drizzle-orm';
 import type { Db, DbOrTx, Tx } from '$lib/server/db';
 import { importRowErrors, imports, partSurfaces, parts, suppliers, type ImportRecord } from '$lib/server/db/schema';
 import { recordAudit } from '$lib/server/audit';
@@ -19,11 +19,12 @@ import { partInputSchema, type PartInput } from '$lib/server/catalogue/part-inpu
 import { toInput } from '$lib/server/catalogue/parts';
 import { getDefaultWavelengthNm } from '$lib/server/catalogue/settings';
 import type { ObjectStore } from '$lib/server/files/s3';
+import { inList } from './bulk-sql';
 import { csvRecords, type Delimiter } from './csv';
 import { fieldLabel } from './fields';
 import { compileMapping, fieldOfPath, readRow, type CompiledMapping, type ReadRow } from './rows';
 import { SeenParts } from './seen-parts';
-import { SupplierIds, writeBatch } from './writer';
+import { DerivedCache, SupplierIds, writeBatch } from './writer';
 
 export const BATCH_ROWS = 1000;
 /** Row errors kept per import (the count is always exact). */
@@ -61,9 +62,9 @@ async function existingFor(db: DbOrTx, skus: string[], pairs: Map<number, string
 	const byPn = new Map<string, Existing>();
 	// Separate queries, so each uses its unique index (an OR of the two would scan the table).
 	const found = new Map<number, typeof parts.$inferSelect>();
-	if (skus.length) for (const p of await db.select().from(parts).where(inArray(parts.sku, skus))) found.set(p.id, p);
+	if (skus.length) for (const p of await db.select().from(parts).where(inList(parts.sku, skus))) found.set(p.id, p);
 	for (const [sid, pns] of pairs) {
-		for (const p of await db.select().from(parts).where(and(eq(parts.supplierId, sid), inArray(parts.supplierPartNumber, pns)))) found.set(p.id, p);
+		for (const p of await db.select().from(parts).where(and(eq(parts.supplierId, sid), inList(parts.supplierPartNumber, pns)))) found.set(p.id, p);
 	}
 	const rows = [...found.values()];
 	if (!rows.length) return { bySku, byPn };
@@ -71,7 +72,7 @@ async function existingFor(db: DbOrTx, skus: string[], pairs: Map<number, string
 		.select()
 		.from(partSurfaces)
 		.where(
-			inArray(
+			inList(
 				partSurfaces.partId,
 				rows.map((r) => r.id)
 			)
@@ -115,6 +116,7 @@ interface Ctx {
 	importSupplier: string | null;
 	skuPrefix: string | null;
 	suppliers: SupplierIds;
+	derived: DerivedCache;
 	supplierNames: Map<number, string>;
 	seen: SeenParts;
 	counts: RunCounts;
@@ -244,7 +246,7 @@ async function processBatch(ctx: Ctx, read: ReadBatch, tx: Tx | null) {
 		ctx.storedErrors += keep.length;
 	}
 	if (tx && (creates.length || updates.length)) {
-		await writeBatch(tx, { creates, updates }, { suppliers: ctx.suppliers, defaultWavelengthNm: ctx.defaultWavelengthNm, actorId: ctx.actorId });
+		await writeBatch(tx, { creates, updates }, { suppliers: ctx.suppliers, defaultWavelengthNm: ctx.defaultWavelengthNm, actorId: ctx.actorId, derived: ctx.derived });
 	}
 }
 
@@ -292,6 +294,7 @@ export async function runImport(
 			importSupplier: rec.supplierId ? (supplierNames.get(rec.supplierId) ?? null) : null,
 			skuPrefix: options.skuPrefix || null,
 			suppliers: new SupplierIds(supplierRows),
+			derived: new DerivedCache(),
 			supplierNames,
 			seen: new SeenParts(),
 			counts,

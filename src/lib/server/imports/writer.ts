@@ -7,17 +7,37 @@
  * store it. The statements are built by `insertRows` (bulk-sql.ts), not Drizzle's insert builder,
  * which was the hot spot of the import benchmark.
  */
-import { desc, inArray } from 'drizzle-orm';
+import { desc } from 'drizzle-orm';
 import type { Tx } from '$lib/server/db';
 import { measurements, partSurfaces, parts, suppliers } from '$lib/server/db/schema';
 import { recordAudit } from '$lib/server/audit';
-import { paraxialColumns } from '$lib/server/catalogue/derived';
+import { paraxialColumns, type MeasuredEfl, type OpticsPart } from '$lib/server/catalogue/derived';
 import { toSurfaceSpecs, type PartInput } from '$lib/server/catalogue/part-input';
 import { columnsOf } from '$lib/server/catalogue/parts';
-import { insertRows } from './bulk-sql';
+import { inList, insertRows } from './bulk-sql';
 
-function derivedFor(input: PartInput, cols: ReturnType<typeof columnsOf>, wl: number, measured: { eflMm: number; wavelengthNm: number } | null) {
-	return paraxialColumns(
+/**
+ * The derived EFL columns by optics input: a file lists the same prescription many times (one
+ * lens in several coatings, sizes of a series), and `paraxialColumns` is a pure function of these
+ * numbers, so each distinct one is computed once per run. Bounded: cleared when it is full.
+ */
+export class DerivedCache {
+	private map = new Map<string, ReturnType<typeof paraxialColumns>>();
+	constructor(private readonly maxEntries = 5000) {}
+	get(part: OpticsPart, wl: number, measured: MeasuredEfl | null): ReturnType<typeof paraxialColumns> {
+		const key = JSON.stringify([part, wl, measured]);
+		let hit = this.map.get(key);
+		if (!hit) {
+			if (this.map.size >= this.maxEntries) this.map.clear();
+			hit = paraxialColumns(part, wl, measured);
+			this.map.set(key, hit);
+		}
+		return hit;
+	}
+}
+
+function derivedFor(input: PartInput, cols: ReturnType<typeof columnsOf>, wl: number, measured: MeasuredEfl | null, cache: DerivedCache) {
+	return cache.get(
 		{
 			surfaces: toSurfaceSpecs(input.surfaces),
 			eflMm: cols.eflMm,
@@ -64,6 +84,11 @@ export class SupplierIds {
 	}
 }
 
+/** Creates the suppliers named by `inputs` that do not exist yet, in the order the rows name them. */
+async function resolveSuppliers(tx: Tx, inputs: readonly PartInput[], ctx: { suppliers: SupplierIds; actorId: number }) {
+	for (const input of inputs) if (input.supplier && ctx.suppliers.known(input.supplier) === null) await ctx.suppliers.resolve(tx, input.supplier, ctx.actorId);
+}
+
 /** Every written column of a parts row (columnsOf plus the derived EFL columns). */
 const PART_KEYS = [
 	'sku',
@@ -94,22 +119,22 @@ const SURFACE_KEYS = ['partId', 'position', 'radiusMm', 'thicknessMm', 'material
 export async function writeBatch(
 	tx: Tx,
 	batch: { creates: PartInput[]; updates: { id: number; input: PartInput }[] },
-	ctx: { suppliers: SupplierIds; defaultWavelengthNm: number; actorId: number }
+	ctx: { suppliers: SupplierIds; defaultWavelengthNm: number; actorId: number; derived: DerivedCache }
 ) {
 	const wl = ctx.defaultWavelengthNm;
 	if (batch.creates.length) {
-		const rows = [];
-		for (const input of batch.creates) {
-			const cols = columnsOf(input, await ctx.suppliers.resolve(tx, input.supplier, ctx.actorId));
-			rows.push({ ...cols, ...derivedFor(input, cols, wl, null) });
-		}
+		await resolveSuppliers(tx, batch.creates, ctx);
+		const rows = batch.creates.map((input) => {
+			const cols = columnsOf(input, ctx.suppliers.known(input.supplier));
+			return { ...cols, ...derivedFor(input, cols, wl, null, ctx.derived) };
+		});
 		await insertRows(tx, parts, PART_KEYS, rows);
 		// The new ids by SKU (unique), in one query on its index.
 		const ids = await tx
 			.select({ id: parts.id, sku: parts.sku })
 			.from(parts)
 			.where(
-				inArray(
+				inList(
 					parts.sku,
 					rows.map((r) => r.sku)
 				)
@@ -124,17 +149,21 @@ export async function writeBatch(
 		const ms = await tx
 			.select({ partId: measurements.partId, eflMm: measurements.eflMm, wavelengthNm: measurements.wavelengthNm })
 			.from(measurements)
-			.where(inArray(measurements.partId, ids))
+			.where(inList(measurements.partId, ids))
 			.orderBy(desc(measurements.measuredAt), desc(measurements.id));
 		for (const m of ms) if (!latest.has(m.partId)) latest.set(m.partId, m);
-		const rows = [];
-		for (const u of batch.updates) {
-			const cols = columnsOf(u.input, await ctx.suppliers.resolve(tx, u.input.supplier, ctx.actorId));
-			rows.push({ id: u.id, ...cols, ...derivedFor(u.input, cols, wl, latest.get(u.id) ?? null) });
-		}
+		await resolveSuppliers(
+			tx,
+			batch.updates.map((u) => u.input),
+			ctx
+		);
+		const rows = batch.updates.map((u) => {
+			const cols = columnsOf(u.input, ctx.suppliers.known(u.input.supplier));
+			return { id: u.id, ...cols, ...derivedFor(u.input, cols, wl, latest.get(u.id) ?? null, ctx.derived) };
+		});
 		// Rows carry their primary key, so ON DUPLICATE KEY turns each into an update of that part.
 		await insertRows(tx, parts, ['id', ...PART_KEYS], rows, PART_KEYS);
-		await tx.delete(partSurfaces).where(inArray(partSurfaces.partId, ids));
+		await tx.delete(partSurfaces).where(inList(partSurfaces.partId, ids));
 		const surfaces = batch.updates.flatMap((u) => surfaceRows(u.id, u.input));
 		if (surfaces.length) await insertRows(tx, partSurfaces, SURFACE_KEYS, surfaces);
 	}
