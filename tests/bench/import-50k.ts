@@ -6,7 +6,10 @@
  * 10,000 rows/s, with memory that does not grow with the file.
  *
  * Memory is sampled every 20 ms during each run (heap used and RSS); "growth" compares the
- * peak of the second half of the run with the peak of the first half.
+ * peak of the second half of the run with the peak of the first half. Those peaks include garbage
+ * not yet collected, so the bench also forces a full GC after the batches at 1/4, 1/2, 3/4 and
+ * the end of each run and reports the heap still in use then ("retained"): what the run holds
+ * on to. The pauses of those forced GCs are taken out of the run's time (and printed).
  *
  * Prints human lines and, last, one JSON line: {"bench":"import-50k",...}
  */
@@ -14,6 +17,8 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import crypto from 'node:crypto';
+import v8 from 'node:v8';
+import vm from 'node:vm';
 import { eq } from 'drizzle-orm';
 
 // The stack scripts are plain JavaScript; loaded by a computed path so the type check stays out of them.
@@ -24,6 +29,8 @@ const { startStack } = (await import(scripts('stack.mjs'))) as {
 const { freePort, stopChildren } = (await import(scripts('proc.mjs'))) as { freePort: () => Promise<number>; stopChildren: () => Promise<void> };
 
 const ROWS = Number(process.env.BENCH_IMPORT_ROWS ?? 50_000);
+v8.setFlagsFromString('--expose-gc');
+const gc = vm.runInNewContext('gc') as () => void;
 const tmp = fs.mkdtempSync(path.join(os.tmpdir(), 'glasscrib-bench-import-'));
 
 function csv(rows: number): Uint8Array {
@@ -80,18 +87,34 @@ try {
 	const uploadMs = performance.now() - t;
 	await importsService.saveMapping(db, created.id, { mapping: created.suggestion.mapping, units: created.suggestion.units, skuPrefix: '', skipRejected: false });
 
-	const results: Record<string, { ms: number; rowsPerSecond: number; mem: ReturnType<ReturnType<typeof sampler>['stop']> }> = {};
+	const results: Record<string, { ms: number; rowsPerSecond: number; mem: ReturnType<ReturnType<typeof sampler>['stop']>; retainedMb: number[]; probeMs: number }> = {};
+	const batches = Math.ceil(ROWS / 1000);
+	// BENCH_IMPORT_GC_PROBE=0 leaves the probes out (the peaks then show when V8 collects on its own).
+	const probeAt = new Set(process.env.BENCH_IMPORT_GC_PROBE === '0' ? [] : [1, 2, 3, 4].map((q) => Math.max(1, Math.round((batches * q) / 4))));
 	for (const mode of ['check', 'commit'] as const) {
+		gc();
+		const retainedMb: number[] = [];
+		let probeMs = 0;
+		const afterBatch = ({ batch }: { batch: number }) => {
+			if (!probeAt.has(batch)) return;
+			const t0 = performance.now();
+			gc();
+			retainedMb.push(process.memoryUsage().heapUsed / 2 ** 20);
+			probeMs += performance.now() - t0;
+		};
 		const mem = sampler();
 		t = performance.now();
-		const out = await importsService.runNow(db, store, created.id, mode, actorId);
-		const ms = performance.now() - t;
+		const out = await importsService.runNow(db, store, created.id, mode, actorId, { hooks: { afterBatch } });
+		const ms = performance.now() - t - probeMs;
 		const m = mem.stop();
 		if (out.status === 'failed' || out.created !== ROWS) throw new Error(`${mode} did not go through: ${JSON.stringify(out)}`);
-		results[mode] = { ms, rowsPerSecond: ROWS / (ms / 1000), mem: m };
+		results[mode] = { ms, rowsPerSecond: ROWS / (ms / 1000), mem: m, retainedMb, probeMs };
 		console.log(
 			`${mode.padEnd(6)} ${(ms / 1000).toFixed(2)} s  ${Math.round(ROWS / (ms / 1000)).toLocaleString('en')} rows/s  ` +
 				`peak heap ${m.peakHeapMb.toFixed(0)} MB (1st half ${m.firstHalfPeakHeapMb.toFixed(0)}, 2nd half ${m.secondHalfPeakHeapMb.toFixed(0)}), peak RSS ${m.peakRssMb.toFixed(0)} MB`
+		);
+		console.log(
+			`       retained heap after a full GC at 1/4, 1/2, 3/4, end: ${retainedMb.map((x) => x.toFixed(1)).join(', ')} MB ` + `(forced GC pauses ${probeMs.toFixed(0)} ms, not counted)`
 		);
 	}
 	console.log(`upload check + store ${(uploadMs / 1000).toFixed(2)} s (the whole file is in memory at upload: up to 16 MB)`);
@@ -109,7 +132,10 @@ try {
 			commitRowsPerSecond: Math.round(results.commit.rowsPerSecond),
 			checkPeakHeapMb: Math.round(results.check.mem.peakHeapMb),
 			commitPeakHeapMb: Math.round(results.commit.mem.peakHeapMb),
+			checkHeapHalvesMb: [Math.round(results.check.mem.firstHalfPeakHeapMb), Math.round(results.check.mem.secondHalfPeakHeapMb)],
 			commitHeapHalvesMb: [Math.round(results.commit.mem.firstHalfPeakHeapMb), Math.round(results.commit.mem.secondHalfPeakHeapMb)],
+			checkRetainedHeapMb: results.check.retainedMb.map((x) => +x.toFixed(1)),
+			commitRetainedHeapMb: results.commit.retainedMb.map((x) => +x.toFixed(1)),
 			peakRssMb: Math.round(Math.max(results.check.mem.peakRssMb, results.commit.mem.peakRssMb)),
 			targetRowsPerSecond: target,
 			targetMet: ok
