@@ -1,10 +1,12 @@
 import { afterAll, describe, expect, it } from 'vitest';
-import { and, count, eq, inArray, like } from 'drizzle-orm';
+import { and, count, eq, inArray, like, TransactionRollbackError } from 'drizzle-orm';
 import * as t from '../../../src/lib/server/db/schema';
 import * as importsService from '../../../src/lib/server/imports/service';
 import { ApiError, DomainError } from '../../../src/lib/server/api/http';
 import { refractiveIndex } from '../../../src/lib/optics';
 import { csvLine } from '../../../src/lib/server/imports/csv';
+import { insertRows } from '../../../src/lib/server/imports/bulk-sql';
+import { InsertIds } from '../../../src/lib/server/imports/writer';
 import { countParts, db, deleteParts, enc, pcxRow, PCX_HEADER, pool, stockroomId, store, upload } from './helpers';
 
 const tag = `IM${Date.now().toString(36).toUpperCase()}`;
@@ -285,5 +287,26 @@ describe('batched writes store exactly what the file says', () => {
 		const left = await db.select({ sku: t.parts.sku, name: t.parts.name }).from(t.parts).where(like(t.parts.sku, `${prefix}%`));
 		expect(left).toEqual([{ sku: `${prefix}15`, name: 'Taken meanwhile' }]);
 		expect((await importsService.getReport(db, up.id)).status).toBe('failed');
+	});
+});
+
+describe('ids of a multi-row insert', () => {
+	it('takes the consecutive block when both ends check out, and reads the ids by SKU otherwise', async () => {
+		const prefix = `${tag}-IDS-`;
+		const skus = [0, 1, 2].map((i) => `${prefix}${i}`);
+		await db.transaction(async (tx) => {
+			const row = (sku: string) => ({ sku, name: 'Id check', kind: 'other' as const, diameterMm: 10 });
+			const header = await insertRows(tx, t.parts, ['sku', 'name', 'kind', 'diameterMm'], skus.map(row));
+			const stored = await tx.select({ id: t.parts.id, sku: t.parts.sku }).from(t.parts).where(like(t.parts.sku, `${prefix}%`));
+			const expected = skus.map((s) => stored.find((r) => r.sku === s)!.id);
+			expect(await new InsertIds().of(tx, header, skus)).toEqual(expected);
+			// A block that does not match (as on a server that interleaves ids): read back by SKU.
+			expect(await new InsertIds().of(tx, { insertId: header.insertId + 1, affectedRows: 3 }, skus)).toEqual(expected);
+			expect(await new InsertIds().of(tx, { insertId: header.insertId, affectedRows: 2 }, skus)).toEqual(expected);
+			tx.rollback();
+		}).catch((err) => {
+			if (!(err instanceof TransactionRollbackError)) throw err;
+		});
+		expect(await countParts(prefix)).toBe(0);
 	});
 });

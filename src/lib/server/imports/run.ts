@@ -24,7 +24,7 @@ import { csvRecords, type Delimiter } from './csv';
 import { fieldLabel } from './fields';
 import { compileMapping, fieldOfPath, readRow, type CompiledMapping, type ReadRow } from './rows';
 import { SeenParts } from './seen-parts';
-import { DerivedCache, SupplierIds, writeBatch } from './writer';
+import { DerivedCache, InsertIds, SupplierIds, writeBatch } from './writer';
 
 export const BATCH_ROWS = 1000;
 /** Row errors kept per import (the count is always exact). */
@@ -117,6 +117,7 @@ interface Ctx {
 	skuPrefix: string | null;
 	suppliers: SupplierIds;
 	derived: DerivedCache;
+	insertIds: InsertIds;
 	supplierNames: Map<number, string>;
 	seen: SeenParts;
 	counts: RunCounts;
@@ -246,7 +247,7 @@ async function processBatch(ctx: Ctx, read: ReadBatch, tx: Tx | null) {
 		ctx.storedErrors += keep.length;
 	}
 	if (tx && (creates.length || updates.length)) {
-		await writeBatch(tx, { creates, updates }, { suppliers: ctx.suppliers, defaultWavelengthNm: ctx.defaultWavelengthNm, actorId: ctx.actorId, derived: ctx.derived });
+		await writeBatch(tx, { creates, updates }, { suppliers: ctx.suppliers, defaultWavelengthNm: ctx.defaultWavelengthNm, actorId: ctx.actorId, derived: ctx.derived, insertIds: ctx.insertIds });
 	}
 }
 
@@ -295,6 +296,7 @@ export async function runImport(
 			skuPrefix: options.skuPrefix || null,
 			suppliers: new SupplierIds(supplierRows),
 			derived: new DerivedCache(),
+			insertIds: new InsertIds(),
 			supplierNames,
 			seen: new SeenParts(),
 			counts,

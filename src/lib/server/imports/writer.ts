@@ -7,7 +7,7 @@
  * store it. The statements are built by `insertRows` (bulk-sql.ts), not Drizzle's insert builder,
  * which was the hot spot of the import benchmark.
  */
-import { desc } from 'drizzle-orm';
+import { desc, sql } from 'drizzle-orm';
 import type { Tx } from '$lib/server/db';
 import { measurements, partSurfaces, parts, suppliers } from '$lib/server/db/schema';
 import { recordAudit } from '$lib/server/audit';
@@ -84,6 +84,37 @@ export class SupplierIds {
 	}
 }
 
+/**
+ * The ids a multi-row INSERT of new parts gave, in row order. MariaDB hands a multi-row
+ * INSERT ... VALUES one consecutive block of auto-increment values when innodb_autoinc_lock_mode
+ * is 0 or 1 (1 is the default) and auto_increment_increment is 1; that is checked once per run,
+ * and each block is checked at both ends (two rows by primary key). Otherwise, or when a check
+ * fails, the ids are read back by SKU (unique).
+ */
+export class InsertIds {
+	private consecutive: boolean | null = null;
+
+	async of(tx: Tx, header: { insertId: number; affectedRows: number }, skus: readonly string[]): Promise<number[]> {
+		if (this.consecutive === null) {
+			const [rows] = (await tx.execute(sql`select @@innodb_autoinc_lock_mode as mode, @@auto_increment_increment as step`)) as unknown as [{ mode: unknown; step: unknown }[]];
+			this.consecutive = [0, 1].includes(Number(rows[0]?.mode)) && Number(rows[0]?.step) === 1;
+		}
+		const n = skus.length;
+		if (this.consecutive && header.affectedRows === n && header.insertId > 0) {
+			const first = header.insertId;
+			const ends = await tx
+				.select({ id: parts.id, sku: parts.sku })
+				.from(parts)
+				.where(inList(parts.id, [first, first + n - 1]));
+			const skuOf = new Map(ends.map((e) => [e.id, e.sku]));
+			if (skuOf.get(first) === skus[0] && skuOf.get(first + n - 1) === skus[n - 1]) return skus.map((_, i) => first + i);
+		}
+		const found = await tx.select({ id: parts.id, sku: parts.sku }).from(parts).where(inList(parts.sku, skus));
+		const idBySku = new Map(found.map((r) => [r.sku.toLowerCase(), r.id]));
+		return skus.map((sku) => idBySku.get(sku.toLowerCase())!);
+	}
+}
+
 /** Creates the suppliers named by `inputs` that do not exist yet, in the order the rows name them. */
 async function resolveSuppliers(tx: Tx, inputs: readonly PartInput[], ctx: { suppliers: SupplierIds; actorId: number }) {
 	for (const input of inputs) if (input.supplier && ctx.suppliers.known(input.supplier) === null) await ctx.suppliers.resolve(tx, input.supplier, ctx.actorId);
@@ -119,7 +150,7 @@ const SURFACE_KEYS = ['partId', 'position', 'radiusMm', 'thicknessMm', 'material
 export async function writeBatch(
 	tx: Tx,
 	batch: { creates: PartInput[]; updates: { id: number; input: PartInput }[] },
-	ctx: { suppliers: SupplierIds; defaultWavelengthNm: number; actorId: number; derived: DerivedCache }
+	ctx: { suppliers: SupplierIds; defaultWavelengthNm: number; actorId: number; derived: DerivedCache; insertIds: InsertIds }
 ) {
 	const wl = ctx.defaultWavelengthNm;
 	if (batch.creates.length) {
@@ -128,19 +159,13 @@ export async function writeBatch(
 			const cols = columnsOf(input, ctx.suppliers.known(input.supplier));
 			return { ...cols, ...derivedFor(input, cols, wl, null, ctx.derived) };
 		});
-		await insertRows(tx, parts, PART_KEYS, rows);
-		// The new ids by SKU (unique), in one query on its index.
-		const ids = await tx
-			.select({ id: parts.id, sku: parts.sku })
-			.from(parts)
-			.where(
-				inList(
-					parts.sku,
-					rows.map((r) => r.sku)
-				)
-			);
-		const idBySku = new Map(ids.map((r) => [r.sku.toLowerCase(), r.id]));
-		const surfaces = batch.creates.flatMap((input) => surfaceRows(idBySku.get(input.sku.toLowerCase())!, input));
+		const header = await insertRows(tx, parts, PART_KEYS, rows);
+		const ids = await ctx.insertIds.of(
+			tx,
+			header,
+			rows.map((r) => r.sku)
+		);
+		const surfaces = batch.creates.flatMap((input, i) => surfaceRows(ids[i], input));
 		if (surfaces.length) await insertRows(tx, partSurfaces, SURFACE_KEYS, surfaces);
 	}
 	if (batch.updates.length) {
