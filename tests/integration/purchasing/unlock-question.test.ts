@@ -11,6 +11,7 @@ import { testDb } from '../../support/env';
 import * as t from '../../../src/lib/server/db/schema';
 import * as res from '../../../src/lib/server/stock/reservations';
 import { totalsOf } from '../../../src/lib/server/stock/availability';
+import { waitingSetups } from '../../../src/lib/server/purchasing/board';
 import { api, cookieFor, url } from '../accounts/helpers';
 import { people } from './helpers';
 
@@ -120,8 +121,10 @@ describe('a purchase for a question the shelf cannot answer', () => {
 		const own = await db.select({ id: t.reservations.id }).from(t.reservations).where(inArray(t.reservations.setupId, [setup.id]));
 		held.push(...own.map((r) => r.id));
 		expect((await totalsOf(db, partId)).available).toBe(0);
-		// units its own reservation holds are kept for it: still buildable
+		// units its own reservation holds are kept for it: still buildable, on its page and on the board
 		expect(await page()).not.toContain('Not buildable from stock now');
+		const waiting = async () => (await waitingSetups(db)).some((w) => w.setupId === setup.id);
+		expect(await waiting()).toBe(false);
 		// release it, and someone else takes the last unit
 		await db.update(t.reservations).set({ status: 'released' }).where(inArray(t.reservations.id, own.map((r) => r.id)));
 		await hold(1);
@@ -130,5 +133,6 @@ describe('a purchase for a question the shelf cannot answer', () => {
 		expect(html).toContain(s.elements[0].sku);
 		expect(html).toContain('What purchase would help?');
 		expect(html).toContain('Laser caution');
+		expect(await waiting()).toBe(true);
 	});
 });

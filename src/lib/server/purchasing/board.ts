@@ -5,7 +5,7 @@
  */
 import { and, eq, gt, inArray, isNull, sql } from 'drizzle-orm';
 import type { DbOrTx } from '$lib/server/db';
-import { movements, parts, setups, suppliers } from '$lib/server/db/schema';
+import { movements, parts, reservations, setups, suppliers } from '$lib/server/db/schema';
 import { totalsFor } from '$lib/server/stock/availability';
 import { availableOf, flagReason, suggestedQuantity, type FlagReason } from './rules';
 import { setupIndex, shortfalls, type ElementRef, type SetupRef } from './unlocks';
@@ -146,26 +146,49 @@ export interface WaitingSetup {
 	short: { partId: number; sku: string; missing: number; unitPrice: number | null; currency: string; leadTimeDays: number | null; supplier: string | null }[];
 }
 
-/** Saved setups that cannot be built from available stock now, with what they are short of (from the saved solution). */
+/** Units each saved setup's own active, unexpired reservations hold, by setup and part. */
+async function heldBySetup(db: DbOrTx, setupIds: number[]): Promise<Map<number, Map<number, number>>> {
+	const held = new Map<number, Map<number, number>>();
+	if (!setupIds.length) return held;
+	const rows = await db
+		.select({ setupId: reservations.setupId, partId: reservations.partId, quantity: sql<string>`sum(${reservations.quantity})` })
+		.from(reservations)
+		.where(and(inArray(reservations.setupId, setupIds), eq(reservations.status, 'active'), gt(reservations.until, new Date())))
+		.groupBy(reservations.setupId, reservations.partId);
+	for (const r of rows) {
+		if (r.setupId === null) continue;
+		const m = held.get(r.setupId) ?? new Map<number, number>();
+		m.set(r.partId, Number(r.quantity));
+		held.set(r.setupId, m);
+	}
+	return held;
+}
+
+/**
+ * Saved setups that cannot be built from stock now, with what they are short of (from the saved
+ * solution). As on the setup's own page, units its own reservations hold count as available to it.
+ */
 export async function waitingSetups(db: DbOrTx): Promise<WaitingSetup[]> {
 	const saved = await savedSetups(db);
 	const ids = [...new Set(saved.flatMap((s) => s.elements.map((e) => e.partId)))];
 	if (!ids.length) return [];
-	const [totals, info] = await Promise.all([
+	const [totals, info, held] = await Promise.all([
 		totalsFor(db, ids),
 		db
 			.select({ p: parts, supplier: suppliers.name })
 			.from(parts)
 			.leftJoin(suppliers, eq(suppliers.id, parts.supplierId))
-			.where(inArray(parts.id, ids))
+			.where(inArray(parts.id, ids)),
+		heldBySetup(db, saved.map((s) => s.id))
 	]);
 	const byId = new Map(info.map((r) => [r.p.id, r]));
-	const avail = (id: number) => (byId.get(id)?.p.archivedAt ? 0 : (totals.get(id)?.available ?? 0));
+	const availTo = (setupId: number) => (id: number) =>
+		byId.get(id)?.p.archivedAt ? 0 : (totals.get(id)?.available ?? 0) + (held.get(setupId)?.get(id) ?? 0);
 	return saved
 		.map((s) => ({
 			setupId: s.id,
 			name: s.name,
-			short: shortfalls(s.elements, avail).map((x) => {
+			short: shortfalls(s.elements, availTo(s.id)).map((x) => {
 				const r = byId.get(x.partId);
 				return {
 					partId: x.partId,
