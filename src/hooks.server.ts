@@ -1,5 +1,5 @@
 import { randomUUID } from 'node:crypto';
-import { type Handle, type HandleServerError } from '@sveltejs/kit';
+import { type Handle, type HandleServerError, type ServerInit } from '@sveltejs/kit';
 import { sequence } from '@sveltejs/kit/hooks';
 import { db } from '$lib/server/db';
 import { resolveSession } from '$lib/server/auth/sessions';
@@ -8,6 +8,7 @@ import { errorResponse } from '$lib/server/api/http';
 import { isPublicPath } from '$lib/server/auth/public-paths';
 import { env } from '$env/dynamic/private';
 import { watchFlags } from '$lib/server/purchasing/watch';
+import { appStore } from '$lib/server/files/store';
 
 /** Resolves the user once per request: a bearer token on the API, else the session cookie. */
 const resolveUser: Handle = async ({ event, resolve }) => {
@@ -85,6 +86,16 @@ const securityHeaders: Handle = async ({ event, resolve }) => {
 };
 
 // watchFlags runs after the others: it schedules the reorder digest check after successful writes (purchasing/watch.ts).
+/**
+ * At start: create the file store's bucket when it does not exist. Not awaited by requests and not
+ * fatal: with S3 down the app starts anyway, uploads answer 503, and the bucket is tried again on use.
+ */
+export const init: ServerInit = async () => {
+	void appStore()
+		.ensureBucket()
+		.catch((err) => console.warn('[files] the file store is not reachable at start; uploads will try again:', err instanceof Error ? err.message : err));
+};
+
 export const handle: Handle = sequence(securityHeaders, resolveUser, gate, apiOrigin, watchFlags);
 
 export const handleError: HandleServerError = ({ error: err, event, status, message }) => {

@@ -16,7 +16,7 @@ export async function stockroomId(): Promise<number> {
 /** Uploads a CSV text and saves a mapping (default: the suggested one). */
 export async function upload(text: string, opts: { supplierId?: number | null; mapping?: Record<string, string>; units?: Record<string, string>; skuPrefix?: string; skipRejected?: boolean } = {}) {
 	const actorId = await stockroomId();
-	const created = await importsService.createImport(db, store, { filename: 'test.csv', bytes: enc(text), supplierId: opts.supplierId ?? null, actorId });
+	const created = await importsService.createImport(db, store, { filename: 'test.csv', file: enc(text), supplierId: opts.supplierId ?? null, actorId });
 	await importsService.saveMapping(db, created.id, {
 		mapping: opts.mapping ?? created.suggestion.mapping,
 		units: opts.units ?? created.suggestion.units,

@@ -101,7 +101,7 @@ describe('bad files are refused before anything is stored', () => {
 		it(`refuses a file ${what}`, async () => {
 			const before = (await db.select({ n: count() }).from(t.imports))[0].n;
 			const err = await importsService
-				.createImport(db, store, { filename: 'x.csv', bytes, supplierId: null, actorId: await stockroomId() })
+				.createImport(db, store, { filename: 'x.csv', file: bytes, supplierId: null, actorId: await stockroomId() })
 				.catch((e) => e);
 			expect(err).toBeInstanceOf(ApiError);
 			expect(err.status).toBe(status);

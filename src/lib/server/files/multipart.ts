@@ -1,3 +1,5 @@
+import { Readable } from 'node:stream';
+import busboy from 'busboy';
 import { ApiError } from '$lib/server/api/http';
 
 /**
@@ -28,4 +30,97 @@ export function fileField(form: FormData, name = 'file'): File {
 	const f = form.get(name);
 	if (!(f instanceof File)) throw new ApiError(400, 'no-file', `Attach the file in the form field "${name}".`, { [name]: 'Choose a file.' });
 	return f;
+}
+
+/** A file part of a streamed multipart body, as `readMultipartStream` hands it over. */
+export interface FilePart {
+	stream: Readable;
+	filename: string;
+	mimeType: string;
+}
+
+const tooLarge = (maxBytes: number) =>
+	new ApiError(413, 'too-large', `The upload is too large: at most ${Math.round(maxBytes / (1024 * 1024))} MB may be sent at once.`, { file: 'The file is too large.' });
+
+/**
+ * Reads a multipart/form-data body as a stream (busboy), without holding the file in memory: the
+ * part named `fileField` goes to `handleFile` as it arrives (it must consume the stream, e.g. into a
+ * temporary file); other files are skipped; text fields are collected (small ones only). Resolves
+ * when the body has been read and `handleFile` has finished; a failure of either stops reading.
+ * 415 for another type, 413 when the declared length is above `maxBodyBytes` or the server's own
+ * body limit stops it, 400 when it does not parse.
+ */
+export async function readMultipartStream<T>(
+	request: Request,
+	opts: {
+		fileField?: string;
+		maxBodyBytes: number;
+		maxFileBytes: number;
+		handleFile: (part: FilePart) => Promise<T>;
+		/** Undoes what `handleFile` made when the body fails after it (e.g. removes a temporary file). */
+		discard?: (file: T) => Promise<void>;
+	}
+): Promise<{ fields: Record<string, string>; file: T | null }> {
+	const fileField = opts.fileField ?? 'file';
+	const type = request.headers.get('content-type') ?? '';
+	if (!type.toLowerCase().startsWith('multipart/form-data')) {
+		throw new ApiError(415, 'unsupported-media-type', `Send the file as multipart/form-data (field "${fileField}").`);
+	}
+	const length = Number(request.headers.get('content-length') ?? NaN);
+	if (Number.isFinite(length) && length > opts.maxBodyBytes) throw tooLarge(opts.maxBodyBytes);
+	if (!request.body) throw new ApiError(400, 'invalid-multipart', 'The upload is empty.');
+	let parser: busboy.Busboy;
+	try {
+		// fileSize one byte over the limit: the handler sees that byte and refuses the file (busboy alone would cut it silently).
+		parser = busboy({ headers: { 'content-type': type }, limits: { files: 5, fields: 40, fieldSize: 256 * 1024, parts: 50, fileSize: opts.maxFileBytes + 1 } });
+	} catch {
+		throw new ApiError(400, 'invalid-multipart', 'The upload could not be read as multipart/form-data.');
+	}
+	const body = Readable.fromWeb(request.body as import('node:stream/web').ReadableStream<Uint8Array>);
+	return new Promise((resolve, reject) => {
+		const fields: Record<string, string> = {};
+		let handling: Promise<T> | null = null;
+		let settled = false;
+		const fail = (err: unknown) => {
+			if (settled) return;
+			settled = true;
+			body.unpipe(parser);
+			body.destroy();
+			parser.destroy();
+			reject(err);
+			handling?.then((file) => opts.discard?.(file)).catch(() => {});
+		};
+		parser.on('field', (name, value, info) => {
+			if (info.valueTruncated) return fail(new ApiError(400, 'invalid-input', `The field "${name}" is too long.`, { [name]: 'Too long.' }));
+			fields[name] = value;
+		});
+		parser.on('file', (name, stream, info) => {
+			if (name !== fileField || handling) {
+				stream.resume(); // not ours: skipped
+				return;
+			}
+			handling = opts.handleFile({ stream, filename: info.filename ?? '', mimeType: info.mimeType });
+			handling.catch((err) => {
+				stream.resume();
+				fail(err);
+			});
+		});
+		parser.on('error', () => fail(new ApiError(400, 'invalid-multipart', 'The upload could not be read as multipart/form-data.')));
+		parser.on('close', () => {
+			if (settled) return;
+			(handling ?? Promise.resolve(null)).then(
+				(file) => {
+					if (settled) return;
+					settled = true;
+					resolve({ fields, file });
+				},
+				fail
+			);
+		});
+		body.on('error', (err) => {
+			const status = err && typeof err === 'object' && 'status' in err ? (err as { status: number }).status : 0;
+			fail(status === 413 ? tooLarge(opts.maxBodyBytes) : new ApiError(400, 'invalid-multipart', 'The upload was interrupted.'));
+		});
+		body.pipe(parser);
+	});
 }

@@ -3,6 +3,7 @@
  * app (see store.ts), the tests and the bench. Every failure to reach S3 becomes `StorageUnavailable`
  * (503), so routes can answer "the file store is down" instead of a 500.
  */
+import fs from 'node:fs';
 import { Readable } from 'node:stream';
 import {
 	CreateBucketCommand,
@@ -51,6 +52,8 @@ export interface ObjectStore {
 	/** Creates the bucket when it does not exist (idempotent). */
 	ensureBucket(): Promise<void>;
 	put(key: string, body: Uint8Array, contentType: string, metadata?: Record<string, string>): Promise<void>;
+	/** Stores a local file, streamed from disk (uploads spooled to a temporary file). */
+	putFile(key: string, file: string, contentType: string, metadata?: Record<string, string>): Promise<void>;
 	get(key: string): Promise<StoredObject>;
 	delete(key: string): Promise<void>;
 	/** A presigned GET URL valid for `seconds` (at most 300), with the response headers forced. */
@@ -137,6 +140,22 @@ export function createObjectStore(config: ObjectStoreConfig): ObjectStore {
 						Body: body,
 						ContentType: contentType,
 						ContentLength: body.byteLength,
+						Metadata: encodeMetadata(metadata)
+					})
+				)
+			);
+		},
+		async putFile(key, file, contentType, metadata = {}) {
+			await ensureBucket();
+			const { size } = await fs.promises.stat(file);
+			await wrap(() =>
+				client.send(
+					new PutObjectCommand({
+						Bucket,
+						Key: key,
+						Body: fs.createReadStream(file),
+						ContentType: contentType,
+						ContentLength: size,
 						Metadata: encodeMetadata(metadata)
 					})
 				)

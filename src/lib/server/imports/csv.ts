@@ -2,9 +2,11 @@
  * CSV reading and writing for imports and exports (papaparse). Files are UTF-8 with or without a
  * byte order mark; the delimiter is a comma, semicolon or tab, found from the header row.
  */
+import fs from 'node:fs';
 import type { Readable } from 'node:stream';
 import Papa from 'papaparse';
 import { ApiError } from '$lib/server/api/http';
+import { spoolToTempFile, type SpooledFile } from '$lib/server/files/spool';
 
 /** Caps on an uploaded CSV. 16 MB holds about 80,000 rows of the export's format (~200 bytes a row). */
 export const CSV_MAX_BYTES = 16 * 1024 * 1024;
@@ -41,8 +43,6 @@ export function detectDelimiter(text: string): Delimiter {
 }
 
 export interface CheckedCsv {
-	/** The text without its BOM. */
-	text: string;
 	delimiter: Delimiter;
 	header: string[];
 	/** The first data rows, for the mapping screen. */
@@ -58,59 +58,101 @@ const BINARY_SIGNATURES: [number[], string][] = [
 	[[0xff, 0xd8, 0xff], 'a JPEG image']
 ];
 
+const HEAD_BYTES = 8192;
+
 /**
- * Checks an uploaded file before anything is stored: size, not empty, text in UTF-8, a header row
- * with distinct names and at least one data row, no more than CSV_MAX_ROWS rows.
- * Throws ApiError (400, or 413 for size) with a message for people.
+ * The byte-level checks of an uploaded CSV, made as it streams in (`push` each chunk, then `end`):
+ * size, not empty, not a known binary format, no NUL bytes near the start, valid UTF-8. Throws
+ * ApiError (400, or 413 for size, as soon as the limit is passed) with a message for people. The
+ * other refusals wait for `end`, so that each file gets the same message whatever its chunks.
  */
-export function checkCsv(bytes: Uint8Array, opts: { maxBytes?: number; maxRows?: number } = {}): CheckedCsv {
-	const maxBytes = opts.maxBytes ?? CSV_MAX_BYTES;
-	const maxRows = opts.maxRows ?? CSV_MAX_ROWS;
-	if (bytes.byteLength > maxBytes) {
-		throw new ApiError(413, 'too-large', `The file is ${(bytes.byteLength / (1024 * 1024)).toFixed(1)} MB; a CSV may be at most ${Math.round(maxBytes / (1024 * 1024))} MB. Split it into smaller files.`);
-	}
-	if (bytes.byteLength === 0) throw new ApiError(400, 'empty-file', 'The file is empty.', { file: 'The file is empty.' });
-	for (const [sig, what] of BINARY_SIGNATURES) {
-		if (sig.every((b, i) => bytes[i] === b)) {
-			throw new ApiError(400, 'not-csv', `This is ${what}, not a CSV file.`, { file: `This is ${what}, not a CSV file.` });
+export class CsvByteCheck {
+	private size = 0;
+	private head = new Uint8Array(HEAD_BYTES);
+	private headLength = 0;
+	private readonly decoder = new TextDecoder('utf-8', { fatal: true });
+	private utf8 = true;
+	private blank = true;
+
+	constructor(private readonly maxBytes = CSV_MAX_BYTES) {}
+
+	push(chunk: Uint8Array): void {
+		this.size += chunk.byteLength;
+		if (this.size > this.maxBytes) {
+			throw new ApiError(413, 'too-large', `The file is more than ${Math.round(this.maxBytes / (1024 * 1024))} MB; a CSV may be at most ${Math.round(this.maxBytes / (1024 * 1024))} MB. Split it into smaller files.`, {
+				file: 'The file is too large.'
+			});
+		}
+		if (this.headLength < HEAD_BYTES) {
+			const take = chunk.subarray(0, HEAD_BYTES - this.headLength);
+			this.head.set(take, this.headLength);
+			this.headLength += take.byteLength;
+		}
+		if (!this.utf8) return;
+		try {
+			const text = this.decoder.decode(chunk, { stream: true });
+			if (this.blank && text.replace(/\uFEFF/g, '').trim() !== '') this.blank = false;
+		} catch {
+			this.utf8 = false;
 		}
 	}
-	const sample = bytes.subarray(0, 8192);
-	if (sample.includes(0)) {
-		throw new ApiError(400, 'not-csv', 'This is not a text file (it contains binary data). Upload a CSV file.', { file: 'This is not a CSV file.' });
+
+	end(): void {
+		if (this.size === 0) throw new ApiError(400, 'empty-file', 'The file is empty.', { file: 'The file is empty.' });
+		const head = this.head.subarray(0, this.headLength);
+		for (const [sig, what] of BINARY_SIGNATURES) {
+			if (head.byteLength >= sig.length && sig.every((b, i) => head[i] === b)) {
+				throw new ApiError(400, 'not-csv', `This is ${what}, not a CSV file.`, { file: `This is ${what}, not a CSV file.` });
+			}
+		}
+		if (head.includes(0)) {
+			throw new ApiError(400, 'not-csv', 'This is not a text file (it contains binary data). Upload a CSV file.', { file: 'This is not a CSV file.' });
+		}
+		if (this.utf8) {
+			try {
+				this.decoder.decode(); // a multibyte character cut off at the end
+			} catch {
+				this.utf8 = false;
+			}
+		}
+		if (!this.utf8) {
+			throw new ApiError(400, 'not-utf8', 'The file is not UTF-8 text. Save it from your spreadsheet as "CSV UTF-8".', { file: 'Save the file as CSV UTF-8.' });
+		}
+		if (this.blank) throw new ApiError(400, 'empty-file', 'The file is empty.', { file: 'The file is empty.' });
 	}
-	let text: string;
+}
+
+/**
+ * The structure of a CSV file that passed `CsvByteCheck`, read as a stream (memory stays flat): the
+ * delimiter from the first line, a header row with distinct names, at least one and at most
+ * `maxRows` data rows, the first five of them for the mapping screen.
+ */
+export async function inspectCsvFile(file: string, opts: { maxRows?: number } = {}): Promise<CheckedCsv> {
+	const maxRows = opts.maxRows ?? CSV_MAX_ROWS;
+	const start = Buffer.alloc(64 * 1024);
+	const fh = await fs.promises.open(file, 'r');
+	let startText: string;
 	try {
-		text = new TextDecoder('utf-8', { fatal: true }).decode(bytes);
-	} catch {
-		throw new ApiError(400, 'not-utf8', 'The file is not UTF-8 text. Save it from your spreadsheet as "CSV UTF-8".', {
-			file: 'Save the file as CSV UTF-8.'
-		});
+		const { bytesRead } = await fh.read(start, 0, start.byteLength, 0);
+		startText = new TextDecoder('utf-8').decode(start.subarray(0, bytesRead));
+	} finally {
+		await fh.close();
 	}
-	if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
-	if (text.trim() === '') throw new ApiError(400, 'empty-file', 'The file is empty.', { file: 'The file is empty.' });
-	const delimiter = detectDelimiter(text);
+	if (startText.charCodeAt(0) === 0xfeff) startText = startText.slice(1);
+	const delimiter = detectDelimiter(startText);
 	let header: string[] | null = null;
 	const preview: string[][] = [];
 	let rowCount = 0;
-	let tooMany = false;
-	Papa.parse<string[]>(text, {
-		delimiter,
-		skipEmptyLines: 'greedy',
-		step: (r, parser) => {
-			if (!header) header = r.data.map((c) => c.trim());
-			else {
-				rowCount++;
-				if (preview.length < 5) preview.push(r.data);
-				if (rowCount > maxRows) {
-					tooMany = true;
-					parser.abort();
-				}
-			}
+	for await (const record of csvRecords(fs.createReadStream(file), delimiter)) {
+		if (!header) {
+			header = record.map((c) => c.trim());
+			continue;
 		}
-	});
-	if (tooMany) {
-		throw new ApiError(400, 'too-many-rows', `The file has more than ${maxRows.toLocaleString('en')} rows. Split it into smaller files.`, { file: 'Too many rows.' });
+		rowCount++;
+		if (preview.length < 5) preview.push(record);
+		if (rowCount > maxRows) {
+			throw new ApiError(400, 'too-many-rows', `The file has more than ${maxRows.toLocaleString('en')} rows. Split it into smaller files.`, { file: 'Too many rows.' });
+		}
 	}
 	const h = header as string[] | null;
 	if (!h || h.every((c) => c === '')) throw new ApiError(400, 'no-header', 'The file has no header row.', { file: 'No header row.' });
@@ -123,7 +165,27 @@ export function checkCsv(bytes: Uint8Array, opts: { maxBytes?: number; maxRows?:
 		if (seen.has(c)) throw new ApiError(400, 'duplicate-header', `Two columns of the header row are named "${c}".`, { file: `Two columns are named "${c}".` });
 		seen.add(c);
 	});
-	return { text, delimiter, header: h, preview, rowCount };
+	return { delimiter, header: h, preview, rowCount };
+}
+
+/** A checked upload in a temporary file: where it is, its size and hash, and its structure. */
+export type SpooledCsv = SpooledFile & CheckedCsv;
+
+/**
+ * Takes an uploaded CSV as it streams in: the byte checks on the way to a temporary file, then the
+ * structure from that file. Throws ApiError for a refused file, and leaves no file behind then;
+ * otherwise the caller removes the file (`remove`) when done.
+ */
+export async function spoolCsv(source: AsyncIterable<Uint8Array> | Uint8Array, opts: { maxBytes?: number; maxRows?: number } = {}): Promise<SpooledCsv> {
+	const check = new CsvByteCheck(opts.maxBytes);
+	const file = await spoolToTempFile(source, (chunk) => check.push(chunk));
+	try {
+		check.end();
+		return { ...file, ...(await inspectCsvFile(file.path, opts)) };
+	} catch (err) {
+		await file.remove();
+		throw err;
+	}
 }
 
 /**

@@ -5,10 +5,15 @@
  * errors go to the database on their own connection, so every app instance (and a reloaded page)
  * sees them while the run is going.
  *
- * Rows are keyed by (supplier, supplier part number) first, then by SKU. Memory: two batches of
- * rows (the one being written and the next one being read) plus one small entry per row for the
- * duplicate check (seen-parts.ts); the file itself is streamed from S3, and row errors go to the
- * database batch by batch, at most MAX_STORED_ERRORS of them.
+ * Rows are keyed by (supplier, supplier part number) first, then by SKU, and matched against the
+ * catalogue as it stands outside the run's transaction (so a commit classifies every row exactly as
+ * the dry run did) plus the file's own earlier rows (seen-keys.ts).
+ *
+ * Three stages overlap: reading batch N+2 (CSV and cells), validating batch N+1 (lookups on the
+ * pool, zod and optics checks, the duplicate check) and writing batch N (the transaction's own
+ * connection). Memory: those three batches and nothing per row of the file: the file is streamed
+ * from S3, the duplicate keys live in a temporary table in MariaDB, row errors go to the database
+ * batch by batch (at most MAX_STORED_ERRORS of them), and the writer's caches are bounded.
  */
 import { and, DrizzleQueryError, eq } from 'drizzle-orm';
 import type { Db, DbOrTx, Tx } from '$lib/server/db';
@@ -23,7 +28,7 @@ import { inList } from './bulk-sql';
 import { csvRecords, type Delimiter } from './csv';
 import { fieldLabel } from './fields';
 import { compileMapping, fieldOfPath, readRow, type CompiledMapping, type ReadRow } from './rows';
-import { SeenParts } from './seen-parts';
+import { BatchSeen, openSeenStore, type SeenStore } from './seen-keys';
 import { DerivedCache, InsertIds, SupplierIds, writeBatch } from './writer';
 
 export const BATCH_ROWS = 1000;
@@ -119,7 +124,7 @@ interface Ctx {
 	derived: DerivedCache;
 	insertIds: InsertIds;
 	supplierNames: Map<number, string>;
-	seen: SeenParts;
+	seen: SeenStore;
 	counts: RunCounts;
 	storedErrors: number;
 	defaultWavelengthNm: number;
@@ -140,11 +145,23 @@ function readBatch(ctx: Ctx, batch: readonly { row: number; record: string[] }[]
 	});
 }
 
-/** Validates and classifies one read batch; in a commit, writes it through `tx`. */
-async function processBatch(ctx: Ctx, read: ReadBatch, tx: Tx | null) {
+/** What validating a batch decided: the writes, and the counts they add. */
+interface BatchPlan {
+	rows: number;
+	creates: PartInput[];
+	updates: { id: number; input: PartInput }[];
+	counts: Omit<RunCounts, 'rows'>;
+}
+
+/**
+ * Validates and classifies one read batch against the catalogue as committed (never the run's own
+ * transaction, so it may run while the batch before is being written) and the file's earlier
+ * rows; stores its row errors and the keys of the rows it accepts. Writes nothing to the catalogue.
+ */
+async function validateBatch(ctx: Ctx, read: ReadBatch): Promise<BatchPlan> {
 	// Only as many errors as may still be stored are kept (the count stays exact).
 	const errors: RowError[] = [];
-	let errorCount = 0;
+	const counts = { created: 0, updated: 0, unchanged: 0, rejected: 0, errorCount: 0 };
 	const columnOf = (field: string) => {
 		const i = ctx.cm.index.get(field);
 		return i === undefined ? fieldLabel(field) : ctx.header[i];
@@ -160,18 +177,28 @@ async function processBatch(ctx: Ctx, read: ReadBatch, tx: Tx | null) {
 			pairs.set(sid, list);
 		}
 	}
-	const existing = await existingFor(tx ?? ctx.db, [...skus], pairs, ctx.supplierNames);
-	const creates: PartInput[] = [];
-	const updates: { id: number; input: PartInput }[] = [];
+	const existing = await existingFor(ctx.db, [...skus], pairs, ctx.supplierNames);
 
-	for (const r of read) {
-		const rowErrors: RowError[] = r.errors.map((e) => ({ row: r.row, column: columnOf(e.field), value: e.value, message: e.message }));
+	// Each row's target part and keys, then the keys earlier batches stored (one query for the batch).
+	const targeted = read.map((r) => {
 		const sku = typeof r.input.sku === 'string' ? r.input.sku : null;
 		const supplierName = (r.input.supplier as string | null) ?? null;
 		const pn = typeof r.input.supplierPartNumber === 'string' ? r.input.supplierPartNumber : null;
 		const sid = ctx.suppliers.known(supplierName);
 		const byPn = sid !== null && pn ? existing.byPn.get(`${sid}|${pn.toLowerCase()}`) : undefined;
 		const bySku = sku ? existing.bySku.get(sku.toLowerCase()) : undefined;
+		const target = byPn ?? bySku;
+		return { r, sku, supplierName, pn, byPn, bySku, target, keys: { partId: target ? target.part.id : null, sku, supplier: supplierName, pn } };
+	});
+	const seen = await BatchSeen.load(
+		ctx.seen,
+		targeted.map((x) => x.keys)
+	);
+	const creates: PartInput[] = [];
+	const updates: { id: number; input: PartInput }[] = [];
+
+	for (const { r, sku, supplierName, pn, byPn, bySku, target, keys } of targeted) {
+		const rowErrors: RowError[] = r.errors.map((e) => ({ row: r.row, column: columnOf(e.field), value: e.value, message: e.message }));
 		if (byPn && bySku && byPn.part.id !== bySku.part.id) {
 			rowErrors.push({
 				row: r.row,
@@ -180,13 +207,10 @@ async function processBatch(ctx: Ctx, read: ReadBatch, tx: Tx | null) {
 				message: `The SKU ${sku} belongs to another part than ${supplierName} ${pn} (which is ${byPn.part.sku}).`
 			});
 		}
-		const target = byPn ?? bySku;
-		// The same part, SKU or supplier part number twice in one file.
-		const keys = { partId: target ? target.part.id : null, sku, supplier: supplierName, pn };
+		const stored = target ? toInput({ ...target, latestMeasurement: null }) : null;
 		let data: PartInput | null = null;
 		if (!rowErrors.length) {
-			const merged = target ? { ...toInput({ ...target, latestMeasurement: null }), ...r.input } : r.input;
-			const parsed = partInputSchema.safeParse(merged);
+			const parsed = partInputSchema.safeParse(stored ? { ...stored, ...r.input } : r.input);
 			if (parsed.success) data = parsed.data;
 			else {
 				const fieldsDone = new Set<string>();
@@ -200,14 +224,15 @@ async function processBatch(ctx: Ctx, read: ReadBatch, tx: Tx | null) {
 			}
 		}
 		const fingerprint = data ? hash(canonical(data)) : 0;
-		const dupe = ctx.seen.find(keys);
+		// The same part, SKU or supplier part number twice in one file.
+		const dupe = seen.find(keys);
 		if (dupe && data) {
 			if (dupe.hash === fingerprint) {
 				// The same part with the same values again (a stock export lists a part once per location): nothing to do.
-				ctx.counts.unchanged++;
+				counts.unchanged++;
 				continue;
 			}
-			const onPn = !sku || !ctx.seen.hasSku(sku);
+			const onPn = !sku || !seen.hasSku(sku);
 			rowErrors.push({
 				row: r.row,
 				column: columnOf(onPn && pn ? 'supplierPartNumber' : 'sku'),
@@ -216,25 +241,25 @@ async function processBatch(ctx: Ctx, read: ReadBatch, tx: Tx | null) {
 			});
 		}
 		if (rowErrors.length || !data) {
-			ctx.counts.rejected++;
-			errorCount += rowErrors.length;
+			counts.rejected++;
+			counts.errorCount += rowErrors.length;
 			for (const e of rowErrors) if (ctx.storedErrors + errors.length < MAX_STORED_ERRORS) errors.push(e);
 			continue;
 		}
-		ctx.seen.add(keys, data.sku, { row: r.row, hash: fingerprint });
+		seen.add(keys, data.sku, { row: r.row, hash: fingerprint });
 		if (target) {
-			const before = partInputSchema.safeParse(toInput({ ...target, latestMeasurement: null }));
-			if (before.success && canonical(before.data) === canonical(data)) ctx.counts.unchanged++;
+			const before = partInputSchema.safeParse(stored);
+			if (before.success && canonical(before.data) === canonical(data)) counts.unchanged++;
 			else {
-				ctx.counts.updated++;
+				counts.updated++;
 				updates.push({ id: target.part.id, input: data });
 			}
 		} else {
-			ctx.counts.created++;
+			counts.created++;
 			creates.push(data);
 		}
 	}
-	ctx.counts.errorCount += errorCount;
+	await seen.flush(ctx.seen);
 	if (errors.length) {
 		const keep = errors.map((e) => ({
 			importId: ctx.rec.id,
@@ -246,9 +271,7 @@ async function processBatch(ctx: Ctx, read: ReadBatch, tx: Tx | null) {
 		await ctx.db.insert(importRowErrors).values(keep);
 		ctx.storedErrors += keep.length;
 	}
-	if (tx && (creates.length || updates.length)) {
-		await writeBatch(tx, { creates, updates }, { suppliers: ctx.suppliers, defaultWavelengthNm: ctx.defaultWavelengthNm, actorId: ctx.actorId, derived: ctx.derived, insertIds: ctx.insertIds });
-	}
+	return { rows: read.length, creates, updates, counts };
 }
 
 async function progress(db: Db, id: number, counts: RunCounts) {
@@ -282,6 +305,7 @@ export async function runImport(
 	const batchRows = opts.batchRows ?? BATCH_ROWS;
 	let message: string | null = null;
 	let status: 'checked' | 'committed' | 'failed' = mode === 'check' ? 'checked' : 'committed';
+	let seenStore: SeenStore | null = null;
 	try {
 		await db.delete(importRowErrors).where(eq(importRowErrors.importId, importId));
 		const supplierRows = await db.select({ id: suppliers.id, name: suppliers.name }).from(suppliers);
@@ -298,7 +322,7 @@ export async function runImport(
 			derived: new DerivedCache(),
 			insertIds: new InsertIds(),
 			supplierNames,
-			seen: new SeenParts(),
+			seen: (seenStore = await openSeenStore(db.$client)),
 			counts,
 			storedErrors: 0,
 			defaultWavelengthNm: await getDefaultWavelengthNm(db),
@@ -309,12 +333,17 @@ export async function runImport(
 			let batch: { row: number; record: string[] }[] = [];
 			let rowNo = 1;
 			let batches = 0;
-			// Batches are validated and written one after another, in file order; only the reading of
-			// the next batch (CSV and cells, no database) goes on while the database works on the last one.
-			let inFlight: Promise<void> = Promise.resolve();
-			const settle = async (read: ReadBatch) => {
-				await processBatch(ctx, read, tx);
-				counts.rows += read.length;
+			// Batches go through validation one after another and through writing one after another, in file
+			// order; validating batch N+1 (lookups on the pool, CPU here) goes on while the transaction's
+			// connection writes batch N, and reading batch N+2 while both wait for the database.
+			let validating: Promise<void> = Promise.resolve();
+			let writing: Promise<void> = Promise.resolve();
+			const write = async (plan: BatchPlan) => {
+				if (tx && (plan.creates.length || plan.updates.length)) {
+					await writeBatch(tx, plan, { suppliers: ctx.suppliers, defaultWavelengthNm: ctx.defaultWavelengthNm, actorId: ctx.actorId, derived: ctx.derived, insertIds: ctx.insertIds });
+				}
+				for (const k of ['created', 'updated', 'unchanged', 'rejected', 'errorCount'] as const) counts[k] += plan.counts[k];
+				counts.rows += plan.rows;
 				batches++;
 				await progress(db, importId, counts);
 				await opts.hooks?.afterBatch?.({ batch: batches, rowsDone: counts.rows });
@@ -322,9 +351,14 @@ export async function runImport(
 			const flush = async () => {
 				const read = readBatch(ctx, batch);
 				batch = [];
-				await inFlight; // throws if the batch before failed
-				inFlight = settle(read);
-				inFlight.catch(() => {}); // handled where it is awaited, not as an unhandled rejection
+				await validating; // throws if an earlier batch failed
+				validating = (async () => {
+					const plan = await validateBatch(ctx, read);
+					await writing;
+					writing = write(plan);
+					writing.catch(() => {}); // handled where it is awaited, not as an unhandled rejection
+				})();
+				validating.catch(() => {});
 			};
 			try {
 				let first = true;
@@ -340,9 +374,11 @@ export async function runImport(
 				if (batch.length) await flush();
 			} finally {
 				// Never leave the transaction while a batch still sends statements through it.
-				await inFlight.catch(() => {});
+				await validating.catch(() => {});
+				await writing.catch(() => {});
 			}
-			await inFlight;
+			await validating;
+			await writing;
 		};
 		if (mode === 'check') {
 			await pass(null);
@@ -387,6 +423,8 @@ export async function runImport(
 			// The counts described rows of a transaction that was rolled back.
 			counts.created = counts.updated = counts.unchanged = 0;
 		}
+	} finally {
+		await seenStore?.close();
 	}
 	const now = new Date();
 	await db

@@ -3,7 +3,7 @@
  * history and error reports. Routes call these; the long steps run in the background of the
  * request that started them and report progress through the `imports` row.
  */
-import { createHash, randomUUID } from 'node:crypto';
+import { randomUUID } from 'node:crypto';
 import { and, asc, count, desc, eq, gt, inArray, isNull, lt, notInArray, or } from 'drizzle-orm';
 import { z } from 'zod';
 import type { Db, DbOrTx } from '$lib/server/db';
@@ -11,7 +11,7 @@ import { importRowErrors, imports, suppliers, users, type ImportRecord, type Imp
 import { ApiError, DomainError } from '$lib/server/api/http';
 import { recordAudit } from '$lib/server/audit';
 import type { ObjectStore } from '$lib/server/files/s3';
-import { checkCsv, csvLine, csvRecords, escapeFormula, type CheckedCsv, type Delimiter } from './csv';
+import { csvLine, csvRecords, escapeFormula, spoolCsv, type CheckedCsv, type Delimiter, type SpooledCsv } from './csv';
 import { IMPORT_FIELDS, isImportField, isLengthField, LENGTH_UNITS, PRICE_UNITS, suggestMapping, type Suggestion } from './fields';
 import { isStale, runImport, STALE_AFTER_MS, type RunHooks } from './run';
 
@@ -46,48 +46,62 @@ export class ImportNotFound extends DomainError {
 	}
 }
 
-/** Checks a CSV, stores it in S3 and records the import with a suggested mapping. Nothing is stored when the file is refused. */
+/**
+ * Checks a CSV, stores it in S3 and records the import with a suggested mapping. Nothing is stored
+ * when the file is refused. `file` is the bytes, a stream of them, or an upload already taken by
+ * `spoolCsv` (then the caller removes its temporary file); the file is never held whole in memory
+ * unless it is given as bytes.
+ */
 export async function createImport(
 	db: DbOrTx,
 	store: ObjectStore,
-	input: { filename: string; bytes: Uint8Array; supplierId: number | null; actorId: number }
+	input: { filename: string; file: Uint8Array | AsyncIterable<Uint8Array> | SpooledCsv; supplierId: number | null; actorId: number }
 ): Promise<{ id: number; checked: CheckedCsv; suggestion: Suggestion }> {
-	const checked = checkCsv(input.bytes);
-	let saved: Suggestion | null = null;
-	if (input.supplierId !== null) {
-		const [s] = await db.select().from(suppliers).where(eq(suppliers.id, input.supplierId));
-		if (!s) throw new ApiError(400, 'invalid-input', 'That supplier does not exist.', { supplier: 'Choose a supplier from the list.' });
-		saved = (s.importMapping as Suggestion | null) ?? null;
-	}
-	const suggestion = suggestMapping(checked.header, saved);
-	const key = `imports/${randomUUID()}.csv`;
-	const filename = (input.filename.split(/[\\/]/).pop() || 'import.csv').slice(0, 255);
-	const sha256 = createHash('sha256').update(input.bytes).digest('hex');
-	await store.put(key, input.bytes, 'text/csv; charset=utf-8', { 'original-filename': filename, sha256 });
+	const given = isSpooled(input.file) ? input.file : null;
+	const csv = given ?? (await spoolCsv(input.file as Uint8Array | AsyncIterable<Uint8Array>));
 	try {
-		const [{ id }] = await db
-			.insert(imports)
-			.values({
-				userId: input.actorId,
-				filename,
-				s3Key: key,
-				sizeBytes: input.bytes.byteLength,
-				sha256,
-				delimiter: checked.delimiter,
-				header: checked.header,
-				supplierId: input.supplierId,
-				mapping: suggestion.mapping,
-				units: suggestion.units,
-				options: {},
-				rowsTotal: checked.rowCount
-			})
-			.$returningId();
-		await recordAudit(db, { actorId: input.actorId, action: 'import.upload', targetType: 'import', targetId: id, detail: { filename, rows: checked.rowCount } });
-		return { id, checked, suggestion };
-	} catch (err) {
-		await store.delete(key).catch(() => undefined);
-		throw err;
+		let saved: Suggestion | null = null;
+		if (input.supplierId !== null) {
+			const [s] = await db.select().from(suppliers).where(eq(suppliers.id, input.supplierId));
+			if (!s) throw new ApiError(400, 'invalid-input', 'That supplier does not exist.', { supplier: 'Choose a supplier from the list.' });
+			saved = (s.importMapping as Suggestion | null) ?? null;
+		}
+		const suggestion = suggestMapping(csv.header, saved);
+		const key = `imports/${randomUUID()}.csv`;
+		const filename = (input.filename.split(/[\\/]/).pop() || 'import.csv').slice(0, 255);
+		await store.putFile(key, csv.path, 'text/csv; charset=utf-8', { 'original-filename': filename, sha256: csv.sha256 });
+		try {
+			const [{ id }] = await db
+				.insert(imports)
+				.values({
+					userId: input.actorId,
+					filename,
+					s3Key: key,
+					sizeBytes: csv.size,
+					sha256: csv.sha256,
+					delimiter: csv.delimiter,
+					header: csv.header,
+					supplierId: input.supplierId,
+					mapping: suggestion.mapping,
+					units: suggestion.units,
+					options: {},
+					rowsTotal: csv.rowCount
+				})
+				.$returningId();
+			await recordAudit(db, { actorId: input.actorId, action: 'import.upload', targetType: 'import', targetId: id, detail: { filename, rows: csv.rowCount } });
+			const checked: CheckedCsv = { delimiter: csv.delimiter, header: csv.header, preview: csv.preview, rowCount: csv.rowCount };
+			return { id, checked, suggestion };
+		} catch (err) {
+			await store.delete(key).catch(() => undefined);
+			throw err;
+		}
+	} finally {
+		if (!given) await csv.remove();
 	}
+}
+
+function isSpooled(f: unknown): f is SpooledCsv {
+	return typeof f === 'object' && f !== null && 'path' in f && 'sha256' in f && 'header' in f;
 }
 
 const unitSchema = z.string();

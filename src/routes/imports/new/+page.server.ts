@@ -5,10 +5,11 @@ import { ApiError, DomainError } from '$lib/server/api/http';
 import { requireRole } from '$lib/server/auth/guard';
 import { STOCK_EDITORS } from '$lib/server/auth/roles';
 import { listSuppliers } from '$lib/server/catalogue/materials';
+import { readMultipartStream } from '$lib/server/files/multipart';
+import { appStore } from '$lib/server/files/store';
+import { CSV_MAX_BYTES, spoolCsv } from '$lib/server/imports/csv';
 
 type Errors = { file?: string; supplierId?: string };
-import { appStore } from '$lib/server/files/store';
-import { CSV_MAX_BYTES } from '$lib/server/imports/csv';
 import * as importsService from '$lib/server/imports/service';
 
 export const load = (async (event) => {
@@ -19,28 +20,37 @@ export const load = (async (event) => {
 export const actions = {
 	default: async (event) => {
 		const user = requireRole(event, STOCK_EDITORS);
-		let form: FormData;
-		try {
-			form = await event.request.formData();
-		} catch {
-			return fail(413, { errors: { file: 'The upload could not be read (too large?).' } as Errors, values: { supplierId: '' } });
-		}
-		const supplierId = String(form.get('supplierId') ?? '');
-		const values = { supplierId };
-		const file = form.get('file');
-		if (!(file instanceof File) || (file.size === 0 && file.name === '')) {
-			return fail(400, { errors: { file: 'Choose a CSV file.' } as Errors, values });
-		}
-		if (supplierId && !/^\d+$/.test(supplierId)) return fail(400, { errors: { supplierId: 'Choose a supplier from the list.' } as Errors, values });
 		let id: number;
+		let values = { supplierId: '' };
 		try {
-			const bytes = new Uint8Array(await file.arrayBuffer());
-			({ id } = await importsService.createImport(db, appStore(), {
-				filename: file.name,
-				bytes,
-				supplierId: supplierId ? Number(supplierId) : null,
-				actorId: user.id
-			}));
+			// The file streams to a temporary file as it arrives (checked on the way), never whole into memory.
+			const { fields, file } = await readMultipartStream(event.request, {
+				maxBodyBytes: CSV_MAX_BYTES + 256 * 1024,
+				maxFileBytes: CSV_MAX_BYTES,
+				handleFile: async (part) => {
+					// A form sent with no file chosen still has an empty file part.
+					if (part.filename === '') {
+						part.stream.resume();
+						return null;
+					}
+					return { csv: await spoolCsv(part.stream), filename: part.filename };
+				},
+				discard: async (file) => file?.csv.remove()
+			});
+			const supplierId = fields.supplierId ?? '';
+			values = { supplierId };
+			if (!file) return fail(400, { errors: { file: 'Choose a CSV file.' } as Errors, values });
+			try {
+				if (supplierId && !/^\d+$/.test(supplierId)) return fail(400, { errors: { supplierId: 'Choose a supplier from the list.' } as Errors, values });
+				({ id } = await importsService.createImport(db, appStore(), {
+					filename: file.filename,
+					file: file.csv,
+					supplierId: supplierId ? Number(supplierId) : null,
+					actorId: user.id
+				}));
+			} finally {
+				await file.csv.remove();
+			}
 		} catch (err) {
 			if (err instanceof ApiError || err instanceof DomainError) {
 				const field = err.fields?.supplier ? 'supplierId' : 'file';

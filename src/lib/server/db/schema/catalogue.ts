@@ -105,12 +105,13 @@ export const parts = mysqlTable(
 		index('parts_diameter_idx').on(t.diameterMm),
 		index('parts_material_idx').on(t.primaryMaterial),
 		index('parts_coating_idx').on(t.coating),
-		index('parts_archived_idx').on(t.archivedAt),
 		// The catalogue's "recently changed" sort. (A FULLTEXT index parts_text_ft on sku, name and
 		// supplier part number, for the list's text search, comes from a hand-written migration:
 		// drizzle-kit has no FULLTEXT indexes.)
 		index('parts_updated_idx').on(t.updatedAt),
-		// Covers the default view (not archived, by SKU) down to deep pages: the list reads ids from it.
+		// Covers the default view (not archived, by SKU) down to deep pages: the list reads ids from it. Its first
+		// column also serves every other archived / not archived condition (a separate index on archived_at was
+		// dropped: one index less to write for each imported part).
 		index('parts_archived_sku_idx').on(t.archivedAt, t.sku)
 	]
 );

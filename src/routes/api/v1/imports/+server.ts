@@ -7,9 +7,9 @@ import { suppliers } from '$lib/server/db/schema';
 import { ApiError, endpoint } from '$lib/server/api/http';
 import { requireRole } from '$lib/server/auth/guard';
 import { STOCK_EDITORS } from '$lib/server/auth/roles';
-import { fileField, readMultipart } from '$lib/server/files/multipart';
+import { readMultipartStream } from '$lib/server/files/multipart';
 import { appStore } from '$lib/server/files/store';
-import { CSV_MAX_BYTES } from '$lib/server/imports/csv';
+import { CSV_MAX_BYTES, spoolCsv } from '$lib/server/imports/csv';
 import * as importsService from '$lib/server/imports/service';
 
 const listQuery = z
@@ -23,54 +23,62 @@ export const GET = endpoint(async (event) => {
 	return json(await importsService.listImports(db, q));
 }) satisfies RequestHandler;
 
-const jsonField = (form: FormData, name: string): unknown => {
-	const v = form.get(name);
-	if (v === null || v === '') return undefined;
-	if (typeof v !== 'string') throw new ApiError(400, 'invalid-input', `The field "${name}" must be JSON text.`, { [name]: 'Send JSON text.' });
+const jsonField = (fields: Record<string, string>, name: string): unknown => {
+	const v = fields[name];
+	if (v === undefined || v === '') return undefined;
 	try {
 		return JSON.parse(v);
 	} catch {
 		throw new ApiError(400, 'invalid-input', `The field "${name}" is not valid JSON.`, { [name]: 'Not valid JSON.' });
 	}
 };
-const flag = (form: FormData, name: string) => ['true', '1', 'yes', 'on'].includes(String(form.get(name) ?? '').toLowerCase());
+const flag = (fields: Record<string, string>, name: string) => ['true', '1', 'yes', 'on'].includes((fields[name] ?? '').toLowerCase());
 
 /**
  * One-shot import: multipart `file`, optional `supplier` (name), `mapping` (JSON field → column;
  * default: suggested from the header, so an export needs none), `units` (JSON), `skuPrefix`,
- * `skipRejected`, `dryRun`. Runs to the end and answers with the report.
+ * `skipRejected`, `dryRun`. Runs to the end and answers with the report. The file streams to a
+ * temporary file as it arrives (checked on the way), never whole into memory.
  */
 export const POST = endpoint(async (event) => {
 	const user = requireRole(event, STOCK_EDITORS);
-	const form = await readMultipart(event.request, CSV_MAX_BYTES + 256 * 1024);
-	const file = fileField(form);
-	let supplierId: number | null = null;
-	const supplierName = String(form.get('supplier') ?? '').trim();
-	if (supplierName) {
-		const [s] = await db.select({ id: suppliers.id }).from(suppliers).where(eq(suppliers.name, supplierName));
-		if (!s) throw new ApiError(400, 'invalid-input', `There is no supplier "${supplierName}".`, { supplier: 'Unknown supplier.' });
-		supplierId = s.id;
-	}
-	const bytes = new Uint8Array(await file.arrayBuffer());
-	const store = appStore();
-	const created = await importsService.createImport(db, store, { filename: file.name, bytes, supplierId, actorId: user.id });
-	const mapping = jsonField(form, 'mapping');
-	const units = jsonField(form, 'units');
-	await importsService.saveMapping(db, created.id, {
-		mapping: mapping ?? created.suggestion.mapping,
-		units: units ?? (mapping ? {} : created.suggestion.units),
-		skuPrefix: String(form.get('skuPrefix') ?? ''),
-		skipRejected: flag(form, 'skipRejected')
+	const { fields, file } = await readMultipartStream(event.request, {
+		maxBodyBytes: CSV_MAX_BYTES + 256 * 1024,
+		maxFileBytes: CSV_MAX_BYTES,
+		handleFile: (part) => spoolCsv(part.stream).then((csv) => ({ csv, filename: part.filename })),
+		discard: (file) => file.csv.remove()
 	});
-	const mode = flag(form, 'dryRun') ? 'check' : 'commit';
-	const outcome = await importsService.runNow(db, store, created.id, mode, user.id);
-	const report = await importsService.getReport(db, created.id, 1000);
-	if (outcome.status === 'failed') {
-		const status = outcome.rejected > 0 ? 400 : 503;
-		return json(
-			{ error: { code: outcome.rejected > 0 ? 'rows-rejected' : 'import-failed', message: outcome.message ?? 'The import failed.' }, report },
-			{ status }
-		);
+	if (!file) throw new ApiError(400, 'no-file', 'Attach the file in the form field "file".', { file: 'Choose a file.' });
+	try {
+		let supplierId: number | null = null;
+		const supplierName = (fields.supplier ?? '').trim();
+		if (supplierName) {
+			const [s] = await db.select({ id: suppliers.id }).from(suppliers).where(eq(suppliers.name, supplierName));
+			if (!s) throw new ApiError(400, 'invalid-input', `There is no supplier "${supplierName}".`, { supplier: 'Unknown supplier.' });
+			supplierId = s.id;
+		}
+		const mapping = jsonField(fields, 'mapping');
+		const units = jsonField(fields, 'units');
+		const store = appStore();
+		const created = await importsService.createImport(db, store, { filename: file.filename, file: file.csv, supplierId, actorId: user.id });
+		await importsService.saveMapping(db, created.id, {
+			mapping: mapping ?? created.suggestion.mapping,
+			units: units ?? (mapping ? {} : created.suggestion.units),
+			skuPrefix: fields.skuPrefix ?? '',
+			skipRejected: flag(fields, 'skipRejected')
+		});
+		const mode = flag(fields, 'dryRun') ? 'check' : 'commit';
+		const outcome = await importsService.runNow(db, store, created.id, mode, user.id);
+		const report = await importsService.getReport(db, created.id, 1000);
+		if (outcome.status === 'failed') {
+			const status = outcome.rejected > 0 ? 400 : 503;
+			return json(
+				{ error: { code: outcome.rejected > 0 ? 'rows-rejected' : 'import-failed', message: outcome.message ?? 'The import failed.' }, report },
+				{ status }
+			);
+		}
+		return json(report, { status: mode === 'commit' ? 201 : 200 });
+	} finally {
+		await file.csv.remove();
 	}
-	return json(report, { status: mode === 'commit' ? 201 : 200 });
 }) satisfies RequestHandler;

@@ -1,0 +1,1 @@
+DROP INDEX `parts_archived_idx` ON `parts`;
