@@ -5,7 +5,7 @@ import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { requireRole } from '$lib/server/auth/guard';
 import { ANY_ROLE, ROLE_LABELS } from '$lib/server/auth/roles';
-import { endOtherSessions } from '$lib/server/auth/sessions';
+import { endOtherSessions, endSessionByHandle, listSessions } from '$lib/server/auth/sessions';
 import { zodFields } from '$lib/server/api/http';
 import * as apiTokens from '$lib/server/accounts/api-tokens';
 import { changePassword, changePasswordSchema, confirmPassword } from '$lib/server/accounts/passwords';
@@ -15,11 +15,13 @@ export const load = (async (event) => {
 	return {
 		me: { name: user.name, email: user.email, roleLabel: ROLE_LABELS[user.role] },
 		tokens: await apiTokens.list(db, user.id),
+		sessions: await listSessions(user.id, event.locals.session?.id ?? null),
 		expiryChoices: apiTokens.EXPIRY_CHOICES
 	};
 }) satisfies PageServerLoad;
 
 const revokeSchema = z.object({ tokenId: z.coerce.number().int().positive() }).strict();
+const sessionSchema = z.object({ handle: z.string().regex(/^[0-9a-f]{24}$/) }).strict();
 
 export const actions = {
 	password: async (event) => {
@@ -55,5 +57,22 @@ export const actions = {
 			throw err;
 		}
 		return { form: 'revoke' as const, done: 'Token revoked.' };
+	},
+	endSession: async (event) => {
+		const user = requireRole(event, ANY_ROLE);
+		const parsed = sessionSchema.safeParse(Object.fromEntries(await event.request.formData()));
+		if (!parsed.success) return fail(400, { form: 'sessions' as const, message: 'Choose a session to sign out.' });
+		if (!(await endSessionByHandle(user.id, parsed.data.handle, event.locals.session?.id ?? null))) {
+			return fail(404, { form: 'sessions' as const, message: 'That session has already ended.' });
+		}
+		return { form: 'sessions' as const, done: 'That session is signed out.' };
+	},
+	endOtherSessions: async (event) => {
+		const user = requireRole(event, ANY_ROLE);
+		if (!event.locals.session) return fail(400, { form: 'sessions' as const, message: 'Sign in with a browser to do this.' });
+		// The button says what it does; a post without it (an empty form) changes nothing.
+		if ((await event.request.formData()).get('confirm') !== 'yes') return fail(400, { form: 'sessions' as const, message: 'Use the button to sign out the other sessions.' });
+		await endOtherSessions(user.id, event.locals.session.id);
+		return { form: 'sessions' as const, done: 'Every other session is signed out.' };
 	}
 } satisfies Actions;

@@ -39,7 +39,7 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	'/signin/forgot': { GET: PUBLIC, actions: { default: PUBLIC } },
 	'/signout': { GET: ANY_ROLE, actions: { default: ANY_ROLE }, endsSession: true },
 	'/welcome/[token]': { url: '/welcome/no-such-link-0000000000000000000000', GET: PUBLIC, actions: { default: PUBLIC } },
-	'/account': { GET: ANY_ROLE, actions: { password: ANY_ROLE, createToken: ANY_ROLE, revokeToken: ANY_ROLE } },
+	'/account': { GET: ANY_ROLE, actions: { password: ANY_ROLE, createToken: ANY_ROLE, revokeToken: ANY_ROLE, endSession: ANY_ROLE, endOtherSessions: ANY_ROLE } },
 	'/admin/users': { GET: ADMINS, actions: { invite: ADMINS, role: ADMINS, deactivate: ADMINS, reactivate: ADMINS, resend: ADMINS } },
 	'/admin/outbox': { GET: ADMINS },
 	'/admin/outbox/[id]': { url: '/admin/outbox/99999999', GET: ADMINS },

@@ -7,7 +7,8 @@ import { DrizzleMySQLAdapter } from '@lucia-auth/adapter-drizzle';
 import { env } from '$env/dynamic/private';
 import type { Cookies } from '@sveltejs/kit';
 import { db } from '$lib/server/db';
-import { and, eq, ne } from 'drizzle-orm';
+import { createHash } from 'node:crypto';
+import { and, desc, eq, gt, ne } from 'drizzle-orm';
 import { sessions, users, type Role } from '$lib/server/db/schema';
 
 export const IDLE_TIMEOUT = new TimeSpan(30, 'm');
@@ -89,6 +90,78 @@ export function endAllSessions(userId: number) {
 /** Ends every session of a user except one (after a password change in that session). */
 export async function endOtherSessions(userId: number, keepSessionId: string) {
 	await db.delete(sessions).where(and(eq(sessions.userId, userId), ne(sessions.id, keepSessionId)));
+}
+
+/** A session as its owner sees it on /account: never its id (the id is the cookie's secret), only a handle derived from it. */
+export interface SessionSummary {
+	handle: string;
+	createdAt: Date;
+	/** When it ends unless it is used again (it is renewed when used after half of the idle time). */
+	idleUntil: Date;
+	/** When it ends at the latest (absolute lifetime). */
+	endsBy: Date;
+	browser: string;
+	current: boolean;
+}
+
+/** A stable, non-secret name for a session: the start of the SHA-256 of its id. */
+export const sessionHandle = (id: string) => createHash('sha256').update(id).digest('hex').slice(0, 24);
+
+/** The user's live sessions, newest first. */
+export async function listSessions(userId: number, currentId: string | null): Promise<SessionSummary[]> {
+	const rows = await db.select().from(sessions).where(and(eq(sessions.userId, userId), gt(sessions.expiresAt, new Date()))).orderBy(desc(sessions.createdAt));
+	return rows
+		.filter((r) => Date.now() - r.createdAt.getTime() <= ABSOLUTE_LIFETIME_MS)
+		.map((r) => ({
+			handle: sessionHandle(r.id),
+			createdAt: r.createdAt,
+			idleUntil: r.expiresAt,
+			endsBy: new Date(r.createdAt.getTime() + ABSOLUTE_LIFETIME_MS),
+			browser: describeUserAgent(r.userAgent),
+			current: r.id === currentId
+		}));
+}
+
+/**
+ * Ends one of the user's own sessions by its handle; never the current one (that is "Sign out").
+ * Returns false when there is no such session of this user.
+ */
+export async function endSessionByHandle(userId: number, handle: string, currentId: string | null): Promise<boolean> {
+	const rows = await db.select({ id: sessions.id }).from(sessions).where(eq(sessions.userId, userId));
+	const target = rows.find((r) => r.id !== currentId && sessionHandle(r.id) === handle);
+	if (!target) return false;
+	await db.delete(sessions).where(and(eq(sessions.id, target.id), eq(sessions.userId, userId)));
+	return true;
+}
+
+/** A short description of a browser from its User-Agent header ("Firefox on Linux"), for people to recognise a session. */
+export function describeUserAgent(ua: string | null | undefined): string {
+	if (!ua) return 'Unknown browser or script';
+	const browser = /Edg\//.test(ua)
+		? 'Edge'
+		: /OPR\//.test(ua)
+			? 'Opera'
+			: /Firefox\//.test(ua)
+				? 'Firefox'
+				: /Chrom(e|ium)\//.test(ua)
+					? 'Chromium-based browser'
+					: /Safari\//.test(ua)
+						? 'Safari'
+						: /^(curl|Wget|python-requests|node|undici)/i.test(ua)
+							? 'Script'
+							: 'Other browser';
+	const os = /Android/.test(ua)
+		? 'Android'
+		: /iPhone|iPad|iOS/.test(ua)
+			? 'iOS'
+			: /Windows/.test(ua)
+				? 'Windows'
+				: /Mac OS X|Macintosh/.test(ua)
+					? 'macOS'
+					: /Linux|X11/.test(ua)
+						? 'Linux'
+						: null;
+	return os ? `${browser} on ${os}` : browser;
 }
 
 function clearCookie(cookies: Cookies) {
