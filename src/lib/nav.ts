@@ -29,7 +29,8 @@ export const NAV: NavItem[] = [
 /** The admin pages, shown as tabs on every /admin page. */
 export const ADMIN_NAV: NavItem[] = [
 	{ href: '/admin/users', label: 'Users', roles: ['admin'] },
-	{ href: '/admin/outbox', label: 'Outbox', roles: ['admin'] }
+	{ href: '/admin/outbox', label: 'Outbox', roles: ['admin'] },
+	{ href: '/admin/settings', label: 'Lab settings', roles: ['admin'] }
 ];
 
 export function navFor(role: Role | undefined): NavItem[] {

@@ -42,6 +42,7 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	'/account': { GET: ANY_ROLE, actions: { password: ANY_ROLE, createToken: ANY_ROLE, revokeToken: ANY_ROLE, endSession: ANY_ROLE, endOtherSessions: ANY_ROLE } },
 	'/admin/users': { GET: ADMINS, actions: { invite: ADMINS, role: ADMINS, deactivate: ADMINS, reactivate: ADMINS, resend: ADMINS } },
 	'/admin/outbox': { GET: ADMINS },
+	'/admin/settings': { GET: ADMINS, actions: { wavelength: ADMINS } },
 	'/admin/outbox/[id]': { url: '/admin/outbox/99999999', GET: ADMINS },
 	'/api/v1/session': { POST: PUBLIC, DELETE: ANY_ROLE, endsSession: true },
 	'/api/v1/me': { GET: ANY_ROLE },
