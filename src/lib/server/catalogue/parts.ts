@@ -161,14 +161,6 @@ export async function refreshDerived(tx: DbOrTx, partId: number, defaultWaveleng
 	return cols;
 }
 
-/** Recomputes the derived columns of every part (after the default wavelength changed, or by the seed). */
-export async function refreshAllDerived(db: DbOrTx): Promise<number> {
-	const wl = await getDefaultWavelengthNm(db);
-	const ids = await db.select({ id: parts.id }).from(parts);
-	for (const { id } of ids) await refreshDerived(db, id, wl);
-	return ids.length;
-}
-
 /** Creates a part from unknown input (throws ZodError / DomainError 409). Returns its id. */
 export async function createPart(db: DbOrTx, input: unknown, actor: Actor): Promise<{ id: number }> {
 	const data = partInputSchema.parse(input);
