@@ -121,7 +121,7 @@ describe('datasheets through the app and s3rver', () => {
 		const down = createObjectStore({ endpoint: 'http://127.0.0.1:9', bucket: 'glasscrib', region: 'us-east-1', accessKeyId: 'S3RVER', secretAccessKey: 'S3RVER' });
 		const [{ id: actorId }] = await db.select({ id: t.users.id }).from(t.users).where(eq(t.users.role, 'stockroom')).limit(1);
 		const before = (await db.select({ n: count() }).from(t.datasheets))[0].n;
-		const err = await uploadDatasheet(db, down, { partId, filename: 'x.pdf', bytes: pdf(500), actorId }).catch((e) => e);
+		const err = await uploadDatasheet(db, down, { partId, filename: 'x.pdf', file: pdf(500), actorId }).catch((e) => e);
 		expect(err).toBeInstanceOf(StorageUnavailable);
 		expect(err.status).toBe(503);
 		expect(err.message).toMatch(/file store is not reachable.*nothing was saved/);

@@ -35,11 +35,11 @@ describe('CSV uploads over HTTP', () => {
 	it('takes the file and the fields after it (API one-shot import, dry run)', async () => {
 		const cookie = await cookieFor('stockroom@tarnwell.example');
 		const text = PCX_HEADER + '\n' + [pcxRow(`${tag}-A`, 1), pcxRow(`${tag}-B`, 2)].join('\n') + '\n';
-		const { body, type } = multipart({ name: 'list.csv', bytes: enc(text) }, { supplier: 'Kestrelmoor Optics', dryRun: 'true' });
+		const { body, type } = multipart({ name: 'Preisliste ø.csv', bytes: enc(text) }, { supplier: 'Kestrelmoor Optics', dryRun: 'true' });
 		const res = await fetch(url('/api/v1/imports'), { method: 'POST', headers: { cookie, origin: APP(), 'content-type': type }, body });
 		expect(res.status).toBe(200);
 		const report = await res.json();
-		expect(report).toMatchObject({ status: 'checked', filename: 'list.csv', rowsTotal: 2, counts: { created: 2, rejected: 0 }, supplier: { name: 'Kestrelmoor Optics' } });
+		expect(report).toMatchObject({ status: 'checked', filename: 'Preisliste ø.csv', rowsTotal: 2, counts: { created: 2, rejected: 0 }, supplier: { name: 'Kestrelmoor Optics' } });
 		expect(report.sizeBytes).toBe(enc(text).byteLength);
 	});
 

@@ -1,7 +1,10 @@
 import { describe, expect, it } from 'vitest';
 import { Jimp, JimpMime } from 'jimp';
 import { sniffType } from '$lib/server/files/magic';
-import { checkUpload, cleanFilename, skuCandidates } from '$lib/server/files/datasheets';
+import fs from 'node:fs';
+import os from 'node:os';
+import { createHash } from 'node:crypto';
+import { checkUpload, cleanFilename, skuCandidates, spoolDatasheet } from '$lib/server/files/datasheets';
 import { makeThumbnail } from '$lib/server/files/thumbnails';
 
 const enc = (s: string) => new TextEncoder().encode(s);
@@ -34,6 +37,57 @@ describe('file type by magic bytes', () => {
 			expect((err as { status: number }).status).toBe(413);
 			expect((err as Error).message).toMatch(/at most 25 MB/);
 		}
+	});
+});
+
+describe('uploads taken as a stream (spoolDatasheet)', () => {
+	const uploadDirs = () => fs.readdirSync(os.tmpdir()).filter((n) => n.startsWith('glasscrib-upload-')).sort();
+	const pieces = (bytes: Uint8Array, size: number) =>
+		(async function* () {
+			for (let i = 0; i < bytes.byteLength; i += size) yield bytes.subarray(i, i + size);
+		})();
+
+	it('keeps the bytes and their SHA-256 and reads the type from the first bytes, however they are cut', async () => {
+		const pdf = new Uint8Array(200_000);
+		pdf.set(enc('%PDF-1.7\n'));
+		for (let i = 10; i < pdf.length; i++) pdf[i] = (i * 31) & 0xff;
+		const got = await spoolDatasheet(pieces(pdf, 3));
+		try {
+			expect(got.contentType).toBe('application/pdf');
+			expect(got.size).toBe(pdf.byteLength);
+			expect(got.sha256).toBe(createHash('sha256').update(pdf).digest('hex'));
+			expect(fs.readFileSync(got.path).equals(Buffer.from(pdf))).toBe(true);
+		} finally {
+			await got.remove();
+		}
+	});
+
+	it('refuses the same files as checkUpload, and a photo over 15 MB as soon as it passes the cap; no temporary file stays', async () => {
+		const before = uploadDirs();
+		for (const [bytes, message] of [
+			[enc('<!DOCTYPE html><script>alert(1)</script>'), /HTML page/],
+			[new Uint8Array(), /empty/],
+			[new Uint8Array([...enc('RIFF'), 0, 0, 0, 0, ...enc('WEBPVP8 '), 1, 2, 3, 4]), /WebP/]
+		] as const) {
+			await expect(spoolDatasheet(pieces(bytes, 5))).rejects.toThrow(message);
+		}
+		let pulled = 0;
+		const endlessJpeg = (async function* () {
+			const first = new Uint8Array(64 * 1024);
+			first.set([0xff, 0xd8, 0xff, 0xe0]);
+			pulled += first.byteLength;
+			yield first;
+			for (;;) {
+				const next = new Uint8Array(64 * 1024);
+				pulled += next.byteLength;
+				yield next;
+			}
+		})();
+		const err = await spoolDatasheet(endlessJpeg).catch((e) => e);
+		expect(err.status).toBe(413);
+		expect(err.message).toMatch(/photos may be at most 15 MB/);
+		expect(pulled).toBeLessThan(15 * 1024 * 1024 + 256 * 1024);
+		expect(uploadDirs()).toEqual(before);
 	});
 });
 

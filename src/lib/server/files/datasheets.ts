@@ -7,6 +7,7 @@
  *   if S3 is down the row stays with its object (503).
  */
 import { createHash, randomUUID } from 'node:crypto';
+import fs from 'node:fs';
 import { and, desc, eq, inArray, isNull } from 'drizzle-orm';
 import type { DbOrTx } from '$lib/server/db';
 import { datasheets, parts, users, type Datasheet, type DatasheetType } from '$lib/server/db/schema';
@@ -14,6 +15,7 @@ import { ApiError, DomainError } from '$lib/server/api/http';
 import { recordAudit } from '$lib/server/audit';
 import { describeRefused, EXTENSIONS, isImageType, maxBytesFor, sniffType, MAX_IMAGE_BYTES, MAX_PDF_BYTES } from './magic';
 import { makeThumbnail } from './thumbnails';
+import { spoolToTempFile, type SpooledFile } from './spool';
 import type { ObjectStore, StoredObject } from './s3';
 
 export interface DatasheetJson {
@@ -54,26 +56,63 @@ export class DatasheetNotFound extends DomainError {
  * unreadable image) or 413 (too large) with a message for people.
  */
 export function checkUpload(bytes: Uint8Array): DatasheetType {
-	if (bytes.byteLength === 0) throw new ApiError(400, 'empty-file', 'The file is empty.');
-	const type = sniffType(bytes);
+	return checkHead(bytes.subarray(0, HEAD_BYTES), bytes.byteLength);
+}
+
+/** What `checkUpload` decides, from the first HEAD_BYTES bytes and the size alone. */
+function checkHead(head: Uint8Array, size: number): DatasheetType {
+	if (size === 0) throw new ApiError(400, 'empty-file', 'The file is empty.');
+	const type = sniffType(head);
 	if (!type) {
 		throw new ApiError(
 			400,
 			'unsupported-type',
-			`This looks like ${describeRefused(bytes)}. Upload a PDF, PNG or JPEG file; the type is read from the file itself, not its name.`
+			`This looks like ${describeRefused(head)}. Upload a PDF, PNG or JPEG file; the type is read from the file itself, not its name.`
 		);
 	}
 	if (type === 'image/webp') {
 		throw new ApiError(400, 'unsupported-type', 'WebP images are not accepted (no thumbnail can be made): save the photo as PNG or JPEG.');
 	}
-	if (bytes.byteLength > maxBytesFor(type)) {
-		throw new ApiError(
-			413,
-			'too-large',
-			`The file is ${(bytes.byteLength / (1024 * 1024)).toFixed(1)} MB; ${isImageType(type) ? `photos may be at most ${mb(MAX_IMAGE_BYTES)}` : `PDFs may be at most ${mb(MAX_PDF_BYTES)}`}.`
-		);
-	}
+	if (size > maxBytesFor(type)) throw tooLarge(type, `${(size / (1024 * 1024)).toFixed(1)} MB`);
 	return type;
+}
+
+const tooLarge = (type: DatasheetType, size: string) =>
+	new ApiError(413, 'too-large', `The file is ${size}; ${isImageType(type) ? `photos may be at most ${mb(MAX_IMAGE_BYTES)}` : `PDFs may be at most ${mb(MAX_PDF_BYTES)}`}.`);
+
+/** Bytes the type checks look at (the refusal message reads the start of the file). */
+const HEAD_BYTES = 512;
+
+/** An upload taken to a temporary file by `spoolDatasheet`, with its type. */
+export type SpooledDatasheet = SpooledFile & { contentType: DatasheetType };
+
+/**
+ * Takes an upload as it streams in, to a temporary file: the type from its first bytes, refused
+ * with 413 as soon as it passes the cap of its type (of a PDF, while the type is not known yet).
+ * Leaves no file behind when it refuses; otherwise the caller removes the file (`remove`).
+ */
+export async function spoolDatasheet(source: AsyncIterable<Uint8Array> | Uint8Array): Promise<SpooledDatasheet> {
+	const head = new Uint8Array(HEAD_BYTES);
+	let headLength = 0;
+	let size = 0;
+	let type: DatasheetType | null = null;
+	const file = await spoolToTempFile(source, (chunk) => {
+		size += chunk.byteLength;
+		if (headLength < HEAD_BYTES) {
+			const take = chunk.subarray(0, HEAD_BYTES - headLength);
+			head.set(take, headLength);
+			headLength += take.byteLength;
+			if (headLength >= 16) type = sniffType(head.subarray(0, headLength));
+		}
+		const cap = type ? maxBytesFor(type) : MAX_PDF_BYTES;
+		if (size > cap) throw tooLarge(type ?? 'application/pdf', `more than ${mb(cap)}`);
+	});
+	try {
+		return { ...file, contentType: checkHead(head.subarray(0, headLength), file.size) };
+	} catch (err) {
+		await file.remove();
+		throw err;
+	}
 }
 
 function toJson(row: Datasheet, uploaderName: string | null): DatasheetJson {
@@ -99,19 +138,26 @@ async function assertPart(db: DbOrTx, partId: number) {
 	return part;
 }
 
-/** Stores a datasheet or photo for a part. */
+/**
+ * Stores a datasheet or photo for a part. `file` is the bytes, or an upload already taken by
+ * `spoolDatasheet` (then the caller removes its temporary file): a PDF then goes to S3 streamed
+ * from disk; a photo is read whole for its thumbnail (at most 15 MB).
+ */
 export async function uploadDatasheet(
 	db: DbOrTx,
 	store: ObjectStore,
-	input: { partId: number; filename: string; bytes: Uint8Array; actorId: number }
+	input: { partId: number; filename: string; file: Uint8Array | SpooledDatasheet; actorId: number }
 ): Promise<DatasheetJson> {
 	const part = await assertPart(db, input.partId);
-	const contentType = checkUpload(input.bytes);
+	const spooled = input.file instanceof Uint8Array ? null : input.file;
+	const bytes = input.file instanceof Uint8Array ? input.file : null;
+	const contentType = spooled ? spooled.contentType : checkUpload(bytes!);
+	const sizeBytes = spooled ? spooled.size : bytes!.byteLength;
 	const filename = cleanFilename(input.filename);
-	const sha256 = createHash('sha256').update(input.bytes).digest('hex');
+	const sha256 = spooled ? spooled.sha256 : createHash('sha256').update(bytes!).digest('hex');
 	let thumb = null;
 	if (isImageType(contentType)) {
-		thumb = await makeThumbnail(input.bytes);
+		thumb = await makeThumbnail(bytes ?? (await fs.promises.readFile(spooled!.path)));
 		if (!thumb) throw new ApiError(400, 'unreadable-image', 'The image could not be read: the file may be damaged or not really an image.');
 	}
 	const uuid = randomUUID();
@@ -122,7 +168,9 @@ export async function uploadDatasheet(
 		for (const k of written) await store.delete(k).catch(() => undefined);
 	};
 	try {
-		await store.put(key, input.bytes, contentType, { 'original-filename': filename, sha256, 'part-sku': part.sku });
+		const meta = { 'original-filename': filename, sha256, 'part-sku': part.sku };
+		if (spooled) await store.putFile(key, spooled.path, contentType, meta);
+		else await store.put(key, bytes!, contentType, meta);
 		written.push(key);
 		if (thumb && thumbnailKey) {
 			await store.put(thumbnailKey, thumb.png, 'image/png', { 'thumbnail-of': key });
@@ -144,7 +192,7 @@ export async function uploadDatasheet(
 					thumbnailHeight: thumb?.height ?? null,
 					filename,
 					contentType,
-					sizeBytes: input.bytes.byteLength,
+					sizeBytes,
 					sha256,
 					uploadedBy: input.actorId
 				})
@@ -154,7 +202,7 @@ export async function uploadDatasheet(
 				action: 'datasheet.upload',
 				targetType: 'part',
 				targetId: input.partId,
-				detail: { datasheetId: id, filename, contentType, sizeBytes: input.bytes.byteLength, sha256 }
+				detail: { datasheetId: id, filename, contentType, sizeBytes, sha256 }
 			});
 			return id;
 		});

@@ -2,11 +2,11 @@ import { json } from '@sveltejs/kit';
 import { z } from 'zod';
 import type { RequestHandler } from './$types';
 import { db } from '$lib/server/db';
-import { endpoint } from '$lib/server/api/http';
+import { ApiError, endpoint } from '$lib/server/api/http';
 import { requireRole } from '$lib/server/auth/guard';
 import { ANY_ROLE, STOCK_EDITORS } from '$lib/server/auth/roles';
 import * as datasheets from '$lib/server/files/datasheets';
-import { fileField, readMultipart } from '$lib/server/files/multipart';
+import { readMultipartStream } from '$lib/server/files/multipart';
 import { MAX_PDF_BYTES } from '$lib/server/files/magic';
 import { appStore } from '$lib/server/files/store';
 
@@ -23,9 +23,18 @@ export const GET = endpoint(async (event) => {
 export const POST = endpoint(async (event) => {
 	const user = requireRole(event, STOCK_EDITORS);
 	const { id } = params.parse(event.params);
-	const form = await readMultipart(event.request, MAX_PDF_BYTES + 64 * 1024);
-	const file = fileField(form);
-	const bytes = new Uint8Array(await file.arrayBuffer());
-	const sheet = await datasheets.uploadDatasheet(db, appStore(), { partId: id, filename: file.name, bytes, actorId: user.id });
-	return json(sheet, { status: 201 });
+	// The file streams to a temporary file as it arrives (type and size checked on the way), never whole into memory.
+	const { file } = await readMultipartStream(event.request, {
+		maxBodyBytes: MAX_PDF_BYTES + 64 * 1024,
+		maxFileBytes: MAX_PDF_BYTES,
+		handleFile: async (part) => ({ sheet: await datasheets.spoolDatasheet(part.stream), filename: part.filename }),
+		discard: (f) => f.sheet.remove()
+	});
+	if (!file) throw new ApiError(400, 'no-file', 'Attach the file in the form field "file".', { file: 'Choose a file.' });
+	try {
+		const sheet = await datasheets.uploadDatasheet(db, appStore(), { partId: id, filename: file.filename, file: file.sheet, actorId: user.id });
+		return json(sheet, { status: 201 });
+	} finally {
+		await file.sheet.remove();
+	}
 }) satisfies RequestHandler;
