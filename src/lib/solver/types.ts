@@ -54,7 +54,9 @@ export interface SolutionElement {
 	kind: string;
 	/** True when the part is turned round from its catalogue orientation. */
 	reversed: boolean;
-	/** Plain words for the bench: which side faces the object. */
+	/** Turning it round gives the same optics (then `reversed` is false). Absent in setups saved before it was recorded. */
+	symmetric?: boolean;
+	/** Plain words for the bench: which way round (see `orientationText`). */
 	orientation: string;
 	/** First vertex from the object plane, mm. */
 	firstVertexMm: number;

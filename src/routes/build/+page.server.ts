@@ -9,6 +9,10 @@ import { unlockForQuestion } from '$lib/server/purchasing/unlock-search';
 import { listProjects } from '$lib/server/stock/projects';
 import * as form from '$lib/server/solver/form';
 import * as setups from '$lib/server/solver/setups';
+import * as setupList from '$lib/server/solver/setup-list';
+
+/** Saved setups listed under the form; the rest are on /build/setups. */
+const SAVED_ON_PAGE = 8;
 import * as solver from '$lib/server/solver/service';
 
 /**
@@ -28,7 +32,8 @@ export const load = (async (event) => {
 			else throw e;
 		}
 	}
-	return { ...parsed, ssr, ssrError, projects: await listProjects(db), canRequest: hasRole(user, PURCHASERS) };
+	const [projects, saved] = await Promise.all([listProjects(db), setupList.listSavedSetups(db, { userId: user.id, limit: SAVED_ON_PAGE })]);
+	return { ...parsed, ssr, ssrError, projects, saved, canRequest: hasRole(user, PURCHASERS) };
 }) satisfies PageServerLoad;
 
 export const actions = {

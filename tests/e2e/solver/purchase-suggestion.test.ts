@@ -27,7 +27,10 @@ describe('What purchase would help? on /build', () => {
 		await page.goto(appUrl(QUESTION));
 		await page.waitForSelector('[data-testid=unlock-offer]', { timeout: 30_000 });
 		await expect(page.locator('#results-h').innerText()).resolves.toContain('No setup found');
-		await expect(page.locator('[data-testid=unlock-reason]').innerText()).resolves.toContain('Nothing on the shelf');
+		// said once, in the results, not again in the offer
+		await expect(page.locator('[data-testid=no-answer]').innerText()).resolves.toContain('Nothing on the shelf');
+		expect(await page.locator('[data-testid=unlock-reason]').count()).toBe(0);
+		expect((await page.locator('main').innerText()).match(/Nothing on the shelf/g)).toHaveLength(1);
 		await expect(page.locator('[data-testid=laser-caution]').isVisible()).resolves.toBe(true);
 		await page.click('[data-testid=unlock-button]');
 		await page.waitForSelector('[data-testid=purchase-suggestion]', { timeout: 30_000 });

@@ -113,6 +113,7 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	'/build': { GET: SOLVER_USERS, actions: { save: SOLVER_USERS, unlock: SOLVER_USERS } },
 	'/build/[setup]': { url: '/build/99999999', GET: SOLVER_USERS, actions: { reserve: RESERVERS, unlock: SOLVER_USERS } },
 	'/build/[setup]/sheet': { url: '/build/99999999/sheet', GET: SOLVER_USERS },
+	'/build/setups': { GET: SOLVER_USERS },
 	'/api/v1/solve': { POST: SOLVER_USERS },
 	'/api/v1/setups': { GET: SOLVER_USERS, POST: SOLVER_USERS },
 	'/api/v1/setups/[id]': { url: '/api/v1/setups/99999999', GET: SOLVER_USERS },

@@ -32,6 +32,7 @@ import {
 	type TraceSystem
 } from '../../optics';
 import type { RayPath, Solution, SolutionElement, ToleranceRow } from '../../solver/types';
+import { orientationText } from '../../solver/orientation';
 import { clearApertureOf, type CandidatePart } from './elements';
 
 /** Tolerance of the independent matrix check of a returned solution (|B| in mm, |A − m| relative). */
@@ -68,20 +69,6 @@ export interface Evaluated {
 	solution: Omit<Solution, 'rank'>;
 	/** Verified by the full matrix (B ≈ 0, A ≈ target within tolerance for pairs). */
 	verified: boolean;
-}
-
-/** Plain words for the bench: which side of the part faces the object. */
-export function orientationWords(el: ThickElement, symmetricPart: boolean): string {
-	if (symmetricPart) return 'either side toward the object (symmetric part)';
-	const s = el.surfaces;
-	if (s === null) return el.reversed ? 'turned round: datasheet back side toward the object' : 'as catalogued: datasheet front side toward the object';
-	const first = s[0].radiusMm,
-		last = s[s.length - 1].radiusMm;
-	const multi = s.length > 2 ? (el.reversed ? ' (last catalogue surface first)' : ' (first catalogue surface first)') : '';
-	if (first === null && last !== null) return 'flat side toward the object' + multi;
-	if (first !== null && last === null) return (first > 0 ? 'curved (convex) side toward the object' : 'curved (concave) side toward the object') + multi;
-	if (first === null) return (el.reversed ? 'turned round' : 'as catalogued') + multi;
-	return (first > 0 ? 'convex side toward the object' : 'concave side toward the object') + multi;
 }
 
 function eflSource(part: CandidatePart): SolutionElement['eflSource'] {
@@ -255,7 +242,8 @@ export function evaluatePlacement(choice: PlacementChoice, q: EvalQuestion, symm
 			name: part.name,
 			kind: part.kind,
 			reversed: el.reversed,
-			orientation: orientationWords(el, symmetricParts[k]),
+			symmetric: symmetricParts[k],
+			orientation: orientationText({ reversed: el.reversed, symmetric: symmetricParts[k], surfaces: el.surfaces }),
 			firstVertexMm: vertices[k],
 			thicknessMm: el.thicknessMm,
 			eflMm: cp ? cp.eflMm : Infinity,
@@ -315,22 +303,5 @@ export function evaluatePlacement(choice: PlacementChoice, q: EvalQuestion, symm
 	};
 }
 
-/**
- * Ranking key (lower is better), compared in order: spot over Airy in steps of 25 % (all
- * diffraction-limited answers, ratio ≤ 1, tie), untraced after traced; vignetting (none,
- * field edge, axial); the smaller working distance in steps of 10 mm (longer first); part
- * count; then the exact spot ratio.
- */
-export function rankKey(s: Omit<Solution, 'rank'>): number[] {
-	const r = s.spot.ratioToAiry;
-	const bucket = r === null ? 1e6 : r <= 1 ? 0 : Math.ceil(Math.log(r) / Math.log(1.25));
-	const vig = s.vignetting.axial ? 2 : s.vignetting.edge ? 1 : 0;
-	const wd = -Math.floor(Math.min(s.objectDistanceMm, s.backDistanceMm) / 10);
-	return [bucket, vig, wd, s.elements.length, r ?? 1e9];
-}
-
-/** Compares two ranking keys. */
-export function compareKeys(a: number[], b: number[]): number {
-	for (let k = 0; k < a.length; k++) if (a[k] !== b[k]) return a[k] - b[k];
-	return 0;
-}
+/** The ranking lives beside the types so that /build can explain it with the same code. */
+export { rankKey, compareKeys } from '../../solver/ranking';

@@ -5,7 +5,6 @@
  * with mathjs `unit()` behind a strict regex, never `evaluate()`.
  */
 import { unit } from 'mathjs';
-import { ZodError } from 'zod';
 import { solveRequestSchema, magnificationFromSizes, naFromFNumber, type ParsedSolveRequest } from '$lib/solver/request';
 import { zodFields } from '$lib/server/api/http';
 
@@ -97,33 +96,37 @@ export function readForm(params: URLSearchParams): {
 	}
 	const wavelengthNm = parseQuantity(values.wavelength, 'nm');
 	if (wavelengthNm === null) errors.wavelength = 'Enter a wavelength such as "632.8 nm" or "1.064 um".';
-	if (Object.keys(errors).length) return { values, submitted, errors, request: null };
-	try {
-		const request = solveRequestSchema.parse({
-			wavelengthNm,
-			trackMm,
-			magnification,
-			objectHeightMm,
-			objectNA,
-			minGapMm,
-			minWorkingDistanceMm,
-			availableOnly: values.available !== 'false',
-			maxElements: values.maxParts === '1' ? 1 : 2
-		});
-		return { values, submitted, errors, request };
-	} catch (e) {
-		if (!(e instanceof ZodError)) throw e;
-		const f = zodFields(e);
+	// The schema checks every field that did parse (ranges, m ≠ 0, NA < 1) in the same pass, so the
+	// page shows every field's problem at once; a field's own parse message wins over the schema's.
+	const checked = solveRequestSchema.safeParse({
+		wavelengthNm: wavelengthNm ?? undefined,
+		trackMm,
+		magnification,
+		objectHeightMm,
+		objectNA,
+		minGapMm,
+		minWorkingDistanceMm,
+		availableOnly: values.available !== 'false',
+		maxElements: values.maxParts === '1' ? 1 : 2
+	});
+	if (checked.success && !Object.keys(errors).length) return { values, submitted, errors, request: checked.data };
+	if (!checked.success) {
 		const map: Record<string, keyof FormValues> = {
 			wavelengthNm: 'wavelength',
 			trackMm: 'track',
-			magnification: values.objectSize.trim() ? 'imageSize' : 'magnification',
+			magnification: values.objectSize.trim() || values.imageSize.trim() ? 'imageSize' : 'magnification',
 			objectHeightMm: 'objectHeight',
 			objectNA: values.fNumber.trim() ? 'fNumber' : 'na',
 			minGapMm: 'minGap',
 			minWorkingDistanceMm: 'minWd'
 		};
-		for (const [k, msg] of Object.entries(f)) errors[map[k] ?? k] = msg;
-		return { values, submitted, errors, request: null };
+		const parseFailed = new Set(Object.keys(errors));
+		// A field that did not parse was sent as undefined: the schema's "required" message for it adds nothing.
+		for (const [k, msg] of Object.entries(zodFields(checked.error))) {
+			const field = map[k] ?? k;
+			const sizesFailed = field === 'imageSize' && (parseFailed.has('objectSize') || parseFailed.has('imageSize'));
+			if (!parseFailed.has(field) && !sizesFailed && !errors[field]) errors[field] = msg;
+		}
 	}
+	return { values, submitted, errors, request: null };
 }

@@ -1,0 +1,62 @@
+/**
+ * How Build from stock orders its answers, shared by the solver (which sorts by it) and the
+ * /build page (which explains it and says, row by row, what put an answer below the one above).
+ * Pure: imported by the server through a relative path, like the types.
+ */
+import type { Solution } from './types';
+
+/** Spot ratios (RMS over Airy radius) above 1 are grouped in bands this many times wider each. */
+export const SPOT_BAND_FACTOR = 1.25;
+/** The shorter working distance counts in whole steps of this, mm. */
+export const WORKING_DISTANCE_STEP_MM = 10;
+
+/**
+ * The spot band of a ratio to Airy: 0 for ratio ≤ 1 (diffraction-limited answers all tie),
+ * then 1 for (1, 1.25], 2 for (1.25, 1.5625], … ; untraced answers come after every traced one.
+ */
+export function spotBand(ratioToAiry: number | null): number {
+	const r = ratioToAiry;
+	return r === null ? 1e6 : r <= 1 ? 0 : Math.ceil(Math.log(r) / Math.log(SPOT_BAND_FACTOR));
+}
+
+/** Upper edge of a spot band, as a ratio to the Airy radius (band 0: 1). */
+export function spotBandLimit(band: number): number {
+	return Math.pow(SPOT_BAND_FACTOR, band);
+}
+
+/** The shorter of the two working distances (object side, target side), mm. */
+export function shorterWorkingDistanceMm(s: Pick<Solution, 'objectDistanceMm' | 'backDistanceMm'>): number {
+	return Math.min(s.objectDistanceMm, s.backDistanceMm);
+}
+
+/**
+ * Ranking key (lower is better), compared in order: spot over Airy in steps of 25 % (all
+ * diffraction-limited answers, ratio ≤ 1, tie), untraced after traced; vignetting (none,
+ * field edge, axial); the smaller working distance in steps of 10 mm (longer first); part
+ * count; then the exact spot ratio.
+ */
+export function rankKey(s: Omit<Solution, 'rank'>): number[] {
+	const r = s.spot.ratioToAiry;
+	const bucket = spotBand(r);
+	const vig = s.vignetting.axial ? 2 : s.vignetting.edge ? 1 : 0;
+	const wd = -Math.floor(shorterWorkingDistanceMm(s) / WORKING_DISTANCE_STEP_MM);
+	return [bucket, vig, wd, s.elements.length, r ?? 1e9];
+}
+
+/** Compares two ranking keys. */
+export function compareKeys(a: number[], b: number[]): number {
+	for (let k = 0; k < a.length; k++) if (a[k] !== b[k]) return a[k] - b[k];
+	return 0;
+}
+
+/** Which part of the ranking key put an answer below the one ranked just above it. */
+export type RankStep = 'spot band' | 'vignetting' | 'working distance' | 'part count' | 'exact spot' | 'tie';
+
+/** The first criterion in which `below` loses to `above` (by `rankKey`). */
+export function decidingStep(above: Omit<Solution, 'rank'>, below: Omit<Solution, 'rank'>): RankStep {
+	const a = rankKey(above),
+		b = rankKey(below);
+	const steps: RankStep[] = ['spot band', 'vignetting', 'working distance', 'part count', 'exact spot'];
+	for (let k = 0; k < steps.length; k++) if (a[k] !== b[k]) return steps[k];
+	return 'tie';
+}
