@@ -31,7 +31,7 @@ const solveRequest = {
 const solution = {
 	type: 'object',
 	description:
-		'elements [{partId, sku, reversed, orientation, firstVertexMm (from the object plane), eflMm, eflSource, toBuy, available, locations}], ' +
+		'elements [{partId, sku, reversed, symmetric, orientation ("as catalogued (surface 1 faces the object)" or "reversed (surface N faces the object)", plus flat/curved side for a plano lens), firstVertexMm (from the object plane), eflMm, eflSource, toBuy, available, locations}], ' +
 		'objectDistanceMm, gapsMm, backDistanceMm, magnification, systemMatrix {A,B,C,D}, pointTransferMatrix (3x3 row-major), ' +
 		'afocalFamily, doubleRoot, spot {axialRmsMm, edgeRmsMm, airyRadiusMm, ratioToAiry, untracedReason}, vignetting {axial, edge, worstFill}, rays, tolerance'
 };
