@@ -1,5 +1,5 @@
 /**
- * When the digest check runs (see flags.ts):
+ * When the digest check (flags.ts) and the saved-setup check (setup-ready.ts) run:
  * - after every successful write request (POST, PUT, PATCH, DELETE with a status below 400,
  *   API or form action): a stock operation, a reservation, a part edit or a receipt may change
  *   what is flagged. Checks are coalesced: requests within DEBOUNCE_MS share one check, and a
@@ -15,6 +15,7 @@ import { building } from '$app/environment';
 import { db } from '$lib/server/db';
 import { sendMail } from '$lib/server/mail';
 import { checkFlags } from './flags';
+import { checkSetupsReady } from './setup-ready';
 
 export const DEBOUNCE_MS = 300;
 export const PERIOD_MS = 5 * 60_000;
@@ -40,6 +41,11 @@ async function runCheck(): Promise<void> {
 				await checkFlags(db, { send: sendMail, origin: origin() });
 			} catch (err) {
 				console.error('[purchasing] flag check failed (it runs again on the next change or timer):', err);
+			}
+			try {
+				await checkSetupsReady(db, { send: sendMail, origin: origin() });
+			} catch (err) {
+				console.error('[purchasing] saved-setup check failed (it runs again on the next change or timer):', err);
 			}
 		} while (again);
 	})().finally(() => (running = null));

@@ -2,7 +2,7 @@ import { char, datetime, index, int, mysqlEnum, mysqlTable, text, timestamp, uni
 import { id, ref } from './columns';
 import { users } from './auth';
 import { parts, suppliers } from './catalogue';
-import { locations, movements } from './stock';
+import { locations, movements, setups } from './stock';
 
 
 /**
@@ -88,3 +88,26 @@ export const flagNotices = mysqlTable(
 export type PurchaseRequest = typeof purchaseRequests.$inferSelect;
 export type PurchaseRequestEvent = typeof purchaseRequestEvents.$inferSelect;
 export type FlagNotice = typeof flagNotices.$inferSelect;
+
+/**
+ * Saved setups waiting for parts: a row opens (open_setup_id set) when a check first finds the
+ * setup short of parts, and closes when a check finds it buildable again, which mails its owner
+ * once. The unique index on open_setup_id makes the open/close decision hold across instances.
+ */
+export const setupWaits = mysqlTable(
+	'setup_waits',
+	{
+		id: id(),
+		setupId: ref('setup_id')
+			.notNull()
+			.references(() => setups.id, { onDelete: 'cascade' }),
+		openSetupId: ref('open_setup_id'),
+		since: datetime('since', { fsp: 3 }).notNull(),
+		/** When a check found it buildable (and mailed the owner), or found it built or gone. */
+		endedAt: datetime('ended_at', { fsp: 3 }),
+		/** 'buildable' (owner mailed) or 'built' (its parts were issued to it: nothing to tell). */
+		outcome: varchar('outcome', { length: 16 })
+	},
+	(t) => [uniqueIndex('setup_waits_open_uq').on(t.openSetupId), index('setup_waits_setup_idx').on(t.setupId)]
+);
+export type SetupWait = typeof setupWaits.$inferSelect;
