@@ -2,12 +2,20 @@ import { sveltekit } from '@sveltejs/kit/vite';
 import tailwindcss from '@tailwindcss/vite';
 import { defineConfig } from 'vitest/config';
 
+/** Font files, which must be served as files (see build.assetsInlineLimit). */
+const FONT_FILE = /\.(woff2?|ttf|otf|eot)(\?.*)?$/i;
+
 export default defineConfig({
 	plugins: [tailwindcss(), sveltekit()],
 	server: { host: '127.0.0.1', port: 5173 },
 	preview: { host: '127.0.0.1', port: 4173 },
-	// Plugin timing reports are noise in our logs.
-	build: { rolldownOptions: { checks: { pluginTimings: false } } },
+	build: {
+		// Never inline fonts as data: URLs: the CSP allows fonts only from 'self' (font-src), so an inlined
+		// font is refused by the browser and logged as an error. Other small assets keep Vite's default.
+		assetsInlineLimit: (filePath: string) => (FONT_FILE.test(filePath) ? false : undefined),
+		// Plugin timing reports are noise in our logs.
+		rolldownOptions: { checks: { pluginTimings: false } }
+	},
 	test: {
 		projects: [
 			{

@@ -37,6 +37,40 @@ describe('catalogue and stock in Chromium (stockroom)', () => {
 		expect([...values].sort((a, b) => a - b)).toEqual(values);
 	});
 
+	it('names kinds for people, on one line, lists every glass of a doublet, and still filters by kind', async () => {
+		await page.goto(appUrl('/parts?kind=achromatic-doublet'));
+		const kinds = await page.locator('[data-testid=parts-table] tbody tr td:nth-child(3)').allInnerTexts();
+		expect(kinds.length).toBeGreaterThan(5);
+		expect(new Set(kinds)).toEqual(new Set(['Achromatic doublet']));
+		// On one line: the cell's content is less than two lines high.
+		const kindCell = page.locator('[data-testid=parts-table] tbody tr:first-child td:nth-child(3)');
+		const lineHeight = await kindCell.evaluate((td) => parseFloat(getComputedStyle(td).lineHeight));
+		const padding = await kindCell.evaluate((td) => parseFloat(getComputedStyle(td).paddingTop) + parseFloat(getComputedStyle(td).paddingBottom));
+		expect(await kindCell.evaluate((td) => td.scrollHeight)).toBeLessThan(padding + 2 * lineHeight);
+		// The demo doublets are crown 517642 cemented to flint 620364 (seed/demo-data.ts).
+		const glasses = await page.locator('[data-testid=parts-table] tbody tr td:nth-child(6)').allInnerTexts();
+		expect(new Set(glasses)).toEqual(new Set(['517642 + 620364']));
+		await expect(page.locator('[data-testid=parts-table] th:nth-child(6)').innerText()).resolves.toMatch(/glasses/i);
+		// The filter menu shows the same labels and keeps the codes as values.
+		await expect(page.locator('#f-kind option[value=plano-convex]').innerText()).resolves.toBe('Plano-convex');
+		await Promise.all([
+			page.waitForResponse((r) => r.url().includes('/api/v1/parts') && r.url().includes('kind=plano-convex')),
+			page.selectOption('#f-kind', 'plano-convex')
+		]);
+		await page.waitForFunction(() => !document.querySelector('[aria-busy=true]'));
+		const after = await page.locator('[data-testid=parts-table] tbody tr td:nth-child(3)').allInnerTexts();
+		expect(new Set(after)).toEqual(new Set(['Plano-convex']));
+	});
+
+	it('lines the stock tables up column by column, drawer after drawer', async () => {
+		await page.goto(appUrl('/stock'));
+		const lefts = await page.locator('[data-testid=stock-table]').evaluateAll((tables) =>
+			tables.map((t) => [...t.querySelectorAll('thead th')].map((th) => Math.round(th.getBoundingClientRect().left)))
+		);
+		expect(lefts.length).toBeGreaterThan(3);
+		for (const l of lefts) expect(l).toEqual(lefts[0]);
+	});
+
 	it('creates a part through the form with a kind template and a field message on bad input', async () => {
 		await page.goto(appUrl('/parts/new'));
 		await page.waitForLoadState('networkidle'); // hydrated: typed text is not reset
@@ -66,6 +100,14 @@ describe('catalogue and stock in Chromium (stockroom)', () => {
 		expect(efl).toBeGreaterThan(122.5);
 		expect(efl).toBeLessThan(123.5);
 		await expect(page.locator('[data-testid=abcd]').count()).resolves.toBe(1);
+		// Nothing on the shelf yet: the stock operations open on receive.
+		await expect(page.locator('[data-testid=stock-totals]').innerText()).resolves.toMatch(/^0 on hand/);
+		await expect(page.locator('button[role=tab][aria-selected=true]').innerText()).resolves.toBe('receive');
+		// The lens drawing fills its box's height and sits in the middle of it.
+		const fig = (await page.locator('[data-testid=lens-figure]').boundingBox())!;
+		const svg = (await page.locator('[data-testid=lens-figure] [data-testid=lens-profile]').boundingBox())!;
+		expect(svg.height).toBeGreaterThan(180);
+		expect(Math.abs(svg.x + svg.width / 2 - (fig.x + fig.width / 2))).toBeLessThan(2);
 	});
 
 	it('receives stock into a drawer and shows it with its ledger row', async () => {
@@ -77,6 +119,8 @@ describe('catalogue and stock in Chromium (stockroom)', () => {
 		await Promise.all([page.waitForResponse((r) => r.url().includes('receive')), form.locator('button:has-text("Receive")').click()]);
 		await page.locator('[data-testid=stock-totals]', { hasText: '4 on hand · 4 available' }).waitFor();
 		await expect(page.locator('[data-testid=ledger]').innerText()).resolves.toContain('E2E delivery');
+		// Dates read the same on every page: "2 Dec 2026, 04:46".
+		await expect(page.locator('[data-testid=ledger] tbody tr:first-child td:first-child').innerText()).resolves.toMatch(/^\d{1,2} [A-Z][a-z]{2} \d{4}, \d{2}:\d{2}$/);
 		// Issuing more than is there is refused with a clear message.
 		await page.click('button[role=tab]:has-text("issue")');
 		const issue = page.locator('[data-testid=stock-form-issue]');

@@ -1,9 +1,9 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
-import { and, count, inArray, isNull } from 'drizzle-orm';
+import { and, count, desc, eq, inArray, isNull } from 'drizzle-orm';
 import { appUrl, openBrowser, screenshot, signIn } from '../../support/browser';
 import { testDb } from '../../support/env';
-import { parts } from '../../../src/lib/server/db/schema';
+import { parts, purchaseRequests, setups, users } from '../../../src/lib/server/db/schema';
 import { demoParts } from '../../../seed/demo-data';
 
 const { db, pool } = testDb();
@@ -49,20 +49,92 @@ describe('app shell in Chromium', () => {
 		await screenshot(page, 'overview-engineer');
 	});
 
-	it('answers an unknown address with the error page', async () => {
-		const res = await page.goto(appUrl('/no-such-page'));
-		expect(res?.status()).toBe(404);
-		await expect(page.locator('[data-testid=error-page]').innerText()).resolves.toContain('Nothing here');
+	it('shows the engineer their own saved setups on the overview, and no purchasing numbers', async () => {
+		// Save one setup through the API (solve, then save the first solution), as the build page does.
+		const origin = new URL(appUrl('/')).origin;
+		const post = (path: string, data: unknown) => page.request.post(appUrl(path), { data, headers: { origin } });
+		const solved = await (await post('/api/v1/solve', { maxElements: 1, trackMm: 1250, magnification: -0.25, objectNA: 0.005, objectHeightMm: 1, limit: 1 })).json();
+		expect(solved.solutions.length).toBe(1);
+		const s = solved.solutions[0];
+		const choice = {
+			elements: s.elements.map((e: { partId: number; reversed: boolean }) => ({ partId: e.partId, reversed: e.reversed })),
+			objectDistanceMm: s.objectDistanceMm,
+			gapsMm: s.gapsMm,
+			backDistanceMm: s.backDistanceMm
+		};
+		const name = `E2E overview relay ${Date.now().toString(36)}`;
+		const saved = await post('/api/v1/setups', { name, query: solved.request, choice });
+		expect(saved.status()).toBe(201);
+		const setup = (await saved.json()) as { id: number };
+		try {
+			await page.goto(appUrl('/'));
+			const section = page.locator('[data-testid=overview-setups]');
+			await expect(section.locator('h2').innerText()).resolves.toBe('Your saved setups');
+			await expect(section.locator(`a[href="/build/${setup.id}"]`).innerText()).resolves.toBe(name);
+			const [me] = await db.select({ id: users.id }).from(users).where(eq(users.email, 'engineer@tarnwell.example'));
+			const mine = await db.select({ id: setups.id }).from(setups).where(eq(setups.userId, me.id)).orderBy(desc(setups.id)).limit(5);
+			const links = await section.locator('a[href^="/build/"]').evaluateAll((as) => as.map((a) => a.getAttribute('href')));
+			expect(links.filter((h) => /^\/build\/\d+$/.test(h ?? ''))).toEqual(mine.map((m) => `/build/${m.id}`));
+			await expect(page.locator('[data-testid=overview-purchasing]').count()).resolves.toBe(0);
+			await expect(page.locator('.caution').innerText()).resolves.toContain('laser safety officer');
+		} finally {
+			await db.delete(setups).where(eq(setups.id, setup.id));
+		}
 	});
 
-	it('loads nothing from outside the app', async () => {
+	it('answers an unknown address with the error page and a helpful sentence', async () => {
+		const res = await page.goto(appUrl('/no-such-page'));
+		expect(res?.status()).toBe(404);
+		const text = await page.locator('[data-testid=error-page]').innerText();
+		expect(text).toContain('Nothing here');
+		expect(text).toContain('There is no page at /no-such-page.');
+		expect(text).not.toContain('Not Found');
+	});
+
+	it('loads nothing from outside the app, fonts only as files, and logs no console errors (CSP included)', async () => {
+		const origin = new URL(appUrl('/')).origin;
 		const external: string[] = [];
+		const inlineFonts: string[] = [];
+		const fontFiles: string[] = [];
+		const consoleErrors: string[] = [];
 		page.on('request', (r) => {
 			const u = new URL(r.url());
-			if (u.origin !== new URL(appUrl('/')).origin && u.protocol !== 'data:') external.push(r.url());
+			if (u.protocol === 'data:') {
+				if (r.url().startsWith('data:font/') || r.resourceType() === 'font') inlineFonts.push(r.url().slice(0, 40));
+			} else if (u.origin !== origin) external.push(r.url());
+			else if (r.resourceType() === 'font') fontFiles.push(u.pathname);
 		});
-		await page.goto(appUrl('/'));
-		await page.waitForLoadState('networkidle');
+		page.on('console', (m) => {
+			if (m.type() === 'error') consoleErrors.push(`${page.url()}: ${m.text().slice(0, 160)}`);
+		});
+		page.on('pageerror', (e) => consoleErrors.push(`${page.url()}: ${e.message}`));
+		for (const path of ['/', '/parts', '/stock']) {
+			await page.goto(appUrl(path));
+			await page.waitForLoadState('networkidle');
+			await page.evaluate(() => document.fonts.ready.then(() => undefined));
+		}
 		expect(external).toEqual([]);
+		expect(inlineFonts).toEqual([]);
+		expect(fontFiles.some((f) => /\.woff2?$/.test(f))).toBe(true);
+		// A font refused by the Content-Security-Policy shows up here as "Loading the font ... violates ...".
+		expect(consoleErrors).toEqual([]);
+	});
+
+	it('shows the purchaser the flagged parts and open requests, the same count the reorder board shows', async () => {
+		const other = await openBrowser();
+		try {
+			await signIn(other.page, 'purchaser@tarnwell.example');
+			await other.page.goto(appUrl('/'));
+			const flagged = Number(await other.page.locator('[data-testid=overview-flagged]').innerText());
+			const open = await db.select({ n: count() }).from(purchaseRequests).where(inArray(purchaseRequests.status, ['draft', 'requested', 'ordered', 'partly-received']));
+			await expect(other.page.locator('[data-testid=overview-open-requests]').innerText()).resolves.toBe(String(open[0].n));
+			await expect(other.page.locator('[data-testid=overview-setups]').count()).resolves.toBe(0);
+			await Promise.all([other.page.waitForURL((u) => u.pathname === '/reorder'), other.page.click('[data-testid=overview-flagged]')]);
+			await other.page.waitForFunction(() => document.documentElement.dataset.ready === '1');
+			await expect(other.page.locator('#board-show').inputValue()).resolves.toBe('flagged');
+			await expect(other.page.locator('[data-testid=reorder-row]').count()).resolves.toBe(flagged);
+		} finally {
+			await other.close();
+		}
 	});
 });

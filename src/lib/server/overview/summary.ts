@@ -1,4 +1,4 @@
-import { count, isNull, sql, eq } from 'drizzle-orm';
+import { and, count, countDistinct, desc, eq, gt, isNull, sql } from 'drizzle-orm';
 import type { DbOrTx } from '$lib/server/db';
 import { locations, parts, stock } from '$lib/server/db/schema';
 
@@ -11,4 +11,25 @@ export async function stockSummary(db: DbOrTx) {
 		.from(stock)
 		.where(eq(stock.condition, 'usable'));
 	return { parts: p.n, locations: l.n, usableUnits: Number(s.units) };
+}
+
+/**
+ * Parts with units in quarantine (waiting for inspection), most units first, at most `limit` of them,
+ * and how many such parts there are. Reads the stock table through its (condition, part, quantity) index.
+ */
+export async function quarantineParts(db: DbOrTx, limit = 5) {
+	const where = and(eq(stock.condition, 'quarantine'), gt(stock.quantity, 0));
+	const units = sql<string>`sum(${stock.quantity})`;
+	const [rows, [{ n }]] = await Promise.all([
+		db
+			.select({ partId: stock.partId, sku: parts.sku, name: parts.name, units })
+			.from(stock)
+			.innerJoin(parts, eq(parts.id, stock.partId))
+			.where(where)
+			.groupBy(stock.partId, parts.sku, parts.name)
+			.orderBy(desc(units), parts.sku)
+			.limit(limit),
+		db.select({ n: countDistinct(stock.partId) }).from(stock).where(where)
+	]);
+	return { total: Number(n), items: rows.map((r) => ({ partId: r.partId, sku: r.sku, name: r.name, units: Number(r.units) })) };
 }
