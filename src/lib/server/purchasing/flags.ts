@@ -15,9 +15,9 @@
  * notices roll back and the next check tries again (a part is reported at least once, never
  * twice while its flag stands, except when the commit itself fails after a successful send).
  */
-import { and, eq, inArray, isNotNull, isNull } from 'drizzle-orm';
+import { and, eq, gt, inArray, isNotNull, isNull, or, sql } from 'drizzle-orm';
 import type { DbOrTx } from '$lib/server/db';
-import { flagNotices, parts, suppliers, users } from '$lib/server/db/schema';
+import { flagNotices, parts, reservations, suppliers, users } from '$lib/server/db/schema';
 import { totalsFor } from '$lib/server/stock/availability';
 import { availableOf, flagReason, type FlagReason } from './rules';
 
@@ -35,7 +35,11 @@ export interface FlaggedPart {
 	reason: FlagReason;
 }
 
-/** Every part that is flagged now (see rules.ts), ordered by SKU. */
+/**
+ * Every part that is flagged now (see rules.ts), ordered by SKU. The rule is applied to the parts
+ * that can be flagged at all (a reorder point above 0, or active reservations), not to the whole
+ * catalogue: most parts of a large catalogue have neither.
+ */
 export async function flaggedParts(db: DbOrTx): Promise<FlaggedPart[]> {
 	const rows = await db
 		.select({
@@ -49,7 +53,22 @@ export async function flaggedParts(db: DbOrTx): Promise<FlaggedPart[]> {
 		})
 		.from(parts)
 		.leftJoin(suppliers, eq(suppliers.id, parts.supplierId))
-		.where(isNull(parts.archivedAt))
+		.where(
+			and(
+				isNull(parts.archivedAt),
+				// Only these can be flagged (rules.ts): a reorder point, or reservations that may exceed what is on hand.
+				or(
+					gt(parts.reorderPoint, 0),
+					inArray(
+						parts.id,
+						db
+							.select({ id: reservations.partId })
+							.from(reservations)
+							.where(and(eq(reservations.status, 'active'), gt(reservations.until, sql`utc_timestamp()`)))
+					)
+				)
+			)
+		)
 		.orderBy(parts.sku);
 	const totals = await totalsFor(
 		db,
