@@ -20,6 +20,13 @@ declare global {
 			/** How the request was authenticated. */
 			authVia: 'session' | 'token' | null;
 			tokenId: number | null;
+			/**
+			 * Two-step sign-in of this request: 'none' (not on for the user), 'pending' (a session
+			 * signed in with the password whose code is still missing: only /signin/code and sign-out
+			 * are reachable) or 'verified' (the session gave the code; for a token: its owner has
+			 * two-step sign-in on). Admin-only routes need 'verified' (guard.ts).
+			 */
+			secondFactor: 'none' | 'pending' | 'verified';
 			requestId: string;
 		}
 		// interface PageData {}

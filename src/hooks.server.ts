@@ -5,7 +5,7 @@ import { db } from '$lib/server/db';
 import { resolveSession } from '$lib/server/auth/sessions';
 import { resolveBearer } from '$lib/server/auth/tokens';
 import { errorResponse } from '$lib/server/api/http';
-import { isPublicPath } from '$lib/server/auth/public-paths';
+import { isHalfSignedInPath, isPublicPath, secondFactorPageFor } from '$lib/server/auth/public-paths';
 import { env } from '$env/dynamic/private';
 import { watchFlags } from '$lib/server/purchasing/watch';
 import { appStore } from '$lib/server/files/store';
@@ -17,15 +17,18 @@ const resolveUser: Handle = async ({ event, resolve }) => {
 	event.locals.session = null;
 	event.locals.authVia = null;
 	event.locals.tokenId = null;
+	event.locals.secondFactor = 'none';
 	const authz = event.request.headers.get('authorization');
 	if (authz && event.url.pathname.startsWith('/api/')) {
 		const match = /^Bearer\s+(\S+)$/i.exec(authz);
 		const found = match ? await resolveBearer(db, match[1]) : null;
 		if (!found) return errorResponse(401, 'invalid-token', 'The API token is not valid (unknown, revoked or expired).');
-		const { tokenId, ...user } = found;
+		const { tokenId, twoStep, ...user } = found;
 		event.locals.user = user;
 		event.locals.authVia = 'token';
 		event.locals.tokenId = tokenId;
+		// A token stands for its owner's sign-in: it counts as verified when the owner has two-step sign-in on.
+		event.locals.secondFactor = twoStep ? 'verified' : 'none';
 		return resolve(event);
 	}
 	const resolved = await resolveSession(event.cookies);
@@ -34,12 +37,22 @@ const resolveUser: Handle = async ({ event, resolve }) => {
 		event.locals.user = { id: user.id, email: user.email, name: user.name, role: user.role };
 		event.locals.session = session;
 		event.locals.authVia = 'session';
+		event.locals.secondFactor = user.twoStep ? (session.secondFactorAt ? 'verified' : 'pending') : 'none';
 	}
 	return resolve(event);
 };
 
-/** Deny by default: anything that is not explicitly public needs a signed-in user (routes still check roles). */
+/**
+ * Deny by default: anything that is not explicitly public needs a signed-in user (routes still check roles).
+ * A half-signed-in session (two-step code missing) reaches only the code page, sign-out and assets.
+ */
 const gate: Handle = async ({ event, resolve }) => {
+	if (event.locals.secondFactor === 'pending' && !isHalfSignedInPath(event.url.pathname, event.request.method)) {
+		if (event.url.pathname.startsWith('/api/')) {
+			return errorResponse(401, 'second-factor-required', 'Give your two-step sign-in code first: POST /api/v1/session/second-factor with { "code" }.');
+		}
+		return new Response(null, { status: 303, headers: { location: secondFactorPageFor(event.url) } });
+	}
 	if (event.locals.user || isPublicPath(event.url.pathname, event.request.method)) return resolve(event);
 	if (event.url.pathname.startsWith('/api/')) return errorResponse(401, 'unauthenticated', 'Sign in first.');
 	const back = event.url.pathname + event.url.search;

@@ -4,7 +4,8 @@ import { ROLE_LABELS } from '$lib/server/auth/roles';
 
 // Shapes only what the shell shows; each page's own load checks its role again.
 export const load = (async ({ locals }) => {
-	const user = locals.user;
+	// A half-signed-in session (two-step code still missing) gets the bare shell, like a visitor.
+	const user = locals.secondFactor === 'pending' ? null : locals.user;
 	return {
 		user: user ? { name: user.name, email: user.email, role: user.role, roleLabel: ROLE_LABELS[user.role] } : null,
 		nav: navFor(user?.role).map(({ href, label, match }) => ({ href, label, match: match ?? href }))

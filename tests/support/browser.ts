@@ -2,6 +2,7 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { chromium, type BrowserContext, type Page } from 'playwright-core';
+import type { TwoStepUser } from './two-step';
 
 /** Flags for Debian's Chromium on this closed network (see STACK.md). */
 export const CHROMIUM_ARGS = [
@@ -70,6 +71,20 @@ export async function signIn(page: Page, email: string, password = DEMO_PASSWORD
 	await page.fill('input[name=email]', email);
 	await page.fill('input[name=password]', password);
 	await Promise.all([page.waitForURL((u) => !u.pathname.startsWith('/signin')), page.click('button:has-text("Sign in")')]);
+}
+
+/**
+ * Signs a user with two-step sign-in in through the real forms: password, then the code page with a
+ * code computed from the user's known secret (see tests/support/two-step.ts); waits until past sign-in.
+ */
+export async function signInWithCode(page: Page, user: Pick<TwoStepUser, 'email' | 'password' | 'freshCode'>) {
+	await page.goto(appUrl('/signin'));
+	await page.fill('input[name=email]', user.email);
+	await page.fill('input[name=password]', user.password);
+	await Promise.all([page.waitForURL((u) => u.pathname === '/signin/code'), page.click('button:has-text("Sign in")')]);
+	await waitUntilReady(page);
+	await page.fill('input[name=code]', await user.freshCode());
+	await Promise.all([page.waitForURL((u) => !u.pathname.startsWith('/signin')), page.click('button:has-text("Continue")')]);
 }
 
 /** Saves a screenshot under TEST_TMP (or the OS temp dir) and returns its path. */

@@ -6,7 +6,8 @@ import { db } from '$lib/server/db';
 import { requireRole } from '$lib/server/auth/guard';
 import { ANY_ROLE, ROLE_LABELS } from '$lib/server/auth/roles';
 import { endOtherSessions, endSessionByHandle, listSessions } from '$lib/server/auth/sessions';
-import { zodFields } from '$lib/server/api/http';
+import { DomainError, zodFields } from '$lib/server/api/http';
+import * as twoStep from '$lib/server/accounts/two-step';
 import * as apiTokens from '$lib/server/accounts/api-tokens';
 import { changePassword, changePasswordSchema, confirmPassword } from '$lib/server/accounts/passwords';
 
@@ -16,9 +17,30 @@ export const load = (async (event) => {
 		me: { name: user.name, email: user.email, roleLabel: ROLE_LABELS[user.role] },
 		tokens: await apiTokens.list(db, user.id),
 		sessions: await listSessions(user.id, event.locals.session?.id ?? null),
-		expiryChoices: apiTokens.EXPIRY_CHOICES
+		expiryChoices: apiTokens.EXPIRY_CHOICES,
+		twoStep: {
+			...(await twoStep.status(db, user.id)),
+			setup: await twoStep.setupView(db, user, env.AUTH_PEPPER),
+			isAdmin: user.role === 'admin'
+		}
 	};
 }) satisfies PageServerLoad;
+
+/** A two-step form's failure: the code or password field, or a message for the whole form. */
+function twoStepRefusal(result: Exclude<twoStep.CodeResult, { ok: true }>) {
+	const field = result.reason === 'wrong-password' ? 'password' : 'code';
+	return fail(result.reason === 'throttled' ? 429 : 400, { form: 'twostep' as const, errors: { [field]: twoStep.refusalText(result) } as Record<string, string> });
+}
+
+/** Runs a two-step change; a domain error (already on, no set-up started, ...) becomes the form's message. */
+async function twoStepChange<T>(work: () => Promise<T>) {
+	try {
+		return { ok: true as const, value: await work() };
+	} catch (err) {
+		if (err instanceof DomainError) return { ok: false as const, failure: fail(err.status, { form: 'twostep' as const, message: err.message }) };
+		throw err;
+	}
+}
 
 const revokeSchema = z.object({ tokenId: z.coerce.number().int().positive() }).strict();
 const sessionSchema = z.object({ handle: z.string().regex(/^[0-9a-f]{24}$/) }).strict();
@@ -74,5 +96,37 @@ export const actions = {
 		if ((await event.request.formData()).get('confirm') !== 'yes') return fail(400, { form: 'sessions' as const, message: 'Use the button to sign out the other sessions.' });
 		await endOtherSessions(user.id, event.locals.session.id);
 		return { form: 'sessions' as const, done: 'Every other session is signed out.' };
+	},
+	startTwoStep: async (event) => {
+		const user = requireRole(event, ANY_ROLE);
+		// Only the button starts it (an empty post changes nothing).
+		if ((await event.request.formData()).get('confirm') !== 'yes') return fail(400, { form: 'twostep' as const, message: 'Use the button to start the set-up.' });
+		const run = await twoStepChange(() => twoStep.startSetup(db, user.id, env.AUTH_PEPPER));
+		if (!run.ok) return run.failure;
+		return { form: 'twostep' as const, started: true };
+	},
+	cancelTwoStep: async (event) => {
+		const user = requireRole(event, ANY_ROLE);
+		if ((await event.request.formData()).get('confirm') !== 'yes') return fail(400, { form: 'twostep' as const, message: 'Use the button to cancel the set-up.' });
+		await twoStep.cancelSetup(db, user.id);
+		return { form: 'twostep' as const, done: 'Set-up cancelled; two-step sign-in stays off.' };
+	},
+	confirmTwoStep: async (event) => {
+		const user = requireRole(event, ANY_ROLE);
+		const parsed = twoStep.codeSchema.safeParse(Object.fromEntries(await event.request.formData()));
+		if (!parsed.success) return fail(400, { form: 'twostep' as const, errors: zodFields(parsed.error) });
+		const run = await twoStepChange(() => twoStep.confirmSetup(db, user, event.locals.session?.id ?? null, parsed.data.code, env.AUTH_PEPPER));
+		if (!run.ok) return run.failure;
+		if (!run.value.ok) return twoStepRefusal(run.value);
+		return { form: 'twostep' as const, done: 'Two-step sign-in is on. From now on, signing in also asks for a code from your app.' };
+	},
+	turnOffTwoStep: async (event) => {
+		const user = requireRole(event, ANY_ROLE);
+		const parsed = twoStep.turnOffSchema.safeParse(Object.fromEntries(await event.request.formData()));
+		if (!parsed.success) return fail(400, { form: 'twostep' as const, errors: zodFields(parsed.error) });
+		const run = await twoStepChange(() => twoStep.turnOff(db, user, parsed.data, env.AUTH_PEPPER));
+		if (!run.ok) return run.failure;
+		if (!run.value.ok) return twoStepRefusal(run.value);
+		return { form: 'twostep' as const, done: 'Two-step sign-in is off. Signing in asks only for your password again.' };
 	}
 } satisfies Actions;

@@ -6,6 +6,7 @@ import { attemptSignin, INVALID_CREDENTIALS, safeRedirect, signinSchema, throttl
 import { startSession } from '$lib/server/auth/sessions';
 import { requireRole } from '$lib/server/auth/guard';
 import { PUBLIC } from '$lib/server/auth/roles';
+import { SECOND_FACTOR_PAGE } from '$lib/server/auth/public-paths';
 
 export const load = (async (event) => {
 	// Public page. A signed-in user goes straight on.
@@ -30,6 +31,9 @@ export const actions = {
 		}
 		if (!result.ok) return fail(400, { email: values.email, message: INVALID_CREDENTIALS });
 		await startSession(result.user.id, cookies, request.headers.get('user-agent'));
-		redirect(303, safeRedirect(url.searchParams.get('redirectTo')));
+		const to = safeRedirect(url.searchParams.get('redirectTo'));
+		// With two-step sign-in on, the session is only half signed in until the code is given.
+		if (result.user.totpEnabledAt) redirect(303, to === '/' ? SECOND_FACTOR_PAGE : `${SECOND_FACTOR_PAGE}?redirectTo=${encodeURIComponent(to)}`);
+		redirect(303, to);
 	}
 } satisfies Actions;

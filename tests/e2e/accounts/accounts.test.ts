@@ -1,7 +1,8 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
-import { appUrl, DEMO_PASSWORD, openBrowser, screenshot, signIn } from '../../support/browser';
+import { appUrl, DEMO_PASSWORD, openBrowser, screenshot, signIn, signInWithCode } from '../../support/browser';
 import { testDb } from '../../support/env';
+import { twoStepAdmin } from '../../support/two-step';
 import { signinFailures } from '../../../src/lib/server/db/schema';
 
 describe('accounts in Chromium', () => {
@@ -53,7 +54,8 @@ describe('accounts in Chromium', () => {
 
 	it('shows the admin the users table and the outbox', async () => {
 		await page.context().clearCookies();
-		await signIn(page, 'admin@tarnwell.example');
+		// The admin pages need two-step sign-in: a throwaway administrator who has it (tests/support/two-step.ts).
+		await signInWithCode(page, await twoStepAdmin(db, 'e2e-accounts'));
 		const nav = await page.locator('nav[aria-label=Main]').innerText();
 		expect(nav).toContain('Admin');
 		await page.goto(appUrl('/admin/users'));

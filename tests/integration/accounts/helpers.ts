@@ -3,6 +3,7 @@ import { desc, like } from 'drizzle-orm';
 import { testEnv } from '../../support/env';
 import type { Db } from '../../../src/lib/server/db/client';
 import { outboxMessages, signinFailures } from '../../../src/lib/server/db/schema';
+import type { TwoStepUser } from '../../support/two-step';
 
 export const APP = () => testEnv('APP_URL');
 export const DEMO_PASSWORD = () => process.env.DEMO_PASSWORD || 'tarnwell-bench-2026';
@@ -84,4 +85,20 @@ export function linkIn(text: string | null): string {
 /** Forgets all throttle counters, so that one test's failures do not block the next. */
 export async function clearThrottle(db: Db) {
 	await db.delete(signinFailures);
+}
+
+export { twoStepAdmin, type TwoStepUser } from '../../support/two-step';
+
+/**
+ * Signs a two-step user in over the API (password, then a fresh code) and returns the cookie of the
+ * full session, failing loudly when a step does not work.
+ */
+export async function cookieWithCode(user: TwoStepUser) {
+	const { res, cookie } = await signInApi(user.email, user.password);
+	const body = await res.json();
+	if (res.status !== 200 || !cookie || body.secondFactorRequired !== true) throw new Error(`password step of ${user.email} gave ${res.status}: ${JSON.stringify(body)}`);
+	const second = await api('POST', '/api/v1/session/second-factor', { cookie }, { code: await user.freshCode() });
+	const full = sessionCookie(second);
+	if (second.status !== 200 || !full) throw new Error(`code step of ${user.email} gave ${second.status}: ${await second.text()}`);
+	return full;
 }

@@ -2,7 +2,7 @@ import { afterAll, afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { eq, sql } from 'drizzle-orm';
 import { testDb } from '../../support/env';
 import { authLinks, auditEvents, users } from '../../../src/lib/server/db/schema';
-import { APP, api, clearThrottle, cookieFor, lastOutboxId, linkIn, postForm, signInApi, waitForMail } from './helpers';
+import { APP, api, clearThrottle, cookieFor, cookieWithCode, lastOutboxId, linkIn, postForm, signInApi, twoStepAdmin, waitForMail } from './helpers';
 
 const { db, pool } = testDb();
 afterAll(() => pool.end());
@@ -14,8 +14,11 @@ const NEW_PASSWORD = 'violet prism on the third shelf';
 let n = 0;
 const fresh = () => `invitee-${Date.now()}-${n++}@tarnwell.example`;
 
+/** The admin pages need two-step sign-in: this file's own administrator has it (tests/support/two-step.ts). */
+const adminCookie = async () => cookieWithCode(await twoStepAdmin(db, 'links-test'));
+
 async function invite(email: string, role = 'engineer') {
-	const admin = await cookieFor('admin@tarnwell.example');
+	const admin = await adminCookie();
 	const since = await lastOutboxId(db);
 	const res = await postForm('/admin/users?/invite', { email, name: 'Invited Person', role }, { cookie: admin });
 	expect(res.status).toBe(200);
@@ -107,8 +110,8 @@ describe('invitations and password resets by one-time link', () => {
 		expect((await signInApi(email, NEW_PASSWORD)).res.status).toBe(401);
 	});
 
-	it('lists the captured mail for admins only, newest first', async () => {
-		const admin = await cookieFor('admin@tarnwell.example');
+	it('lists the captured mail for admins only (with two-step sign-in), newest first', async () => {
+		const admin = await adminCookie();
 		const res = await api('GET', '/api/v1/outbox?limit=5', { cookie: admin });
 		expect(res.status).toBe(200);
 		const items = (await res.json()).items as { id: number; subject: string; receivedAt: string }[];
@@ -119,6 +122,7 @@ describe('invitations and password resets by one-time link', () => {
 		const engineer = await cookieFor('engineer@tarnwell.example');
 		expect((await api('GET', '/api/v1/outbox', { cookie: engineer })).status).toBe(403);
 		expect((await api('GET', '/api/v1/outbox')).status).toBe(401);
+		expect((await api('GET', '/api/v1/outbox', { cookie: await cookieFor('admin@tarnwell.example') })).status).toBe(403);
 		const page = await fetch(new URL(`/admin/outbox/${items[0].id}`, APP()), { headers: { cookie: admin } });
 		expect(page.status).toBe(200);
 		expect(await page.text()).toContain(items[0].subject.replace(/&/g, '&amp;'));

@@ -2,24 +2,40 @@
  * The role matrix: every route of the route tree × {anonymous, admin, stockroom, engineer, purchaser},
  * checked against route-access.ts. Allowed = not 401/403; denied = 403 for a signed-in wrong role,
  * 401 (API) or 303 to /signin (pages) for anonymous. Runs against the built app at APP_URL.
+ *
+ * Two-step sign-in: 'admin' is a throwaway administrator with two-step sign-in on and a session that
+ * gave its code. Two more identities are walked: the demo admin, who has not set it up (admin-only
+ * routes: 403; everything else as for an administrator), and a half-signed-in session (password
+ * given, code missing: only HALF_SIGNED_IN below; pages otherwise 303 to /signin/code, the API 401).
  */
 import fs from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { ROUTES_DIR, exportedMethods, routeModules } from '../../unit/api/route-files';
 import { ROUTE_ACCESS, type Access, type Method } from './route-access';
-import { APP, clearThrottle, cookieFor } from './helpers';
+import { APP, clearThrottle, cookieFor, cookieWithCode, signInApi, twoStepAdmin, type TwoStepUser } from './helpers';
 import { testDb } from '../../support/env';
 import type { Role } from '../../../src/lib/server/db/schema';
 
-const DEMO: Record<Role, string> = {
-	admin: 'admin@tarnwell.example',
+const DEMO: Record<Exclude<Role, 'admin'>, string> = {
 	stockroom: 'stockroom@tarnwell.example',
 	engineer: 'engineer@tarnwell.example',
 	purchaser: 'purchaser@tarnwell.example'
 };
-const IDENTITIES = ['anonymous', 'admin', 'stockroom', 'engineer', 'purchaser'] as const;
+const DEMO_ADMIN = 'admin@tarnwell.example';
+const IDENTITIES = ['anonymous', 'admin', 'stockroom', 'engineer', 'purchaser', 'admin-without-two-step', 'half-signed-in'] as const;
 type Identity = (typeof IDENTITIES)[number];
+
+/** What a half-signed-in session may reach (the rest: 303 to /signin/code or 401). */
+const HALF_SIGNED_IN = new Set([
+	'/signin/code GET',
+	'/signin/code action:default',
+	'/signout GET',
+	'/signout action:default',
+	'/api/v1/session DELETE',
+	'/api/v1/session/second-factor POST',
+	'/health GET'
+]);
 
 interface Probe {
 	routeId: string;
@@ -59,13 +75,33 @@ function accessOf(p: Probe): Access | undefined {
 	return p.what.startsWith('action:') ? entry.actions?.[p.what.slice(7)] : entry[p.what as Method];
 }
 
-const allowed = (access: Access, who: Identity) => access === 'public' || (who !== 'anonymous' && access.includes(who));
+const roleOf = (who: Identity): Role | null => (who === 'anonymous' || who === 'half-signed-in' ? null : who === 'admin-without-two-step' ? 'admin' : who);
+const allowed = (access: Access, who: Identity) => {
+	const role = roleOf(who);
+	return access === 'public' || (role !== null && access.includes(role));
+};
+const adminOnly = (access: Access) => access !== 'public' && access.length > 0 && access.every((r) => r === 'admin');
 
 const { db, pool } = testDb();
 const cookies: Partial<Record<Identity, string>> = {};
+let admin: TwoStepUser;
+
+/** A new session of the identity (a half-signed-in one: the admin's password without the code). */
+async function signInAs(who: Exclude<Identity, 'anonymous'>): Promise<string> {
+	if (who === 'admin') return cookieWithCode(admin);
+	if (who === 'admin-without-two-step') return cookieFor(DEMO_ADMIN);
+	if (who === 'half-signed-in') {
+		const { res, cookie } = await signInApi(admin.email, admin.password);
+		if (res.status !== 200 || !cookie) throw new Error(`half sign-in gave ${res.status}`);
+		return cookie;
+	}
+	return cookieFor(DEMO[who]);
+}
+
 beforeAll(async () => {
 	await clearThrottle(db);
-	for (const role of Object.keys(DEMO) as Role[]) cookies[role] = await cookieFor(DEMO[role]);
+	admin = await twoStepAdmin(db, 'role-matrix');
+	for (const who of IDENTITIES) if (who !== 'anonymous') cookies[who] = await signInAs(who);
 });
 afterAll(() => pool.end());
 
@@ -73,7 +109,7 @@ async function send(p: Probe, who: Identity) {
 	const entry = ROUTE_ACCESS[p.routeId];
 	const target = new URL(entry.url ?? p.routeId, APP());
 	let cookie = who === 'anonymous' ? undefined : cookies[who];
-	if (entry.endsSession && who !== 'anonymous' && p.what !== 'GET') cookie = await cookieFor(DEMO[who as Role]);
+	if (entry.endsSession && who !== 'anonymous' && p.what !== 'GET') cookie = await signInAs(who);
 	const headers: Record<string, string> = { origin: APP() };
 	if (cookie) headers.cookie = cookie;
 	let method = p.what;
@@ -123,7 +159,14 @@ describe('role matrix', () => {
 				const toSignin = res.status === 303 && location.startsWith('/signin');
 				const ok = allowed(access, who);
 				await res.body?.cancel();
-				if (ok) {
+				if (who === 'half-signed-in') {
+					const reachable = HALF_SIGNED_IN.has(`${p.routeId} ${p.what}`);
+					const sentToCode = p.kind === 'endpoint' ? res.status === 401 : res.status === 303 && location.startsWith('/signin/code');
+					if (reachable && (res.status === 401 || res.status === 403 || sentToCode)) wrong.push(`${who}: expected reachable, got ${res.status} ${location}`);
+					if (!reachable && !sentToCode) wrong.push(`${who}: expected ${p.kind === 'endpoint' ? '401' : '303 to /signin/code'}, got ${res.status} ${location}`);
+				} else if (who === 'admin-without-two-step' && adminOnly(access)) {
+					if (res.status !== 403) wrong.push(`${who}: expected 403 (two-step sign-in not set up), got ${res.status} ${location}`);
+				} else if (ok) {
 					if (res.status === 401 || res.status === 403 || (who === 'anonymous' && toSignin && p.routeId !== '/signin'))
 						wrong.push(`${who}: expected allowed, got ${res.status} ${location}`);
 				} else if (who === 'anonymous') {

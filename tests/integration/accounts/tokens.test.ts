@@ -2,7 +2,7 @@ import { afterAll, afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { eq, like, sql } from 'drizzle-orm';
 import { testDb } from '../../support/env';
 import { apiTokens, auditEvents, sessions, users } from '../../../src/lib/server/db/schema';
-import { api, clearThrottle, cookieFor, DEMO_PASSWORD, lastOutboxId, waitForMail } from './helpers';
+import { api, clearThrottle, cookieFor, cookieWithCode, DEMO_PASSWORD, lastOutboxId, twoStepAdmin, waitForMail } from './helpers';
 
 const { db, pool } = testDb();
 afterAll(async () => {
@@ -82,7 +82,7 @@ describe('personal API tokens', () => {
 
 	it('makes a deactivated user’s sessions and tokens stop working at once', async () => {
 		const victim = await newToken('engineer2@tarnwell.example', 'before deactivation');
-		const admin = await cookieFor('admin@tarnwell.example');
+		const admin = await cookieWithCode(await twoStepAdmin(db, 'tokens-test'));
 		const [u] = await db.select().from(users).where(eq(users.email, 'engineer2@tarnwell.example'));
 		const res = await fetch(new URL('/admin/users?/deactivate', process.env.APP_URL).toString(), {
 			method: 'POST',

@@ -12,7 +12,7 @@ import * as t from '../../../src/lib/server/db/schema';
 import * as parts from '../../../src/lib/server/catalogue/parts';
 import { recomputeDerived, setDefaultWavelength } from '../../../src/lib/server/catalogue/lab-settings';
 import { getDefaultWavelengthNm } from '../../../src/lib/server/catalogue/settings';
-import { APP, cookieFor, url } from '../accounts/helpers';
+import { APP, cookieFor, cookieWithCode, twoStepAdmin, url } from '../accounts/helpers';
 
 const { db, pool } = testDb();
 const tag = `LS${Date.now().toString(36).toUpperCase()}`;
@@ -103,21 +103,23 @@ describe('lab default wavelength', () => {
 
 	it('answers the settings form: a clear message for a bad value, 403 for other roles', async () => {
 		const lab = await getDefaultWavelengthNm(db);
-		const post = async (email: string, value: string) => {
+		// The admin pages need two-step sign-in: this file's own administrator has it (tests/support/two-step.ts).
+		const admin = await cookieWithCode(await twoStepAdmin(db, 'lab-settings'));
+		const post = async (cookie: string, value: string) => {
 			const res = await fetch(url('/admin/settings?/wavelength'), {
 				method: 'POST',
-				headers: { cookie: await cookieFor(email), origin: APP(), 'content-type': 'application/x-www-form-urlencoded', 'x-sveltekit-action': 'true', accept: 'application/json' },
+				headers: { cookie, origin: APP(), 'content-type': 'application/x-www-form-urlencoded', 'x-sveltekit-action': 'true', accept: 'application/json' },
 				body: new URLSearchParams({ defaultWavelengthNm: value }).toString()
 			});
 			return { status: res.status, body: await res.json() };
 		};
-		const bad = await post('admin@tarnwell.example', '2000');
+		const bad = await post(admin, '2000');
 		expect(bad.body).toMatchObject({ type: 'failure', status: 400 });
 		expect(bad.body.data).toMatch(/Between 365 and 1100 nm/);
-		const engineer = await post('engineer@tarnwell.example', '632.8');
+		const engineer = await post(await cookieFor('engineer@tarnwell.example'), '632.8');
 		expect(engineer.status === 403 || engineer.body?.status === 403).toBe(true);
 		expect(await getDefaultWavelengthNm(db)).toBe(lab);
-		const page = await fetch(url('/admin/settings'), { headers: { cookie: await cookieFor('admin@tarnwell.example') } });
+		const page = await fetch(url('/admin/settings'), { headers: { cookie: admin } });
 		expect(await page.text()).toContain(`${lab} nm`);
 	});
 });

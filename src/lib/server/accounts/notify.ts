@@ -69,3 +69,26 @@ export const noticeTokenCreated = (to: string, tokenName: string) =>
 
 export const noticeRoleChanged = (to: string, role: Role) =>
 	notice(to, 'Your Glasscrib role changed', `Your Glasscrib role is now: ${ROLE_LABELS[role]}.`);
+
+export const noticeTwoStepOn = (to: string) =>
+	notice(
+		to,
+		'Two-step sign-in is on for your Glasscrib account',
+		'Two-step sign-in was just turned on for your Glasscrib account: signing in now also asks for a code from your authenticator app. If that was not you, ask the lab administrator to lock the account.'
+	);
+
+export const noticeTwoStepOff = (to: string) =>
+	notice(
+		to,
+		'Two-step sign-in is off for your Glasscrib account',
+		'Two-step sign-in was just turned off for your Glasscrib account: signing in asks only for your password again. If that was not you, change your password and ask the lab administrator to lock the account.'
+	);
+
+export const noticeTwoStepCleared = (to: string, byName: string) =>
+	notice(
+		to,
+		'Your Glasscrib two-step sign-in was removed',
+		`${byName}, an administrator, removed two-step sign-in from your Glasscrib account (for example after a lost phone). ` +
+			'Sign in with your password and set it up again on your account page; administrators need it for the admin pages. ' +
+			'If you did not ask for this, tell the lab administrator.'
+	);

@@ -45,12 +45,14 @@ export async function list(db: Db) {
 			role: users.role,
 			status: users.status,
 			hasPassword: users.passwordHash,
+			totpEnabledAt: users.totpEnabledAt,
 			createdAt: users.createdAt
 		})
 		.from(users)
 		.orderBy(asc(users.name));
-	return rows.map(({ hasPassword, status, ...u }) => ({
+	return rows.map(({ hasPassword, status, totpEnabledAt, ...u }) => ({
 		...u,
+		twoStep: totpEnabledAt !== null,
 		state: (status === 'disabled' ? 'deactivated' : hasPassword ? 'active' : 'invited') as UserState
 	}));
 }

@@ -25,27 +25,32 @@ export const lucia = new Lucia(adapter, {
 		expires: false,
 		attributes: { secure, sameSite: 'lax', path: '/' }
 	},
-	getUserAttributes: (a) => ({ email: a.email, name: a.name, role: a.role, status: a.status }),
-	getSessionAttributes: (a) => ({ createdAt: a.createdAt })
+	getUserAttributes: (a) => ({ email: a.email, name: a.name, role: a.role, status: a.status, twoStep: a.totpEnabledAt !== null }),
+	getSessionAttributes: (a) => ({ createdAt: a.createdAt, secondFactorAt: a.secondFactorAt ?? null })
 });
 
 declare module 'lucia' {
 	interface Register {
 		Lucia: typeof lucia;
 		UserId: number;
-		DatabaseUserAttributes: { email: string; name: string; role: Role; status: 'active' | 'disabled' };
-		DatabaseSessionAttributes: { createdAt: Date };
+		DatabaseUserAttributes: { email: string; name: string; role: Role; status: 'active' | 'disabled'; totpEnabledAt: Date | null };
+		DatabaseSessionAttributes: { createdAt: Date; secondFactorAt: Date | null };
 	}
 }
 
 export const SESSION_COOKIE = lucia.sessionCookieName;
 
-/** Starts a new session for a user (a fresh random id at every sign-in) and sets its cookie. */
-export async function startSession(userId: number, cookies: Cookies, userAgent?: string | null) {
+/**
+ * Starts a new session for a user (a fresh random id at every sign-in) and sets its cookie. A session
+ * of a user with two-step sign-in starts without `secondFactorAt`; the hooks gate then lets it reach
+ * only /signin/code until the code is given (completeSecondFactor).
+ */
+export async function startSession(userId: number, cookies: Cookies, userAgent?: string | null, secondFactorAt: Date | null = null) {
 	const session = await lucia.createSession(userId, {
 		createdAt: new Date(),
+		secondFactorAt,
 		...(userAgent ? { userAgent: userAgent.slice(0, 255) } : {})
-	} as unknown as { createdAt: Date });
+	} as unknown as { createdAt: Date; secondFactorAt: Date | null });
 	const cookie = lucia.createSessionCookie(session.id);
 	cookies.set(cookie.name, cookie.value, { ...cookie.attributes, path: '/' });
 	return session;
@@ -74,6 +79,16 @@ export async function resolveSession(cookies: Cookies) {
 		cookies.set(cookie.name, cookie.value, { ...cookie.attributes, path: '/' });
 	}
 	return { session, user };
+}
+
+/**
+ * After the two-step code was accepted at sign-in: replaces the half-signed-in session by a new one
+ * (new id, so a cookie seen before the code was given is worth nothing) marked with the second factor.
+ */
+export async function completeSecondFactor(session: Session, userId: number, cookies: Cookies, userAgent?: string | null) {
+	const next = await startSession(userId, cookies, userAgent, new Date());
+	await lucia.invalidateSession(session.id);
+	return next;
 }
 
 /** Ends one session on the server and clears its cookie. */

@@ -16,7 +16,9 @@ export const buckets = {
 	account: (email: string) => `account:${email.trim().toLowerCase()}`.slice(0, 300),
 	ip: (address: string) => `ip:${address}`.slice(0, 300),
 	resetAccount: (email: string) => `reset:${email.trim().toLowerCase()}`.slice(0, 300),
-	resetIp: (address: string) => `reset-ip:${address}`.slice(0, 300)
+	resetIp: (address: string) => `reset-ip:${address}`.slice(0, 300),
+	/** Wrong two-step codes (and wrong passwords when turning it off) of one user. */
+	secondFactor: (userId: number) => `totp:${userId}`
 };
 
 /**

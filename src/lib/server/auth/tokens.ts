@@ -22,6 +22,8 @@ export interface TokenUser {
 	name: string;
 	role: Role;
 	tokenId: number;
+	/** The owner has two-step sign-in on (admin-only endpoints accept only such tokens). */
+	twoStep: boolean;
 }
 
 /** Finds the active user behind a bearer token, or null (unknown, revoked, expired, or user disabled). */
@@ -29,7 +31,7 @@ export async function resolveBearer(db: DbOrTx, token: string): Promise<TokenUse
 	if (!token.startsWith(TOKEN_PREFIX) || token.length > 100) return null;
 	const now = new Date();
 	const [row] = await db
-		.select({ id: users.id, email: users.email, name: users.name, role: users.role, tokenId: apiTokens.id })
+		.select({ id: users.id, email: users.email, name: users.name, role: users.role, tokenId: apiTokens.id, totpEnabledAt: users.totpEnabledAt })
 		.from(apiTokens)
 		.innerJoin(users, eq(users.id, apiTokens.userId))
 		.where(
@@ -52,5 +54,6 @@ export async function resolveBearer(db: DbOrTx, token: string): Promise<TokenUse
 				or(isNull(apiTokens.lastUsedAt), sql`${apiTokens.lastUsedAt} < ${new Date(now.getTime() - 60_000)}`)
 			)
 		);
-	return row;
+	const { totpEnabledAt, ...rest } = row;
+	return { ...rest, twoStep: totpEnabledAt !== null };
 }

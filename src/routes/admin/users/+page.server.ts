@@ -6,6 +6,7 @@ import { requireRole } from '$lib/server/auth/guard';
 import { ADMINS, ROLE_LABELS } from '$lib/server/auth/roles';
 import { DomainError, zodFields } from '$lib/server/api/http';
 import * as accounts from '$lib/server/accounts/users';
+import * as twoStep from '$lib/server/accounts/two-step';
 
 export const load = (async (event) => {
 	const me = requireRole(event, ADMINS);
@@ -61,5 +62,15 @@ export const actions = {
 		const parsed = accounts.userIdSchema.safeParse(Object.fromEntries(await event.request.formData()));
 		if (!parsed.success) return fail(400, { row: null, message: 'Choose a user.' });
 		return rowChange(parsed.data.userId, () => accounts.resendInvite(db, me, parsed.data.userId), 'A new invitation was sent; the old link no longer works.');
+	},
+	clearTwoStep: async (event) => {
+		const me = requireRole(event, ADMINS);
+		const parsed = accounts.userIdSchema.safeParse(Object.fromEntries(await event.request.formData()));
+		if (!parsed.success) return fail(400, { row: null, message: 'Choose a user.' });
+		return rowChange(
+			parsed.data.userId,
+			() => twoStep.clearByAdmin(db, me, parsed.data.userId),
+			'Two-step sign-in removed: they sign in with the password and can set it up again. They were told by mail.'
+		);
 	}
 } satisfies Actions;

@@ -31,19 +31,45 @@ export const accountsPaths: OpenApiPaths = {
 		post: {
 			summary: 'Sign in (sets the session cookie)',
 			security: [],
-			description: 'Throttled: after 5 failures within 15 minutes for the account or the client address, 429 with Retry-After.',
+			description:
+				'Throttled: after 5 failures within 15 minutes for the account or the client address, 429 with Retry-After. ' +
+				'With two-step sign-in on, `secondFactorRequired` is true and the new session may only call POST /session/second-factor ' +
+				'(or DELETE /session) until the code is given; other calls answer 401 `second-factor-required`.',
 			requestBody: jsonBody({
 				type: 'object',
 				required: ['email', 'password'],
 				additionalProperties: false,
 				properties: { email: { type: 'string', format: 'email' }, password: { type: 'string' } }
 			}),
-			responses: { '200': jsonResponse('Signed in', { type: 'object', properties: { user } }), ...errors(400, 401, 415, 429) }
+			responses: {
+				'200': jsonResponse('Signed in (with two-step sign-in: half signed in)', {
+					type: 'object',
+					properties: { user, secondFactorRequired: { type: 'boolean' } }
+				}),
+				...errors(400, 401, 415, 429)
+			}
 		},
 		delete: {
 			summary: 'Sign out (ends the session on the server)',
 			security: [{ session: [] }],
 			responses: { '204': { description: 'Signed out' }, ...errors(400, 401, 403) }
+		}
+	},
+	'/session/second-factor': {
+		post: {
+			summary: 'Give the two-step sign-in code (second step of signing in)',
+			description:
+				'For a session that POST /session left half signed in. On success the session is replaced by a new one (new cookie). ' +
+				'A code works once (401 `used-code`); wrong codes: 401 `wrong-code`, 5 in 15 minutes per user → 429 with Retry-After. ' +
+				'409 `no-code-needed` for a session that needs none; 400 `no-session` with a token.',
+			security: [{ session: [] }],
+			requestBody: jsonBody({
+				type: 'object',
+				required: ['code'],
+				additionalProperties: false,
+				properties: { code: { type: 'string', pattern: '^[0-9 ]{6,7}$', description: '6 digits from the authenticator app' } }
+			}),
+			responses: { '200': jsonResponse('Signed in', { type: 'object', properties: { user } }), ...errors(400, 401, 409, 415, 429) }
 		}
 	},
 	'/me': {
@@ -96,6 +122,7 @@ export const accountsPaths: OpenApiPaths = {
 	'/outbox': {
 		get: {
 			summary: 'Mail captured by the local mail fake (administrators)',
+			description: 'Administrators with two-step sign-in only: a session that gave the code, or a token whose owner has it on (else 403 `second-factor-not-set-up`).',
 			parameters: [
 				{ name: 'to', in: 'query', schema: { type: 'string' }, description: 'recipient contains' },
 				{ name: 'limit', in: 'query', schema: { type: 'integer', minimum: 1, maximum: 500, default: 100 } }

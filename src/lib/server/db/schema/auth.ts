@@ -9,7 +9,8 @@ import {
 	uniqueIndex,
 	varchar,
 	char,
-	int
+	int,
+	bigint
 } from 'drizzle-orm/mysql-core';
 import { id, ref } from './columns';
 
@@ -28,6 +29,17 @@ export const users = mysqlTable(
 		/** Argon2id hash; null until the invite is accepted. */
 		passwordHash: varchar('password_hash', { length: 255 }),
 		status: mysqlEnum('status', ['active', 'disabled']).notNull().default('active'),
+		/**
+		 * Two-step sign-in (TOTP, RFC 6238): the shared secret, encrypted with AES-256-GCM under a key
+		 * derived from AUTH_PEPPER (auth/totp.ts; base64url of iv, tag and ciphertext). Null when off.
+		 */
+		totpSecret: varchar('totp_secret', { length: 255 }),
+		/** When two-step sign-in was turned on; null = off. */
+		totpEnabledAt: datetime('totp_enabled_at'),
+		/** The time step (unix seconds / 30) of the last accepted code: that step and older ones are refused (replay). */
+		totpLastStep: bigint('totp_last_step', { mode: 'number' }),
+		/** A secret shown during set-up and not yet confirmed with a code (encrypted like totp_secret). */
+		totpPendingSecret: varchar('totp_pending_secret', { length: 255 }),
 		createdAt: timestamp('created_at').notNull().defaultNow(),
 		updatedAt: timestamp('updated_at').notNull().defaultNow().onUpdateNow()
 	},
@@ -44,7 +56,9 @@ export const sessions = mysqlTable(
 			.references(() => users.id, { onDelete: 'cascade' }),
 		expiresAt: datetime('expires_at').notNull(),
 		createdAt: datetime('created_at').notNull().$defaultFn(() => new Date()),
-		userAgent: varchar('user_agent', { length: 255 })
+		userAgent: varchar('user_agent', { length: 255 }),
+		/** When a two-step sign-in code was given in this session; null until then. */
+		secondFactorAt: datetime('second_factor_at')
 	},
 	(t) => [index('sessions_user_idx').on(t.userId)]
 );

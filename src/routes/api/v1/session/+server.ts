@@ -8,7 +8,11 @@ import { ANY_ROLE, PUBLIC } from '$lib/server/auth/roles';
 import { endSession, startSession } from '$lib/server/auth/sessions';
 import { attemptSignin, INVALID_CREDENTIALS, signinSchema, throttledMessage } from '$lib/server/accounts/signin';
 
-/** Signs in: `{ email, password }` → `{ user }` and the session cookie. Throttled (429 + Retry-After). */
+/**
+ * Signs in: `{ email, password }` → `{ user, secondFactorRequired }` and the session cookie. Throttled
+ * (429 + Retry-After). With two-step sign-in on, `secondFactorRequired` is true and the session can do
+ * nothing but `POST /api/v1/session/second-factor` (or sign out) until the code is given.
+ */
 export const POST = endpoint(async (event) => {
 	requireRole(event, PUBLIC);
 	const input = signinSchema.parse(await readJson(event.request));
@@ -21,7 +25,7 @@ export const POST = endpoint(async (event) => {
 	if (!result.ok) throw new ApiError(401, 'invalid-credentials', INVALID_CREDENTIALS);
 	await startSession(result.user.id, event.cookies, event.request.headers.get('user-agent'));
 	const { id, email, name, role } = result.user;
-	return json({ user: { id, email, name, role } });
+	return json({ user: { id, email, name, role }, secondFactorRequired: result.user.totpEnabledAt !== null });
 }) satisfies RequestHandler;
 
 /** Signs out: ends the session on the server and clears the cookie. */
