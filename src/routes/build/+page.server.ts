@@ -8,6 +8,7 @@ import { ApiError, DomainError, zodFields } from '$lib/server/api/http';
 import { unlockForQuestion } from '$lib/server/purchasing/unlock-search';
 import { listProjects } from '$lib/server/stock/projects';
 import * as form from '$lib/server/solver/form';
+import { getDefaultWavelengthNm } from '$lib/server/catalogue/settings';
 import * as setups from '$lib/server/solver/setups';
 import * as setupList from '$lib/server/solver/setup-list';
 
@@ -21,7 +22,7 @@ import * as solver from '$lib/server/solver/service';
  */
 export const load = (async (event) => {
 	const user = requireRole(event, SOLVER_USERS);
-	const parsed = form.readForm(event.url.searchParams);
+	const parsed = form.readForm(event.url.searchParams, form.formDefaults(await getDefaultWavelengthNm(db)));
 	let ssr: Awaited<ReturnType<typeof solver.solve>> | null = null;
 	let ssrError: string | null = null;
 	if (parsed.request && event.url.searchParams.get('nojs') === '1') {
@@ -68,7 +69,7 @@ export const actions = {
 	 */
 	unlock: async (event) => {
 		const user = requireRole(event, SOLVER_USERS);
-		const parsed = form.readForm(event.url.searchParams);
+		const parsed = form.readForm(event.url.searchParams, form.formDefaults(await getDefaultWavelengthNm(db)));
 		if (!parsed.request) return fail(400, { unlock: { error: 'Ask a complete question first: the form above has a field to fix.' } });
 		try {
 			return { unlock: { answer: await unlockForQuestion(db, parsed.request, { id: user.id }, event.request.signal) } };

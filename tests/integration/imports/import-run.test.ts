@@ -159,6 +159,25 @@ describe('bad rows: a clear message per row and nothing half-written', () => {
 		expect(report.counts.rejected).toBe(6);
 	});
 
+	it('lists every problem of a row at once, and says how to read prices written with decimals', async () => {
+		const q = `${tag}-MULTI-`;
+		// Row 2: an unreadable price and a radius too small for the diameter. Row 3 (a ;-file read as cents): 12,50.
+		const multi = PCX_HEADER + '\n' + pcxRow(`${q}1`, 1).replace(/,25\.4,[0-9.]+,/, ',25.4,10,').replace(/,\d+$/, ',cheap') + '\n';
+		const a = await upload(multi);
+		await importsService.runNow(db, store, a.id, 'check', a.actorId);
+		const ra = await importsService.getReport(db, a.id);
+		expect(ra.errors.map((e) => [e.row, e.column])).toEqual([
+			[2, 'unitPrice'],
+			[2, 'r1Mm']
+		]);
+		const semi = 'sku;name;kind;diameterMm;eflMm;unitPrice\n' + `${q}2;Priced part;other;25,4;100;12,50\n`;
+		const b = await upload(semi);
+		await importsService.runNow(db, store, b.id, 'check', b.actorId);
+		const rb = await importsService.getReport(db, b.id);
+		expect(rb.errors).toEqual([{ row: 2, column: 'unitPrice', value: '12,50', message: expect.stringMatching(/read as cents \(1250\).*whole currency units/) }]);
+		expect(await countParts(q)).toBe(0);
+	});
+
 	it('commits the good rows only when asked to skip the rejected ones', async () => {
 		const { id, actorId } = await upload(csv, { skipRejected: true });
 		const out = await importsService.runNow(db, store, id, 'commit', actorId);

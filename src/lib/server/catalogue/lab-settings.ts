@@ -22,12 +22,12 @@ export const LAB_WAVELENGTH_RANGE_NM = GLASS_CODE_RANGE_NM;
 
 /** Lines labs often work at, offered as choices (common practice, no source). */
 export const COMMON_WAVELENGTHS_NM: readonly { nm: number; label: string }[] = [
-	{ nm: 486.1, label: 'F line (hydrogen)' },
-	{ nm: 532, label: 'frequency-doubled Nd laser' },
-	{ nm: 587.6, label: 'd line (helium)' },
+	{ nm: 486.1, label: 'F line, hydrogen' },
+	{ nm: 532, label: 'doubled Nd laser' },
+	{ nm: 587.6, label: 'd line, helium' },
 	{ nm: 632.8, label: 'helium–neon laser' },
-	{ nm: 656.3, label: 'C line (hydrogen)' },
-	{ nm: 780, label: 'near infrared diode' },
+	{ nm: 656.3, label: 'C line, hydrogen' },
+	{ nm: 780, label: 'near-infrared diode' },
 	{ nm: 1064, label: 'Nd laser' }
 ];
 

@@ -58,6 +58,9 @@ export function parseNumberCell(raw: string, field: string, defaultUnit: LengthU
 	}
 	if (isLengthField(field)) return value * MM_PER[(defaultUnit as LengthUnit) ?? 'mm'];
 	if (field === 'unitPrice' && defaultUnit === 'major') return Math.round(value * 100);
+	if (field === 'unitPrice' && !Number.isInteger(value)) {
+		return 'Not whole cents: this column is read as cents (1250). If the file writes prices like 12.50, choose "whole currency units" for the unit price.';
+	}
 	return value;
 }
 

@@ -209,18 +209,19 @@ async function validateBatch(ctx: Ctx, read: ReadBatch): Promise<BatchPlan> {
 		}
 		const stored = target ? toInput({ ...target, latestMeasurement: null }) : null;
 		let data: PartInput | null = null;
-		if (!rowErrors.length) {
-			const parsed = partInputSchema.safeParse(stored ? { ...stored, ...r.input } : r.input);
-			if (parsed.success) data = parsed.data;
-			else {
-				const fieldsDone = new Set<string>();
-				for (const issue of parsed.error.issues) {
-					const field = fieldOfPath(issue.path);
-					if (fieldsDone.has(field + issue.message)) continue;
-					fieldsDone.add(field + issue.message);
-					const message = field === 'sku' && !sku && !target ? 'Each new part needs a SKU (map a SKU column, or set a SKU prefix).' : issue.message;
-					rowErrors.push({ row: r.row, column: columnOf(field), value: r.cell(field), message });
-				}
+		// Validated even when a cell could not be read, so that the report lists every problem of the row at once;
+		// a field whose cell was unreadable is not reported twice (it is missing from the input).
+		const parsed = partInputSchema.safeParse(stored ? { ...stored, ...r.input } : r.input);
+		if (parsed.success) {
+			if (!rowErrors.length) data = parsed.data;
+		} else {
+			const fieldsDone = new Set<string>(r.errors.map((e) => e.field));
+			for (const issue of parsed.error.issues) {
+				const field = fieldOfPath(issue.path);
+				if (fieldsDone.has(field) || fieldsDone.has(field + issue.message)) continue;
+				fieldsDone.add(field + issue.message);
+				const message = field === 'sku' && !sku && !target ? 'Each new part needs a SKU (map a SKU column, or set a SKU prefix).' : issue.message;
+				rowErrors.push({ row: r.row, column: columnOf(field), value: r.cell(field), message });
 			}
 		}
 		const fingerprint = data ? hash(canonical(data)) : 0;

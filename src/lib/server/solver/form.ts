@@ -8,7 +8,7 @@ import { unit } from 'mathjs';
 import { solveRequestSchema, magnificationFromSizes, naFromFNumber, type ParsedSolveRequest } from '$lib/solver/request';
 import { zodFields } from '$lib/server/api/http';
 
-/** The form fields, as text, with their defaults. */
+/** The form fields, as text, with their defaults (the wavelength: the lab's, see `formDefaults`). */
 export const FORM_DEFAULTS = {
 	objectHeight: '2 mm',
 	track: '300 mm',
@@ -24,6 +24,9 @@ export const FORM_DEFAULTS = {
 	maxParts: '2'
 };
 export type FormValues = typeof FORM_DEFAULTS;
+
+/** The defaults with the lab's default wavelength (set on /admin/settings). */
+export const formDefaults = (labWavelengthNm: number): FormValues => ({ ...FORM_DEFAULTS, wavelength: `${labWavelengthNm} nm` });
 
 const QUANTITY = /^\s*([+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:e[+-]?\d+)?)\s*(mm|cm|m|in|inch|inches|um|µm|nm)?\s*$/i;
 const UNIT_NAME: Record<string, string> = { mm: 'mm', cm: 'cm', m: 'm', in: 'inch', inch: 'inch', inches: 'inch', um: 'um', µm: 'um', nm: 'nm' };
@@ -43,14 +46,20 @@ export function parseQuantity(text: string, target: 'mm' | 'nm'): number | null 
 
 const plain = (text: string): number | null => (/^\s*[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:e[+-]?\d+)?\s*$/i.test(text) ? Number(text) : null);
 
-/** Reads the form from URL parameters; `submitted` is false when the URL holds no question. */
-export function readForm(params: URLSearchParams): {
+/**
+ * Reads the form from URL parameters; `submitted` is false when the URL holds no question. Fields
+ * the URL leaves out take `defaults` (the page passes the lab's default wavelength).
+ */
+export function readForm(
+	params: URLSearchParams,
+	defaults: FormValues = FORM_DEFAULTS
+): {
 	values: FormValues;
 	submitted: boolean;
 	errors: Record<string, string>;
 	request: ParsedSolveRequest | null;
 } {
-	const values = { ...FORM_DEFAULTS };
+	const values = { ...defaults };
 	let submitted = false;
 	for (const k of Object.keys(FORM_DEFAULTS) as (keyof FormValues)[]) {
 		const v = params.get(k);
