@@ -36,6 +36,30 @@ export interface OpticsPart {
 	readonly primaryMaterial: string | null;
 }
 
+/** The surfaces in the optics core's shape (last surface without thickness or material). */
+export function toSurfaceSpecs(surfaces: readonly { radiusMm: number | null; thicknessMm?: number | null; material?: string | null }[]): SurfaceSpec[] {
+	return surfaces.map((s, i) =>
+		i === surfaces.length - 1 ? { radiusMm: s.radiusMm } : { radiusMm: s.radiusMm, thicknessMm: s.thicknessMm ?? 0, material: s.material ?? null }
+	);
+}
+
+/** The optics numbers of a stored part: its parts row and its part_surfaces rows (in position order). */
+export function opticsPartOf(
+	part: Omit<OpticsPart, 'surfaces'>,
+	surfaces: readonly { radiusMm: number | null; thicknessMm: number | null; materialCode: string | null }[]
+): OpticsPart {
+	return {
+		surfaces: toSurfaceSpecs(surfaces.map((s) => ({ radiusMm: s.radiusMm, thicknessMm: s.thicknessMm, material: s.materialCode }))),
+		eflMm: part.eflMm,
+		bflMm: part.bflMm,
+		centerThicknessMm: part.centerThicknessMm,
+		designWavelengthNm: part.designWavelengthNm,
+		diameterMm: part.diameterMm,
+		clearApertureMm: part.clearApertureMm,
+		primaryMaterial: part.primaryMaterial
+	};
+}
+
 /** The latest measurement of a part, if any. */
 export interface MeasuredEfl {
 	readonly eflMm: number;

@@ -13,8 +13,7 @@ import { measurements, partSurfaces, parts, settings } from '$lib/server/db/sche
 import { GLASS_CODE_RANGE_NM } from '$lib/optics';
 import { recordAudit } from '$lib/server/audit';
 import { bumpStockVersion } from '$lib/server/stock/version';
-import { paraxialColumns, type MeasuredEfl } from './derived';
-import { toSurfaceSpecs } from './part-input';
+import { opticsPartOf, paraxialColumns, type MeasuredEfl } from './derived';
 import { getDefaultWavelengthNm } from './settings';
 
 /** Wavelengths any catalogue glass can be computed at: glass codes are fitted for 365–1100 nm (see the optics core). */
@@ -78,16 +77,7 @@ export async function recomputeDerived(tx: DbOrTx, wavelengthNm: number, opts: {
 		for (const p of rows) {
 			const surf = surfacesOf.get(p.id) ?? [];
 			const cols = paraxialColumns(
-				{
-					surfaces: toSurfaceSpecs(surf.map((s) => ({ radiusMm: s.radiusMm, thicknessMm: s.thicknessMm, material: s.materialCode }))),
-					eflMm: p.eflMm,
-					bflMm: p.bflMm,
-					centerThicknessMm: p.centerThicknessMm,
-					designWavelengthNm: p.designWavelengthNm,
-					diameterMm: p.diameterMm,
-					clearApertureMm: p.clearApertureMm,
-					primaryMaterial: p.primaryMaterial
-				},
+				opticsPartOf(p, surf),
 				wavelengthNm,
 				latest.get(p.id) ?? null
 			);

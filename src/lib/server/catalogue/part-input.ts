@@ -4,7 +4,8 @@
  * builds into a lens. Field messages are keyed by dotted path (`surfaces.1.radiusMm`).
  */
 import { z } from 'zod';
-import { buildElement, resolveMaterial, thicknessesAtHeight, type SurfaceSpec } from '$lib/optics';
+import { buildElement, resolveMaterial, thicknessesAtHeight } from '$lib/optics';
+import { toSurfaceSpecs } from './derived';
 import { PART_KINDS } from '$lib/server/db/schema';
 
 const optionalNumber = (schema: z.ZodNumber) => schema.nullable().optional();
@@ -159,9 +160,5 @@ export type PartInput = z.infer<typeof partInputSchema>;
 export const partPatchSchema = z.object(fields).partial().strict();
 export type PartPatch = z.infer<typeof partPatchSchema>;
 
-/** The surfaces in the optics core's shape (last surface without thickness or material). */
-export function toSurfaceSpecs(surfaces: readonly { radiusMm: number | null; thicknessMm?: number | null; material?: string | null }[]): SurfaceSpec[] {
-	return surfaces.map((s, i) =>
-		i === surfaces.length - 1 ? { radiusMm: s.radiusMm } : { radiusMm: s.radiusMm, thicknessMm: s.thicknessMm ?? 0, material: s.material ?? null }
-	);
-}
+/** The surfaces in the optics core's shape: one definition, in derived.ts. */
+export { toSurfaceSpecs };

@@ -22,7 +22,7 @@ import { DomainError } from '$lib/server/api/http';
 import { recordAudit } from '$lib/server/audit';
 import { bumpStockVersion } from '$lib/server/stock/version';
 import { totalsFor } from '$lib/server/stock/availability';
-import { paraxialColumns, type MeasuredEfl } from './derived';
+import { opticsPartOf, paraxialColumns, type MeasuredEfl } from './derived';
 import { partInputSchema, partPatchSchema, PURCHASING_FIELDS, toSurfaceSpecs, type PartInput, type PartPatch } from './part-input';
 import { toPartJson, type PartJson } from './part-json';
 import { getDefaultWavelengthNm } from './settings';
@@ -144,16 +144,7 @@ export async function refreshDerived(tx: DbOrTx, partId: number, defaultWaveleng
 	const m = await latestMeasurementOf(tx, partId);
 	const wl = defaultWavelengthNm ?? (await getDefaultWavelengthNm(tx));
 	const cols = paraxialColumns(
-		{
-			surfaces: toSurfaceSpecs(rows.map((r) => ({ radiusMm: r.radiusMm, thicknessMm: r.thicknessMm, material: r.materialCode }))),
-			eflMm: part.eflMm,
-			bflMm: part.bflMm,
-			centerThicknessMm: part.centerThicknessMm,
-			designWavelengthNm: part.designWavelengthNm,
-			diameterMm: part.diameterMm,
-			clearApertureMm: part.clearApertureMm,
-			primaryMaterial: part.primaryMaterial
-		},
+		opticsPartOf(part, rows),
 		wl,
 		m ? ({ eflMm: m.eflMm, wavelengthNm: m.wavelengthNm } satisfies MeasuredEfl) : null
 	);

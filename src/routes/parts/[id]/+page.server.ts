@@ -6,7 +6,7 @@ import { RESERVERS, STOCK_EDITORS, STOCK_HANDLERS, ANY_ROLE } from '$lib/server/
 import * as parts from '$lib/server/catalogue/parts';
 import * as measurements from '$lib/server/catalogue/measurements';
 import { computeDerived } from '$lib/server/catalogue/derived';
-import { toSurfaceSpecs } from '$lib/server/catalogue/part-input';
+import { opticsPartOf } from '$lib/server/catalogue/derived';
 import { getDefaultWavelengthNm } from '$lib/server/catalogue/settings';
 import { readForm, toNumber } from '$lib/server/catalogue/forms';
 import { listLocations, stockRows } from '$lib/server/stock/locations';
@@ -29,16 +29,7 @@ export const load = (async (event) => {
 	const wlParam = toNumber(event.url.searchParams.get('wl'));
 	const wavelengthNm = typeof wlParam === 'number' && wlParam >= 200 && wlParam <= 20000 ? wlParam : defaultNm;
 	const p = record.part;
-	const optics = {
-		surfaces: toSurfaceSpecs(record.surfaces.map((s) => ({ radiusMm: s.radiusMm, thicknessMm: s.thicknessMm, material: s.materialCode }))),
-		eflMm: p.eflMm,
-		bflMm: p.bflMm,
-		centerThicknessMm: p.centerThicknessMm,
-		designWavelengthNm: p.designWavelengthNm,
-		diameterMm: p.diameterMm,
-		clearApertureMm: p.clearApertureMm,
-		primaryMaterial: p.primaryMaterial
-	};
+	const optics = opticsPartOf(p, [...record.surfaces].sort((a, b) => a.position - b.position));
 	const m = record.latestMeasurement;
 	const measured = m ? { eflMm: m.eflMm, wavelengthNm: m.wavelengthNm } : null;
 	// What the solver uses (measured when there is one) and the nominal model, at the chosen wavelength.
