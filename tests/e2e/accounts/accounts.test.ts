@@ -84,4 +84,18 @@ describe('accounts in Chromium', () => {
 		await page.goto(appUrl('/account'));
 		expect(new URL(page.url()).pathname).toBe('/signin');
 	});
+
+	it('shows the sign-in page, not a cached copy, on Back after signing out (SECURITY.md 8.1.1)', async () => {
+		await page.context().clearCookies();
+		await signIn(page, 'engineer@tarnwell.example');
+		await page.goto(appUrl('/parts'));
+		await page.waitForSelector('table');
+		expect(await page.locator('main').innerText()).toContain('GC-');
+		await Promise.all([page.waitForURL((u) => u.pathname === '/signin'), page.click('header button:has-text("Sign out")')]);
+		await page.goBack();
+		await page.waitForLoadState('domcontentloaded');
+		// Pages are sent with Cache-Control: no-store, so Back asks the server again, which sends to sign-in.
+		expect(new URL(page.url()).pathname).toBe('/signin');
+		expect(await page.locator('body').innerText()).not.toContain('GC-');
+	});
 });
