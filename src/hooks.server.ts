@@ -92,6 +92,11 @@ const securityHeaders: Handle = async ({ event, resolve }) => {
 		set('Permissions-Policy', 'camera=(), microphone=(), geolocation=(), payment=(), usb=()');
 		set('Strict-Transport-Security', 'max-age=31536000; includeSubDomains');
 		if (!event.url.pathname.startsWith('/_app/immutable/')) set('Cache-Control', 'no-store');
+		// API JSON (SECURITY.md 14.4.1): the charset said, and never shown as a page if a browser is sent to it.
+		if (event.url.pathname.startsWith('/api/') && /^application\/json\s*$/i.test(h.get('content-type') ?? '')) {
+			h.set('Content-Type', 'application/json; charset=utf-8');
+			set('Content-Disposition', 'attachment; filename="api.json"');
+		}
 	} catch {
 		// some responses (e.g. from fetch) have immutable headers; they pass unchanged
 	}

@@ -76,6 +76,43 @@ describe('the throwaway stack that npm test starts', () => {
 		expect(page.headers.get('content-security-policy')).toContain("frame-ancestors 'none'");
 	});
 
+	it('sends the security headers on pages, API answers and not-found answers of a signed-in user (SECURITY.md 14.4)', async () => {
+		const app = testEnv('APP_URL');
+		const signin = await fetch(new URL('/api/v1/session', app), {
+			method: 'POST',
+			headers: { 'content-type': 'application/json', origin: app },
+			body: JSON.stringify({ email: 'engineer@tarnwell.example', password: process.env.DEMO_PASSWORD || 'tarnwell-bench-2026' })
+		});
+		const cookie = signin.headers.getSetCookie()[0].split(';')[0];
+		const get = (p: string) => fetch(new URL(p, app), { headers: { cookie }, redirect: 'manual' });
+		const answers = { page: await get('/parts'), api: await get('/api/v1/parts?pageSize=1'), missingPage: await get('/no-such-page'), missingApi: await get('/api/v1/parts/99999999') };
+		expect([answers.page.status, answers.api.status, answers.missingPage.status, answers.missingApi.status]).toEqual([200, 200, 404, 404]);
+		for (const [what, res] of Object.entries(answers)) {
+			const h = (k: string) => res.headers.get(k);
+			expect({ what, frame: h('x-frame-options'), sniff: h('x-content-type-options'), ref: h('referrer-policy'), cache: h('cache-control') }).toEqual({
+				what,
+				frame: 'DENY',
+				sniff: 'nosniff',
+				ref: 'same-origin',
+				cache: 'no-store'
+			});
+			expect(h('permissions-policy')).toContain('camera=()');
+			expect(h('strict-transport-security')).toMatch(/^max-age=31536000/);
+			if (what.endsWith('Api') || what === 'api') {
+				expect(h('content-type')).toBe('application/json; charset=utf-8');
+				expect(h('content-disposition')).toBe('attachment; filename="api.json"');
+			} else {
+				const csp = h('content-security-policy') ?? '';
+				for (const d of ["default-src 'self'", "object-src 'none'", "base-uri 'self'", "form-action 'self'", "frame-ancestors 'none'"]) expect(csp).toContain(d);
+				expect(csp).toMatch(/script-src 'self' 'nonce-[^']+'/);
+			}
+		}
+		// The 404 page names the path and shows no stack or version.
+		const body = await answers.missingPage.text();
+		expect(body).toContain('/no-such-page');
+		expect(body).not.toMatch(/at .*\.js:\d+|node_modules|SvelteKit v?\d/);
+	});
+
 	it('redirects anonymous page requests to sign-in and answers the API with 401 JSON', async () => {
 		const res = await fetch(new URL('/', testEnv('APP_URL')), { redirect: 'manual' });
 		expect(res.status).toBe(303);
