@@ -160,7 +160,9 @@ export async function checkFlags(db: DbOrTx, opts: { send: Mailer; origin: strin
 
 		const reported: FlaggedPart[] = [];
 		const now = new Date();
-		for (const f of flagged) {
+		// In part id order: each insert takes a shared lock on its part row (foreign key), and writers of several
+		// parts (an UPDATE … WHERE id IN …) lock them in id order too, so the two do not deadlock on part rows.
+		for (const f of [...flagged].sort((a, b) => a.partId - b.partId)) {
 			if (openIds.has(f.partId)) continue;
 			const [res] = await tx
 				.insert(flagNotices)
@@ -168,6 +170,8 @@ export async function checkFlags(db: DbOrTx, opts: { send: Mailer; origin: strin
 				.values({ partId: f.partId, openPartId: f.partId, reason: f.reason, available: f.available, reportedAt: now });
 			if (res.affectedRows === 1) reported.push(f);
 		}
+		const bySku = new Map(flagged.map((f, k) => [f.partId, k]));
+		reported.sort((a, b) => bySku.get(a.partId)! - bySku.get(b.partId)!); // back to SKU order for the digest
 
 		let recipients: string[] = [];
 		if (reported.length) {
