@@ -137,17 +137,42 @@ function pcv(d: number, f: number, code = '517642') {
 	return { surfaces: [{ radiusMm: r, thicknessMm: 2.0, materialCode: code }, { radiusMm: null }], ct: 2.0, bfl: f - 2.0 / n };
 }
 
-/** Meniscus with shape factor q = (R2 + R1)/(R2 - R1); thin-lens radii, then thickness chosen. */
+/**
+ * Meniscus with shape factor q = (R2 + R1)/(R2 - R1): thin-lens radii, the thickness chosen for the
+ * edge, then both radii scaled together until the thick lens has the named EFL at the d line.
+ */
 function meniscus(d: number, f: number, q: number, code = '517642') {
 	const n = ND[code];
 	// thin lens: 1/f = (n-1)(1/R1 - 1/R2); with R1 = 2f(n-1)/(q+1), R2 = 2f(n-1)/(q-1)
-	const r1 = round((2 * f * (n - 1)) / (q + 1), 0.01);
-	const r2 = round((2 * f * (n - 1)) / (q - 1), 0.01);
-	const ct = centreFor(r1, r2, d, 1.5);
-	return { surfaces: [{ radiusMm: r1, thicknessMm: ct, materialCode: code }, { radiusMm: r2 }], ct, bfl: null };
+	const r1 = (2 * f * (n - 1)) / (q + 1);
+	const r2 = (2 * f * (n - 1)) / (q - 1);
+	const shape = (k: number): DemoSurface[] => {
+		const [a, b] = [round(r1 * k), round(r2 * k)];
+		return [{ radiusMm: a, thicknessMm: centreFor(a, b, d, 1.5), materialCode: code }, { radiusMm: b }];
+	};
+	const k = scaleForEfl(f, shape);
+	return { surfaces: shape(k), ct: centreFor(round(r1 * k), round(r2 * k), d, 1.5), bfl: null };
 }
 
-/** Cemented achromat (thin-lens design): crown equiconvex, flint rear surface from the power split. */
+/** Paraxial EFL of surfaces at the d line: ray transfer matrices with nd of each glass (common practice, no source). */
+function eflAtD(surfaces: readonly DemoSurface[]): number {
+	let [a, b, c, dd] = [1, 0, 0, 1];
+	let n = 1;
+	for (const s of surfaces) {
+		const after = s.materialCode ? ND[s.materialCode] : 1;
+		const power = s.radiusMm === null ? 0 : (after - n) / s.radiusMm;
+		[c, dd] = [c - power * a, dd - power * b];
+		if (s.thicknessMm) [a, b] = [a + (s.thicknessMm / after) * c, b + (s.thicknessMm / after) * dd];
+		n = after;
+	}
+	return -1 / c;
+}
+
+/**
+ * Cemented achromat: the thin-lens power split (crown equiconvex, flint rear surface), then all radii
+ * scaled together until the thick lens has the named EFL at the d line (the thin-lens radii miss it
+ * by up to 4 % for short focal lengths, which a catalogue name "f = 19 mm" should not).
+ */
 function doublet(d: number, f: number) {
 	const [c, fl] = [DEMO_MATERIALS[0], DEMO_MATERIALS[2]];
 	const phi = 1 / f;
@@ -157,17 +182,24 @@ function doublet(d: number, f: number) {
 	const r2 = -r1;
 	// flint: phiB = (nB - 1)(1/r2 - 1/r3)
 	const r3 = 1 / (1 / r2 - phiB / (fl.nd - 1));
-	const t1 = centreFor(r1, r2, d, 1.2);
 	const t2 = round(Math.max(1.5, d / 12), 0.1);
-	return {
-		surfaces: [
-			{ radiusMm: round(r1), thicknessMm: t1, materialCode: c.code },
-			{ radiusMm: round(r2), thicknessMm: t2, materialCode: fl.code },
-			{ radiusMm: round(r3) }
-		],
-		ct: round(t1 + t2, 0.1),
-		bfl: null
+	const shape = (k: number) => {
+		const t1 = centreFor(r1 * k, r2 * k, d, 1.2);
+		return [
+			{ radiusMm: round(r1 * k), thicknessMm: t1, materialCode: c.code },
+			{ radiusMm: round(r2 * k), thicknessMm: t2, materialCode: fl.code },
+			{ radiusMm: round(r3 * k) }
+		];
 	};
+	const surfaces = shape(scaleForEfl(f, shape));
+	return { surfaces, ct: round((surfaces[0].thicknessMm ?? 0) + t2, 0.1), bfl: null };
+}
+
+/** The factor on all radii of `shape` that gives the thick lens the EFL `f` at the d line (fixed-point iteration). */
+function scaleForEfl(f: number, shape: (k: number) => DemoSurface[]): number {
+	let k = 1;
+	for (let i = 0; i < 12; i++) k *= f / eflAtD(shape(k));
+	return k;
 }
 
 const COATINGS = ['uncoated', 'AR 400-700 nm', 'AR 650-1050 nm', 'AR 1050-1700 nm'];
