@@ -149,6 +149,26 @@ describe('stock operations', () => {
 		expect(await currentStockVersion(db)).toBe(v);
 	});
 
+	it('takes back only units that went out: a return beyond the issued units is refused and writes nothing', async () => {
+		const partId = await newPart('RET');
+		await ops.receive(db, { partId, quantity: 5, locationId: locA }, { id: stockroom });
+		await expect(ops.returnStock(db, { partId, quantity: 1, locationId: locA }, { id: engineer })).rejects.toMatchObject({
+			status: 409,
+			message: expect.stringMatching(/No unit of this part is out/)
+		});
+		await ops.issue(db, { partId, quantity: 2, locationId: locA, issuedTo: 'bench 3' }, { id: engineer });
+		await ops.returnStock(db, { partId, quantity: 1, locationId: locB }, { id: engineer });
+		const before = await db.select().from(t.movements).where(eq(t.movements.partId, partId));
+		await expect(ops.returnStock(db, { partId, quantity: 50, locationId: locA }, { id: engineer })).rejects.toMatchObject({
+			status: 409,
+			message: expect.stringMatching(/Only 1 unit is out .* at most 1 can come back/)
+		});
+		expect(await db.select().from(t.movements).where(eq(t.movements.partId, partId))).toHaveLength(before.length);
+		await ops.returnStock(db, { partId, quantity: 1, locationId: locA, condition: 'damaged' }, { id: engineer });
+		expect(await totalsOf(db, partId)).toMatchObject({ onHand: 4, damaged: 1 }); // 5 − 2 issued + 1 back usable; 1 back damaged
+		await ledgerMatchesStock(partId);
+	});
+
 	it('counts reservations until they expire, and an issue does not take units reserved by others', async () => {
 		const partId = await newPart('RES');
 		await ops.receive(db, { partId, quantity: 5, locationId: locA }, { id: stockroom });

@@ -282,6 +282,22 @@ export async function returnStock(db: DbOrTx, input: unknown, actor: StockActor)
 		await lockPart(tx, d.partId);
 		await checkLocation(tx, d.locationId, 'locationId', true);
 		await checkProject(tx, d.projectId);
+		// Only units that went out can come back: a return beyond them would make stock out of nothing.
+		const [out] = await tx
+			.select({
+				issued: sql<string>`coalesce(sum(case when ${movements.kind} = 'issue' then ${movements.quantity} else 0 end), 0)`,
+				returned: sql<string>`coalesce(sum(case when ${movements.kind} = 'return' then ${movements.quantity} else 0 end), 0)`
+			})
+			.from(movements)
+			.where(eq(movements.partId, d.partId));
+		const outstanding = Number(out.issued) - Number(out.returned);
+		if (d.quantity > outstanding) {
+			throw new InsufficientStock(
+				outstanding > 0
+					? `Only ${outstanding} unit${outstanding === 1 ? ' is' : 's are'} out (issued and not returned yet), so at most ${outstanding} can come back. Units that were never issued are received, or counted in with a correction.`
+					: 'No unit of this part is out (issued and not returned yet), so none can come back. Units that were never issued are received, or counted in with a correction.'
+			);
+		}
 		await putIn(tx, d.partId, d.locationId, d.condition, d.quantity);
 		return record(tx, {
 			kind: 'return',
