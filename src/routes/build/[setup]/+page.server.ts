@@ -49,7 +49,8 @@ export const actions = {
 				{ until: values.until ? `${values.until}T23:59:59Z` : '', projectId: values.projectId ? Number(values.projectId) : null },
 				{ id: user.id }
 			);
-			return { reserved: items.length };
+			const units = items.reduce((n, r) => n + (r as { quantity: number }).quantity, 0);
+			return { reserved: items.length, units, values };
 		} catch (e) {
 			if (e instanceof ZodError) return fail(400, { errors: zodFields(e), values });
 			if (e instanceof DomainError) return fail(e.status, { errors: e.fields ?? {}, message: e.message, values });
