@@ -1,4 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import Papa from 'papaparse';
 import type { Page } from 'playwright-core';
 import { appUrl, openBrowser, screenshot, signIn } from '../../support/browser';
 
@@ -60,6 +61,22 @@ describe('catalogue and stock in Chromium (stockroom)', () => {
 		await page.waitForFunction(() => !document.querySelector('[aria-busy=true]'));
 		const after = await page.locator('[data-testid=parts-table] tbody tr td:nth-child(3)').allInnerTexts();
 		expect(new Set(after)).toEqual(new Set(['Plano-convex']));
+	});
+
+	it('downloads the current view as CSV, in the importer’s format', async () => {
+		await page.goto(appUrl('/parts?kind=biconvex&sort=eflMm'));
+		const href = (await page.locator('[data-testid=export-csv]').getAttribute('href'))!;
+		expect(href).toMatch(/^\/api\/v1\/parts\/export\.csv\?/);
+		expect(new URLSearchParams(href.split('?')[1]).get('kind')).toBe('biconvex');
+		// The same session downloads it (the API needs a signed-in user).
+		const res = await page.request.get(appUrl(href));
+		expect(res.status()).toBe(200);
+		expect(res.headers()['content-type']).toBe('text/csv; charset=utf-8');
+		const [head, ...rows] = Papa.parse<string[]>((await res.text()).replace(/^\uFEFF/, ''), { skipEmptyLines: true }).data;
+		const kindAt = head.indexOf('kind');
+		expect(head[1]).toBe('sku');
+		expect(rows.length).toBeGreaterThan(3);
+		expect(new Set(rows.map((r) => r[kindAt]))).toEqual(new Set(['biconvex']));
 	});
 
 	it('lines the stock tables up column by column, drawer after drawer', async () => {

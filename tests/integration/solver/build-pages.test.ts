@@ -135,6 +135,10 @@ describe('/build form', () => {
 		const ok = readForm(new URLSearchParams({ track: '30 cm', magnification: '-0.5', na: '0.03' }));
 		expect(ok.errors).toEqual({});
 		expect(ok.request?.trackMm).toBeCloseTo(300, 9);
+		// The page's own hints write a typographic minus ("−0.5"); typed or pasted, it reads as -0.5.
+		const typographic = readForm(new URLSearchParams({ track: '300 mm', magnification: '\u22120.5', na: '0.03' }));
+		expect(typographic.errors).toEqual({});
+		expect(typographic.request?.magnification).toBe(-0.5);
 		const html = await (await api('GET', '/build?objectHeight=abc&track=-5&magnification=0&na=2', { cookie: engineer })).text();
 		for (const f of ['objectHeight', 'track', 'magnification', 'na']) expect(html).toContain(`data-field-error="${f}"`);
 		expect(html).toContain('4 fields need a fix');

@@ -12,7 +12,7 @@ import { ApiError, DomainError } from '$lib/server/api/http';
 import { recordAudit } from '$lib/server/audit';
 import type { ObjectStore } from '$lib/server/files/s3';
 import { csvLine, csvRecords, escapeFormula, spoolCsv, type CheckedCsv, type Delimiter, type SpooledCsv } from './csv';
-import { IMPORT_FIELDS, isImportField, isLengthField, LENGTH_UNITS, PRICE_UNITS, suggestMapping, type Suggestion } from './fields';
+import { fieldLabel, IMPORT_FIELDS, isImportField, isLengthField, LENGTH_UNITS, PRICE_UNITS, suggestMapping, type Suggestion } from './fields';
 import { isStale, runImport, STALE_AFTER_MS, type RunHooks } from './run';
 
 export interface ImportReport {
@@ -125,7 +125,7 @@ export function mappingSchema(header: readonly string[]) {
 			for (const [field, col] of Object.entries(m.mapping)) {
 				if (!isImportField(field)) ctx.addIssue({ code: 'custom', path: ['mapping', field], message: `Unknown field "${field}".` });
 				else if (col && !header.includes(col)) ctx.addIssue({ code: 'custom', path: ['mapping', field], message: `The file has no column "${col}".` });
-				else if (col && used.has(col)) ctx.addIssue({ code: 'custom', path: ['mapping', field], message: `The column "${col}" is already used for ${used.get(col)}.` });
+				else if (col && used.has(col)) ctx.addIssue({ code: 'custom', path: ['mapping', field], message: `The column "${col}" is already used for ${fieldLabel(used.get(col)!)}.` });
 				if (col) used.set(col, field);
 			}
 			for (const [field, u] of Object.entries(m.units)) {

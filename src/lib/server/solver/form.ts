@@ -31,9 +31,12 @@ export const formDefaults = (labWavelengthNm: number): FormValues => ({ ...FORM_
 const QUANTITY = /^\s*([+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:e[+-]?\d+)?)\s*(mm|cm|m|in|inch|inches|um|µm|nm)?\s*$/i;
 const UNIT_NAME: Record<string, string> = { mm: 'mm', cm: 'cm', m: 'm', in: 'inch', inch: 'inch', inches: 'inch', um: 'um', µm: 'um', nm: 'nm' };
 
+/** The typographic minus (U+2212, as the page's own hints write it) and dashes people paste, read as '-'. */
+const asciiMinus = (text: string) => text.replace(/[\u2212\u2012\u2013]/g, '-');
+
 /** A length or wavelength text → number in `target` ('mm' or 'nm'); null when it does not parse. */
 export function parseQuantity(text: string, target: 'mm' | 'nm'): number | null {
-	const m = QUANTITY.exec(text);
+	const m = QUANTITY.exec(asciiMinus(text));
 	if (!m) return null;
 	const value = Number(m[1]);
 	const u = m[2] ? UNIT_NAME[m[2].toLowerCase()] : target;
@@ -44,7 +47,10 @@ export function parseQuantity(text: string, target: 'mm' | 'nm'): number | null 
 	}
 }
 
-const plain = (text: string): number | null => (/^\s*[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:e[+-]?\d+)?\s*$/i.test(text) ? Number(text) : null);
+const plain = (raw: string): number | null => {
+	const text = asciiMinus(raw);
+	return /^\s*[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:e[+-]?\d+)?\s*$/i.test(text) ? Number(text) : null;
+};
 
 /**
  * Reads the form from URL parameters; `submitted` is false when the URL holds no question. Fields
