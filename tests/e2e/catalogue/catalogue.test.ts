@@ -79,6 +79,21 @@ describe('catalogue and stock in Chromium (stockroom)', () => {
 		expect(new Set(rows.map((r) => r[kindAt]))).toEqual(new Set(['biconvex']));
 	});
 
+	it('downloads the stock of the chosen location as CSV', async () => {
+		await page.goto(appUrl('/stock'));
+		await expect(page.locator('[data-testid=stock-export-csv]').getAttribute('href')).resolves.toBe('/api/v1/stock/export.csv');
+		const first = await page.locator('#loc option').nth(1).getAttribute('value');
+		await page.goto(appUrl(`/stock?locationId=${first}`));
+		const href = (await page.locator('[data-testid=stock-export-csv]').getAttribute('href'))!;
+		expect(href).toBe(`/api/v1/stock/export.csv?locationId=${first}`);
+		const res = await page.request.get(appUrl(href));
+		expect(res.status()).toBe(200);
+		const [head, ...rows] = Papa.parse<string[]>((await res.text()).replace(/^\uFEFF/, ''), { skipEmptyLines: true }).data;
+		expect(head.slice(0, 3)).toEqual(['locationCode', 'locationName', 'sku']);
+		expect(rows.length).toBeGreaterThan(0);
+		expect(new Set(rows.map((r) => r[0])).size).toBe(1);
+	});
+
 	it('lines the stock tables up column by column, drawer after drawer', async () => {
 		await page.goto(appUrl('/stock'));
 		const lefts = await page.locator('[data-testid=stock-table]').evaluateAll((tables) =>
