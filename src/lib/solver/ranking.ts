@@ -30,17 +30,19 @@ export function shorterWorkingDistanceMm(s: Pick<Solution, 'objectDistanceMm' | 
 }
 
 /**
- * Ranking key (lower is better), compared in order: spot over Airy in steps of 25 % (all
- * diffraction-limited answers, ratio ≤ 1, tie), untraced after traced; vignetting (none,
- * field edge, axial); the smaller working distance in steps of 10 mm (longer first); part
- * count; then the exact spot ratio.
+ * Ranking key (lower is better), compared in order: vignetting first (none, then field edge, then
+ * on axis: an answer that clips the marginal ray does not deliver the NA asked for, and one that
+ * clips the field edge does not image the whole object, so neither may rank above an answer that
+ * does what was asked); then spot over Airy in steps of 25 % (all diffraction-limited answers,
+ * ratio ≤ 1, tie), untraced after traced; the smaller working distance in steps of 10 mm (longer
+ * first); part count; then the exact spot ratio.
  */
 export function rankKey(s: Omit<Solution, 'rank'>): number[] {
 	const r = s.spot.ratioToAiry;
 	const bucket = spotBand(r);
 	const vig = s.vignetting.axial ? 2 : s.vignetting.edge ? 1 : 0;
 	const wd = -Math.floor(shorterWorkingDistanceMm(s) / WORKING_DISTANCE_STEP_MM);
-	return [bucket, vig, wd, s.elements.length, r ?? 1e9];
+	return [vig, bucket, wd, s.elements.length, r ?? 1e9];
 }
 
 /** Compares two ranking keys. */
@@ -50,13 +52,13 @@ export function compareKeys(a: number[], b: number[]): number {
 }
 
 /** Which part of the ranking key put an answer below the one ranked just above it. */
-export type RankStep = 'spot band' | 'vignetting' | 'working distance' | 'part count' | 'exact spot' | 'tie';
+export type RankStep = 'vignetting' | 'spot band' | 'working distance' | 'part count' | 'exact spot' | 'tie';
 
 /** The first criterion in which `below` loses to `above` (by `rankKey`). */
 export function decidingStep(above: Omit<Solution, 'rank'>, below: Omit<Solution, 'rank'>): RankStep {
 	const a = rankKey(above),
 		b = rankKey(below);
-	const steps: RankStep[] = ['spot band', 'vignetting', 'working distance', 'part count', 'exact spot'];
+	const steps: RankStep[] = ['vignetting', 'spot band', 'working distance', 'part count', 'exact spot'];
 	for (let k = 0; k < steps.length; k++) if (a[k] !== b[k]) return steps[k];
 	return 'tie';
 }
