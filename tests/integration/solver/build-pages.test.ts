@@ -135,6 +135,11 @@ describe('/build form', () => {
 		const ok = readForm(new URLSearchParams({ track: '30 cm', magnification: '-0.5', na: '0.03' }));
 		expect(ok.errors).toEqual({});
 		expect(ok.request?.trackMm).toBeCloseTo(300, 9);
+		// Object and image sizes decide the magnification, and the field then shows the one used.
+		const sized = readForm(new URLSearchParams({ track: '300 mm', magnification: '-1', objectSize: '10 mm', imageSize: '5 mm', na: '0.03' }));
+		expect(sized.errors).toEqual({});
+		expect(sized.request?.magnification).toBe(-0.5);
+		expect(sized.values.magnification).toBe('-0.5');
 		// The page's own hints write a typographic minus ("−0.5"); typed or pasted, it reads as -0.5.
 		const typographic = readForm(new URLSearchParams({ track: '300 mm', magnification: '\u22120.5', na: '0.03' }));
 		expect(typographic.errors).toEqual({});

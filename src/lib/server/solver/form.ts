@@ -93,6 +93,8 @@ export function readForm(
 		const m = o !== undefined && i !== undefined ? magnificationFromSizes(o, i) : null;
 		if (m === null && !errors.objectSize && !errors.imageSize) errors.imageSize = 'Give both sizes, larger than 0, or a magnification instead.';
 		magnification = m ?? undefined;
+		// The sizes decide the magnification: the field shows the one used, not a different number typed before.
+		if (m !== null) values.magnification = String(Number(m.toPrecision(6)));
 	} else {
 		const m = plain(values.magnification);
 		if (m === null) errors.magnification = 'Enter a magnification such as -0.5 (negative: inverted image).';
