@@ -42,7 +42,12 @@ async function change(event: { params: { id: string } }, user: SignedInUser, whi
 		return { which, done: r.receipt ? `Received ${r.receipt.quantity} into stock${r.notified ? `; ${r.notified} engineer${r.notified === 1 ? '' : 's'} told` : ''}.` : `Now ${STATUS_LABELS[r.status].toLowerCase()}.` };
 	} catch (err) {
 		if (err instanceof ZodError) return fail(400, { which, values, errors: zodFields(err) });
-		if (err instanceof DomainError) return fail(err.status, { which, values, errors: { ...(err.fields ?? {}), _: err.message } });
+		if (err instanceof DomainError) {
+			// The general message only when no field already says it (else the form shows it twice).
+			const fields = err.fields ?? {};
+			const said = Object.values(fields).includes(err.message);
+			return fail(err.status, { which, values, errors: said ? { ...fields } : { ...fields, _: err.message } });
+		}
 		throw err;
 	}
 }
