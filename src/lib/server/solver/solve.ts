@@ -26,9 +26,9 @@ import { searchOnPool, workerCount } from './pool';
 import { evaluatePlacement, rankKey, compareKeys } from './evaluate';
 
 /** Candidates each shard keeps for the final stage. */
-export const TOP_K_PER_SHARD = 160;
+export const TOP_K_PER_SHARD = 400;
 /** Candidates traced with real rays after the merge. */
-export const TRACE_COUNT = 160;
+export const TRACE_COUNT = 480;
 
 /** The stock the solver works on: a key that changes whenever it does, and its parts. */
 export interface StockView {
