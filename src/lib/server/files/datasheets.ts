@@ -92,23 +92,18 @@ export type SpooledDatasheet = SpooledFile & { contentType: DatasheetType };
  * Leaves no file behind when it refuses; otherwise the caller removes the file (`remove`).
  */
 export async function spoolDatasheet(source: AsyncIterable<Uint8Array> | Uint8Array): Promise<SpooledDatasheet> {
-	const head = new Uint8Array(HEAD_BYTES);
-	let headLength = 0;
-	let size = 0;
 	let type: DatasheetType | null = null;
-	const file = await spoolToTempFile(source, (chunk) => {
-		size += chunk.byteLength;
-		if (headLength < HEAD_BYTES) {
-			const take = chunk.subarray(0, HEAD_BYTES - headLength);
-			head.set(take, headLength);
-			headLength += take.byteLength;
-			if (headLength >= 16) type = sniffType(head.subarray(0, headLength));
-		}
-		const cap = type ? maxBytesFor(type) : MAX_PDF_BYTES;
-		if (size > cap) throw tooLarge(type ?? 'application/pdf', `more than ${mb(cap)}`);
-	});
+	const file = await spoolToTempFile(
+		source,
+		(_chunk, so) => {
+			if (type === null && so.head.byteLength >= 16) type = sniffType(so.head);
+			const cap = type ? maxBytesFor(type) : MAX_PDF_BYTES;
+			if (so.size > cap) throw tooLarge(type ?? 'application/pdf', `more than ${mb(cap)}`);
+		},
+		HEAD_BYTES
+	);
 	try {
-		return { ...file, contentType: checkHead(head.subarray(0, headLength), file.size) };
+		return { ...file, contentType: checkHead(file.head, file.size) };
 	} catch (err) {
 		await file.remove();
 		throw err;

@@ -6,7 +6,7 @@ import fs from 'node:fs';
 import type { Readable } from 'node:stream';
 import Papa from 'papaparse';
 import { ApiError } from '$lib/server/api/http';
-import { spoolToTempFile, type SpooledFile } from '$lib/server/files/spool';
+import { spoolToTempFile, type SpooledFile, type SpoolProgress } from '$lib/server/files/spool';
 
 /** Caps on an uploaded CSV. 16 MB holds about 80,000 rows of the export's format (~200 bytes a row). */
 export const CSV_MAX_BYTES = 16 * 1024 * 1024;
@@ -58,35 +58,25 @@ const BINARY_SIGNATURES: [number[], string][] = [
 	[[0xff, 0xd8, 0xff], 'a JPEG image']
 ];
 
-const HEAD_BYTES = 8192;
-
 /**
- * The byte-level checks of an uploaded CSV, made as it streams in (`push` each chunk, then `end`):
- * size, not empty, not a known binary format, no NUL bytes near the start, valid UTF-8. Throws
- * ApiError (400, or 413 for size, as soon as the limit is passed) with a message for people. The
- * other refusals wait for `end`, so that each file gets the same message whatever its chunks.
+ * The byte-level checks of an uploaded CSV, made as it streams in (`push` each chunk, then `end`
+ * with what the spool saw): size, not empty, not a known binary format, no NUL bytes near the
+ * start, valid UTF-8. Throws ApiError (400, or 413 for size, as soon as the limit is passed) with a
+ * message for people. The other refusals wait for `end`, so that each file gets the same message
+ * whatever its chunks.
  */
 export class CsvByteCheck {
-	private size = 0;
-	private head = new Uint8Array(HEAD_BYTES);
-	private headLength = 0;
 	private readonly decoder = new TextDecoder('utf-8', { fatal: true });
 	private utf8 = true;
 	private blank = true;
 
 	constructor(private readonly maxBytes = CSV_MAX_BYTES) {}
 
-	push(chunk: Uint8Array): void {
-		this.size += chunk.byteLength;
-		if (this.size > this.maxBytes) {
+	push(chunk: Uint8Array, so: SpoolProgress): void {
+		if (so.size > this.maxBytes) {
 			throw new ApiError(413, 'too-large', `The file is more than ${Math.round(this.maxBytes / (1024 * 1024))} MB; a CSV may be at most ${Math.round(this.maxBytes / (1024 * 1024))} MB. Split it into smaller files.`, {
 				file: 'The file is too large.'
 			});
-		}
-		if (this.headLength < HEAD_BYTES) {
-			const take = chunk.subarray(0, HEAD_BYTES - this.headLength);
-			this.head.set(take, this.headLength);
-			this.headLength += take.byteLength;
 		}
 		if (!this.utf8) return;
 		try {
@@ -97,9 +87,10 @@ export class CsvByteCheck {
 		}
 	}
 
-	end(): void {
-		if (this.size === 0) throw new ApiError(400, 'empty-file', 'The file is empty.', { file: 'The file is empty.' });
-		const head = this.head.subarray(0, this.headLength);
+	/** `head`: the first 8 KB of the file (NUL bytes there mean binary data). */
+	end(so: Pick<SpoolProgress, 'size' | 'head'>): void {
+		if (so.size === 0) throw new ApiError(400, 'empty-file', 'The file is empty.', { file: 'The file is empty.' });
+		const head = so.head;
 		for (const [sig, what] of BINARY_SIGNATURES) {
 			if (head.byteLength >= sig.length && sig.every((b, i) => head[i] === b)) {
 				throw new ApiError(400, 'not-csv', `This is ${what}, not a CSV file.`, { file: `This is ${what}, not a CSV file.` });
@@ -178,9 +169,9 @@ export type SpooledCsv = SpooledFile & CheckedCsv;
  */
 export async function spoolCsv(source: AsyncIterable<Uint8Array> | Uint8Array, opts: { maxBytes?: number; maxRows?: number } = {}): Promise<SpooledCsv> {
 	const check = new CsvByteCheck(opts.maxBytes);
-	const file = await spoolToTempFile(source, (chunk) => check.push(chunk));
+	const file = await spoolToTempFile(source, (chunk, so) => check.push(chunk, so)); // the head: its first 8 KB
 	try {
-		check.end();
+		check.end(file);
 		return { ...file, ...(await inspectCsvFile(file.path, opts)) };
 	} catch (err) {
 		await file.remove();
