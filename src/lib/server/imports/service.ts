@@ -11,7 +11,8 @@ import { importRowErrors, imports, suppliers, users, type ImportRecord, type Imp
 import { ApiError, DomainError } from '$lib/server/api/http';
 import { recordAudit } from '$lib/server/audit';
 import type { ObjectStore } from '$lib/server/files/s3';
-import { csvLine, csvRecords, escapeFormula, spoolCsv, type CheckedCsv, type Delimiter, type SpooledCsv } from './csv';
+import { CSV_MAX_BYTES, csvLine, csvRecords, escapeFormula, spoolCsv, type CheckedCsv, type Delimiter, type SpooledCsv } from './csv';
+import { readMultipartStream } from '$lib/server/files/multipart';
 import { fieldLabel, IMPORT_FIELDS, isImportField, isLengthField, LENGTH_UNITS, PRICE_UNITS, suggestMapping, type Suggestion } from './fields';
 import { isStale, runImport, STALE_AFTER_MS, type RunHooks } from './run';
 
@@ -102,6 +103,27 @@ export async function createImport(
 
 function isSpooled(f: unknown): f is SpooledCsv {
 	return typeof f === 'object' && f !== null && 'path' in f && 'sha256' in f && 'header' in f;
+}
+
+/**
+ * Reads an upload request (multipart, field "file") for an import: the CSV streams through
+ * `spoolCsv` as it arrives, the text fields are collected whatever their order. `skipUnnamed`: a
+ * file part without a name is "no file chosen" (what a browser form sends), not a file. The caller
+ * removes `file.csv` when done; on a failure nothing is left behind.
+ */
+export function readCsvUpload(request: Request, opts: { skipUnnamed?: boolean } = {}) {
+	return readMultipartStream(request, {
+		maxBodyBytes: CSV_MAX_BYTES + 256 * 1024,
+		maxFileBytes: CSV_MAX_BYTES,
+		handleFile: async (part) => {
+			if (opts.skipUnnamed && part.filename === '') {
+				part.stream.resume();
+				return null;
+			}
+			return { csv: await spoolCsv(part.stream), filename: part.filename };
+		},
+		discard: async (file) => file?.csv.remove()
+	});
 }
 
 const unitSchema = z.string();

@@ -5,9 +5,8 @@ import { ApiError, DomainError } from '$lib/server/api/http';
 import { requireRole } from '$lib/server/auth/guard';
 import { STOCK_EDITORS } from '$lib/server/auth/roles';
 import { listSuppliers } from '$lib/server/catalogue/materials';
-import { readMultipartStream } from '$lib/server/files/multipart';
 import { appStore } from '$lib/server/files/store';
-import { CSV_MAX_BYTES, spoolCsv } from '$lib/server/imports/csv';
+import { CSV_MAX_BYTES } from '$lib/server/imports/csv';
 
 type Errors = { file?: string; supplierId?: string };
 import * as importsService from '$lib/server/imports/service';
@@ -23,20 +22,8 @@ export const actions = {
 		let id: number;
 		let values = { supplierId: '' };
 		try {
-			// The file streams to a temporary file as it arrives (checked on the way), never whole into memory.
-			const { fields, file } = await readMultipartStream(event.request, {
-				maxBodyBytes: CSV_MAX_BYTES + 256 * 1024,
-				maxFileBytes: CSV_MAX_BYTES,
-				handleFile: async (part) => {
-					// A form sent with no file chosen still has an empty file part.
-					if (part.filename === '') {
-						part.stream.resume();
-						return null;
-					}
-					return { csv: await spoolCsv(part.stream), filename: part.filename };
-				},
-				discard: async (file) => file?.csv.remove()
-			});
+			// A form sent with no file chosen still has an empty, unnamed file part.
+			const { fields, file } = await importsService.readCsvUpload(event.request, { skipUnnamed: true });
 			const supplierId = fields.supplierId ?? '';
 			values = { supplierId };
 			if (!file) return fail(400, { errors: { file: 'Choose a CSV file.' } as Errors, values });

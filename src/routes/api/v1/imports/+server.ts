@@ -7,9 +7,7 @@ import { suppliers } from '$lib/server/db/schema';
 import { ApiError, endpoint } from '$lib/server/api/http';
 import { requireRole } from '$lib/server/auth/guard';
 import { STOCK_EDITORS } from '$lib/server/auth/roles';
-import { readMultipartStream } from '$lib/server/files/multipart';
 import { appStore } from '$lib/server/files/store';
-import { CSV_MAX_BYTES, spoolCsv } from '$lib/server/imports/csv';
 import * as importsService from '$lib/server/imports/service';
 
 const listQuery = z
@@ -42,12 +40,7 @@ const flag = (fields: Record<string, string>, name: string) => ['true', '1', 'ye
  */
 export const POST = endpoint(async (event) => {
 	const user = requireRole(event, STOCK_EDITORS);
-	const { fields, file } = await readMultipartStream(event.request, {
-		maxBodyBytes: CSV_MAX_BYTES + 256 * 1024,
-		maxFileBytes: CSV_MAX_BYTES,
-		handleFile: (part) => spoolCsv(part.stream).then((csv) => ({ csv, filename: part.filename })),
-		discard: (file) => file.csv.remove()
-	});
+	const { fields, file } = await importsService.readCsvUpload(event.request);
 	if (!file) throw new ApiError(400, 'no-file', 'Attach the file in the form field "file".', { file: 'Choose a file.' });
 	try {
 		let supplierId: number | null = null;
