@@ -1,5 +1,21 @@
 import { describe, expect, it } from 'vitest';
-import { BatchSeen, memorySeenStore, type RowKeys } from '$lib/server/imports/seen-keys';
+import { BatchSeen, type RowKeys, type SeenRow, type SeenStore } from '$lib/server/imports/seen-keys';
+
+/** The seen-key store in a Map, so the rules of BatchSeen are tested without a database. */
+function memorySeenStore(): SeenStore & { size: () => number } {
+	const map = new Map<string, SeenRow>();
+	return {
+		mayHave: (key) => map.has(key),
+		async lookup(keys) {
+			return new Map(keys.flatMap((k) => (map.has(k) ? [[k, map.get(k)!] as const] : [])));
+		},
+		async insert(entries) {
+			for (const [k, r] of entries) map.set(k, r);
+		},
+		async close() {},
+		size: () => map.size
+	};
+}
 
 const keys = (k: Partial<{ partId: number; sku: string; supplier: string; pn: string }>): RowKeys => ({
 	partId: k.partId ?? null,

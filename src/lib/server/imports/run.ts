@@ -125,7 +125,6 @@ interface Ctx {
 	insertIds: InsertIds;
 	supplierNames: Map<number, string>;
 	seen: SeenStore;
-	counts: RunCounts;
 	storedErrors: number;
 	defaultWavelengthNm: number;
 	actorId: number;
@@ -324,7 +323,6 @@ export async function runImport(
 			insertIds: new InsertIds(),
 			supplierNames,
 			seen: (seenStore = await openSeenStore(db.$client)),
-			counts,
 			storedErrors: 0,
 			defaultWavelengthNm: await getDefaultWavelengthNm(db),
 			actorId: opts.actorId

@@ -190,19 +190,3 @@ export async function openSeenStore(pool: Pool): Promise<SeenStore> {
 		}
 	};
 }
-
-/** The same store in a Map (unit tests of the rules above). */
-export function memorySeenStore(): SeenStore & { size: () => number } {
-	const map = new Map<string, SeenRow>();
-	return {
-		mayHave: (key) => map.has(key),
-		async lookup(keys) {
-			return new Map(keys.flatMap((k) => (map.has(k) ? [[k, map.get(k)!] as const] : [])));
-		},
-		async insert(entries) {
-			for (const [k, r] of entries) map.set(k, r);
-		},
-		async close() {},
-		size: () => map.size
-	};
-}

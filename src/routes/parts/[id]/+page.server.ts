@@ -29,7 +29,7 @@ export const load = (async (event) => {
 	const wlParam = toNumber(event.url.searchParams.get('wl'));
 	const wavelengthNm = typeof wlParam === 'number' && wlParam >= 200 && wlParam <= 20000 ? wlParam : defaultNm;
 	const p = record.part;
-	const optics = opticsPartOf(p, [...record.surfaces].sort((a, b) => a.position - b.position));
+	const optics = opticsPartOf(p, record.surfaces); // getPart reads them in position order
 	const m = record.latestMeasurement;
 	const measured = m ? { eflMm: m.eflMm, wavelengthNm: m.wavelengthNm } : null;
 	// What the solver uses (measured when there is one) and the nominal model, at the chosen wavelength.
