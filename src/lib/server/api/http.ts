@@ -1,5 +1,7 @@
 import { isHttpError, json, type RequestEvent, type RequestHandler } from '@sveltejs/kit';
 import { ZodError } from 'zod';
+import { isRetryable } from '$lib/server/db/errno';
+import { duplicateOf } from '$lib/server/db/unique';
 
 /** An error with the JSON shape of the API: `{ error: { code, message, fields? } }`. */
 export class ApiError extends Error {
@@ -66,6 +68,12 @@ export function toErrorResponse(err: unknown): Response {
 	}
 	if (err instanceof ZodError) {
 		return errorResponse(400, 'invalid-input', 'Some fields are not valid.', zodFields(err));
+	}
+	const dup = duplicateOf(err);
+	if (dup) return errorResponse(409, dup.code, dup.message, dup.fields);
+	if (isRetryable(err)) {
+		// Deadlock or lock wait still failing after inTransaction's retries: busy, not broken.
+		return errorResponse(503, 'busy', 'The stockroom is busy; try again in a moment.', undefined, { 'Retry-After': '1' });
 	}
 	if (isHttpError(err)) {
 		const body = err.body as App.Error;

@@ -1,0 +1,26 @@
+/** The MariaDB error number of an error thrown by mysql2, looking through Drizzle's wrapping (`cause`). */
+export function dbErrno(err: unknown): number | undefined {
+	for (let e: unknown = err, depth = 0; e && typeof e === 'object' && depth < 5; e = (e as { cause?: unknown }).cause, depth++) {
+		const errno = (e as { errno?: unknown }).errno;
+		if (typeof errno === 'number') return errno;
+	}
+	return undefined;
+}
+
+/** The server's message (`sqlMessage`) of a mysql2 error, looking through Drizzle's wrapping. */
+export function dbMessage(err: unknown): string {
+	for (let e: unknown = err, depth = 0; e && typeof e === 'object' && depth < 5; e = (e as { cause?: unknown }).cause, depth++) {
+		const m = (e as { sqlMessage?: unknown }).sqlMessage;
+		if (typeof m === 'string') return m;
+	}
+	return '';
+}
+
+/** MariaDB error numbers that mean "run the transaction again" (Galera's certification failure is 1213 too). */
+export const RETRYABLE_ERRNOS: ReadonlySet<number> = new Set([1213 /* ER_LOCK_DEADLOCK */, 1205 /* ER_LOCK_WAIT_TIMEOUT */]);
+
+/** True for a deadlock, lock-wait timeout or certification failure: the transaction may be run again. */
+export function isRetryable(err: unknown): boolean {
+	const errno = dbErrno(err);
+	return errno !== undefined && RETRYABLE_ERRNOS.has(errno);
+}
