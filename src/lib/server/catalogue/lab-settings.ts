@@ -9,6 +9,7 @@ import { escape } from 'mysql2';
 import { sql } from 'drizzle-orm';
 import { z } from 'zod';
 import type { DbOrTx, Tx } from '$lib/server/db';
+import { inTransaction } from '$lib/server/db/transaction';
 import { measurements, partSurfaces, parts, settings } from '$lib/server/db/schema';
 import { GLASS_CODE_RANGE_NM } from '$lib/optics';
 import { recordAudit } from '$lib/server/audit';
@@ -110,7 +111,7 @@ export async function setDefaultWavelength(db: DbOrTx, input: unknown, actor: { 
 		return { ...outcome, from, to };
 	};
 	// Inside a caller's transaction (tests roll theirs back) or in one of its own.
-	return 'rollback' in db ? run(db) : db.transaction(run);
+	return inTransaction(db, run);
 }
 
 /** Counts for the settings page. */

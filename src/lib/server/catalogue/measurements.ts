@@ -6,6 +6,7 @@
 import { desc, eq } from 'drizzle-orm';
 import { z } from 'zod';
 import type { DbOrTx } from '$lib/server/db';
+import { inTransaction } from '$lib/server/db/transaction';
 import { measurements, parts, users } from '$lib/server/db/schema';
 import { bumpStockVersion } from '$lib/server/stock/version';
 import { recordAudit } from '$lib/server/audit';
@@ -31,7 +32,7 @@ export type MeasurementInput = z.infer<typeof measurementInputSchema>;
 /** Records a measurement by `actor`; returns it. Throws ZodError, 404, or 409 when the part is archived. */
 export async function recordMeasurement(db: DbOrTx, partId: number, input: unknown, actor: Actor) {
 	const data = measurementInputSchema.parse(input);
-	return db.transaction(async (tx) => {
+	return inTransaction(db, async (tx) => {
 		const [part] = await tx.select({ id: parts.id, eflMm: parts.paraxialEflMm, archivedAt: parts.archivedAt }).from(parts).where(eq(parts.id, partId)).for('update');
 		if (!part) throw new PartNotFound(partId);
 		if (part.eflMm !== null && Math.sign(part.eflMm) !== Math.sign(data.eflMm)) {

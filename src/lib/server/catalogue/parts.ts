@@ -16,6 +16,7 @@
 import { and, desc, eq, inArray } from 'drizzle-orm';
 import { ZodError } from 'zod';
 import type { DbOrTx } from '$lib/server/db';
+import { inTransaction } from '$lib/server/db/transaction';
 import { measurements, movements, partSurfaces, parts, reservations, stock, suppliers, type Part } from '$lib/server/db/schema';
 import type { Role } from '$lib/server/db/schema';
 import { DomainError } from '$lib/server/api/http';
@@ -155,7 +156,7 @@ export async function refreshDerived(tx: DbOrTx, partId: number, defaultWaveleng
 /** Creates a part from unknown input (throws ZodError / DomainError 409). Returns its id. */
 export async function createPart(db: DbOrTx, input: unknown, actor: Actor): Promise<{ id: number }> {
 	const data = partInputSchema.parse(input);
-	return db.transaction(async (tx) => {
+	return inTransaction(db, async (tx) => {
 		const cols = columnsOf(data, await supplierIdFor(tx, data.supplier, actor));
 		await assertUnique(tx, cols, null);
 		const [{ id }] = await tx.insert(parts).values(cols).$returningId();
@@ -221,7 +222,7 @@ export function assertPatchAllowed(role: Role | undefined, patch: PartPatch) {
 export async function updatePart(db: DbOrTx, id: number, patch: unknown, actor: Actor): Promise<{ id: number }> {
 	const data = partPatchSchema.parse(patch);
 	if (actor.role) assertPatchAllowed(actor.role, data);
-	return db.transaction(async (tx) => {
+	return inTransaction(db, async (tx) => {
 		const record = await getPart(tx, id, { forUpdate: true });
 		if (!record) throw new PartNotFound(id);
 		const merged = partInputSchema.parse({ ...toInput(record), ...data });
@@ -242,7 +243,7 @@ export async function updatePart(db: DbOrTx, id: number, patch: unknown, actor: 
  * one that never had any is deleted outright.
  */
 export async function archivePart(db: DbOrTx, id: number, actor: Actor): Promise<{ id: number; outcome: 'archived' | 'deleted' }> {
-	return db.transaction(async (tx) => {
+	return inTransaction(db, async (tx) => {
 		const [part] = await tx.select().from(parts).where(eq(parts.id, id)).for('update');
 		if (!part) throw new PartNotFound(id);
 		const has = async (table: typeof stock | typeof movements | typeof reservations | typeof measurements) =>
@@ -271,7 +272,7 @@ export async function archivePart(db: DbOrTx, id: number, actor: Actor): Promise
 
 /** Brings an archived part back into the catalogue. */
 export async function restorePart(db: DbOrTx, id: number, actor: Actor) {
-	return db.transaction(async (tx) => {
+	return inTransaction(db, async (tx) => {
 		const [part] = await tx.select({ id: parts.id }).from(parts).where(eq(parts.id, id)).for('update');
 		if (!part) throw new PartNotFound(id);
 		await tx.update(parts).set({ archivedAt: null }).where(eq(parts.id, id));

@@ -17,6 +17,7 @@
  */
 import { and, eq, gt, inArray, isNotNull, isNull, or, sql } from 'drizzle-orm';
 import type { DbOrTx } from '$lib/server/db';
+import { inTransaction } from '$lib/server/db/transaction';
 import { flagNotices, parts, reservations, suppliers, users } from '$lib/server/db/schema';
 import { totalsFor } from '$lib/server/stock/availability';
 import { availableOf, flagReason, type FlagReason } from './rules';
@@ -141,7 +142,7 @@ export function digestText(list: readonly FlaggedPart[], boardUrl: string): stri
 
 /** Runs one check (see the module comment). `origin` builds the board link. */
 export async function checkFlags(db: DbOrTx, opts: { send: Mailer; origin: string }): Promise<CheckResult> {
-	return db.transaction(async (tx) => {
+	return inTransaction(db, async (tx) => {
 		const flagged = await flaggedParts(tx);
 		const flaggedIds = new Set(flagged.map((f) => f.partId));
 		const open = await tx.select({ id: flagNotices.id, partId: flagNotices.partId }).from(flagNotices).where(isNotNull(flagNotices.openPartId));

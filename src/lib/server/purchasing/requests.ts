@@ -8,6 +8,7 @@
 import { and, asc, desc, eq, gt, inArray, sql, type SQL } from 'drizzle-orm';
 import { z } from 'zod';
 import type { DbOrTx, Tx } from '$lib/server/db';
+import { inTransaction } from '$lib/server/db/transaction';
 import {
 	REQUEST_STATUSES,
 	locations,
@@ -129,7 +130,7 @@ function assertManager(actor: RequestActor) {
 export async function createRequests(db: DbOrTx, inputs: readonly unknown[], actor: RequestActor): Promise<number[]> {
 	assertManager(actor);
 	const list = z.array(createRequestSchema).min(1, 'Choose at least one part.').max(500, 'At most 500 requests at once.').parse(inputs);
-	return db.transaction(async (tx) => {
+	return inTransaction(db, async (tx) => {
 		const ids: number[] = [];
 		for (const d of list) {
 			const [part] = await tx.select().from(parts).where(eq(parts.id, d.partId));
@@ -210,7 +211,7 @@ export async function patchRequest(db: DbOrTx, requestId: number, input: unknown
 	const d = patchRequestSchema.parse(input);
 	if (!d.receive) assertManager(actor);
 	else if (!REQUEST_RECEIVERS.includes(actor.role)) throw new DomainError(403, 'forbidden', 'Your role may not receive goods.');
-	return db.transaction(async (tx) => {
+	return inTransaction(db, async (tx) => {
 		const [req] = await tx.select().from(purchaseRequests).where(eq(purchaseRequests.id, requestId)).for('update');
 		if (!req) throw notFound(requestId);
 

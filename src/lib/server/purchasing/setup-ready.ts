@@ -12,6 +12,7 @@
  */
 import { and, eq, inArray, isNotNull } from 'drizzle-orm';
 import type { DbOrTx } from '$lib/server/db';
+import { inTransaction } from '$lib/server/db/transaction';
 import { reservations, setups, setupWaits, users } from '$lib/server/db/schema';
 import { waitingSetups } from './board';
 import type { Mailer } from './flags';
@@ -42,7 +43,7 @@ export function readyMessage(setup: { id: number; name: string }, owner: { name:
 
 /** One check (see the module comment). */
 export async function checkSetupsReady(db: DbOrTx, opts: { send: Mailer; origin: string }): Promise<SetupReadyResult> {
-	return db.transaction(async (tx) => {
+	return inTransaction(db, async (tx) => {
 		const short = new Set((await waitingSetups(tx)).map((w) => w.setupId));
 		const open = await tx.select({ id: setupWaits.id, setupId: setupWaits.setupId }).from(setupWaits).where(isNotNull(setupWaits.openSetupId));
 		const candidates = [...new Set([...short, ...open.map((o) => o.setupId)])];

@@ -7,6 +7,7 @@
 import { and, desc, eq } from 'drizzle-orm';
 import { z } from 'zod';
 import type { DbOrTx } from '$lib/server/db';
+import { inTransaction } from '$lib/server/db/transaction';
 import { setups, projects, users, reservations } from '$lib/server/db/schema';
 import { DomainError } from '$lib/server/api/http';
 import { reserve, reservationRows } from '$lib/server/stock/reservations';
@@ -189,7 +190,7 @@ export async function reserveSetup(db: DbOrTx, id: number, input: unknown, user:
 	const need = new Map<number, number>();
 	for (const e of setup.solution.elements) need.set(e.partId, (need.get(e.partId) ?? 0) + 1);
 	const ids = [...need.keys()].sort((a, b) => a - b);
-	return db.transaction(async (tx) => {
+	return inTransaction(db, async (tx) => {
 		const out = [];
 		for (const partId of ids) {
 			out.push(

@@ -6,6 +6,7 @@
 import { and, asc, eq, gt, isNull, sql } from 'drizzle-orm';
 import { z } from 'zod';
 import type { DbOrTx } from '$lib/server/db';
+import { inTransaction } from '$lib/server/db/transaction';
 import { locations, parts, stock } from '$lib/server/db/schema';
 import { DomainError } from '$lib/server/api/http';
 import { recordAudit } from '$lib/server/audit';
@@ -55,7 +56,7 @@ export async function getLocation(db: DbOrTx, id: number) {
 
 export async function createLocation(db: DbOrTx, input: unknown, actor: { id: number }) {
 	const d = locationInputSchema.parse(input);
-	return db.transaction(async (tx) => {
+	return inTransaction(db, async (tx) => {
 		await assertCodeFree(tx, d.code, null);
 		const [{ id }] = await tx.insert(locations).values(d).$returningId();
 		await recordAudit(tx, { actorId: actor.id, action: 'location.create', targetType: 'location', targetId: id, detail: d });
@@ -65,7 +66,7 @@ export async function createLocation(db: DbOrTx, input: unknown, actor: { id: nu
 
 export async function updateLocation(db: DbOrTx, id: number, input: unknown, actor: { id: number }) {
 	const d = locationInputSchema.parse(input);
-	return db.transaction(async (tx) => {
+	return inTransaction(db, async (tx) => {
 		if (!(await getLocation(tx, id))) throw new DomainError(404, 'not-found', `There is no location ${id}.`);
 		await assertCodeFree(tx, d.code, id);
 		await tx.update(locations).set(d).where(eq(locations.id, id));
@@ -76,7 +77,7 @@ export async function updateLocation(db: DbOrTx, id: number, input: unknown, act
 
 /** Archives an empty location (409 while it holds any unit), or restores it. */
 export async function setLocationArchived(db: DbOrTx, id: number, archived: boolean, actor: { id: number }) {
-	return db.transaction(async (tx) => {
+	return inTransaction(db, async (tx) => {
 		const [l] = await tx.select().from(locations).where(eq(locations.id, id)).for('update');
 		if (!l) throw new DomainError(404, 'not-found', `There is no location ${id}.`);
 		if (archived) {

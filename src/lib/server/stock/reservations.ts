@@ -6,6 +6,7 @@
 import { and, desc, eq, gt, sql } from 'drizzle-orm';
 import { z } from 'zod';
 import type { DbOrTx, Tx } from '$lib/server/db';
+import { inTransaction } from '$lib/server/db/transaction';
 import { parts, projects, reservations, users } from '$lib/server/db/schema';
 import type { Role } from '$lib/server/db/schema';
 import { DomainError } from '$lib/server/api/http';
@@ -64,7 +65,7 @@ export async function reserve(
 /** `reserve` in a transaction of its own. */
 export async function createReservation(db: DbOrTx, input: unknown, actor: { id: number }) {
 	const body = z.object({}).passthrough().parse(input);
-	return db.transaction((tx) => reserve(tx, { ...(body as ReservationInput), userId: actor.id }));
+	return inTransaction(db, (tx) => reserve(tx, { ...(body as ReservationInput), userId: actor.id }));
 }
 
 /**
@@ -72,7 +73,11 @@ export async function createReservation(db: DbOrTx, input: unknown, actor: { id:
  * release anyone's. Anyone else gets 404, as if it did not exist.
  */
 export async function releaseReservation(db: DbOrTx, id: number, actor: { id: number; role: Role }) {
-	return db.transaction(async (tx) => {
+	return inTransaction(db, async (tx) => {
+		// Lock order (the one used by every stock path): the part row first, then its reservations.
+		// Locking the reservation first deadlocked against an issue of the same part.
+		const [found] = await tx.select({ partId: reservations.partId }).from(reservations).where(eq(reservations.id, id));
+		if (found) await tx.select({ id: parts.id }).from(parts).where(eq(parts.id, found.partId)).for('update');
 		const [r] = await tx.select().from(reservations).where(eq(reservations.id, id)).for('update');
 		const mayRelease = r && (r.userId === actor.id || actor.role === 'admin' || actor.role === 'stockroom');
 		if (!r || !mayRelease) throw new DomainError(404, 'not-found', `There is no reservation ${id} of yours.`);
