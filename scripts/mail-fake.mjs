@@ -1,6 +1,8 @@
 // The local mail fake: an SMTP catcher on loopback that stores every message in the
 // outbox_messages table, so /admin/outbox and GET /api/v1/outbox can list them.
 // Usage: DATABASE_URL=... node scripts/mail-fake.mjs --port 2525
+// The greeting ends with GLASSCRIB_SERVICE_ID, so that `npm start` can tell this process from another
+// program on the port.
 import { SMTPServer } from 'smtp-server';
 import { simpleParser } from 'mailparser';
 import mysql from 'mysql2/promise';
@@ -19,7 +21,7 @@ const server = new SMTPServer({
 	authOptional: true,
 	disabledCommands: ['STARTTLS'],
 	size: MAX_BYTES,
-	banner: 'Glasscrib mail fake',
+	banner: `Glasscrib mail fake ${process.env.GLASSCRIB_SERVICE_ID ?? ''}`.trim(),
 	onData(stream, session, callback) {
 		const chunks = [];
 		let size = 0;
@@ -53,8 +55,14 @@ const server = new SMTPServer({
 		});
 	}
 });
-server.on('error', (err) => console.error('mail fake error:', err.message));
+let listening = false;
+server.on('error', (err) => {
+	console.error('mail fake error:', err.message);
+	// Not listening (port taken): exit, so that whoever started us sees it instead of a silent gap.
+	if (!listening) process.exit(1);
+});
 server.listen(Number(values.port), '127.0.0.1', () => {
+	listening = true;
 	console.log(`mail fake listening on smtp://127.0.0.1:${values.port}`);
 });
 const stop = () => server.close(async () => {

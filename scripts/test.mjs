@@ -1,17 +1,39 @@
 // `npm test`: a throwaway MariaDB, S3 fake and mail fake on free ports in a temp dir, the built app,
 // then svelte-check and vitest (unit, integration, e2e in Chromium). Ends with "N passed, N failed".
 // `npm test -- tests/unit/optics` runs only matching test files (services still start).
+// Like `npm start`, it first finds the Debian packages it needs (MariaDB; Chromium when browser tests
+// will run) and installs the missing ones with apt-get when run as root, else says what to install.
+// `npm test -- --check-system` prints that plan (and the apt-get commands) without running anything.
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import crypto from 'node:crypto';
 import { ensureDependencies } from './lib/deps.mjs';
 
+const { ensureSystemPackages } = await import('./lib/system-packages.mjs');
+
+const args = process.argv.slice(2);
+const checkSystemOnly = args.includes('--check-system');
+const filters = args.filter((a) => a !== '--check-system');
+// Chromium for the browser tests (tests/e2e, and a few integration tests that drive a page).
+const needs = ['mariadb', 'chromium'];
+
+if (checkSystemOnly) {
+	try {
+		const { found, plan } = ensureSystemPackages(needs, { dryRun: true });
+		for (const need of needs) console.log(`${need}: ${found[need] ?? 'missing'}`);
+		if (plan.action === 'none') console.log('Nothing to install.');
+		process.exit(plan.action === 'instruct' ? 1 : 0);
+	} catch (err) {
+		console.error(err.message);
+		process.exit(1);
+	}
+}
+
 await ensureDependencies();
 const { ROOT, startStack, ensureBuild, startApp } = await import('./lib/stack.mjs');
-const { freePort, run, stopChildren } = await import('./lib/proc.mjs');
+const { freePort, run, stopChildren, watchParent } = await import('./lib/proc.mjs');
 
-const filters = process.argv.slice(2);
 const tmp = fs.mkdtempSync(path.join(os.tmpdir(), 'glasscrib-test-'));
 const results = { passed: 0, failed: 0, skipped: 0 };
 let exitCode = 0;
@@ -23,10 +45,17 @@ async function cleanup() {
 		fs.rmSync(path.join(ROOT, '.test-builds', path.basename(tmp)), { recursive: true, force: true });
 	}
 }
-process.on('SIGINT', async () => {
+let interrupted = false;
+const stopOn = (code) => async () => {
+	if (interrupted) return;
+	interrupted = true;
 	await cleanup();
-	process.exit(130);
-});
+	process.exit(code);
+};
+process.on('SIGINT', stopOn(130));
+process.on('SIGTERM', stopOn(143));
+// A SIGTERM to npm kills the `sh -c` between npm and us but never reaches us: watch for it.
+watchParent(stopOn(143));
 
 function countReport(file) {
 	if (!fs.existsSync(file)) return false;
@@ -41,12 +70,20 @@ function countReport(file) {
 	return true;
 }
 
-function chromiumPath() {
-	for (const p of [process.env.CHROMIUM_PATH, '/usr/bin/chromium', '/usr/bin/chromium-browser']) if (p && fs.existsSync(p)) return p;
-	return null;
+/** Installs (as root) or explains the missing Debian packages; Chromium's absence fails only the browser tests. */
+function systemPackages() {
+	try {
+		return ensureSystemPackages(needs).found;
+	} catch (err) {
+		// Without Chromium the other tests still run; the browser tests count as failed, with the reason.
+		const found = ensureSystemPackages(['mariadb']).found;
+		console.error(err.message);
+		return { ...found, chromium: null, chromiumProblem: err.message };
+	}
 }
 
 try {
+	const system = systemPackages();
 	const ports = { db: await freePort(), s3: await freePort(), smtp: await freePort() };
 	const secrets = {
 		AUTH_PEPPER: crypto.randomBytes(24).toString('base64url'),
@@ -83,7 +120,7 @@ try {
 		buildDir,
 		logStream: fs.createWriteStream(path.join(tmp, 'logs', 'app.log'))
 	});
-	const chromium = chromiumPath();
+	const chromium = system.chromium ?? null;
 	const testEnv = {
 		...env,
 		APP_URL: origin,
@@ -95,7 +132,7 @@ try {
 	for (const project of ['unit', 'integration', 'e2e']) {
 		console.log(`\n== vitest: ${project} ==`);
 		if (project === 'e2e' && !chromium) {
-			console.error('Chromium not found at /usr/bin/chromium: install the Debian package "chromium" to run the browser tests.');
+			console.error(system.chromiumProblem ?? 'Chromium not found: install the Debian package "chromium" to run the browser tests.');
 			results.failed += 1;
 			exitCode = 1;
 			continue;

@@ -9,6 +9,7 @@ import { isHalfSignedInPath, isPublicPath, secondFactorPageFor } from '$lib/serv
 import { env } from '$env/dynamic/private';
 import { watchFlags } from '$lib/server/purchasing/watch';
 import { appStore } from '$lib/server/files/store';
+import { originCheck } from '$lib/server/origin-check';
 
 /** Resolves the user once per request: a bearer token on the API, else the session cookie. */
 const resolveUser: Handle = async ({ event, resolve }) => {
@@ -114,7 +115,8 @@ export const init: ServerInit = async () => {
 		.catch((err) => console.warn('[files] the file store is not reachable at start; uploads will try again:', err instanceof Error ? err.message : err));
 };
 
-export const handle: Handle = sequence(securityHeaders, resolveUser, gate, apiOrigin, watchFlags);
+// originCheck: SvelteKit's form origin rule with a readable refusal, and the local instance's other loopback name.
+export const handle: Handle = sequence(securityHeaders, originCheck, resolveUser, gate, apiOrigin, watchFlags);
 
 export const handleError: HandleServerError = ({ error: err, event, status, message }) => {
 	const id = event.locals?.requestId ?? randomUUID();

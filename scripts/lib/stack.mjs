@@ -1,33 +1,130 @@
 // Brings up the services Glasscrib needs (MariaDB, migrations, demo seed, S3 fake, mail fake) for
 // `npm start` (fixed ports, data under .data/) and `npm test` (free ports, a temp dir).
+// Every service is started by us and checked to be ours (the process we started answers on its port
+// with the id we gave it): a port held by another program is refused, never "reused".
 import fs from 'node:fs';
+import net from 'node:net';
 import path from 'node:path';
+import crypto from 'node:crypto';
 import { fileURLToPath } from 'node:url';
-import { isListening, run, startChild, waitFor } from './proc.mjs';
-import { startMariadb } from './mariadb.mjs';
+import { assertPortFree, isRunning, run, startChild, waitFor } from './proc.mjs';
+import { describeServer, startMariadb } from './mariadb.mjs';
 import { applyMigrations } from '../migrate.mjs';
 
 export const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
 
-/**
- * Starts or reuses every backing service and returns the environment the app needs.
- * `ports`: { db, s3, smtp }; `dataDir`: where MariaDB and S3 files live; `logDir`: service logs.
- */
-export async function startStack({ dataDir, ports, logDir, secrets, seed = true, quiet = false }) {
-	fs.mkdirSync(logDir, { recursive: true });
-	const log = (name) => fs.createWriteStream(path.join(logDir, `${name}.log`), { flags: 'a' });
-	const say = (msg) => quiet || console.log(msg);
+/** The last lines of a log file, for a message about a service that stopped. */
+export function logTail(file, lines = 5) {
+	try {
+		return fs.readFileSync(file, 'utf8').trimEnd().split('\n').slice(-lines).join('\n');
+	} catch {
+		return '';
+	}
+}
 
-	say(`- MariaDB on 127.0.0.1:${ports.db} (data in ${path.relative(ROOT, path.join(dataDir, 'mariadb')) || dataDir})`);
-	const mariadb = await startMariadb({
-		dataDir: path.join(dataDir, 'mariadb'),
+/** What the S3 fake answers on its identity path, or null. */
+async function s3Identity(port) {
+	const res = await fetch(`http://127.0.0.1:${port}/.glasscrib-service`, { signal: AbortSignal.timeout(2000) }).catch(() => null);
+	return res?.ok ? (await res.text()).trim() : null;
+}
+
+/** The SMTP greeting on the port, or null. */
+function smtpGreeting(port) {
+	return new Promise((resolve) => {
+		const socket = net.connect({ port, host: '127.0.0.1' });
+		let data = '';
+		const done = (value) => {
+			socket.destroy();
+			resolve(value);
+		};
+		socket.setTimeout(2000, () => done(null));
+		socket.on('error', () => done(null));
+		socket.on('data', (chunk) => {
+			data += chunk;
+			if (data.includes('\n')) {
+				socket.write('QUIT\r\n');
+				done(data.trim());
+			}
+		});
+	});
+}
+
+/**
+ * A service we start and can start again: `start()` spawns it and waits until it answers as ours,
+ * `check()` tells whether it still does. `child` is the current process.
+ */
+function service({ name, label, port, logFile, spawnIt, answersAsOurs }) {
+	const svc = {
+		name,
+		label,
+		port,
+		logFile,
+		child: null,
+		async start() {
+			await assertPortFree(label, port);
+			const id = crypto.randomBytes(8).toString('hex');
+			const child = spawnIt(id);
+			svc.child = child;
+			svc.id = id;
+			await waitFor(
+				label,
+				async () => {
+					if (!isRunning(child)) {
+						const tail = logTail(logFile);
+						throw new Error(`it exited (${child.exitCode ?? child.signalCode})${tail ? `:\n${tail}` : ''}`);
+					}
+					return answersAsOurs(id);
+				},
+				20_000
+			);
+			return child;
+		},
+		async check() {
+			return isRunning(svc.child) && (await answersAsOurs(svc.id).catch(() => false));
+		}
+	};
+	return svc;
+}
+
+/**
+ * Starts every backing service and returns the environment the app needs.
+ * `ports`: { db, s3, smtp }; `dataDir`: where MariaDB and S3 files live; `logDir`: service logs.
+ * `services`, when given, is filled with { mariadb, s3, mail } (see `service`) for supervision.
+ */
+export async function startStack({ dataDir, ports, logDir, secrets, seed = true, quiet = false, services = {} }) {
+	fs.mkdirSync(logDir, { recursive: true });
+	const logFile = (name) => path.join(logDir, `${name}.log`);
+	const log = (name) => fs.createWriteStream(logFile(name), { flags: 'a' });
+	const say = (msg) => quiet || console.log(msg);
+	const dbDir = path.join(dataDir, 'mariadb');
+
+	say(`- MariaDB on 127.0.0.1:${ports.db} (data in ${path.relative(ROOT, dbDir) || dbDir})`);
+	const dbOptions = {
+		dataDir: dbDir,
 		port: ports.db,
 		database: 'glasscrib',
 		user: 'glasscrib',
 		password: secrets.DB_PASSWORD,
 		logStream: log('mariadb')
-	});
-	if (!mariadb.started) say('  (reusing the server from an earlier start)');
+	};
+	const mariadb = await startMariadb(dbOptions);
+	if (!mariadb.started) say('  (reusing the server of this data dir)');
+	services.mariadb = {
+		name: 'mariadb',
+		label: 'MariaDB',
+		port: ports.db,
+		logFile: logFile('mariadb'),
+		child: mariadb.child,
+		async start() {
+			const again = await startMariadb({ ...dbOptions, logStream: log('mariadb'), reuse: false });
+			this.child = again.child;
+			return again.child;
+		},
+		async check() {
+			const info = await describeServer(mariadb.socket).catch(() => null);
+			return !!info && Number(info.port) === ports.db && (!this.child || isRunning(this.child));
+		}
+	};
 	say('- applying migrations');
 	await applyMigrations(mariadb.url);
 
@@ -55,22 +152,38 @@ export async function startStack({ dataDir, ports, logDir, secrets, seed = true,
 		say(`  ${out.trim().split('\n').pop()}`);
 	}
 
+	services.s3 = service({
+		name: 's3',
+		label: 'S3 fake',
+		port: ports.s3,
+		logFile: logFile('s3'),
+		spawnIt: (id) =>
+			startChild('s3', process.execPath, [path.join(ROOT, 'scripts/s3-fake.mjs'), '--port', String(ports.s3), '--dir', path.join(dataDir, 's3')], {
+				env: { GLASSCRIB_SERVICE_ID: id },
+				logStream: log('s3')
+			}),
+		answersAsOurs: async (id) => (await s3Identity(ports.s3)) === `glasscrib-s3-fake ${id}`
+	});
 	say(`- S3 fake on 127.0.0.1:${ports.s3}`);
-	if (!(await isListening(ports.s3))) {
-		startChild('s3', process.execPath, [path.join(ROOT, 'scripts/s3-fake.mjs'), '--port', String(ports.s3), '--dir', path.join(dataDir, 's3')], {
-			logStream: log('s3')
-		});
-		await waitFor('S3 fake', () => isListening(ports.s3), 20_000);
-	} else say('  (reusing the running one)');
+	await services.s3.start();
 
+	services.mail = service({
+		name: 'mail',
+		label: 'mail fake',
+		port: ports.smtp,
+		logFile: logFile('mail'),
+		spawnIt: (id) =>
+			startChild('mail', process.execPath, [path.join(ROOT, 'scripts/mail-fake.mjs'), '--port', String(ports.smtp)], {
+				env: { DATABASE_URL: mariadb.url, GLASSCRIB_SERVICE_ID: id },
+				logStream: log('mail')
+			}),
+		answersAsOurs: async (id) => {
+			const greeting = await smtpGreeting(ports.smtp);
+			return !!greeting && greeting.startsWith('220 ') && greeting.endsWith(`Glasscrib mail fake ${id}`);
+		}
+	});
 	say(`- mail fake on 127.0.0.1:${ports.smtp}`);
-	if (!(await isListening(ports.smtp))) {
-		startChild('mail', process.execPath, [path.join(ROOT, 'scripts/mail-fake.mjs'), '--port', String(ports.smtp)], {
-			env: { DATABASE_URL: mariadb.url },
-			logStream: log('mail')
-		});
-		await waitFor('mail fake', () => isListening(ports.smtp), 20_000);
-	} else say('  (reusing the running one)');
+	await services.mail.start();
 
 	return env;
 }
@@ -103,31 +216,51 @@ export async function ensureBuild({ force = false, quiet = false, buildDir = pat
 	return true;
 }
 
-/** Starts the built app (node build) and waits until /health answers. */
-export async function startApp({ port, env, logStream, buildDir = path.join(ROOT, 'build') }) {
+/**
+ * Starts the built app (node build) and waits until /health answers from it. Returns { origin, child,
+ * service } where `service` can start it again and check it (for supervision).
+ */
+export async function startApp({ port, env, logStream, logFile, buildDir = path.join(ROOT, 'build') }) {
 	const origin = `http://127.0.0.1:${port}`;
-	const child = startChild('app', process.execPath, [path.join(buildDir, 'index.js')], {
-		cwd: ROOT,
-		env: {
-			...env,
-			HOST: '127.0.0.1',
-			PORT: String(port),
-			ORIGIN: origin,
-			BODY_SIZE_LIMIT: '30M',
-			NODE_ENV: 'production',
-			SHUTDOWN_TIMEOUT: '2'
+	const svc = {
+		name: 'app',
+		label: 'app',
+		port,
+		logFile,
+		child: null,
+		async start() {
+			await assertPortFree('app', port);
+			const child = startChild('app', process.execPath, [path.join(buildDir, 'index.js')], {
+				cwd: ROOT,
+				env: {
+					...env,
+					HOST: '127.0.0.1',
+					PORT: String(port),
+					ORIGIN: origin,
+					BODY_SIZE_LIMIT: '30M',
+					NODE_ENV: 'production',
+					SHUTDOWN_TIMEOUT: '2'
+				},
+				logStream: logStream ?? (logFile ? fs.createWriteStream(logFile, { flags: 'a' }) : undefined)
+			});
+			svc.child = child;
+			await waitFor(
+				'the app',
+				async () => {
+					if (!isRunning(child)) throw new Error(`the app exited with code ${child.exitCode ?? child.signalCode}`);
+					return svc.check();
+				},
+				60_000,
+				200
+			);
+			return child;
 		},
-		logStream
-	});
-	await waitFor(
-		'the app',
-		async () => {
-			if (child.exitCode !== null) throw new Error(`the app exited with code ${child.exitCode}`);
-			const res = await fetch(`${origin}/health`).catch(() => null);
+		async check() {
+			if (!isRunning(svc.child)) return false;
+			const res = await fetch(`${origin}/health`, { signal: AbortSignal.timeout(5000) }).catch(() => null);
 			return res?.ok ?? false;
-		},
-		60_000,
-		200
-	);
-	return { origin, child };
+		}
+	};
+	await svc.start();
+	return { origin, child: svc.child, service: svc };
 }

@@ -14,7 +14,8 @@ import { datasheets, parts, users, type Datasheet, type DatasheetType } from '$l
 import { ApiError, DomainError } from '$lib/server/api/http';
 import { recordAudit } from '$lib/server/audit';
 import { describeRefused, EXTENSIONS, isImageType, maxBytesFor, sniffType, MAX_IMAGE_BYTES, MAX_PDF_BYTES } from './magic';
-import { makeThumbnail } from './thumbnails';
+import { makeThumbnail, ThumbnailFailed, type Thumbnail } from './thumbnails';
+import { imageSize, MAX_IMAGE_MEGAPIXELS, MAX_IMAGE_PIXELS } from './image-size';
 import { spoolToTempFile, type SpooledFile } from './spool';
 import type { ObjectStore, StoredObject } from './s3';
 
@@ -150,11 +151,7 @@ export async function uploadDatasheet(
 	const sizeBytes = spooled ? spooled.size : bytes!.byteLength;
 	const filename = cleanFilename(input.filename);
 	const sha256 = spooled ? spooled.sha256 : createHash('sha256').update(bytes!).digest('hex');
-	let thumb = null;
-	if (isImageType(contentType)) {
-		thumb = await makeThumbnail(bytes ?? (await fs.promises.readFile(spooled!.path)));
-		if (!thumb) throw new ApiError(400, 'unreadable-image', 'The image could not be read: the file may be damaged or not really an image.');
-	}
+	const thumb = isImageType(contentType) ? await thumbnailOf(bytes ?? (await fs.promises.readFile(spooled!.path)), contentType) : null;
 	const uuid = randomUUID();
 	const key = `datasheets/${uuid}`;
 	const thumbnailKey = thumb ? `thumbnails/${uuid}.png` : null;
@@ -206,6 +203,38 @@ export async function uploadDatasheet(
 		await undo();
 		throw err;
 	}
+}
+
+const unreadable = () => new ApiError(400, 'unreadable-image', 'The image could not be read: the file may be damaged or not really an image.');
+
+/**
+ * The pixel count from the header first (an image bomb is refused before a pixel is decoded), then
+ * the thumbnail, made in a worker thread (thumbnails.ts).
+ */
+async function thumbnailOf(bytes: Uint8Array, type: DatasheetType): Promise<Thumbnail> {
+	const size = imageSize(bytes, type as 'image/png' | 'image/jpeg');
+	if (!size) throw unreadable();
+	if (size.width * size.height > MAX_IMAGE_PIXELS) {
+		const mp = (size.width * size.height) / 1e6;
+		throw new ApiError(
+			413,
+			'image-too-large',
+			`The photo is ${size.width} × ${size.height} pixels (${mp < 100 ? mp.toFixed(1) : Math.round(mp)} megapixels); photos may have at most ${MAX_IMAGE_MEGAPIXELS} megapixels. Scale it down (for example to 4000 pixels on the long side) and upload it again.`,
+			{ file: `At most ${MAX_IMAGE_MEGAPIXELS} megapixels.` }
+		);
+	}
+	let thumb: Thumbnail | null;
+	try {
+		thumb = await makeThumbnail(bytes);
+	} catch (err) {
+		if (!(err instanceof ThumbnailFailed)) throw err;
+		if (err.reason === 'out-of-memory') {
+			throw new ApiError(413, 'image-too-large', 'The photo needs more memory to read than a thumbnail may use: scale it down and upload it again.');
+		}
+		throw new ApiError(503, 'thumbnail-unavailable', 'No thumbnail could be made in time (the server is busy); nothing was saved. Try again in a minute.');
+	}
+	if (!thumb) throw unreadable();
+	return thumb;
 }
 
 /** The datasheets and photos of a part, newest first. */
