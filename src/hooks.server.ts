@@ -5,6 +5,7 @@ import { db } from '$lib/server/db';
 import { resolveSession } from '$lib/server/auth/sessions';
 import { resolveBearer } from '$lib/server/auth/tokens';
 import { errorResponse } from '$lib/server/api/http';
+import { formBody } from '$lib/server/api/form-body';
 import { isHalfSignedInPath, isPublicPath, secondFactorPageFor } from '$lib/server/auth/public-paths';
 import { env } from '$env/dynamic/private';
 import { watchFlags } from '$lib/server/purchasing/watch';
@@ -116,7 +117,7 @@ export const init: ServerInit = async () => {
 };
 
 // originCheck: SvelteKit's form origin rule with a readable refusal, and the local instance's other loopback name.
-export const handle: Handle = sequence(securityHeaders, originCheck, resolveUser, gate, apiOrigin, watchFlags);
+export const handle: Handle = sequence(securityHeaders, originCheck, resolveUser, gate, formBody, apiOrigin, watchFlags);
 
 export const handleError: HandleServerError = ({ error: err, event, status, message }) => {
 	const id = event.locals?.requestId ?? randomUUID();

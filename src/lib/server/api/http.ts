@@ -1,6 +1,7 @@
 import { isHttpError, json, type RequestEvent, type RequestHandler } from '@sveltejs/kit';
 import { ZodError } from 'zod';
-import { isRetryable } from '$lib/server/db/errno';
+import { badTextReason } from '$lib/input';
+import { INPUT_ERRNOS, dbErrno, isRetryable } from '$lib/server/db/errno';
 import { duplicateOf } from '$lib/server/db/unique';
 
 /** An error with the JSON shape of the API: `{ error: { code, message, fields? } }`. */
@@ -71,6 +72,11 @@ export function toErrorResponse(err: unknown): Response {
 	}
 	const dup = duplicateOf(err);
 	if (dup) return errorResponse(409, dup.code, dup.message, dup.fields);
+	const errno = dbErrno(err);
+	if (errno !== undefined && INPUT_ERRNOS.has(errno)) {
+		console.warn('[api] the database refused a value the validation let through:', err instanceof Error ? err.message.slice(0, 300) : err);
+		return errorResponse(400, 'invalid-input', 'A value cannot be stored (wrong characters, too long or out of range).');
+	}
 	if (isRetryable(err)) {
 		// Deadlock or lock wait still failing after inTransaction's retries: busy, not broken.
 		return errorResponse(503, 'busy', 'The stockroom is busy; try again in a moment.', undefined, { 'Retry-After': '1' });
@@ -99,9 +105,40 @@ export async function readJson(request: Request): Promise<unknown> {
 	if (!type.toLowerCase().startsWith('application/json')) {
 		throw new ApiError(415, 'unsupported-media-type', 'Send the body as application/json.');
 	}
+	let body: unknown;
 	try {
-		return await request.json();
+		body = await request.json();
 	} catch {
 		throw new ApiError(400, 'invalid-json', 'The body is not valid JSON.');
+	}
+	checkJsonBody(body);
+	return body;
+}
+
+/** How deep a JSON body may nest (no request of ours needs more than a few levels). */
+export const MAX_JSON_DEPTH = 32;
+
+/**
+ * Refuses a parsed JSON body that nests deeper than MAX_JSON_DEPTH or holds text that cannot be
+ * stored (NUL and other control characters, lone surrogates: `badTextReason`), in keys or values,
+ * with a 400 naming the field. Iterative, so a hostile depth cannot overflow the stack.
+ */
+export function checkJsonBody(body: unknown): void {
+	const stack: { value: unknown; path: string; depth: number }[] = [{ value: body, path: '', depth: 0 }];
+	while (stack.length) {
+		const { value, path, depth } = stack.pop()!;
+		if (typeof value === 'string') {
+			const reason = badTextReason(value);
+			if (reason) throw new ApiError(400, 'invalid-text', `${path || 'The body'}: ${reason}`, { [path || '_']: reason });
+			continue;
+		}
+		if (value === null || typeof value !== 'object') continue;
+		if (depth >= MAX_JSON_DEPTH) throw new ApiError(400, 'too-deep', `The body nests deeper than ${MAX_JSON_DEPTH} levels.`, { [path || '_']: 'Nested too deeply.' });
+		for (const [key, child] of Object.entries(value)) {
+			const childPath = path ? `${path}.${key}` : key;
+			const reason = badTextReason(key);
+			if (reason) throw new ApiError(400, 'invalid-text', `A field name: ${reason}`, { _: reason });
+			stack.push({ value: child, path: childPath, depth: depth + 1 });
+		}
 	}
 }

@@ -22,6 +22,7 @@
  */
 import { and, asc, count, desc, eq, gte, inArray, isNotNull, isNull, like, lte, or, sql, type SQL } from 'drizzle-orm';
 import { z } from 'zod';
+import { text } from '$lib/input';
 import type { DbOrTx } from '$lib/server/db';
 import { PART_KINDS, parts } from '$lib/server/db/schema';
 import { availableSql } from '$lib/server/stock/availability';
@@ -50,7 +51,7 @@ const num = () => z.preprocess(blankToUndefined, z.coerce.number({ error: 'Enter
 /** The list query as URL parameters (strings), validated and typed. Unknown parameters are refused. */
 export const listQuerySchema = z
 	.object({
-		q: z.preprocess(blankToUndefined, z.string().trim().max(100).optional()),
+		q: z.preprocess(blankToUndefined, text().trim().max(100).optional()),
 		/** One kind or a comma-separated list. */
 		kind: z.preprocess(
 			(v) => (typeof v === 'string' && v !== '' ? v.split(',') : Array.isArray(v) && v.length ? v : undefined),
@@ -60,8 +61,8 @@ export const listQuerySchema = z
 		eflMax: num(),
 		diameterMin: num(),
 		diameterMax: num(),
-		material: z.preprocess(blankToUndefined, z.string().trim().max(32).optional()),
-		coating: z.preprocess(blankToUndefined, z.string().trim().max(80).optional()),
+		material: z.preprocess(blankToUndefined, text().trim().max(32).optional()),
+		coating: z.preprocess(blankToUndefined, text().trim().max(80).optional()),
 		available: z.preprocess(blankToUndefined, z.enum(['true', 'false'], { error: 'available is true or false.' }).optional()),
 		archived: z.preprocess(blankToUndefined, z.enum(['exclude', 'include', 'only']).default('exclude')),
 		sort: z.preprocess(

@@ -5,6 +5,7 @@
  */
 import { desc, eq } from 'drizzle-orm';
 import { z } from 'zod';
+import { dateInput, text } from '$lib/input';
 import type { DbOrTx } from '$lib/server/db';
 import { inTransaction } from '$lib/server/db/transaction';
 import { measurements, parts, users } from '$lib/server/db/schema';
@@ -18,13 +19,12 @@ export const measurementInputSchema = z
 		eflMm: z.number({ error: 'Enter the measured EFL in mm.' }).refine((v) => v !== 0 && Math.abs(v) <= 1e6, 'Enter a non-zero EFL in mm.'),
 		wavelengthNm: z.number({ error: 'Enter the wavelength in nm.' }).min(200, 'Between 200 and 20000 nm.').max(20000, 'Between 200 and 20000 nm.'),
 		uncertaintyMm: z.number().min(0, 'The uncertainty cannot be negative.').max(1e4).nullable().optional(),
-		method: z.string().trim().max(120, 'At most 120 characters.').nullable().optional(),
+		method: text().trim().max(120, 'At most 120 characters.').nullable().optional(),
 		/** ISO date or date-time; defaults to now. Not in the future. */
-		measuredAt: z.coerce
-			.date({ error: 'Enter a date.' })
+		measuredAt: dateInput('Enter a real date, e.g. 2026-03-01 (or leave it out for now).')
 			.refine((d) => d.getTime() <= Date.now() + 60_000, 'The date cannot lie in the future.')
 			.optional(),
-		note: z.string().trim().max(2000).nullable().optional()
+		note: text().trim().max(2000).nullable().optional()
 	})
 	.strict();
 export type MeasurementInput = z.infer<typeof measurementInputSchema>;

@@ -4,14 +4,14 @@
  * builds into a lens. Field messages are keyed by dotted path (`surfaces.1.radiusMm`).
  */
 import { z } from 'zod';
+import { text } from '$lib/input';
 import { buildElement, resolveMaterial, thicknessesAtHeight } from '$lib/optics';
 import { toSurfaceSpecs } from './derived';
 import { PART_KINDS } from '$lib/server/db/schema';
 
 const optionalNumber = (schema: z.ZodNumber) => schema.nullable().optional();
 const optionalText = (max: number) =>
-	z
-		.string()
+	text()
 		.trim()
 		.max(max, `At most ${max} characters.`)
 		.transform((s) => (s === '' ? null : s))
@@ -43,13 +43,12 @@ export const PURCHASING_FIELDS = [
 ] as const;
 
 const fields = {
-	sku: z
-		.string()
+	sku: text()
 		.trim()
 		.min(1, 'Enter a SKU.')
 		.max(40, 'At most 40 characters.')
 		.regex(/^[A-Za-z0-9][A-Za-z0-9._/-]*$/, 'Use letters, digits and . _ / - only, starting with a letter or digit.'),
-	name: z.string().trim().min(1, 'Enter a name.').max(200, 'At most 200 characters.'),
+	name: text().trim().min(1, 'Enter a name.').max(200, 'At most 200 characters.'),
 	kind: z.enum(PART_KINDS, { error: 'Choose a kind.' }),
 	diameterMm: z.number({ error: 'Enter the diameter in mm.' }).positive('The diameter must be more than 0 mm.').max(1000),
 	clearApertureMm: optionalNumber(z.number().positive('The clear aperture must be more than 0 mm.').max(1000)),
@@ -63,8 +62,7 @@ const fields = {
 	supplierPartNumber: optionalText(80),
 	/** Unit price in integer minor units (cents) of `currency`. */
 	unitPrice: optionalNumber(z.number().int('Whole cents only.').min(0).max(1e9)),
-	currency: z
-		.string()
+	currency: text()
 		.trim()
 		.regex(/^[A-Z]{3}$/, 'Three capital letters (ISO 4217), e.g. EUR.'),
 	leadTimeDays: optionalNumber(z.number().int('Whole days.').min(0).max(3650)),

@@ -24,3 +24,16 @@ export function isRetryable(err: unknown): boolean {
 	const errno = dbErrno(err);
 	return errno !== undefined && RETRYABLE_ERRNOS.has(errno);
 }
+
+/**
+ * Errors by which the database refuses a value the validation should have caught (a string it cannot
+ * store, too long, an impossible date, a number out of the column's range). The API answers them
+ * with 400 as a last net; each one reached is a missing check at the edge.
+ */
+export const INPUT_ERRNOS: ReadonlySet<number> = new Set([
+	1366 /* ER_TRUNCATED_WRONG_VALUE_FOR_FIELD: incorrect string value */,
+	1406 /* ER_DATA_TOO_LONG */,
+	1292 /* ER_TRUNCATED_WRONG_VALUE: incorrect datetime value */,
+	1264 /* ER_WARN_DATA_OUT_OF_RANGE */,
+	1048 /* ER_BAD_NULL_ERROR */
+]);

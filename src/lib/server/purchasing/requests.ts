@@ -7,6 +7,7 @@
  */
 import { and, asc, desc, eq, gt, inArray, sql, type SQL } from 'drizzle-orm';
 import { z } from 'zod';
+import { text } from '$lib/input';
 import type { DbOrTx, Tx } from '$lib/server/db';
 import { inTransaction } from '$lib/server/db/transaction';
 import {
@@ -37,7 +38,7 @@ export const REQUEST_MANAGERS: readonly Role[] = ['admin', 'purchaser'];
 export const REQUEST_RECEIVERS: readonly Role[] = ['admin', 'purchaser', 'stockroom'];
 
 const quantity = z.number({ error: 'Enter a number of units.' }).int('Whole units only.').min(1, 'At least 1 unit.').max(100_000, 'At most 100000 units.');
-const note = z.string().trim().max(2000, 'At most 2000 characters.').nullable().optional();
+const note = text().trim().max(2000, 'At most 2000 characters.').nullable().optional();
 const unitPrice = z.number({ error: 'Enter the price in cents.' }).int('Whole cents only.').min(0, 'The price cannot be negative.').max(1e9).nullable().optional();
 const id = z.number({ error: 'Choose one.' }).int().positive();
 
@@ -61,7 +62,7 @@ export const patchRequestSchema = z
 		status: z.enum(REQUEST_STATUSES, { error: `Status is one of ${REQUEST_STATUSES.join(', ')}.` }).optional(),
 		quantity: quantity.optional(),
 		unitPrice,
-		orderReference: z.string().trim().max(80, 'At most 80 characters.').nullable().optional(),
+		orderReference: text().trim().max(80, 'At most 80 characters.').nullable().optional(),
 		receive: receiveInputSchema.optional(),
 		note
 	})

@@ -6,6 +6,7 @@
  */
 import { and, desc, eq } from 'drizzle-orm';
 import { z } from 'zod';
+import { dateInput, text } from '$lib/input';
 import type { DbOrTx } from '$lib/server/db';
 import { inTransaction } from '$lib/server/db/transaction';
 import { setups, projects, users, reservations } from '$lib/server/db/schema';
@@ -33,7 +34,7 @@ export type Choice = z.infer<typeof choiceSchema>;
 
 export const setupInputSchema = z
 	.object({
-		name: z.string({ error: 'Give the setup a name.' }).trim().min(1, 'Give the setup a name.').max(160, 'At most 160 characters.'),
+		name: text({ error: 'Give the setup a name.' }).trim().min(1, 'Give the setup a name.').max(160, 'At most 160 characters.'),
 		projectId: z.number().int().positive().nullable().optional(),
 		query: solveRequestSchema,
 		choice: choiceSchema
@@ -42,7 +43,7 @@ export const setupInputSchema = z
 
 export const reserveInputSchema = z
 	.object({
-		until: z.coerce.date({ error: 'Enter a date.' }),
+		until: dateInput('Enter a date.'),
 		projectId: z.number().int().positive().nullable().optional()
 	})
 	.strict();

@@ -5,6 +5,7 @@
  */
 import { and, asc, eq, gt, isNull, sql } from 'drizzle-orm';
 import { z } from 'zod';
+import { text } from '$lib/input';
 import type { DbOrTx } from '$lib/server/db';
 import { inTransaction } from '$lib/server/db/transaction';
 import { locations, parts, stock } from '$lib/server/db/schema';
@@ -13,14 +14,13 @@ import { recordAudit } from '$lib/server/audit';
 
 export const locationInputSchema = z
 	.object({
-		code: z
-			.string()
+		code: text()
 			.trim()
 			.toUpperCase()
 			.min(1, 'Enter a code.')
 			.max(64, 'At most 64 characters.')
 			.regex(/^[A-Z0-9]+(-[A-Z0-9]+)*$/, 'Letters and digits in segments joined by "-", e.g. A1-D2-B04.'),
-		name: z.string().trim().min(1, 'Enter a name.').max(120, 'At most 120 characters.')
+		name: text().trim().min(1, 'Enter a name.').max(120, 'At most 120 characters.')
 	})
 	.strict();
 

@@ -17,6 +17,7 @@
  */
 import { and, asc, desc, eq, gt, inArray, sql } from 'drizzle-orm';
 import { z } from 'zod';
+import { text } from '$lib/input';
 import type { DbOrTx, Tx } from '$lib/server/db';
 import { inTransaction } from '$lib/server/db/transaction';
 import {
@@ -42,7 +43,7 @@ export class InsufficientStock extends DomainError {
 
 const id = z.number({ error: 'Choose one.' }).int().positive();
 const quantity = z.number({ error: 'Enter a number of units.' }).int('Whole units only.').min(1, 'At least 1 unit.').max(100_000, 'At most 100000 units at once.');
-const note = z.string().trim().max(2000, 'At most 2000 characters.').nullable().optional();
+const note = text().trim().max(2000, 'At most 2000 characters.').nullable().optional();
 const condition = z.enum(CONDITIONS, { error: 'Choose usable, quarantine or damaged.' });
 
 export const receiveSchema = z.object({ partId: id, quantity, locationId: id, condition: condition.default('usable'), note }).strict();
@@ -55,7 +56,7 @@ export const issueSchema = z
 		partId: id,
 		quantity,
 		locationId: id,
-		issuedTo: z.string().trim().max(160).nullable().optional(),
+		issuedTo: text().trim().max(160).nullable().optional(),
 		projectId: id.nullable().optional(),
 		reservationId: id.nullable().optional(),
 		note
@@ -67,7 +68,7 @@ export const returnSchema = z
 		quantity,
 		locationId: id,
 		condition: condition.default('usable'),
-		issuedTo: z.string().trim().max(160).nullable().optional(),
+		issuedTo: text().trim().max(160).nullable().optional(),
 		projectId: id.nullable().optional(),
 		note
 	})
@@ -79,12 +80,12 @@ export const adjustSchema = z
 		condition: condition.default('usable'),
 		/** Signed change: + found units, − missing units. */
 		delta: z.number({ error: 'Enter the change in units, e.g. -2 or 3.' }).int('Whole units only.').refine((v) => v !== 0 && Math.abs(v) <= 100_000, 'A non-zero change of at most 100000 units.'),
-		reason: z.string().trim().min(3, 'Say why (at least 3 characters).').max(200),
+		reason: text().trim().min(3, 'Say why (at least 3 characters).').max(200),
 		note
 	})
 	.strict();
 export const scrapSchema = z
-	.object({ partId: id, quantity, locationId: id, condition: condition.default('damaged'), reason: z.string().trim().max(200).nullable().optional(), note })
+	.object({ partId: id, quantity, locationId: id, condition: condition.default('damaged'), reason: text().trim().max(200).nullable().optional(), note })
 	.strict();
 export const conditionSchema = z
 	.object({ partId: id, quantity, locationId: id, from: condition, to: condition, note })

@@ -5,6 +5,7 @@
  */
 import { and, desc, eq, gt, sql } from 'drizzle-orm';
 import { z } from 'zod';
+import { dateInput, text } from '$lib/input';
 import type { DbOrTx, Tx } from '$lib/server/db';
 import { inTransaction } from '$lib/server/db/transaction';
 import { parts, projects, reservations, users } from '$lib/server/db/schema';
@@ -19,13 +20,12 @@ export const reservationInputSchema = z
 	.object({
 		partId: z.number({ error: 'Choose a part.' }).int().positive(),
 		quantity: z.number({ error: 'Enter a number of units.' }).int('Whole units only.').min(1, 'At least 1 unit.').max(10_000),
-		until: z.coerce
-			.date({ error: 'Enter a date.' })
+		until: dateInput('Enter a date.')
 			.refine((d) => d.getTime() > Date.now(), 'Choose a date in the future.')
 			.refine((d) => d.getTime() <= Date.now() + MAX_DAYS * 86_400_000, `At most ${MAX_DAYS} days ahead.`),
 		projectId: z.number().int().positive().nullable().optional(),
 		setupId: z.number().int().positive().nullable().optional(),
-		note: z.string().trim().max(2000).nullable().optional()
+		note: text().trim().max(2000).nullable().optional()
 	})
 	.strict();
 export type ReservationInput = z.infer<typeof reservationInputSchema>;
