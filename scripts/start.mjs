@@ -131,7 +131,7 @@ function supervise(services) {
 		for (const svc of services) {
 			if (stopping || svc.restarting) continue;
 			if (await svc.check().catch(() => false)) svc.misses = 0;
-			else if (++svc.misses >= 3) {
+			else if (++svc.misses >= (svc.maxMisses ?? 3)) {
 				svc.misses = 0;
 				void restart(svc, 'does not answer as ours any more');
 			}
@@ -167,6 +167,8 @@ try {
 		await ensureBuild();
 		const app = await startApp({ port: ports.app, env, logFile: path.join(LOGS, 'app.log') });
 		app.service.signature = path.join(ROOT, 'build', 'index.js');
+		// A busy app (a large import) may answer /health late: give it longer than the fakes before a restart.
+		app.service.maxMisses = 10;
 		lock.record('app', app.child.pid, app.service.signature);
 		supervise([services.mariadb, services.s3, services.mail, app.service]);
 		const origin = app.origin;

@@ -178,6 +178,34 @@ describe('npm start (scripts/start.mjs)', () => {
 			srv?.close();
 		}
 	}, 240_000);
+
+	it('after a start killed with kill -9, the next one stops its leftovers and serves with services of its own', async () => {
+		const dataDir = tempDataDir();
+		const ports = await freePorts();
+		const first = runStart(dataDir, ports);
+		await first.waitFor('Services are running');
+		const before = lockOf(dataDir).services;
+		pidsToStop.push(...Object.values(before).map((s) => s.pid));
+		first.child.kill('SIGKILL');
+		await first.exited;
+		// its services live on, holding the ports (the case where S3 "started" on a port a leftover held)
+		for (const s of Object.values(before)) expect(proc.isAlive(s.pid)).toBe(true);
+		expect(await proc.isListening(ports.GLASSCRIB_S3_PORT)).toBe(true);
+
+		const next = runStart(dataDir, ports);
+		await next.waitFor('Services are running');
+		expect(next.output).toContain('An earlier start of this data dir did not stop cleanly.');
+		for (const name of ['mariadb', 's3', 'mail']) expect(next.output).toContain(`stopping ${name} (pid ${before[name].pid}) left running by an earlier start`);
+		for (const s of Object.values(before)) expect(proc.isAlive(s.pid)).toBe(false);
+		const after = lockOf(dataDir).services;
+		pidsToStop.push(...Object.values(after).map((s) => s.pid));
+		const identity = await (await fetch(`http://127.0.0.1:${ports.GLASSCRIB_S3_PORT}/.glasscrib-service`)).text();
+		expect(identity).toMatch(/^glasscrib-s3-fake [0-9a-f]{16}$/);
+		expect(after.s3.pid).not.toBe(before.s3.pid);
+		next.child.kill('SIGTERM');
+		expect(await next.exited).toBe(0);
+		for (const s of Object.values(after)) expect(proc.isAlive(s.pid)).toBe(false);
+	}, 240_000);
 });
 
 describe('a data dir made by an older start (root with an empty password, also over TCP)', () => {
