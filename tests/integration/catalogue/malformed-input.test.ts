@@ -3,7 +3,7 @@
  * dates, ids that are not canonical positive integers, non-finite paging, truncated form bodies.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { count, like } from 'drizzle-orm';
+import { count, eq, like } from 'drizzle-orm';
 import { testDb } from '../../support/env';
 import * as t from '../../../src/lib/server/db/schema';
 import { APP, api, cookieFor, url } from '../accounts/helpers';
@@ -86,10 +86,20 @@ describe('ids in the path', () => {
 		expect((await fetch(url(`/parts/${raw}`), { headers: { cookie: stockroom }, redirect: 'manual' })).status).toBe(404);
 	});
 
-	it('DELETE /api/v1/datasheets/%201 deletes nothing and answers 404', async () => {
-		const before = await db.select({ n: count() }).from(t.datasheets);
-		expect((await api('DELETE', '/api/v1/datasheets/%201', { cookie: stockroom })).status).toBe(404);
-		expect(await db.select({ n: count() }).from(t.datasheets)).toEqual(before);
+	it('non-canonical spellings of a real datasheet id are 404, and DELETE /api/v1/datasheets/%20<id> deletes nothing', async () => {
+		const bytes = new TextEncoder().encode('%PDF-1.7\n% malformed-input test\n%%EOF\n');
+		const body = new FormData();
+		body.append('file', new Blob([bytes]), 'sheet.pdf');
+		const up = await fetch(url(`/api/v1/parts/${partId}/datasheets`), { method: 'POST', body, headers: { cookie: stockroom, origin: APP() } });
+		expect(up.status).toBe(201);
+		const { id } = await up.json();
+		for (const raw of [`%20${id}`, `${id}%20`, `0x${id.toString(16)}`, `${id}.0`, `+${id}`, `0${id}`, `${id}e0`]) {
+			expect((await api('GET', `/api/v1/datasheets/${raw}`, { cookie: stockroom })).status, raw).toBe(404);
+			expect((await api('DELETE', `/api/v1/datasheets/${raw}`, { cookie: stockroom })).status, raw).toBe(404);
+		}
+		expect(await db.select({ id: t.datasheets.id }).from(t.datasheets).where(eq(t.datasheets.id, id))).toHaveLength(1);
+		expect((await api('GET', `/api/v1/datasheets/${id}`, { cookie: stockroom })).status).toBe(200);
+		expect((await api('DELETE', `/api/v1/datasheets/${id}`, { cookie: stockroom })).status).toBe(204);
 	});
 
 	it('the canonical id still works', async () => {
