@@ -29,7 +29,7 @@ const handle = s3.callback();
 const serviceId = process.env.GLASSCRIB_SERVICE_ID ?? '';
 
 /** True when the request carries one of the S3 signature mechanisms s3rver checks. */
-export function isSigned(req) {
+function isSigned(req) {
 	const query = new URL(req.url ?? '/', 'http://s3.local').searchParams;
 	return 'authorization' in req.headers || query.has('X-Amz-Algorithm') || query.has('Signature');
 }

@@ -98,7 +98,8 @@ export async function startStack({ dataDir, ports, logDir, secrets, seed = true,
 	const say = (msg) => quiet || console.log(msg);
 	const dbDir = path.join(dataDir, 'mariadb');
 
-	say(`- MariaDB on 127.0.0.1:${ports.db} (data in ${path.relative(ROOT, dbDir) || dbDir})`);
+	const shown = path.relative(ROOT, dbDir);
+	say(`- MariaDB on 127.0.0.1:${ports.db} (data in ${shown && !shown.startsWith('..') ? shown : dbDir})`);
 	const dbOptions = {
 		dataDir: dbDir,
 		port: ports.db,
