@@ -9,7 +9,7 @@ import { endOtherSessions, endSessionByHandle, listSessions } from '$lib/server/
 import { DomainError, zodFields } from '$lib/server/api/http';
 import * as twoStep from '$lib/server/accounts/two-step';
 import * as apiTokens from '$lib/server/accounts/api-tokens';
-import { changePassword, changePasswordSchema, confirmPassword } from '$lib/server/accounts/passwords';
+import { changePassword, changePasswordSchema, recheckPassword, recheckRefusal } from '$lib/server/accounts/passwords';
 
 export const load = (async (event) => {
 	const user = requireRole(event, ANY_ROLE);
@@ -52,7 +52,7 @@ export const actions = {
 		const parsed = changePasswordSchema.safeParse(form);
 		if (!parsed.success) return fail(400, { form: 'password' as const, errors: zodFields(parsed.error) });
 		const result = await changePassword(db, user.id, parsed.data, env.AUTH_PEPPER);
-		if (!result.ok) return fail(400, { form: 'password' as const, errors: { [result.field]: result.message } as Record<string, string> });
+		if (!result.ok) return fail(result.retryAfterSeconds ? 429 : 400, { form: 'password' as const, errors: { [result.field]: result.message } as Record<string, string> });
 		if (event.locals.session) await endOtherSessions(user.id, event.locals.session.id);
 		return { form: 'password' as const, done: 'Password changed. Your other sessions have been signed out.' };
 	},
@@ -62,8 +62,9 @@ export const actions = {
 		const values = { name: String(form.name ?? ''), expiresInDays: String(form.expiresInDays ?? '0') };
 		const parsed = apiTokens.createTokenSchema.safeParse({ ...values, password: String(form.password ?? '') });
 		if (!parsed.success) return fail(400, { form: 'token' as const, values, errors: zodFields(parsed.error) });
-		if (!(await confirmPassword(db, user.id, parsed.data.password ?? '', env.AUTH_PEPPER))) {
-			return fail(400, { form: 'token' as const, values, errors: { password: 'That is not your current password.' } as Record<string, string> });
+		const check = await recheckPassword(db, user.id, parsed.data.password ?? '', env.AUTH_PEPPER);
+		if (!check.ok) {
+			return fail(check.reason === 'throttled' ? 429 : 400, { form: 'token' as const, values, errors: { password: recheckRefusal(check) } as Record<string, string> });
 		}
 		const created = await apiTokens.create(db, user, parsed.data);
 		return { form: 'token' as const, created: { name: created.name, token: created.token } };

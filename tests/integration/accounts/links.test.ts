@@ -102,8 +102,11 @@ describe('invitations and password resets by one-time link', () => {
 		const reset = linkIn(mail.textBody);
 		expect(reset.startsWith(`${APP()}/welcome/`)).toBe(true);
 		expect(mail.textBody).not.toContain('evil.example');
+		const beforeDone = await lastOutboxId(db);
 		const done = await postForm(new URL(reset).pathname, { password: 'a brand new bench password', confirm: 'a brand new bench password' });
 		expect(done.status).toBe(303);
+		// a password chosen through a reset link is announced like any other change
+		await waitForMail(db, email, beforeDone, 'password was changed');
 		// a reset ends every session of the user
 		expect((await api('GET', '/api/v1/me', { cookie: session })).status).toBe(401);
 		expect((await signInApi(email, 'a brand new bench password')).res.status).toBe(200);

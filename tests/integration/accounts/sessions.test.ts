@@ -1,4 +1,5 @@
 import { afterAll, afterEach, beforeEach, describe, expect, it } from 'vitest';
+import { createHash } from 'node:crypto';
 import { eq, sql } from 'drizzle-orm';
 import { testDb } from '../../support/env';
 import { sessions } from '../../../src/lib/server/db/schema';
@@ -10,7 +11,13 @@ beforeEach(() => clearThrottle(db));
 // This file makes failing sign-ins: leave none behind in the shared 127.0.0.1 address bucket.
 afterEach(() => clearThrottle(db));
 
-const sessionId = (cookie: string) => cookie.split('=')[1];
+/** The cookie carries the plain id; the table holds its SHA-256 (auth/sessions.ts). */
+const plainId = (cookie: string) => cookie.split('=')[1];
+const sessionId = (cookie: string) => createHash('sha256').update(plainId(cookie)).digest('hex');
+const maxAge = (res: Response) => {
+	const raw = res.headers.getSetCookie().find((c) => c.startsWith('gc_session='));
+	return raw ? Number(/Max-Age=(\d+)/i.exec(raw)?.[1]) : null;
+};
 
 describe('sessions over the API', () => {
 	it('signs in with a fresh HttpOnly, SameSite=Lax cookie (not Secure on an http origin) and answers /me', async () => {
@@ -110,10 +117,31 @@ describe('sessions over the API', () => {
 		expect(res.status).toBe(403);
 	});
 
-	it('stores no plain session ids beyond lucia’s random ids and keeps them unguessable', async () => {
+	it('stores only the SHA-256 of the cookie’s random session id, never the id itself', async () => {
 		const cookie = await cookieFor('engineer@tarnwell.example');
-		expect(sessionId(cookie).length).toBeGreaterThanOrEqual(20);
-		const [{ n }] = (await db.execute(sql`select count(*) as n from sessions where id = ${sessionId(cookie)}`))[0] as unknown as { n: number }[];
-		expect(Number(n)).toBe(1);
+		expect(plainId(cookie).length).toBeGreaterThanOrEqual(40); // 25 random bytes, base32
+		const count = async (id: string) =>
+			Number(((await db.execute(sql`select count(*) as n from sessions where id = ${id}`))[0] as unknown as { n: number }[])[0].n);
+		expect(await count(plainId(cookie))).toBe(0);
+		expect(await count(sessionId(cookie))).toBe(1);
+		// A row's id put in a cookie signs nobody in.
+		expect((await api('GET', '/api/v1/me', { cookie: `gc_session=${sessionId(cookie)}` })).status).toBe(401);
+	});
+
+	it('gives the cookie a Max-Age that ends with the session’s absolute end (12 h), also when renewed', async () => {
+		const { res, cookie } = await signInApi('stockroom@tarnwell.example');
+		const atStart = maxAge(res)!;
+		expect(atStart).toBeLessThanOrEqual(12 * 3600);
+		expect(atStart).toBeGreaterThan(12 * 3600 - 120);
+		// 11 hours in, due for renewal: the renewed cookie lives one more hour at most, not 12 h or 400 days.
+		await db
+			.update(sessions)
+			.set({ createdAt: new Date(Date.now() - 11 * 3600_000), expiresAt: new Date(Date.now() + 10 * 60_000) })
+			.where(eq(sessions.id, sessionId(cookie!)));
+		const renewed = await api('GET', '/api/v1/me', { cookie: cookie! });
+		expect(renewed.status).toBe(200);
+		const later = maxAge(renewed)!;
+		expect(later).toBeLessThanOrEqual(3600);
+		expect(later).toBeGreaterThan(3600 - 120);
 	});
 });

@@ -102,8 +102,32 @@ describe('personal API tokens', () => {
 			headers: { 'content-type': 'application/x-www-form-urlencoded', accept: 'text/html', origin: process.env.APP_URL!, cookie: admin },
 			body: `userId=${u.id}`
 		});
-		expect((await api('GET', '/api/v1/me', { token: victim.token })).status).toBe(200);
+		// Reactivation gives the account back, not its old tokens: they were revoked with the deactivation.
+		expect((await api('GET', '/api/v1/me', { token: victim.token })).status).toBe(401);
+		const [row] = await db.select().from(apiTokens).where(eq(apiTokens.id, victim.id));
+		expect(row.revokedAt).not.toBeNull();
+		expect((await cookieFor('engineer2@tarnwell.example')).length).toBeGreaterThan(0);
 		const events = await db.select().from(auditEvents).where(like(auditEvents.action, 'user.%activated'));
 		expect(events.filter((e) => e.targetId === String(u.id)).map((e) => e.action)).toEqual(expect.arrayContaining(['user.deactivated', 'user.reactivated']));
+	});
+
+	it('revokes, at reactivation, tokens of an account deactivated while tokens were not yet revoked with it', async () => {
+		const victim = await newToken('engineer2@tarnwell.example', 'from an older deactivation');
+		const admin = await cookieWithCode(await twoStepAdmin(db, 'tokens-test'));
+		const [u] = await db.select().from(users).where(eq(users.email, 'engineer2@tarnwell.example'));
+		// As deactivations before this rule left them: account disabled, token not revoked.
+		await db.update(users).set({ status: 'disabled' }).where(eq(users.id, u.id));
+		try {
+			const res = await fetch(new URL('/admin/users?/reactivate', process.env.APP_URL).toString(), {
+				method: 'POST',
+				headers: { 'content-type': 'application/x-www-form-urlencoded', accept: 'text/html', origin: process.env.APP_URL!, cookie: admin },
+				body: `userId=${u.id}`,
+				redirect: 'manual'
+			});
+			expect(res.status).toBe(200);
+		} finally {
+			await db.update(users).set({ status: 'active' }).where(eq(users.id, u.id));
+		}
+		expect((await api('GET', '/api/v1/me', { token: victim.token })).status).toBe(401);
 	});
 });

@@ -26,7 +26,7 @@ export const resetRequestSchema = z.object({ email: z.string().trim().toLowerCas
  */
 export async function setPasswordFromLink(db: Db, token: string, password: string, pepper?: string): Promise<LinkCheck> {
 	const hash = await hashPassword(password, pepper);
-	return db.transaction(async (tx) => {
+	const result = await db.transaction(async (tx): Promise<LinkCheck> => {
 		const check = await checkLink(tx, token, { forUpdate: true });
 		if (!check.ok) return check;
 		const problem = passwordProblem(password, check.user.email);
@@ -42,11 +42,14 @@ export async function setPasswordFromLink(db: Db, token: string, password: strin
 		});
 		return check;
 	});
+	// A password chosen through a reset link is a change like any other: the owner is told (an invitation sets the first one).
+	if (result.ok && result.purpose === 'reset') await notify.noticePasswordChanged(result.user.email);
+	return result;
 }
 
 export class PasswordRefused extends Error {}
 
-export type ChangeResult = { ok: true } | { ok: false; field: 'current' | 'password'; message: string };
+export type ChangeResult = { ok: true } | { ok: false; field: 'current' | 'password'; message: string; retryAfterSeconds?: number };
 
 /** Changes the password after checking the current one; the caller ends the user's other sessions. */
 export async function changePassword(
@@ -56,9 +59,9 @@ export async function changePassword(
 	pepper?: string
 ): Promise<ChangeResult> {
 	const [user] = await db.select().from(users).where(eq(users.id, userId)).limit(1);
-	if (!user?.passwordHash || !(await verifyPassword(user.passwordHash, input.current, pepper))) {
-		return { ok: false, field: 'current', message: 'That is not your current password.' };
-	}
+	if (!user) return { ok: false, field: 'current', message: WRONG_PASSWORD };
+	const check = await recheckPassword(db, userId, input.current, pepper);
+	if (!check.ok) return { ok: false, field: 'current', message: recheckRefusal(check), retryAfterSeconds: check.reason === 'throttled' ? check.retryAfterSeconds : undefined };
 	const problem = passwordProblem(input.password, user.email);
 	if (problem) return { ok: false, field: 'password', message: problem };
 	if (input.password === input.current) return { ok: false, field: 'password', message: 'Choose a password different from the current one.' };
@@ -70,31 +73,62 @@ export async function changePassword(
 	return { ok: true };
 }
 
-/** Checks the current password of a user (to re-ask it before a sensitive step). */
+/** Checks the current password of a user, unthrottled: callers use `recheckPassword` (or their own throttle). */
 export async function confirmPassword(db: Db, userId: number, password: string, pepper?: string) {
 	const [user] = await db.select({ hash: users.passwordHash }).from(users).where(eq(users.id, userId)).limit(1);
 	return !!user?.hash && (await verifyPassword(user.hash, password, pepper));
 }
 
+export const WRONG_PASSWORD = 'That is not your current password.';
+
+export type RecheckResult = { ok: true } | { ok: false; reason: 'wrong-password' } | { ok: false; reason: 'throttled'; retryAfterSeconds: number };
+
+/**
+ * Re-asks the current password before a sensitive step (new API token, password change; turning
+ * two-step sign-in off counts in the same bucket). Throttled per user in `recheck:<userId>` like
+ * sign-in (5 wrong in 15 minutes, counted before checking), so a stolen session cannot be used to
+ * guess the password; a right one is not counted and clears the bucket.
+ */
+export async function recheckPassword(db: Db, userId: number, password: string, pepper?: string): Promise<RecheckResult> {
+	const bucket = throttle.buckets.recheck(userId);
+	const taken = await throttle.takeAttempt(db, [bucket]);
+	if (!taken.ok) return { ok: false, reason: 'throttled', retryAfterSeconds: taken.retryAfterSeconds };
+	if (!(await confirmPassword(db, userId, password, pepper))) return { ok: false, reason: 'wrong-password' };
+	await throttle.forget(db, taken.ids);
+	await throttle.clearBucket(db, bucket);
+	return { ok: true };
+}
+
+export const recheckRefusal = (r: Exclude<RecheckResult, { ok: true }>) =>
+	r.reason === 'throttled' ? `Too many wrong passwords. Try again in ${throttle.waitText(r.retryAfterSeconds)}.` : WRONG_PASSWORD;
+
 /**
  * Asks for a reset link. Every request counts (per address and per client) and 5 in 15 minutes are
- * refused; otherwise a link is mailed when an active account exists. The caller answers the same
- * either way, so nobody learns whether an address has an account.
+ * refused. The request itself does the same work whether or not the address has an account (the
+ * throttle, then handing the address over); looking the account up, making the link and mailing it
+ * happen after the answer (`deliverReset`), so neither the answer nor its timing says whether an
+ * address has an account.
  */
-export async function requestReset(db: Db, email: string, clientAddress: string): Promise<{ ok: true } | { ok: false; retryAfterSeconds: number }> {
+export async function requestReset(
+	db: Db,
+	email: string,
+	clientAddress: string,
+	deliver: (db: Db, email: string) => Promise<void> = deliverReset
+): Promise<{ ok: true } | { ok: false; retryAfterSeconds: number }> {
 	const names = [throttle.buckets.resetAccount(email), throttle.buckets.resetIp(clientAddress)];
-	const wait = await throttle.retryAfterSeconds(db, names);
-	if (wait > 0) return { ok: false, retryAfterSeconds: wait };
-	await throttle.countAttempt(db, names);
-	const [user] = await db.select().from(users).where(eq(users.email, email)).limit(1);
-	if (user && user.status === 'active') {
-		const token = await createLink(db, user.id, 'reset');
-		await recordAudit(db, { actorId: null, action: 'user.reset-requested', targetType: 'user', targetId: user.id });
-		try {
-			await notify.sendReset(user, token, LINK_LIFETIME_MS.reset / 60_000);
-		} catch (err) {
-			console.error('could not send a reset link:', (err as Error).message);
-		}
-	}
+	const taken = await throttle.takeAttempt(db, names);
+	if (!taken.ok) return { ok: false, retryAfterSeconds: taken.retryAfterSeconds };
+	setImmediate(() => {
+		deliver(db, email).catch((err) => console.error('could not send a reset link:', (err as Error).message));
+	});
 	return { ok: true };
+}
+
+/** Mails a reset link when an active account has the address (run after the request was answered). */
+export async function deliverReset(db: Db, email: string): Promise<void> {
+	const [user] = await db.select().from(users).where(eq(users.email, email)).limit(1);
+	if (!user || user.status !== 'active') return;
+	const token = await createLink(db, user.id, 'reset');
+	await recordAudit(db, { actorId: null, action: 'user.reset-requested', targetType: 'user', targetId: user.id });
+	await notify.sendReset(user, token, LINK_LIFETIME_MS.reset / 60_000);
 }

@@ -36,21 +36,21 @@ export type SigninResult =
 
 /**
  * A sign-in attempt, throttled per account and per client address (5 failures in 15 minutes).
- * A blocked attempt is refused without looking at the password. A failure counts in both buckets;
- * a success clears only the account's own counter, never the address counter.
+ * The attempt is counted before the password is looked at (`takeAttempt`), so a burst of parallel
+ * tries gets at most 5 evaluated; a blocked attempt is refused without looking at the password. A
+ * failure stays counted in both buckets; a success is taken back and clears only the account's own
+ * counter, never the address counter.
  */
 export async function attemptSignin(
 	db: DbOrTx,
 	input: { email: string; password: string; clientAddress: string; pepper?: string }
 ): Promise<SigninResult> {
 	const names = [throttle.buckets.account(input.email), throttle.buckets.ip(input.clientAddress)];
-	const wait = await throttle.retryAfterSeconds(db, names);
-	if (wait > 0) return { ok: false, reason: 'throttled', retryAfterSeconds: wait };
+	const taken = await throttle.takeAttempt(db, names);
+	if (!taken.ok) return { ok: false, reason: 'throttled', retryAfterSeconds: taken.retryAfterSeconds };
 	const user = await checkCredentials(db, input.email, input.password, input.pepper);
-	if (!user) {
-		await throttle.countAttempt(db, names);
-		return { ok: false, reason: 'invalid' };
-	}
+	if (!user) return { ok: false, reason: 'invalid' };
+	await throttle.forget(db, taken.ids);
 	await throttle.clearBucket(db, names[0]);
 	return { ok: true, user };
 }

@@ -131,16 +131,20 @@ async function spendCode(tx: Tx, user: { id: number; totpLastStep: number | null
 }
 
 /**
- * Runs a throttled code check: refused at once while the bucket is blocked; a failure counts in it,
- * a success clears it.
+ * Runs a throttled code check: the attempt is counted first (`takeAttempt`, so a burst gets at most
+ * the limit evaluated) and refused while a bucket is blocked; a failure stays counted, a success is
+ * taken back and clears the buckets. `alsoBuckets`: turning two-step sign-in off re-asks the
+ * password, so it counts in the password re-check bucket too.
  */
-async function throttled(db: Db, userId: number, work: () => Promise<CodeResult>, now: Date): Promise<CodeResult> {
-	const bucket = throttle.buckets.secondFactor(userId);
-	const wait = await throttle.retryAfterSeconds(db, [bucket], now);
-	if (wait > 0) return { ok: false, reason: 'throttled', retryAfterSeconds: wait };
+async function throttled(db: Db, userId: number, work: () => Promise<CodeResult>, now: Date, alsoBuckets: string[] = []): Promise<CodeResult> {
+	const names = [throttle.buckets.secondFactor(userId), ...alsoBuckets];
+	const taken = await throttle.takeAttempt(db, names, now);
+	if (!taken.ok) return { ok: false, reason: 'throttled', retryAfterSeconds: taken.retryAfterSeconds };
 	const result = await work();
-	if (result.ok) await throttle.clearBucket(db, bucket);
-	else await throttle.countAttempt(db, [bucket], now);
+	if (result.ok) {
+		await throttle.forget(db, taken.ids);
+		for (const name of names) await throttle.clearBucket(db, name);
+	}
 	return result;
 }
 
@@ -228,7 +232,8 @@ export async function turnOff(
 				return { ok: true };
 			});
 		},
-		now
+		now,
+		[throttle.buckets.recheck(user.id)]
 	);
 	if (result.ok) await notify.noticeTwoStepOff(user.email);
 	return result;

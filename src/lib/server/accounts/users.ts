@@ -2,10 +2,10 @@
  * People and roles, for administrators: list, invite, change role, deactivate, reactivate.
  * The last active administrator can be neither demoted nor deactivated.
  */
-import { and, asc, count, eq } from 'drizzle-orm';
+import { and, asc, count, eq, isNull } from 'drizzle-orm';
 import { z } from 'zod';
 import type { Db, Tx } from '$lib/server/db';
-import { ROLES, sessions, users, type Role } from '$lib/server/db/schema';
+import { apiTokens, ROLES, sessions, users, type Role } from '$lib/server/db/schema';
 import { DomainError } from '$lib/server/api/http';
 import { recordAudit } from '$lib/server/audit';
 import { createLink, LINK_LIFETIME_MS } from './links';
@@ -110,7 +110,16 @@ export async function changeRole(db: Db, actorId: number, userId: number, role: 
 	if (changed) await notify.noticeRoleChanged(changed.email, role);
 }
 
-/** Deactivates: sessions are deleted at once, tokens stop working (they check the owner's status). */
+/** Revokes every token of a user that is not revoked yet; returns how many. */
+async function revokeAllTokens(tx: Tx, userId: number, at: Date) {
+	const [res] = await tx.update(apiTokens).set({ revokedAt: at }).where(and(eq(apiTokens.userId, userId), isNull(apiTokens.revokedAt)));
+	return res.affectedRows;
+}
+
+/**
+ * Deactivates: sessions are deleted and API tokens revoked at once, so that a later reactivation
+ * revives neither (the person signs in again and makes new tokens).
+ */
 export async function deactivate(db: Db, actorId: number, userId: number) {
 	await db.transaction(async (tx) => {
 		const user = await lockUser(tx, userId);
@@ -118,15 +127,21 @@ export async function deactivate(db: Db, actorId: number, userId: number) {
 		if (user.role === 'admin' && (await otherActiveAdmins(tx, user.id)) === 0) throw new LastAdmin();
 		await tx.update(users).set({ status: 'disabled' }).where(eq(users.id, user.id));
 		await tx.delete(sessions).where(eq(sessions.userId, user.id));
-		await recordAudit(tx, { actorId, action: 'user.deactivated', targetType: 'user', targetId: user.id });
+		const tokensRevoked = await revokeAllTokens(tx, user.id, new Date());
+		await recordAudit(tx, { actorId, action: 'user.deactivated', targetType: 'user', targetId: user.id, detail: { tokensRevoked } });
 	});
 }
 
+/**
+ * Reactivates. Tokens made before are revoked here too (a user deactivated before deactivation revoked
+ * them still has some): old tokens never come back to life with the account.
+ */
 export async function reactivate(db: Db, actorId: number, userId: number) {
 	await db.transaction(async (tx) => {
 		const user = await lockUser(tx, userId);
 		if (user.status === 'active') return;
 		await tx.update(users).set({ status: 'active' }).where(eq(users.id, user.id));
-		await recordAudit(tx, { actorId, action: 'user.reactivated', targetType: 'user', targetId: user.id });
+		const tokensRevoked = await revokeAllTokens(tx, user.id, new Date());
+		await recordAudit(tx, { actorId, action: 'user.reactivated', targetType: 'user', targetId: user.id, detail: { tokensRevoked } });
 	});
 }

@@ -1,8 +1,12 @@
 /**
  * Sessions. lucia (v3) stays behind this one module so it can be replaced without touching routes.
  * Idle timeout 30 min (lucia renews a session when half of it has passed), absolute limit 12 h.
+ *
+ * The cookie holds a random id (25 bytes); the database holds only its SHA-256 (`sessions.id`), which
+ * is what lucia sees as the session id. Someone who reads the table cannot sign in with what it holds.
+ * The cookie's Max-Age ends with the session's absolute end (12 h after sign-in), never later.
  */
-import { Lucia, TimeSpan, type Session } from 'lucia';
+import { generateIdFromEntropySize, Lucia, TimeSpan, type Session } from 'lucia';
 import { DrizzleMySQLAdapter } from '@lucia-auth/adapter-drizzle';
 import { env } from '$env/dynamic/private';
 import type { Cookies } from '@sveltejs/kit';
@@ -40,19 +44,37 @@ declare module 'lucia' {
 
 export const SESSION_COOKIE = lucia.sessionCookieName;
 
+/** What the database stores of a cookie's session id (and lucia's id of the session). */
+export const hashSessionId = (cookieId: string) => createHash('sha256').update(cookieId).digest('hex');
+
+/** Seconds from now until the session's absolute end (at least 0). */
+export const secondsToAbsoluteEnd = (createdAt: Date, now = Date.now()) =>
+	Math.max(0, Math.floor((createdAt.getTime() + ABSOLUTE_LIFETIME_MS - now) / 1000));
+
+/** Sets the cookie with the plain id, living until the session's absolute end. */
+function setSessionCookie(cookies: Cookies, cookieId: string, createdAt: Date) {
+	const cookie = lucia.createSessionCookie(cookieId);
+	cookies.set(cookie.name, cookie.value, { ...cookie.attributes, path: '/', expires: undefined, maxAge: secondsToAbsoluteEnd(createdAt) });
+}
+
 /**
  * Starts a new session for a user (a fresh random id at every sign-in) and sets its cookie. A session
  * of a user with two-step sign-in starts without `secondFactorAt`; the hooks gate then lets it reach
  * only /signin/code until the code is given (completeSecondFactor).
  */
 export async function startSession(userId: number, cookies: Cookies, userAgent?: string | null, secondFactorAt: Date | null = null) {
-	const session = await lucia.createSession(userId, {
-		createdAt: new Date(),
-		secondFactorAt,
-		...(userAgent ? { userAgent: userAgent.slice(0, 255) } : {})
-	} as unknown as { createdAt: Date; secondFactorAt: Date | null });
-	const cookie = lucia.createSessionCookie(session.id);
-	cookies.set(cookie.name, cookie.value, { ...cookie.attributes, path: '/' });
+	const cookieId = generateIdFromEntropySize(25);
+	const createdAt = new Date();
+	const session = await lucia.createSession(
+		userId,
+		{
+			createdAt,
+			secondFactorAt,
+			...(userAgent ? { userAgent: userAgent.slice(0, 255) } : {})
+		} as unknown as { createdAt: Date; secondFactorAt: Date | null },
+		{ sessionId: hashSessionId(cookieId) }
+	);
+	setSessionCookie(cookies, cookieId, createdAt);
 	return session;
 }
 
@@ -61,9 +83,9 @@ export async function startSession(userId: number, cookies: Cookies, userAgent?:
  * extended the session, and refusing sessions past the absolute lifetime or of disabled users.
  */
 export async function resolveSession(cookies: Cookies) {
-	const id = cookies.get(SESSION_COOKIE);
-	if (!id) return null;
-	const { session, user } = await lucia.validateSession(id);
+	const cookieId = cookies.get(SESSION_COOKIE);
+	if (!cookieId) return null;
+	const { session, user } = await lucia.validateSession(hashSessionId(cookieId));
 	if (!session || !user) {
 		clearCookie(cookies);
 		return null;
@@ -74,10 +96,7 @@ export async function resolveSession(cookies: Cookies) {
 		clearCookie(cookies);
 		return null;
 	}
-	if (session.fresh) {
-		const cookie = lucia.createSessionCookie(session.id);
-		cookies.set(cookie.name, cookie.value, { ...cookie.attributes, path: '/' });
-	}
+	if (session.fresh) setSessionCookie(cookies, cookieId, new Date(session.createdAt));
 	return { session, user };
 }
 
@@ -119,8 +138,11 @@ export interface SessionSummary {
 	current: boolean;
 }
 
-/** A stable, non-secret name for a session: the start of the SHA-256 of its id. */
-export const sessionHandle = (id: string) => createHash('sha256').update(id).digest('hex').slice(0, 24);
+/**
+ * A stable, non-secret name for a session: the first 24 hex digits of the SHA-256 of the cookie's id,
+ * that is, the start of the stored id (which is that hash; it signs nobody in).
+ */
+export const sessionHandle = (storedId: string) => storedId.slice(0, 24);
 
 /** The user's live sessions, newest first. */
 export async function listSessions(userId: number, currentId: string | null): Promise<SessionSummary[]> {

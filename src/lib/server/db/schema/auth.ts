@@ -46,11 +46,14 @@ export const users = mysqlTable(
 	(t) => [uniqueIndex('users_email_uq').on(t.email)]
 );
 
-/** lucia sessions: the id is lucia's random session id; expires_at a datetime as lucia 3 expects. */
+/**
+ * lucia sessions: the id is the SHA-256 (hex) of the random id in the cookie (auth/sessions.ts), never
+ * the cookie's id itself; expires_at a datetime as lucia 3 expects.
+ */
 export const sessions = mysqlTable(
 	'sessions',
 	{
-		id: varchar('id', { length: 255 }).primaryKey(),
+		id: char('id', { length: 64 }).primaryKey(),
 		userId: ref('user_id')
 			.notNull()
 			.references(() => users.id, { onDelete: 'cascade' }),
