@@ -23,7 +23,21 @@ export interface ObjectStoreConfig {
 	region: string;
 	accessKeyId: string;
 	secretAccessKey: string;
+	/** Overrides of S3_TIMEOUTS (tests). */
+	timeouts?: Partial<typeof S3_TIMEOUTS>;
 }
+
+/**
+ * Time limits of every S3 call, so that an S3 that hangs (accepts and never answers) gives a 503
+ * within about 10 s instead of holding the request:
+ * - connectMs: to open the TCP connection;
+ * - idleMs: the longest silence on an open connection (a hung server trips it; a slow upload that
+ *   keeps moving does not);
+ * - totalMs: the whole call, retries included (`abortSignal`), plus `perMiBMs` per MiB of a body,
+ *   so a 25 MB PDF on a slow link still gets its time.
+ * The SDK's own `requestTimeout` only logs a warning unless told to throw: it is not relied on.
+ */
+export const S3_TIMEOUTS = { connectMs: 2000, idleMs: 4000, totalMs: 9500, perMiBMs: 2000, maxAttempts: 2 };
 
 /** S3 (or the network to it) is down or refused the request. */
 export class StorageUnavailable extends DomainError {
@@ -86,6 +100,7 @@ export function decodeMetadata(meta: Record<string, string> | undefined): Record
 }
 
 export function createObjectStore(config: ObjectStoreConfig): ObjectStore {
+	const limits = { ...S3_TIMEOUTS, ...config.timeouts };
 	const client = new S3Client({
 		region: config.region,
 		endpoint: config.endpoint || undefined,
@@ -94,29 +109,35 @@ export function createObjectStore(config: ObjectStoreConfig): ObjectStore {
 		// s3rver stores streamed uploads with their chunk framing unless checksums are only sent when required (STACK.md).
 		requestChecksumCalculation: 'WHEN_REQUIRED',
 		responseChecksumValidation: 'WHEN_REQUIRED',
-		maxAttempts: 2,
-		requestHandler: { connectionTimeout: 3000, requestTimeout: 60_000 }
+		maxAttempts: limits.maxAttempts,
+		requestHandler: { connectionTimeout: limits.connectMs, socketTimeout: limits.idleMs }
 	});
 	const Bucket = config.bucket;
 	let bucketReady: Promise<void> | null = null;
 
-	const wrap = async <T>(fn: () => Promise<T>, key?: string): Promise<T> => {
+	/** Runs one S3 call under the total time limit (longer by `perMiBMs` for each MiB of a body). */
+	const wrap = async <T>(fn: (opts: { abortSignal: AbortSignal }) => Promise<T>, key?: string, bodyBytes = 0): Promise<T> => {
+		// A timer that is cleared once the call has its answer: a download's body may stream for longer.
+		const controller = new AbortController();
+		const timer = setTimeout(() => controller.abort(new Error('S3 call over its time limit')), limits.totalMs + Math.ceil(bodyBytes / (1024 * 1024)) * limits.perMiBMs);
 		try {
-			return await fn();
+			return await fn({ abortSignal: controller.signal });
 		} catch (err) {
 			if (key && isMissing(err)) throw new ObjectMissing(key);
 			if (err instanceof DomainError) throw err;
 			throw new StorageUnavailable(err);
+		} finally {
+			clearTimeout(timer);
 		}
 	};
 
 	const ensureBucket = () => {
-		bucketReady ??= wrap(async () => {
+		bucketReady ??= wrap(async (opts) => {
 			try {
-				await client.send(new HeadBucketCommand({ Bucket }));
+				await client.send(new HeadBucketCommand({ Bucket }), opts);
 			} catch (err) {
 				if (!isMissingBucket(err)) throw err;
-				await client.send(new CreateBucketCommand({ Bucket })).catch((e) => {
+				await client.send(new CreateBucketCommand({ Bucket }), opts).catch((e) => {
 					if (!(e instanceof S3ServiceException && /BucketAlreadyOwnedByYou|BucketAlreadyExists/.test(e.name))) throw e;
 				});
 			}
@@ -132,38 +153,47 @@ export function createObjectStore(config: ObjectStoreConfig): ObjectStore {
 		ensureBucket,
 		async put(key, body, contentType, metadata = {}) {
 			await ensureBucket();
-			await wrap(() =>
-				client.send(
-					new PutObjectCommand({
-						Bucket,
-						Key: key,
-						Body: body,
-						ContentType: contentType,
-						ContentLength: body.byteLength,
-						Metadata: encodeMetadata(metadata)
-					})
-				)
+			await wrap(
+				(opts) =>
+					client.send(
+						new PutObjectCommand({
+							Bucket,
+							Key: key,
+							Body: body,
+							ContentType: contentType,
+							ContentLength: body.byteLength,
+							Metadata: encodeMetadata(metadata)
+						}),
+						opts
+					),
+				undefined,
+				body.byteLength
 			);
 		},
 		async putFile(key, file, contentType, metadata = {}) {
 			await ensureBucket();
 			const { size } = await fs.promises.stat(file);
-			await wrap(() =>
-				client.send(
-					new PutObjectCommand({
-						Bucket,
-						Key: key,
-						Body: fs.createReadStream(file),
-						ContentType: contentType,
-						ContentLength: size,
-						Metadata: encodeMetadata(metadata)
-					})
-				)
+			await wrap(
+				(opts) =>
+					client.send(
+						new PutObjectCommand({
+							Bucket,
+							Key: key,
+							Body: fs.createReadStream(file),
+							ContentType: contentType,
+							ContentLength: size,
+							Metadata: encodeMetadata(metadata)
+						}),
+						opts
+					),
+				undefined,
+				size
 			);
 		},
 		async get(key) {
 			await ensureBucket();
-			const out = await wrap(() => client.send(new GetObjectCommand({ Bucket, Key: key })), key);
+			// The limit covers getting the answer's headers; the body then streams (the idle limit still applies).
+			const out = await wrap((opts) => client.send(new GetObjectCommand({ Bucket, Key: key }), opts), key);
 			return {
 				body: out.Body as Readable,
 				contentType: out.ContentType,
@@ -173,7 +203,7 @@ export function createObjectStore(config: ObjectStoreConfig): ObjectStore {
 		},
 		async delete(key) {
 			await ensureBucket();
-			await wrap(() => client.send(new DeleteObjectCommand({ Bucket, Key: key })));
+			await wrap((opts) => client.send(new DeleteObjectCommand({ Bucket, Key: key }), opts));
 		},
 		async presignedGet(key, seconds, headers) {
 			const expiresIn = Math.min(Math.max(1, Math.round(seconds)), 300);

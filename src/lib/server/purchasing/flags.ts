@@ -11,9 +11,13 @@
  * De-duplication holds across app instances: a notice is opened with `INSERT IGNORE` on the
  * unique `open_part_id` index, so of two instances checking at once only one opens (and mails)
  * a given part; the second blocks on the index until the first commits, then skips the part.
- * The digest is sent before the transaction commits: if the mail server refuses it, the
- * notices roll back and the next check tries again (a part is reported at least once, never
- * twice while its flag stands, except when the commit itself fails after a successful send).
+ * The digest is sent before the transaction commits: if the mail server cannot take it now
+ * (connection, time-out, a 4xx answer), the notices roll back and the next check tries again (a
+ * part is reported at least once, never twice while its flag stands, except when the commit itself
+ * fails after a successful send). A permanent refusal (a 5xx answer, e.g. 552 "message too large")
+ * is logged and the notices stand: the same message would be refused at every check, for ever.
+ * The digest never grows past DIGEST_MAX_BYTES: past that it lists the first parts and says how
+ * many more there are on the reorder board (whose link it always carries).
  */
 import { and, eq, gt, inArray, isNotNull, isNull, or, sql } from 'drizzle-orm';
 import type { DbOrTx } from '$lib/server/db';
@@ -99,6 +103,18 @@ export async function flaggedParts(db: DbOrTx): Promise<FlaggedPart[]> {
 
 export type Mailer = (message: { to: string | string[]; subject: string; text: string }) => Promise<void>;
 
+/**
+ * Largest digest text, bytes (UTF-8). Below common mail size limits (some servers take no more than
+ * 64 KB), and more than anyone reads in a mail: about 250 part lines.
+ */
+export const DIGEST_MAX_BYTES = 48 * 1024;
+
+/** A refusal the mail server will repeat for the same message (SMTP 5xx, RFC 5321, 4.2.1). */
+export function isPermanentMailRefusal(err: unknown): boolean {
+	const code = (err as { responseCode?: unknown })?.responseCode;
+	return typeof code === 'number' && code >= 500 && code < 600;
+}
+
 export interface CheckResult {
 	/** Parts reported in this check's digest. */
 	reported: FlaggedPart[];
@@ -122,26 +138,41 @@ const REASON_WORDS: Record<FlagReason, string> = {
 	'over-reserved': 'reserved beyond what is on hand'
 };
 
-/** The digest's text: one line per part. */
-export function digestText(list: readonly FlaggedPart[], boardUrl: string): string {
+/**
+ * The digest's text: one line per part, at most `maxBytes` (UTF-8) in all. When the lines do not fit,
+ * the first ones (in the list's order) are kept and a line says how many more are on the board.
+ */
+export function digestText(list: readonly FlaggedPart[], boardUrl: string, maxBytes = DIGEST_MAX_BYTES): string {
 	const lines = list.map(
 		(p) =>
 			`- ${p.sku} ${p.name}: ${p.available} available (${p.onHand} on hand, ${p.reserved} reserved), reorder point ${p.reorderPoint}; ${REASON_WORDS[p.reason]}.` +
 			(p.supplier ? ` Supplier ${p.supplier}` + (p.leadTimeDays != null ? `, lead time ${p.leadTimeDays} days.` : '.') : '')
 	);
-	return [
-		`${list.length} part${list.length === 1 ? ' needs' : 's need'} reordering:`,
-		'',
-		...lines,
+	const head = [`${list.length} part${list.length === 1 ? ' needs' : 's need'} reordering:`, ''];
+	const tail = [
 		'',
 		`Open the reorder board: ${boardUrl}`,
 		'',
 		'You get one message when parts become flagged; a part is listed again only after it has recovered.'
-	].join('\n');
+	];
+	const bytes = (xs: string[]) => Buffer.byteLength(xs.join('\n'), 'utf8');
+	const full = [...head, ...lines, ...tail];
+	if (bytes(full) <= maxBytes) return full.join('\n');
+	// Too long for one message: as many lines as fit with the summary line, the rest on the board.
+	const more = (n: number) => `- … and ${n} more part${n === 1 ? '' : 's'}: the whole list is on the reorder board, ${boardUrl}`;
+	let budget = maxBytes - bytes([...head, more(list.length), ...tail]) - 1;
+	const kept: string[] = [];
+	for (const line of lines) {
+		const cost = Buffer.byteLength(line, 'utf8') + 1;
+		if (cost > budget) break;
+		kept.push(line);
+		budget -= cost;
+	}
+	return [...head, ...kept, more(list.length - kept.length), ...tail].join('\n');
 }
 
 /** Runs one check (see the module comment). `origin` builds the board link. */
-export async function checkFlags(db: DbOrTx, opts: { send: Mailer; origin: string }): Promise<CheckResult> {
+export async function checkFlags(db: DbOrTx, opts: { send: Mailer; origin: string; maxBytes?: number }): Promise<CheckResult> {
 	return inTransaction(db, async (tx) => {
 		const flagged = await flaggedParts(tx);
 		const flaggedIds = new Set(flagged.map((f) => f.partId));
@@ -179,14 +210,19 @@ export async function checkFlags(db: DbOrTx, opts: { send: Mailer; origin: strin
 			recipients = await purchaserAddresses(tx);
 			if (recipients.length) {
 				const board = new URL('/reorder', opts.origin).toString();
-				await opts.send({
-					to: recipients,
-					subject: `Reorder: ${reported.length} part${reported.length === 1 ? '' : 's'} flagged (${reported
-						.slice(0, 3)
-						.map((p) => p.sku)
-						.join(', ')}${reported.length > 3 ? ', …' : ''})`,
-					text: digestText(reported, board)
-				});
+				try {
+					await opts.send({
+						to: recipients,
+						subject: `Reorder: ${reported.length} part${reported.length === 1 ? '' : 's'} flagged (${reported
+							.slice(0, 3)
+							.map((p) => p.sku)
+							.join(', ')}${reported.length > 3 ? ', …' : ''})`,
+						text: digestText(reported, board, opts.maxBytes)
+					});
+				} catch (err) {
+					if (!isPermanentMailRefusal(err)) throw err; // rolls the notices back: the next check tries again
+					console.error(`the reorder digest (${reported.length} parts) was refused for good, not retried:`, (err as Error).message);
+				}
 			}
 		}
 		return { reported, cleared: recovered.map((r) => r.partId), recipients };
