@@ -14,7 +14,7 @@ function chunk(type: string, data: Buffer): Buffer {
 	return Buffer.concat([head, data, crc]);
 }
 
-/** A plain grey PNG of width × height pixels (deflate's best case: 20000 × 20000 is about 390 KB). */
+/** A plain grey PNG of width × height pixels (deflate's best case: 20000 × 20000 is about 430 KB). */
 export async function greyPng(width: number, height: number): Promise<Uint8Array> {
 	const ihdr = Buffer.alloc(13);
 	ihdr.writeUInt32BE(width, 0);

@@ -35,7 +35,7 @@ function post(bytes: Uint8Array, filename: string) {
 const sheetsOfPart = async () => (await db.select({ n: count() }).from(t.datasheets).where(eq(t.datasheets.partId, partId)))[0].n;
 
 describe('photos: pixel cap and thumbnails off the request thread', () => {
-	it('refuses a 20000 × 20000 PNG bomb (about 390 KB) from its header with 413, and stores nothing', async () => {
+	it('refuses a 20000 × 20000 PNG bomb (about 430 KB) from its header with 413, and stores nothing', async () => {
 		const bomb = await greyPng(20000, 20000);
 		const before = await sheetsOfPart();
 		const started = performance.now();
