@@ -96,8 +96,9 @@ export async function stopChild(child, graceMs = 10_000) {
 	clearTimeout(timer);
 }
 
-/** Stops every child we started, last started first, waiting up to 10 s each. */
+/** Stops every child we started, last started first, waiting up to 10 s each; and any `run` still going. */
 export async function stopChildren() {
+	await Promise.all([...tasks].map((task) => stopChild(task, 5_000)));
 	for (const child of [...children].reverse()) await stopChild(child);
 }
 
@@ -161,14 +162,25 @@ export function watchParent(onGone, intervalMs = 500) {
 	return () => clearInterval(timer);
 }
 
-/** Runs a command to completion, inheriting our terminal; rejects on a non-zero exit. */
+/** Commands `run` has started and that have not ended (a build, a seed): stopChildren stops them too. */
+const tasks = new Set();
+
+/**
+ * Runs a command to completion, inheriting our terminal; rejects on a non-zero exit. It runs in a
+ * process group of its own, so that stopping us mid-way (SIGTERM to npm) also stops it and what it
+ * started (npx → vite build).
+ */
 export function run(command, args, { env, cwd, quiet } = {}) {
 	return new Promise((resolve, reject) => {
 		const child = spawn(command, args, {
 			cwd,
 			env: { ...process.env, ...env },
-			stdio: quiet ? ['ignore', 'pipe', 'pipe'] : 'inherit'
+			detached: true,
+			stdio: quiet ? ['ignore', 'pipe', 'pipe'] : ['ignore', 'inherit', 'inherit']
 		});
+		child.exited = new Promise((done) => child.once('exit', (code, signal) => done({ code, signal })));
+		tasks.add(child);
+		child.once('exit', () => tasks.delete(child));
 		let output = '';
 		if (quiet) {
 			child.stdout.on('data', (c) => (output += c));

@@ -52,7 +52,7 @@ function runStart(dataDir: string, ports: Record<string, number>, { viaNpm = fal
 		child,
 		output: '',
 		exited: new Promise<number | null>((resolve) => child.once('exit', (code) => resolve(code))),
-		async waitFor(text: string | RegExp, timeoutMs = 120_000) {
+		async waitFor(text: string | RegExp, timeoutMs = 180_000) {
 			const until = Date.now() + timeoutMs;
 			while (Date.now() < until) {
 				if (typeof text === 'string' ? run.output.includes(text) : text.test(run.output)) return;
@@ -92,6 +92,10 @@ function occupy(port: number): Promise<net.Server> {
 }
 
 describe('npm start (scripts/start.mjs)', () => {
+	// One data dir for the starts below (each ends with its lock released): only the first one pays for
+	// mariadb-install-db and the demo seed.
+	let shared = '';
+	const sharedDataDir = () => (shared ||= tempDataDir());
 	it('refuses a port another program holds, naming the port and its variable, before starting anything', async () => {
 		const dataDir = tempDataDir();
 		const ports = await freePorts();
@@ -109,7 +113,7 @@ describe('npm start (scripts/start.mjs)', () => {
 	}, 60_000);
 
 	it('runs once per data dir, restarts a killed service, and stops everything on SIGTERM to npm', async () => {
-		const dataDir = tempDataDir();
+		const dataDir = sharedDataDir();
 		const ports = await freePorts();
 		const first = runStart(dataDir, ports, { viaNpm: true });
 		await first.waitFor('Services are running');
@@ -144,15 +148,17 @@ describe('npm start (scripts/start.mjs)', () => {
 		// SIGTERM to the npm process itself stops every service.
 		first.child.kill('SIGTERM');
 		const all = Object.values(now).map((s) => s.pid);
-		const until = Date.now() + 30_000;
-		while (all.some((pid) => proc.isAlive(pid)) && Date.now() < until) await new Promise((r) => setTimeout(r, 200));
+		// (the start, orphaned by npm's death, stops them one by one, then removes its lock)
+		const lockPath = path.join(dataDir, 'start.lock');
+		const until = Date.now() + 60_000;
+		while ((all.some((pid) => proc.isAlive(pid)) || fs.existsSync(lockPath)) && Date.now() < until) await new Promise((r) => setTimeout(r, 200));
 		expect(all.filter((pid) => proc.isAlive(pid))).toEqual([]);
 		expect(await proc.isListening(ports.GLASSCRIB_DB_PORT)).toBe(false);
 		expect(fs.existsSync(path.join(dataDir, 'start.lock'))).toBe(false);
-	}, 240_000);
+	}, 300_000);
 
 	it('stops everything, saying why, when a service cannot get its port back', async () => {
-		const dataDir = tempDataDir();
+		const dataDir = sharedDataDir();
 		const ports = await freePorts();
 		const run = runStart(dataDir, ports);
 		await run.waitFor('Services are running');
@@ -177,10 +183,10 @@ describe('npm start (scripts/start.mjs)', () => {
 		} finally {
 			srv?.close();
 		}
-	}, 240_000);
+	}, 300_000);
 
 	it('after a start killed with kill -9, the next one stops its leftovers and serves with services of its own', async () => {
-		const dataDir = tempDataDir();
+		const dataDir = sharedDataDir();
 		const ports = await freePorts();
 		const first = runStart(dataDir, ports);
 		await first.waitFor('Services are running');
@@ -205,7 +211,7 @@ describe('npm start (scripts/start.mjs)', () => {
 		next.child.kill('SIGTERM');
 		expect(await next.exited).toBe(0);
 		for (const s of Object.values(after)) expect(proc.isAlive(s.pid)).toBe(false);
-	}, 240_000);
+	}, 300_000);
 });
 
 describe('a data dir made by an older start (root with an empty password, also over TCP)', () => {
