@@ -3,7 +3,7 @@
 // owner dead stops that owner's leftover services (only pids it recorded, checked by command line).
 import fs from 'node:fs';
 import path from 'node:path';
-import { commandLine, isAlive } from './proc.mjs';
+import { commandLine, isAlive, parentOf } from './proc.mjs';
 
 /** The lock file of a data dir. */
 export const lockFile = (dataDir) => path.join(dataDir, 'start.lock');
@@ -86,13 +86,19 @@ export async function stopLeftovers(dataDir, stale, { timeoutMs = 20_000, log = 
 		if (pid && isAlive(pid) && commandLine(pid).includes(signature)) targets.push({ name, pid });
 	}
 	const dbDir = path.join(dataDir, 'mariadb');
+	let pid = 0;
 	try {
-		const pid = Number(fs.readFileSync(path.join(dbDir, 'mariadb.pid'), 'utf8').trim());
-		if (pid && isAlive(pid) && commandLine(pid).includes(`--datadir=${dbDir}`) && !targets.some((t) => t.pid === pid)) {
-			targets.push({ name: 'mariadb', pid });
-		}
+		pid = Number(fs.readFileSync(path.join(dbDir, 'mariadb.pid'), 'utf8').trim());
 	} catch {
 		/* no pid file */
+	}
+	if (pid && isAlive(pid) && commandLine(pid).includes(`--datadir=${dbDir}`) && !targets.some((t) => t.pid === pid)) {
+		// A start from before the lock file may still be running it: never stop a live start's database.
+		const parent = parentOf(pid);
+		if (parent && parent > 1 && isStartProcess(parent)) {
+			throw new Error(`MariaDB of this data dir (pid ${pid}) belongs to an npm start that is still running (pid ${parent}). Stop that one first.`);
+		}
+		targets.push({ name: 'mariadb', pid });
 	}
 	for (const { name, pid } of targets) {
 		log(`  stopping ${name} (pid ${pid}) left running by an earlier start`);

@@ -114,7 +114,7 @@ export function portOwner(port) {
 }
 
 /** The parent pid of a process, from /proc (Linux), or null. */
-function parentOf(pid) {
+export function parentOf(pid) {
 	try {
 		const stat = fs.readFileSync(`/proc/${pid}/stat`, 'utf8');
 		return Number(stat.slice(stat.lastIndexOf(')') + 2).split(' ')[1]);
