@@ -10,6 +10,7 @@ import { isHalfSignedInPath, isPublicPath, secondFactorPageFor } from '$lib/serv
 import { env } from '$env/dynamic/private';
 import { watchFlags } from '$lib/server/purchasing/watch';
 import { appStore } from '$lib/server/files/store';
+import { startImportWatchdog } from '$lib/server/imports/watchdog';
 import { originCheck } from '$lib/server/origin-check';
 
 /** Resolves the user once per request: a bearer token on the API, else the session cookie. */
@@ -114,6 +115,8 @@ export const init: ServerInit = async () => {
 	void appStore()
 		.ensureBucket()
 		.catch((err) => console.warn('[files] the file store is not reachable at start; uploads will try again:', err instanceof Error ? err.message : err));
+	// Imports left running by a process or connection that died are settled now and every 15 s (imports/watchdog.ts).
+	startImportWatchdog(db);
 };
 
 // originCheck: SvelteKit's form origin rule with a readable refusal, and the local instance's other loopback name.

@@ -302,7 +302,7 @@ describe('batched writes store exactly what the file says', () => {
 			}
 		});
 		expect(out.status).toBe('failed');
-		expect(out.message).toMatch(/Duplicate entry.*Nothing was written/);
+		expect(out.message).toMatch(new RegExp(`The SKU "${prefix}15" is already in use\\. Nothing was written`));
 		const left = await db.select({ sku: t.parts.sku, name: t.parts.name }).from(t.parts).where(like(t.parts.sku, `${prefix}%`));
 		expect(left).toEqual([{ sku: `${prefix}15`, name: 'Taken meanwhile' }]);
 		expect((await importsService.getReport(db, up.id)).status).toBe('failed');

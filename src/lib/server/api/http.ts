@@ -1,7 +1,7 @@
 import { isHttpError, json, type RequestEvent, type RequestHandler } from '@sveltejs/kit';
 import { ZodError } from 'zod';
 import { badTextReason } from '$lib/input';
-import { INPUT_ERRNOS, dbErrno, isRetryable } from '$lib/server/db/errno';
+import { INPUT_ERRNOS, dbErrno, isRetryable, isUnavailable } from '$lib/server/db/errno';
 import { duplicateOf } from '$lib/server/db/unique';
 
 /** An error with the JSON shape of the API: `{ error: { code, message, fields? } }`. */
@@ -77,6 +77,10 @@ export function toErrorResponse(err: unknown): Response {
 		console.warn('[api] the database refused a value the validation let through:', err instanceof Error ? err.message.slice(0, 300) : err);
 		return errorResponse(400, 'invalid-input', 'A value cannot be stored (wrong characters, too long or out of range).');
 	}
+	if (isUnavailable(err)) {
+		console.error('[api] the database is not reachable:', err instanceof Error ? err.message : err);
+		return errorResponse(503, 'database-unavailable', 'The database cannot be reached just now; try again in a moment.', undefined, { 'Retry-After': '5' });
+	}
 	if (isRetryable(err)) {
 		// Deadlock or lock wait still failing after inTransaction's retries: busy, not broken.
 		return errorResponse(503, 'busy', 'The stockroom is busy; try again in a moment.', undefined, { 'Retry-After': '1' });
@@ -99,15 +103,22 @@ export function endpoint<E extends RequestEvent>(handler: (event: E) => Promise<
 	}) as unknown as RequestHandler;
 }
 
-/** Reads a JSON body; 415 when the request is not JSON, 400 when it does not parse. */
+/** Reads a JSON body; 415 when the request is not JSON, 400 when it is not UTF-8, does not parse or fails `checkJsonBody`. */
 export async function readJson(request: Request): Promise<unknown> {
 	const type = request.headers.get('content-type') ?? '';
 	if (!type.toLowerCase().startsWith('application/json')) {
 		throw new ApiError(415, 'unsupported-media-type', 'Send the body as application/json.');
 	}
 	let body: unknown;
+	let text: string;
 	try {
-		body = await request.json();
+		// fatal: bytes that are not UTF-8 are refused, not turned into U+FFFD and stored.
+		text = new TextDecoder('utf-8', { fatal: true }).decode(await request.arrayBuffer());
+	} catch {
+		throw new ApiError(400, 'invalid-json', 'The body is not valid UTF-8.');
+	}
+	try {
+		body = JSON.parse(text);
 	} catch {
 		throw new ApiError(400, 'invalid-json', 'The body is not valid JSON.');
 	}

@@ -37,3 +37,19 @@ export const INPUT_ERRNOS: ReadonlySet<number> = new Set([
 	1264 /* ER_WARN_DATA_OUT_OF_RANGE */,
 	1048 /* ER_BAD_NULL_ERROR */
 ]);
+
+const UNAVAILABLE_CODES = new Set(['ECONNREFUSED', 'ECONNRESET', 'ETIMEDOUT', 'EPIPE', 'PROTOCOL_CONNECTION_LOST', 'PROTOCOL_SEQUENCE_TIMEOUT', 'ER_CON_COUNT_ERROR']);
+const UNAVAILABLE_ERRNOS = new Set([1040 /* too many connections */, 1053 /* server shutdown */, 1927 /* connection killed */, 2006 /* server has gone away */, 2013 /* lost connection */]);
+
+/** True when the database cannot be reached or dropped the connection: a 503, not a 500. */
+export function isUnavailable(err: unknown): boolean {
+	for (let e: unknown = err, depth = 0; e && typeof e === 'object' && depth < 5; e = (e as { cause?: unknown }).cause, depth++) {
+		const { code, errno, fatal } = e as { code?: unknown; errno?: unknown; fatal?: unknown };
+		if (typeof code === 'string' && UNAVAILABLE_CODES.has(code)) return true;
+		if (typeof errno === 'number' && UNAVAILABLE_ERRNOS.has(errno)) return true;
+		if (fatal === true && typeof code === 'string') return true;
+		// mysql2, when a statement is sent on a connection that has already closed.
+		if (e instanceof Error && /connection is in closed state/i.test(e.message)) return true;
+	}
+	return false;
+}

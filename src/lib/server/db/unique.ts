@@ -51,8 +51,11 @@ export interface Duplicate {
 export function duplicateOf(err: unknown): Duplicate | null {
 	if (dbErrno(err) !== ER_DUP_ENTRY) return null;
 	// MariaDB: "Duplicate entry 'X' for key 'parts_sku_uq'" (MySQL 8 prefixes the table: 'parts.parts_sku_uq').
-	const index = /for key '(?:[^'.]+\.)?([^']+)'$/.exec(dbMessage(err))?.[1] ?? '';
+	const m = /^Duplicate entry '(.*)' for key '(?:[^'.]+\.)?([^']+)'$/s.exec(dbMessage(err));
+	const index = m?.[2] ?? '';
 	const field = UNIQUE_FIELDS.get(index) ?? 'id';
 	const w = words(field);
-	return { index, field, code: `duplicate-${w.toLowerCase().replace(/ /g, '-')}`, message: `That ${w} is already in use.`, fields: { [field]: `This ${w} is already in use.` } };
+	// The entry of a composite index is "value-value" (e.g. supplier id and part number): only a single one is shown.
+	const value = m && !index.includes('_pn_') && m[1].length <= 80 ? ` "${m[1]}"` : '';
+	return { index, field, code: `duplicate-${w.toLowerCase().replace(/ /g, '-')}`, message: `The ${w}${value} is already in use.`, fields: { [field]: `This ${w} is already in use.` } };
 }

@@ -68,6 +68,9 @@ export async function readMultipartStream<T>(
 			fields[name] = value;
 		});
 		parser.on('file', (name, stream, info) => {
+			// A body cut off inside a file makes busboy emit 'error' on the file's stream too ("Unexpected end
+			// of form"): without a listener that error is unhandled and ends the whole process.
+			stream.on('error', () => fail(new ApiError(400, 'invalid-multipart', 'The upload was cut off before its end.')));
 			if (name !== fileField || handling) {
 				stream.resume(); // not ours: skipped
 				return;

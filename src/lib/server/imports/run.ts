@@ -17,8 +17,11 @@
  */
 import { and, DrizzleQueryError, eq } from 'drizzle-orm';
 import type { Db, DbOrTx, Tx } from '$lib/server/db';
+import { inTransaction } from '$lib/server/db/transaction';
+import { isUnavailable } from '$lib/server/db/errno';
 import { importRowErrors, imports, partSurfaces, parts, suppliers, type ImportRecord } from '$lib/server/db/schema';
 import { recordAudit } from '$lib/server/audit';
+import { DomainError } from '$lib/server/api/http';
 import { bumpStockVersion } from '$lib/server/stock/version';
 import { partInputSchema, type PartInput } from '$lib/server/catalogue/part-input';
 import { toInput } from '$lib/server/catalogue/parts';
@@ -274,14 +277,17 @@ async function validateBatch(ctx: Ctx, read: ReadBatch): Promise<BatchPlan> {
 	return { rows: read.length, creates, updates, counts };
 }
 
-async function progress(db: Db, id: number, counts: RunCounts) {
+/**
+ * Progress after a batch. A dry run's counts are what the file would do, so they are shown as they
+ * grow; a commit's created/updated/unchanged stay 0 until its transaction has committed (rows written
+ * inside an open transaction are not in the catalogue yet, and never will be if it dies).
+ */
+async function progress(db: Db, id: number, counts: RunCounts, mode: 'check' | 'commit') {
 	await db
 		.update(imports)
 		.set({
 			rowsDone: counts.rows,
-			created: counts.created,
-			updated: counts.updated,
-			unchanged: counts.unchanged,
+			...(mode === 'check' ? { created: counts.created, updated: counts.updated, unchanged: counts.unchanged } : {}),
 			rejected: counts.rejected,
 			errorCount: counts.errorCount,
 			heartbeatAt: new Date()
@@ -298,9 +304,28 @@ export async function runImport(
 	store: ObjectStore,
 	importId: number,
 	mode: 'check' | 'commit',
-	opts: { actorId: number; hooks?: RunHooks; batchRows?: number }
-): Promise<RunCounts & { status: 'checked' | 'committed' | 'failed'; message: string | null }> {
+	opts: { actorId: number; hooks?: RunHooks; batchRows?: number; outcomeRetryMs?: number[] }
+): Promise<RunOutcome> {
+	activeRuns.add(importId);
+	try {
+		return await runImportUnwatched(db, store, importId, mode, opts);
+	} finally {
+		activeRuns.delete(importId);
+	}
+}
+
+/** Imports this process is running now (the watchdog leaves them alone, however slow their heartbeat). */
+export const activeRuns = new Set<number>();
+
+async function runImportUnwatched(
+	db: Db,
+	store: ObjectStore,
+	importId: number,
+	mode: 'check' | 'commit',
+	opts: { actorId: number; hooks?: RunHooks; batchRows?: number; outcomeRetryMs?: number[] }
+): Promise<RunOutcome> {
 	const [rec] = await db.select().from(imports).where(eq(imports.id, importId));
+	if (!rec) throw new Error(`import ${importId} does not exist`);
 	const counts: RunCounts = { created: 0, updated: 0, unchanged: 0, rejected: 0, errorCount: 0, rows: 0 };
 	const batchRows = opts.batchRows ?? BATCH_ROWS;
 	let message: string | null = null;
@@ -344,7 +369,7 @@ export async function runImport(
 				for (const k of ['created', 'updated', 'unchanged', 'rejected', 'errorCount'] as const) counts[k] += plan.counts[k];
 				counts.rows += plan.rows;
 				batches++;
-				await progress(db, importId, counts);
+				await progress(db, importId, counts, mode);
 				await opts.hooks?.afterBatch?.({ batch: batches, rowsDone: counts.rows });
 			};
 			const flush = async () => {
@@ -382,7 +407,8 @@ export async function runImport(
 		if (mode === 'check') {
 			await pass(null);
 		} else {
-			await db.transaction(async (tx) => {
+			// One attempt: a retry would read and write the whole file again; a deadlock fails the run with its message.
+			await inTransaction(db, async (tx) => {
 				await pass(tx);
 				if (counts.rejected > 0 && !options.skipRejected) {
 					throw new RowsRejected(
@@ -404,7 +430,7 @@ export async function runImport(
 						.set({ importMapping: { mapping: rec.mapping, units: rec.units ?? {} } })
 						.where(eq(suppliers.id, rec.supplierId));
 				}
-			});
+			}, { attempts: 1 });
 		}
 	} catch (thrown) {
 		// A failed statement: the database's own message, not the statement (a batch insert is about 1 MB of SQL).
@@ -413,36 +439,75 @@ export async function runImport(
 		message =
 			err instanceof RowsRejected
 				? err.message
-				: `The import stopped: ${err instanceof Error ? err.message.slice(0, 300) : String(err)}. ${mode === 'commit' ? 'Nothing was written to the catalogue.' : ''}`.trim();
+				: `The import stopped: ${isUnavailable(thrown) ? 'the connection to the database was lost' : err instanceof Error ? err.message.slice(0, 300).replace(/\.$/, '') : String(err)}. ${mode === 'commit' ? 'Nothing was written to the catalogue.' : ''}`.trim();
 		if (!(err instanceof RowsRejected)) {
 			const statement = thrown instanceof DrizzleQueryError ? ` (statement: ${thrown.query.slice(0, 200)}…)` : '';
 			console.error(`[import ${importId}] ${mode} failed${statement}:`, err);
 		}
-		if (mode === 'commit' && !(err instanceof RowsRejected)) {
-			// The counts described rows of a transaction that was rolled back.
+		if (mode === 'commit') {
+			// Nothing was written (the transaction was rolled back, or refused for rejected rows): the record
+			// must not claim rows it does not hold. What the file would do is the dry run's to say.
 			counts.created = counts.updated = counts.unchanged = 0;
 		}
 	} finally {
 		await seenStore?.close();
 	}
+	await recordOutcome(db, importId, { ...counts, status, message }, opts.outcomeRetryMs);
+	return { ...counts, status, message };
+}
+
+export type RunOutcome = RunCounts & { status: 'checked' | 'committed' | 'failed'; message: string | null };
+
+/** Outcomes a run could not write (the database was away); the watchdog writes them when it is back. */
+export const pendingOutcomes = new Map<number, RunOutcome>();
+
+/** Writes a run's outcome on the import record. */
+export async function writeOutcome(db: Db, importId: number, o: RunOutcome) {
 	const now = new Date();
 	await db
 		.update(imports)
 		.set({
-			status,
-			message,
-			rowsDone: counts.rows,
-			created: counts.created,
-			updated: counts.updated,
-			unchanged: counts.unchanged,
-			rejected: counts.rejected,
-			errorCount: counts.errorCount,
+			status: o.status,
+			message: o.message,
+			rowsDone: o.rows,
+			created: o.created,
+			updated: o.updated,
+			unchanged: o.unchanged,
+			rejected: o.rejected,
+			errorCount: o.errorCount,
 			heartbeatAt: now,
-			...(status === 'checked' ? { checkedAt: now } : {}),
-			...(status === 'committed' ? { committedAt: now } : {})
+			...(o.status === 'checked' ? { checkedAt: now } : {}),
+			...(o.status === 'committed' ? { committedAt: now } : {})
 		})
 		.where(eq(imports.id, importId));
-	return { ...counts, status, message };
+}
+
+/** Pauses between attempts to write an outcome (about 8 s in all) before the watchdog takes over. */
+const OUTCOME_RETRY_MS = [250, 500, 1000, 2000, 4000];
+
+/**
+ * Writes the outcome, trying again while the database is away. When it stays away, the outcome is
+ * left to the watchdog (`pendingOutcomes`) and the caller gets a 503 that says what happened.
+ */
+async function recordOutcome(db: Db, importId: number, o: RunOutcome, retryMs = OUTCOME_RETRY_MS) {
+	for (let attempt = 0; ; attempt++) {
+		try {
+			await writeOutcome(db, importId, o);
+			pendingOutcomes.delete(importId);
+			return;
+		} catch (err) {
+			if (attempt >= retryMs.length) {
+				pendingOutcomes.set(importId, o);
+				console.error(`[import ${importId}] could not record its outcome (${o.status}); the watchdog will:`, err instanceof Error ? err.message : err);
+				throw new DomainError(
+					503,
+					'database-unavailable',
+					`The connection to the database was lost during the import. ${o.status === 'committed' ? 'It was written to the catalogue' : 'Nothing was written to the catalogue'}; the import's page shows the outcome once the database is back.`
+				);
+			}
+			await new Promise((r) => setTimeout(r, retryMs[attempt]));
+		}
+	}
 }
 
 /** Marks a step as interrupted when its heartbeat stopped (the app restarted mid-run). */

@@ -196,7 +196,8 @@ export async function beginRun(db: DbOrTx, id: number, mode: 'check' | 'commit')
 	const staleBefore = new Date(Date.now() - STALE_AFTER_MS);
 	const [res] = await db
 		.update(imports)
-		.set({ status: mode === 'check' ? 'checking' : 'committing', rowsDone: 0, heartbeatAt: new Date(), message: null })
+		// A commit starts from no written rows: the dry run's counts said what the file would do, not what was written.
+		.set({ status: mode === 'check' ? 'checking' : 'committing', rowsDone: 0, heartbeatAt: new Date(), message: null, ...(mode === 'commit' ? { created: 0, updated: 0, unchanged: 0 } : {}) })
 		.where(
 			and(
 				eq(imports.id, id),
@@ -214,7 +215,7 @@ export function startRun(db: Db, store: ObjectStore, id: number, mode: 'check' |
 }
 
 /** Runs a step to its end (the API's one-shot import, tests, the bench). */
-export async function runNow(db: Db, store: ObjectStore, id: number, mode: 'check' | 'commit', actorId: number, opts: { hooks?: RunHooks; batchRows?: number } = {}) {
+export async function runNow(db: Db, store: ObjectStore, id: number, mode: 'check' | 'commit', actorId: number, opts: { hooks?: RunHooks; batchRows?: number; outcomeRetryMs?: number[] } = {}) {
 	await beginRun(db, id, mode);
 	return runImport(db, store, id, mode, { actorId, ...opts });
 }
