@@ -39,7 +39,8 @@ describe('image size from the header, before decoding', () => {
 	}, 60_000);
 });
 
-describe('thumbnails in a worker thread', () => {
+// The first one bundles the worker with esbuild (under vitest): seconds on a busy machine.
+describe('thumbnails in a worker thread', { timeout: 60_000 }, () => {
 	it('makes the thumbnail of a hand-made PNG and keeps the caller’s bytes', async () => {
 		const png = await greyPng(1000, 400);
 		const before = png.byteLength;
@@ -53,5 +54,5 @@ describe('thumbnails in a worker thread', () => {
 		const big = await greyPng(4000, 4000);
 		await expect(makeThumbnail(big, 320, { timeoutMs: 50 })).rejects.toMatchObject({ reason: 'timeout' });
 		expect(await makeThumbnail(await greyPng(50, 50))).toMatchObject({ width: 50, height: 50 });
-	}, 60_000);
+	});
 });

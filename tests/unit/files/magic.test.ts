@@ -105,7 +105,8 @@ describe('file names', () => {
 	});
 });
 
-describe('thumbnails (jimp)', () => {
+// Thumbnails run in a worker thread, bundled with esbuild on first use under vitest: seconds on a busy machine.
+describe('thumbnails (jimp, in a worker thread)', { timeout: 60_000 }, () => {
 	it('fits a landscape photo into 320 px keeping the aspect ratio', async () => {
 		const img = new Jimp({ width: 1200, height: 800, color: 0x3366ccff });
 		const t = await makeThumbnail(new Uint8Array(await img.getBuffer(JimpMime.jpeg)));

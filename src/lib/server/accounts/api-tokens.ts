@@ -7,6 +7,7 @@ import { newToken } from '$lib/server/auth/tokens';
 import { DomainError } from '$lib/server/api/http';
 import { recordAudit } from '$lib/server/audit';
 import * as notify from './notify';
+import { inTransaction } from '$lib/server/db/transaction';
 
 /** Expiry choices offered on the account page, in days (0 = never). */
 export const EXPIRY_CHOICES = [30, 90, 365, 0] as const;
@@ -51,7 +52,7 @@ export async function create(db: Db, user: { id: number; email: string }, input:
 	const { token, tokenHash, prefix } = newToken();
 	const days = input.expiresInDays ?? 0;
 	const expiresAt = days > 0 ? new Date(Date.now() + days * 86400_000) : null;
-	const id = await db.transaction(async (tx) => {
+	const id = await inTransaction(db, async (tx) => {
 		const [{ id }] = await tx.insert(apiTokens).values({ userId: user.id, name: input.name, tokenHash, prefix, expiresAt }).$returningId();
 		await recordAudit(tx, { actorId: user.id, action: 'token.created', targetType: 'api_token', targetId: id, detail: { name: input.name, prefix } });
 		return id;
@@ -65,7 +66,7 @@ export async function create(db: Db, user: { id: number; email: string }, input:
  * 404, as if it did not exist.
  */
 export async function revoke(db: Db, actor: { id: number; isAdmin: boolean }, tokenId: number) {
-	await db.transaction(async (tx) => {
+	await inTransaction(db, async (tx) => {
 		const [row] = await tx
 			.select()
 			.from(apiTokens)

@@ -12,6 +12,7 @@ import * as throttle from '$lib/server/auth/throttle';
 import { recordAudit } from '$lib/server/audit';
 import { checkLink, createLink, LINK_LIFETIME_MS, spendLink, type LinkCheck } from './links';
 import * as notify from './notify';
+import { inTransaction } from '$lib/server/db/transaction';
 
 export const changePasswordSchema = z
 	.object({ current: z.string().min(1, 'Enter your current password.').max(1024), password: newPasswordSchema, confirm: z.string() })
@@ -26,7 +27,7 @@ export const resetRequestSchema = z.object({ email: z.string().trim().toLowerCas
  */
 export async function setPasswordFromLink(db: Db, token: string, password: string, pepper?: string): Promise<LinkCheck> {
 	const hash = await hashPassword(password, pepper);
-	const result = await db.transaction(async (tx): Promise<LinkCheck> => {
+	const result = await inTransaction(db, async (tx): Promise<LinkCheck> => {
 		const check = await checkLink(tx, token, { forUpdate: true });
 		if (!check.ok) return check;
 		const problem = passwordProblem(password, check.user.email);
@@ -65,7 +66,7 @@ export async function changePassword(
 	const problem = passwordProblem(input.password, user.email);
 	if (problem) return { ok: false, field: 'password', message: problem };
 	if (input.password === input.current) return { ok: false, field: 'password', message: 'Choose a password different from the current one.' };
-	await db.transaction(async (tx) => {
+	await inTransaction(db, async (tx) => {
 		await tx.update(users).set({ passwordHash: await hashPassword(input.password, pepper) }).where(eq(users.id, userId));
 		await recordAudit(tx, { actorId: userId, action: 'user.password-changed', targetType: 'user', targetId: userId });
 	});

@@ -18,6 +18,7 @@ import * as throttle from '$lib/server/auth/throttle';
 import * as totp from '$lib/server/auth/totp';
 import { confirmPassword } from './passwords';
 import * as notify from './notify';
+import { inTransaction } from '$lib/server/db/transaction';
 
 const CODE_MESSAGE = 'Enter the 6-digit code from your authenticator app.';
 
@@ -104,7 +105,7 @@ export async function setupView(db: Db, user: { id: number; email: string }, pep
 /** Makes a new random secret and keeps it, encrypted, as the pending one (a set-up started again replaces it). */
 export async function startSetup(db: Db, userId: number, pepper: string | undefined) {
 	const pending = totp.encryptSecret(totp.newSecret(), userId, pepper);
-	await db.transaction(async (tx) => {
+	await inTransaction(db, async (tx) => {
 		const user = await lockUser(tx, userId);
 		if (user.totpEnabledAt) throw new TwoStepAlreadyOn();
 		await tx.update(users).set({ totpPendingSecret: pending }).where(eq(users.id, userId));
@@ -165,7 +166,7 @@ export async function confirmSetup(
 		db,
 		user.id,
 		() =>
-			db.transaction(async (tx): Promise<CodeResult> => {
+			inTransaction(db, async (tx): Promise<CodeResult> => {
 				const row = await lockUser(tx, user.id);
 				if (row.totpEnabledAt) throw new TwoStepAlreadyOn();
 				if (!row.totpPendingSecret) throw new NoSetupStarted();
@@ -191,7 +192,7 @@ export async function verifySignin(db: Db, userId: number, code: string, pepper:
 		db,
 		userId,
 		() =>
-			db.transaction(async (tx): Promise<CodeResult> => {
+			inTransaction(db, async (tx): Promise<CodeResult> => {
 				const row = await lockUser(tx, userId);
 				if (!row.totpEnabledAt || !row.totpSecret) throw new TwoStepOff();
 				const check = await spendCode(tx, row, row.totpSecret, code, pepper, now);
@@ -222,7 +223,7 @@ export async function turnOff(
 		user.id,
 		async () => {
 			if (!(await confirmPassword(db, user.id, input.password, pepper))) return { ok: false, reason: 'wrong-password' };
-			return db.transaction(async (tx): Promise<CodeResult> => {
+			return inTransaction(db, async (tx): Promise<CodeResult> => {
 				const row = await lockUser(tx, user.id);
 				if (!row.totpEnabledAt || !row.totpSecret) throw new TwoStepOff();
 				const check = await spendCode(tx, row, row.totpSecret, input.code, pepper, now);
@@ -251,7 +252,7 @@ export class OwnTwoStep extends DomainError {
  */
 export async function clearByAdmin(db: Db, actor: { id: number; name: string }, userId: number) {
 	if (actor.id === userId) throw new OwnTwoStep();
-	const target = await db.transaction(async (tx) => {
+	const target = await inTransaction(db, async (tx) => {
 		const row = await lockUser(tx, userId);
 		if (!row.totpEnabledAt) throw new TwoStepOff('Two-step sign-in is not on for this person.');
 		await clearTwoStep(tx, userId);

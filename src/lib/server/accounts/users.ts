@@ -10,6 +10,7 @@ import { DomainError } from '$lib/server/api/http';
 import { recordAudit } from '$lib/server/audit';
 import { createLink, LINK_LIFETIME_MS } from './links';
 import * as notify from './notify';
+import { inTransaction } from '$lib/server/db/transaction';
 
 export const inviteSchema = z
 	.object({
@@ -74,7 +75,7 @@ async function otherActiveAdmins(tx: Tx, userId: number) {
 
 /** Creates the account without a password and mails a one-time link to choose one. */
 export async function invite(db: Db, actor: { id: number; name: string }, input: z.infer<typeof inviteSchema>) {
-	const { userId, token } = await db.transaction(async (tx) => {
+	const { userId, token } = await inTransaction(db, async (tx) => {
 		const [existing] = await tx.select({ n: count() }).from(users).where(eq(users.email, input.email));
 		if (existing.n > 0) throw new DomainError(409, 'email-taken', 'That address already has an account.', { email: 'That address already has an account.' });
 		const [{ id }] = await tx.insert(users).values({ email: input.email, name: input.name, role: input.role, passwordHash: null }).$returningId();
@@ -88,7 +89,7 @@ export async function invite(db: Db, actor: { id: number; name: string }, input:
 
 /** Sends a fresh invitation to someone who has not set a password yet (the old link stops working). */
 export async function resendInvite(db: Db, actor: { id: number; name: string }, userId: number) {
-	const { user, token } = await db.transaction(async (tx) => {
+	const { user, token } = await inTransaction(db, async (tx) => {
 		const user = await lockUser(tx, userId);
 		if (user.passwordHash || user.status !== 'active') throw new DomainError(409, 'not-invited', 'This person has already set a password.');
 		const token = await createLink(tx, user.id, 'invite');
@@ -99,7 +100,7 @@ export async function resendInvite(db: Db, actor: { id: number; name: string }, 
 }
 
 export async function changeRole(db: Db, actorId: number, userId: number, role: Role) {
-	const changed = await db.transaction(async (tx) => {
+	const changed = await inTransaction(db, async (tx) => {
 		const user = await lockUser(tx, userId);
 		if (user.role === role) return null;
 		if (user.role === 'admin' && user.status === 'active' && (await otherActiveAdmins(tx, user.id)) === 0) throw new LastAdmin();
@@ -121,7 +122,7 @@ async function revokeAllTokens(tx: Tx, userId: number, at: Date) {
  * revives neither (the person signs in again and makes new tokens).
  */
 export async function deactivate(db: Db, actorId: number, userId: number) {
-	await db.transaction(async (tx) => {
+	await inTransaction(db, async (tx) => {
 		const user = await lockUser(tx, userId);
 		if (user.status === 'disabled') return;
 		if (user.role === 'admin' && (await otherActiveAdmins(tx, user.id)) === 0) throw new LastAdmin();
@@ -137,7 +138,7 @@ export async function deactivate(db: Db, actorId: number, userId: number) {
  * them still has some): old tokens never come back to life with the account.
  */
 export async function reactivate(db: Db, actorId: number, userId: number) {
-	await db.transaction(async (tx) => {
+	await inTransaction(db, async (tx) => {
 		const user = await lockUser(tx, userId);
 		if (user.status === 'active') return;
 		await tx.update(users).set({ status: 'active' }).where(eq(users.id, user.id));

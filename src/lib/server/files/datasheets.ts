@@ -18,6 +18,7 @@ import { makeThumbnail, ThumbnailFailed, type Thumbnail } from './thumbnails';
 import { imageSize, MAX_IMAGE_MEGAPIXELS, MAX_IMAGE_PIXELS } from './image-size';
 import { spoolToTempFile, type SpooledFile } from './spool';
 import type { ObjectStore, StoredObject } from './s3';
+import { inTransaction } from '$lib/server/db/transaction';
 
 export interface DatasheetJson {
 	id: number;
@@ -173,7 +174,7 @@ export async function uploadDatasheet(
 		throw err;
 	}
 	try {
-		const id = await db.transaction(async (tx) => {
+		const id = await inTransaction(db, async (tx) => {
 			const [{ id }] = await tx
 				.insert(datasheets)
 				.values({
@@ -301,7 +302,7 @@ export async function openDatasheet(
 
 /** Deletes a datasheet: its objects and its row, both or neither. */
 export async function deleteDatasheet(db: DbOrTx, store: ObjectStore, id: number, actorId: number): Promise<void> {
-	await db.transaction(async (tx) => {
+	await inTransaction(db, async (tx) => {
 		const [d] = await tx.select().from(datasheets).where(eq(datasheets.id, id)).for('update');
 		if (!d) throw new DatasheetNotFound(id);
 		await tx.delete(datasheets).where(eq(datasheets.id, id));

@@ -91,7 +91,9 @@ export const accountsPaths: OpenApiPaths = {
 		},
 		post: {
 			summary: 'Create an API token (shown once)',
-			description: 'Needs a session (not a token) and the current password; otherwise 403.',
+			description:
+				'Needs a session (not a token) and the current password; otherwise 403. Wrong passwords count per user ' +
+				'(with password changes and turning two-step sign-in off): the 6th within 15 minutes gets 429 with Retry-After.',
 			security: [{ session: [] }],
 			requestBody: jsonBody({
 				type: 'object',
@@ -108,7 +110,7 @@ export const accountsPaths: OpenApiPaths = {
 					type: 'object',
 					properties: { id: { type: 'integer' }, token: { type: 'string' }, name: { type: 'string' }, prefix: { type: 'string' }, expiresAt: { type: ['string', 'null'] } }
 				}),
-				...errors(400, 401, 403, 415)
+				...errors(400, 401, 403, 415, 429)
 			}
 		}
 	},

@@ -133,7 +133,7 @@ export const importsPaths: OpenApiPaths = {
 	'/parts/{id}/datasheets': {
 		get: { summary: 'Datasheets and photos of a part', parameters: [idParam('Part id')], responses: { '200': jsonResponse('Datasheets'), ...errors(400, 401) } },
 		post: {
-			summary: 'Upload a datasheet (PDF, up to 25 MB) or photo (PNG or JPEG, up to 15 MB)',
+			summary: 'Upload a datasheet (PDF, up to 25 MB) or photo (PNG or JPEG, up to 15 MB and 30 megapixels: more gives 413 image-too-large)',
 			description: 'The type is read from the magic bytes, not the name; SVG, HTML and others are refused. Photos get a thumbnail. 503 when the file store is down (nothing is saved).',
 			parameters: [idParam('Part id')],
 			requestBody: multipartFile(),
