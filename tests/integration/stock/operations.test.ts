@@ -1,5 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { eq, inArray, sql } from 'drizzle-orm';
+import { eq, inArray, isNull, sql } from 'drizzle-orm';
 import { testDb } from '../../support/env';
 import * as t from '../../../src/lib/server/db/schema';
 import * as parts from '../../../src/lib/server/catalogue/parts';
@@ -32,7 +32,7 @@ beforeAll(async () => {
 	const engineers = us.filter((u) => u.role === 'engineer');
 	engineer = engineers[0].id;
 	engineer2 = engineers[1]?.id ?? us.find((u) => u.role === 'admin')!.id;
-	const locs = await db.select().from(t.locations).orderBy(t.locations.code);
+	const locs = await db.select().from(t.locations).where(isNull(t.locations.archivedAt)).orderBy(t.locations.code);
 	locA = locs[0].id;
 	locB = locs[1].id;
 });

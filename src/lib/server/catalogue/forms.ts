@@ -7,6 +7,8 @@ export function toNumber(v: FormDataEntryValue | null): number | string | null {
 	if (v === null) return null;
 	const s = String(v).trim().replace(',', '.');
 	if (s === '') return null;
+	// Decimal notation only: Number() would also read "0x10" as 16 and "0b11" as 3.
+	if (!/^[+-]?(\d+\.?\d*|\.\d+)(e[+-]?\d+)?$/i.test(s)) return String(v);
 	const n = Number(s);
 	return Number.isFinite(n) ? n : String(v);
 }

@@ -51,6 +51,7 @@ export async function readMultipartStream<T>(
 		const fields: Record<string, string> = {};
 		let handling: Promise<T> | null = null;
 		let settled = false;
+		let streamCut = false;
 		const fail = (err: unknown) => {
 			if (settled) return;
 			settled = true;
@@ -69,8 +70,11 @@ export async function readMultipartStream<T>(
 		});
 		parser.on('file', (name, stream, info) => {
 			// A body cut off inside a file makes busboy emit 'error' on the file's stream too ("Unexpected end
-			// of form"): without a listener that error is unhandled and ends the whole process.
-			stream.on('error', () => fail(new ApiError(400, 'invalid-multipart', 'The upload was cut off before its end.')));
+			// of form"): without a listener that error is unhandled and ends the whole process. The parser's own
+			// 'error' answers the request (400); a handler that fails on the cut stream is answered 400 as well.
+			stream.on('error', () => {
+				streamCut = true;
+			});
 			if (name !== fileField || handling) {
 				stream.resume(); // not ours: skipped
 				return;
@@ -78,7 +82,7 @@ export async function readMultipartStream<T>(
 			handling = opts.handleFile({ stream, filename: info.filename ?? '', mimeType: info.mimeType });
 			handling.catch((err) => {
 				stream.resume();
-				fail(err);
+				fail(streamCut && !(err instanceof ApiError) ? new ApiError(400, 'invalid-multipart', 'The upload was cut off before its end.') : err);
 			});
 		});
 		parser.on('error', () => fail(new ApiError(400, 'invalid-multipart', 'The upload could not be read as multipart/form-data.')));
