@@ -50,6 +50,8 @@ export function haproxyConfig({ port, servers, statsPort }) {
 		// Long enough for an import's commit or a large solve; the app has its own limits.
 		'  timeout server 300s',
 		'  timeout http-request 30s',
+		// A check that waits (the node pauses while the cluster drops a dead member) is not a failed one.
+		'  timeout check 4s',
 		'',
 		'frontend glasscrib',
 		`  bind 127.0.0.1:${port}`,
