@@ -2,6 +2,7 @@
 // seed, the S3 and mail fakes, two app instances (each on its own database node) and HAProxy in front.
 // Used by `npm run cluster` (scripts/cluster.mjs) and `npm run test:cluster` (scripts/test-cluster.mjs).
 import fs from 'node:fs';
+import http from 'node:http';
 import path from 'node:path';
 import { ROOT } from './stack.mjs';
 import { freePort, isListening, run, startChild, waitFor } from './proc.mjs';
@@ -12,6 +13,24 @@ import { applyMigrations } from '../migrate.mjs';
 /** Which database node each app instance uses: instance A on node 1, B on node 2 (node 3 holds the mail fake's writes). */
 export const APP_NODES = [0, 1];
 export const APP_NAMES = ['a', 'b'];
+
+/**
+ * GET /health on an instance with the Host of the public origin, as requests through HAProxy carry it
+ * (the app may redirect a request that names another loopback address than its ORIGIN).
+ */
+export function health(port, publicOrigin) {
+	return new Promise((resolve, reject) => {
+		const headers = { host: new URL(publicOrigin).host };
+		const req = http.get({ host: '127.0.0.1', port, path: '/health', setHost: false, headers, timeout: 5000 }, (res) => {
+			let body = '';
+			res.setEncoding('utf8');
+			res.on('data', (c) => (body += c));
+			res.on('end', () => resolve({ status: res.statusCode, body }));
+		});
+		req.on('timeout', () => req.destroy(new Error('timed out')));
+		req.on('error', reject);
+	});
+}
 
 /** Starts one built app instance with its own port and database node; the public origin is HAProxy's. */
 export async function startInstance({ name, port, env, publicOrigin, buildDir, logStream }) {
@@ -34,16 +53,20 @@ export async function startInstance({ name, port, env, publicOrigin, buildDir, l
 		},
 		logStream
 	});
+	let last = 'no answer';
 	await waitFor(
 		`app instance ${name}`,
 		async () => {
 			if (child.exitCode !== null) throw new Error(`app instance ${name} exited with code ${child.exitCode}`);
-			const res = await fetch(`${own}/health`).catch(() => null);
-			return res?.ok ?? false;
+			const res = await health(port, publicOrigin).catch((err) => ((last = String(err.message ?? err)), null));
+			if (res && res.status !== 200) last = `${res.status} ${res.body}`;
+			return res?.status === 200;
 		},
 		90_000,
 		250
-	);
+	).catch((err) => {
+		throw new Error(`${err.message} (last /health answer: ${last})`);
+	});
 	return { name, origin: own, child };
 }
 

@@ -45,6 +45,7 @@ export function readyMessage(setup: { id: number; name: string }, owner: { name:
 export async function checkSetupsReady(db: DbOrTx, opts: { send: Mailer; origin: string }): Promise<SetupReadyResult> {
 	const mails: { waitId: number; setupId: number; message: ReturnType<typeof readyMessage> }[] = [];
 	const result = await db.transaction(async (tx) => {
+		mails.length = 0; // a retried transaction starts over
 		const short = new Set((await waitingSetups(tx)).map((w) => w.setupId));
 		const open = await tx.select({ id: setupWaits.id, setupId: setupWaits.setupId }).from(setupWaits).where(isNotNull(setupWaits.openSetupId));
 		const candidates = [...new Set([...short, ...open.map((o) => o.setupId)])];
