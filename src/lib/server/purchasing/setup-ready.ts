@@ -8,8 +8,9 @@
  * conditional UPDATE (open_setup_id still set), so of several checks at once, on one instance or
  * several, exactly one closes it and mails. The mail goes out after the commit (on a Galera cluster
  * two checks on different nodes both see the wait open until one commits; the other then fails
- * certification and never reaches the mail), and a refused mail reopens the wait for the next check. A setup that has had parts issued to it (a fulfilled
- * reservation) counts as built: its wait is closed without a mail, and no new wait opens for it.
+ * certification and never reaches the mail), and a refused mail reopens the wait for the next check.
+ * A setup that has had parts issued to it (a fulfilled reservation) counts as built: its wait is
+ * closed without a mail, and no new wait opens for it.
  */
 import { and, eq, inArray, isNotNull, isNull } from 'drizzle-orm';
 import type { DbOrTx } from '$lib/server/db';
