@@ -102,8 +102,8 @@ export function nodeArgs({ index, dataDir, all, user, clusterName = 'glasscrib' 
 	const provider = [
 		`gmcast.listen_addr=tcp://127.0.0.1:${me.gcomm}`,
 		`ist.recv_addr=127.0.0.1:${me.ist}`,
-		'gcache.size=64M',
-		'gcache.page_size=32M',
+		'gcache.size=32M',
+		'gcache.page_size=16M',
 		// Loopback: a dead node is declared gone after 3 s of silence (the default, 5 s, suits real networks).
 		'evs.suspect_timeout=PT3S',
 		'evs.inactive_timeout=PT6S'
@@ -120,7 +120,7 @@ export function nodeArgs({ index, dataDir, all, user, clusterName = 'glasscrib' 
 		'--character-set-server=utf8mb4',
 		'--collation-server=utf8mb4_unicode_ci',
 		'--innodb-buffer-pool-size=96M',
-		'--innodb-log-file-size=48M',
+		'--innodb-log-file-size=24M',
 		'--performance-schema=OFF',
 		'--max-connections=200',
 		'--skip-log-bin',
