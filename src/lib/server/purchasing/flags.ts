@@ -10,12 +10,15 @@
  *   - clears the notices of parts that recovered, so that a later flag is reported again.
  * De-duplication holds across app instances: a notice is opened with `INSERT IGNORE` on the
  * unique `open_part_id` index, so of two instances checking at once only one opens (and mails)
- * a given part; the second blocks on the index until the first commits, then skips the part.
- * The digest is sent before the transaction commits: if the mail server cannot take it now
- * (connection, time-out, a 4xx answer), the notices roll back and the next check tries again (a
- * part is reported at least once, never twice while its flag stands, except when the commit itself
- * fails after a successful send). A permanent refusal (a 5xx answer, e.g. 552 "message too large")
- * is logged and the notices stand: the same message would be refused at every check, for ever.
+ * a given part. On one server the second blocks on the index until the first commits, then skips
+ * the part; on a Galera cluster the two may run on different nodes, where neither sees the other's
+ * row until commit, and the second fails certification at commit (deadlock error, retried by
+ * `inTransaction`). So the notices are committed first and the digest is mailed after the commit, by
+ * the one check that opened them: if the mail server cannot take it now (connection, time-out, a 4xx
+ * answer), the notices it opened are removed again and the next check tries again (a part is reported
+ * at least once, never twice while its flag stands, except when the process dies between the commit
+ * and the send: then it is not reported). A permanent refusal (a 5xx answer, e.g. 552 "message too
+ * large") is logged and the notices stand: the same message would be refused at every check, for ever.
  * The digest never grows past DIGEST_MAX_BYTES: past that it lists the first parts and says how
  * many more there are on the reorder board (whose link it always carries).
  */
@@ -173,7 +176,7 @@ export function digestText(list: readonly FlaggedPart[], boardUrl: string, maxBy
 
 /** Runs one check (see the module comment). `origin` builds the board link. */
 export async function checkFlags(db: DbOrTx, opts: { send: Mailer; origin: string; maxBytes?: number }): Promise<CheckResult> {
-	return inTransaction(db, async (tx) => {
+	const claimed = await inTransaction(db, async (tx) => {
 		const flagged = await flaggedParts(tx);
 		const flaggedIds = new Set(flagged.map((f) => f.partId));
 		const open = await tx.select({ id: flagNotices.id, partId: flagNotices.partId }).from(flagNotices).where(isNotNull(flagNotices.openPartId));
@@ -191,6 +194,7 @@ export async function checkFlags(db: DbOrTx, opts: { send: Mailer; origin: strin
 		}
 
 		const reported: FlaggedPart[] = [];
+		const noticeIds: number[] = [];
 		const now = new Date();
 		// In part id order: each insert takes a shared lock on its part row (foreign key), and writers of several
 		// parts (an UPDATE … WHERE id IN …) lock them in id order too, so the two do not deadlock on part rows.
@@ -200,33 +204,46 @@ export async function checkFlags(db: DbOrTx, opts: { send: Mailer; origin: strin
 				.insert(flagNotices)
 				.ignore()
 				.values({ partId: f.partId, openPartId: f.partId, reason: f.reason, available: f.available, reportedAt: now });
-			if (res.affectedRows === 1) reported.push(f);
+			if (res.affectedRows === 1) {
+				reported.push(f);
+				noticeIds.push(res.insertId);
+			}
 		}
 		const bySku = new Map(flagged.map((f, k) => [f.partId, k]));
 		reported.sort((a, b) => bySku.get(a.partId)! - bySku.get(b.partId)!); // back to SKU order for the digest
 
-		let recipients: string[] = [];
-		if (reported.length) {
-			recipients = await purchaserAddresses(tx);
-			if (recipients.length) {
-				const board = new URL('/reorder', opts.origin).toString();
-				try {
-					await opts.send({
-						to: recipients,
-						subject: `Reorder: ${reported.length} part${reported.length === 1 ? '' : 's'} flagged (${reported
-							.slice(0, 3)
-							.map((p) => p.sku)
-							.join(', ')}${reported.length > 3 ? ', …' : ''})`,
-						text: digestText(reported, board, opts.maxBytes)
-					});
-				} catch (err) {
-					if (!isPermanentMailRefusal(err)) throw err; // rolls the notices back: the next check tries again
+		return { reported, noticeIds, cleared: recovered.map((r) => r.partId) };
+	});
+
+	// After the commit: only the check whose notices committed mails them (see the module comment).
+	const { reported, noticeIds, cleared } = claimed;
+	let recipients: string[] = [];
+	if (reported.length) {
+		recipients = await purchaserAddresses(db);
+		if (recipients.length) {
+			const board = new URL('/reorder', opts.origin).toString();
+			try {
+				await opts.send({
+					to: recipients,
+					subject: `Reorder: ${reported.length} part${reported.length === 1 ? '' : 's'} flagged (${reported
+						.slice(0, 3)
+						.map((p) => p.sku)
+						.join(', ')}${reported.length > 3 ? ', …' : ''})`,
+					text: digestText(reported, board, opts.maxBytes)
+				});
+			} catch (err) {
+				if (isPermanentMailRefusal(err)) {
+					// The same message would be refused at every check: the notices stand.
 					console.error(`the reorder digest (${reported.length} parts) was refused for good, not retried:`, (err as Error).message);
+				} else {
+					// Not sent now: the next check reports these parts again.
+					await db.delete(flagNotices).where(inArray(flagNotices.id, noticeIds));
+					throw err;
 				}
 			}
 		}
-		return { reported, cleared: recovered.map((r) => r.partId), recipients };
-	});
+	}
+	return { reported, cleared, recipients };
 }
 
 /** Open notices (for the board: since when a part has been flagged). */

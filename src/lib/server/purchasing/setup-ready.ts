@@ -6,11 +6,13 @@
  * State lives in `setup_waits`: a check opens a wait for every setup it finds short (no mail),
  * and closes the open wait of a setup it finds buildable, mailing the owner. Closing is a
  * conditional UPDATE (open_setup_id still set), so of several checks at once, on one instance or
- * several, exactly one closes it and mails; the mail goes out before the commit, so a refused mail
- * leaves the wait open for the next check. A setup that has had parts issued to it (a fulfilled
- * reservation) counts as built: its wait is closed without a mail, and no new wait opens for it.
+ * several, exactly one closes it and mails. The mail goes out after the commit (on a Galera cluster
+ * two checks on different nodes both see the wait open until one commits; the other then fails
+ * certification and never reaches the mail), and a refused mail reopens the wait for the next check.
+ * A setup that has had parts issued to it (a fulfilled reservation) counts as built: its wait is
+ * closed without a mail, and no new wait opens for it.
  */
-import { and, eq, inArray, isNotNull } from 'drizzle-orm';
+import { and, eq, inArray, isNotNull, isNull } from 'drizzle-orm';
 import type { DbOrTx } from '$lib/server/db';
 import { inTransaction } from '$lib/server/db/transaction';
 import { reservations, setups, setupWaits, users } from '$lib/server/db/schema';
@@ -43,7 +45,9 @@ export function readyMessage(setup: { id: number; name: string }, owner: { name:
 
 /** One check (see the module comment). */
 export async function checkSetupsReady(db: DbOrTx, opts: { send: Mailer; origin: string }): Promise<SetupReadyResult> {
-	return inTransaction(db, async (tx) => {
+	const mails: { waitId: number; setupId: number; message: ReturnType<typeof readyMessage> }[] = [];
+	const result = await inTransaction(db, async (tx) => {
+		mails.length = 0; // a retried transaction starts over
 		const short = new Set((await waitingSetups(tx)).map((w) => w.setupId));
 		const open = await tx.select({ id: setupWaits.id, setupId: setupWaits.setupId }).from(setupWaits).where(isNotNull(setupWaits.openSetupId));
 		const candidates = [...new Set([...short, ...open.map((o) => o.setupId)])];
@@ -89,9 +93,27 @@ export async function checkSetupsReady(db: DbOrTx, opts: { send: Mailer; origin:
 			if ((res as unknown as { affectedRows: number }).affectedRows !== 1) continue; // another check closed it
 			const s = byId.get(o.setupId);
 			if (outcome === 'built' || !s || s.status !== 'active') continue;
-			await opts.send(readyMessage(s, { name: s.ownerName, email: s.email }, opts.origin));
-			result.ready.push(o.setupId);
+			mails.push({ waitId: o.id, setupId: o.setupId, message: readyMessage(s, { name: s.ownerName, email: s.email }, opts.origin) });
 		}
 		return result;
 	});
+
+	// After the commit: only the check that closed a wait mails its owner (see the module comment).
+	let refused: unknown = null;
+	for (const m of mails) {
+		try {
+			await opts.send(m.message);
+			result.ready.push(m.setupId);
+		} catch (err) {
+			refused ??= err;
+			// Not sent: reopen the wait, so the next check mails it (unless a newer wait opened meanwhile).
+			await db
+				.update(setupWaits)
+				.set({ openSetupId: m.setupId, endedAt: null, outcome: null })
+				.where(and(eq(setupWaits.id, m.waitId), isNull(setupWaits.openSetupId)))
+				.catch(() => {});
+		}
+	}
+	if (refused) throw refused;
+	return result;
 }

@@ -1,0 +1,17 @@
+// The cluster tests (`npm run test:cluster`): run only by scripts/test-cluster.mjs, which starts the
+// Galera cluster, two app instances and HAProxy first. One file at a time: they share the cluster, and
+// one of them kills a database node.
+import { sveltekit } from '@sveltejs/kit/vite';
+import { defineConfig } from 'vitest/config';
+
+export default defineConfig({
+	plugins: [sveltekit()],
+	test: {
+		name: 'cluster',
+		include: ['tests/cluster/**/*.test.ts'],
+		environment: 'node',
+		testTimeout: 300_000,
+		hookTimeout: 300_000,
+		fileParallelism: false
+	}
+});
