@@ -9,7 +9,7 @@
  */
 import type { DbOrTx } from '$lib/server/db';
 import { DomainError } from '$lib/server/api/http';
-import { solveRequestSchema } from '$lib/solver/request';
+import { imagingRequestSchema } from '$lib/solver/request';
 import type { SolveResponse } from '$lib/solver/types';
 import { stockView } from './load-stock';
 import { solveWithStock } from './solve';
@@ -22,7 +22,7 @@ let total = 0;
 
 /** Validates `body` and solves it for `user`; aborting `signal` cancels the search. */
 export async function solve(db: DbOrTx, body: unknown, user: { id: number }, signal?: AbortSignal): Promise<SolveResponse> {
-	const req = solveRequestSchema.parse(body);
+	const req = imagingRequestSchema.parse(body);
 	const mine = active.get(user.id) ?? 0;
 	if (mine >= MAX_PER_USER || total >= MAX_ACTIVE) {
 		throw new DomainError(429, 'too-many-requests', 'The solver is busy with your earlier questions; try again in a moment.');

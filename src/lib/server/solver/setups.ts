@@ -10,7 +10,7 @@ import type { DbOrTx } from '$lib/server/db';
 import { setups, projects, users, reservations } from '$lib/server/db/schema';
 import { DomainError } from '$lib/server/api/http';
 import { reserve, reservationRows } from '$lib/server/stock/reservations';
-import { solveRequestSchema, type ParsedSolveRequest } from '$lib/solver/request';
+import { imagingRequestSchema, type ParsedImagingRequest } from '$lib/solver/request';
 import type { Solution } from '$lib/solver/types';
 import { buildElementSnapshot } from './elements';
 import { evaluatePlacement } from './evaluate';
@@ -34,7 +34,7 @@ export const setupInputSchema = z
 	.object({
 		name: z.string({ error: 'Give the setup a name.' }).trim().min(1, 'Give the setup a name.').max(160, 'At most 160 characters.'),
 		projectId: z.number().int().positive().nullable().optional(),
-		query: solveRequestSchema,
+		query: imagingRequestSchema,
 		choice: choiceSchema
 	})
 	.strict();
@@ -57,7 +57,7 @@ export function choiceOf(s: Solution): Choice {
 }
 
 /** Re-evaluates a choice from the catalogue; 400 when it does not image as the question asks. */
-export async function evaluateChoice(db: DbOrTx, query: ParsedSolveRequest, choice: Choice): Promise<Solution> {
+export async function evaluateChoice(db: DbOrTx, query: ParsedImagingRequest, choice: Choice): Promise<Solution> {
 	const byId = await candidatePartsById(db, choice.elements.map((e) => e.partId));
 	const list = [...new Set(choice.elements.map((e) => e.partId))].map((id) => {
 		const p = byId.get(id);
@@ -130,7 +130,7 @@ export interface SetupView {
 	projectId: number | null;
 	projectCode: string | null;
 	projectName: string | null;
-	query: ParsedSolveRequest;
+	query: ParsedImagingRequest;
 	solution: Solution;
 	createdAt: string;
 	reservations: Awaited<ReturnType<typeof reservationRows>>;
@@ -159,7 +159,7 @@ export async function getSetup(db: DbOrTx, id: number): Promise<SetupView> {
 		projectId: row.s.projectId,
 		projectCode: row.projectCode,
 		projectName: row.projectName,
-		query: row.s.query as ParsedSolveRequest,
+		query: row.s.query as ParsedImagingRequest,
 		solution: row.s.solution as Solution,
 		createdAt: row.s.createdAt.toISOString(),
 		reservations: rows.filter((r) => r.state === 'active')
