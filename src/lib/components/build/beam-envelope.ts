@@ -1,19 +1,21 @@
 /**
- * The beam envelope of a beam or afocal answer, for the drawing: the 1/e² radius W(z) of the beam
- * along the axis, through the parts of the answer, and its waists with their Rayleigh ranges.
+ * The beam envelope of an afocal answer, for the drawing (beam answers bring the solver's own
+ * samples): the 1/e² radius W(z) along the axis through the parts, and its waists with their
+ * Rayleigh ranges.
  *
  * In air each part acts exactly (paraxially) as a thin lens of its EFL placed at its principal
  * planes: the ray transfer matrix from the front principal plane H to the back one H′ of a thick
- * lens in air is [[1, 0], [−1/f, 1]] (from memory; E. Hecht, Optics, 4th ed., 2002, sec. 6.2). A Gaussian beam's
- * q = (z − z₀) + i·z_R obeys the ABCD law, 1/q′ = 1/q − 1/f through a thin lens (H. Kogelnik and
- * T. Li, "Laser beams and resonators", Applied Optics 5, 1550, 1966, sec. III). A beam of quality
- * M² is drawn as its embedded Gaussian scaled by M (A. E. Siegman, Lasers, 1986, sec. 17.6):
- * W(z) = W₀·√(1 + ((z − z₀)/z_R)²) with z_R = π W₀² / (M² λ). Inside the glass the drawing joins
- * the radii at the two vertices with a straight line (the drawing does not need the glass path).
+ * lens in air is [[1, 0], [−1/f, 1]] (from memory; E. Hecht, Optics, 4th ed., 2002, sec. 6.2). The
+ * beam's q goes through it by the ABCD law of the optics core (`propagateQ`, Kogelnik & Li 1966);
+ * a beam of quality M² is its embedded Gaussian scaled by M (Siegman, Lasers, 1986, sec. 17.1).
+ * Inside the glass the drawing joins the radii at the two vertices with a straight line (the
+ * drawing does not need the glass path).
  *
- * The server's figures (output waist, beam at each part) come from the solver; this module only
- * draws. Lengths in mm, wavelengths in nm, positions from the bench's reference plane z = 0.
+ * Lengths in mm, wavelengths in nm, positions along the axis from the drawing's origin.
  */
+import { peakIrradianceWPerCm2, propagateQ, rayleighRangeMm, waistRadiusMm } from '$lib/optics/gaussian';
+
+export { peakIrradianceWPerCm2 };
 
 /** A beam in air: waist position z₀ (mm) and Rayleigh range z_R (mm); W₀ follows from λ and M². */
 export interface BeamSegment {
@@ -44,9 +46,6 @@ export interface BeamInput {
 	wavelengthNm: number;
 }
 
-/** Rayleigh range of a waist of 1/e² radius `w0Mm`, mm: π W₀² / (M² λ). */
-export const rayleighRangeMm = (w0Mm: number, wavelengthNm: number, mSquared = 1) => (Math.PI * w0Mm * w0Mm) / (mSquared * wavelengthNm * 1e-6);
-
 /** 1/e² radius of `seg` at `zMm`, mm. */
 export const radiusAt = (seg: Pick<BeamSegment, 'waistZMm' | 'rayleighMm' | 'waistRadiusMm'>, zMm: number) =>
 	seg.waistRadiusMm * Math.sqrt(1 + ((zMm - seg.waistZMm) / seg.rayleighMm) ** 2);
@@ -56,32 +55,25 @@ export const radiusAt = (seg: Pick<BeamSegment, 'waistZMm' | 'rayleighMm' | 'wai
  * without principal planes (a black box) is taken as a thin lens at its middle.
  */
 export function beamSegments(input: BeamInput, parts: readonly EnvelopePart[]): BeamSegment[] {
-	const lambdaMm = input.wavelengthNm * 1e-6;
 	const m2 = Math.max(1, input.mSquared);
-	const w0 = input.waistDiameterMm / 2;
+	const lambda = input.wavelengthNm;
 	let z0 = input.waistPositionMm;
-	let zR = rayleighRangeMm(w0, input.wavelengthNm, m2);
+	let zR = rayleighRangeMm(input.waistDiameterMm / 2, lambda, m2);
 	const out: BeamSegment[] = [];
 	let from = -Infinity;
 	for (const p of parts) {
 		const mid = p.firstVertexMm + p.thicknessMm / 2;
 		const h = p.frontPrincipalZMm ?? mid;
 		const h2 = p.backPrincipalZMm ?? mid;
-		out.push({ waistZMm: z0, rayleighMm: zR, waistRadiusMm: Math.sqrt((zR * m2 * lambdaMm) / Math.PI), fromZMm: from, toZMm: p.firstVertexMm });
-		// q at H: (h − z0) + i zR; 1/q' = 1/q − 1/f.
-		const a = h - z0;
-		const b = zR;
-		const den = a * a + b * b;
-		const invRe = a / den - 1 / p.eflMm;
-		const invIm = -b / den;
-		const d2 = invRe * invRe + invIm * invIm;
-		const qRe = invRe / d2;
-		const qIm = -invIm / d2;
-		z0 = h2 - qRe;
-		zR = qIm;
+		out.push({ waistZMm: z0, rayleighMm: zR, waistRadiusMm: waistRadiusMm(zR, lambda, m2), fromZMm: from, toZMm: p.firstVertexMm });
+		// q at H is (h − z0) + i·zR; after the thin lens it holds at H′.
+		const q = propagateQ({ re: h - z0, im: zR }, [1, 0, -1 / p.eflMm, 1]);
+		if (!q) return out;
+		z0 = h2 - q.re;
+		zR = q.im;
 		from = p.firstVertexMm + p.thicknessMm;
 	}
-	out.push({ waistZMm: z0, rayleighMm: zR, waistRadiusMm: Math.sqrt((zR * m2 * lambdaMm) / Math.PI), fromZMm: from, toZMm: Infinity });
+	out.push({ waistZMm: z0, rayleighMm: zR, waistRadiusMm: waistRadiusMm(zR, lambda, m2), fromZMm: from, toZMm: Infinity });
 	return out;
 }
 
@@ -108,12 +100,6 @@ export function envelopePoints(segments: readonly BeamSegment[], zMinMm: number,
 		for (const z of zs) pts.push([z, radiusAt(s, z)]);
 	}
 	return pts;
-}
-
-/** Peak irradiance of a Gaussian beam of power P (W) at a waist of 1/e² radius w₀ (mm): 2P / (π w₀²), W/cm². */
-export function peakIrradianceWPerCm2(powerW: number, waistRadiusMm: number): number {
-	const wCm = waistRadiusMm / 10;
-	return (2 * powerW) / (Math.PI * wCm * wCm);
 }
 
 /** An irradiance in W/cm² with a prefix that keeps 3 significant digits readable: "4.77 MW/cm²". */
