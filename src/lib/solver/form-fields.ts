@@ -65,7 +65,7 @@ const BEAM_COMMON = {
 export const BEAM_DEFAULTS: Record<BeamPreset, typeof BEAM_COMMON & { inD: string; inAt: string; outD: string; outAt: string }> = {
 	focus: { ...BEAM_COMMON, inD: '2 mm', inAt: '0 mm', outD: '20 um', outAt: '150 mm' },
 	collimate: { ...BEAM_COMMON, wavelength: '632.8 nm', inD: '', inAt: '0 mm', outD: '3 mm', outAt: '500 mm', mfd: '4.3 um' },
-	fibre: { ...BEAM_COMMON, inD: '2 mm', inAt: '0 mm', outD: '', outAt: '120 mm', mfd: '6.2 um' },
+	fibre: { ...BEAM_COMMON, inD: '3 mm', inAt: '0 mm', outD: '', outAt: '120 mm', mfd: '6.2 um' },
 	waist: { ...BEAM_COMMON, wavelength: '632.8 nm', inD: '1 mm', inAt: '-100 mm', outD: '0.5 mm', outAt: '300 mm' }
 };
 export type BeamValues = (typeof BEAM_DEFAULTS)['focus'];
