@@ -136,8 +136,9 @@ export async function unlockForQuestion(db: DbOrTx, question: Record<string, unk
 	const view = await stockView(db);
 	const available = new Map(view.parts.map((p) => [p.partId, p.available]));
 	const avail = (id: number) => available.get(id) ?? 0;
-	const fromStock = res.solutions.find((s) => shortfalls(s.elements, avail).length === 0) ?? null;
-	const best = bestSinglePurchase(res.solutions, avail);
+	const solutions: readonly AnySolution[] = res.solutions;
+	const fromStock = solutions.find((s) => shortfalls(s.elements, avail).length === 0) ?? null;
+	const best = bestSinglePurchase(solutions, avail);
 	let purchase: UnlockAnswer['purchase'] = null;
 	if (best) {
 		const [offer] = await offers(db, [best.purchase]);

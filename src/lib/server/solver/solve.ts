@@ -60,7 +60,7 @@ export interface SolveOptions {
 }
 
 /** Which elements of the snapshot the question allows, and how many units each part may use. */
-function candidateFilter(snap: ElementSnapshot, req: ParsedImagingRequest): { candidates: Int32Array; partUnits: Int32Array; parts: number } {
+export function candidateFilter(snap: ElementSnapshot, req: Pick<ParsedImagingRequest, 'partIds' | 'locationIds' | 'availableOnly'>): { candidates: Int32Array; partUnits: Int32Array; parts: number } {
 	const ids = req.partIds ? new Set(req.partIds) : null;
 	const locs = req.locationIds ? new Set(req.locationIds) : null;
 	const allowed = snap.parts.map((p) => {
