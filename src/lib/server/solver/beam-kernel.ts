@@ -174,7 +174,7 @@ class BestKeys {
 }
 
 /** Length bins per clearance class of the branch and bound (log scale, 0.1 mm to 100 m). */
-const LENGTH_BINS = 240;
+const LENGTH_BINS = 1200;
 const LOG_LENGTH_LO = -1,
 	LOG_LENGTH_SPAN = 6;
 /** Rank bins: clearance class 2 first, then 1, then 0; within one, by length. */

@@ -24,9 +24,6 @@ import {
 import { AREC_STRIDE, AREC_I, AREC_J, AREC_GAP, type AfocalSearchParams } from './afocal-kernel';
 import { beamNumbers, evaluateBeam, evaluateAfocal } from './beam-evaluate';
 
-/** Answers each beam shard keeps (at least the request's limit; 50 covers the purchase search). */
-const BEAM_TOP_K = 50;
-
 function checkWavelength(stock: StockView, wavelengthNm: number): void {
 	if (!wavelengthCoveredByAnyMaterial(stock.parts, wavelengthNm)) {
 		throw new DomainError(400, 'invalid-input', 'Some fields are not valid.', {
@@ -88,7 +85,8 @@ export async function solveBeamWithStock(stock: StockView, req: ParsedBeamReques
 		minClearance: req.minClearance,
 		maxElements: req.maxElements
 	};
-	const topK = options.keepAll ? Infinity : Math.max(BEAM_TOP_K, req.limit);
+	// Each shard keeps its exact best `limit`: the merge of the shards' best is then the exact top `limit`.
+	const topK = options.keepAll ? Infinity : req.limit;
 	const tSearch = performance.now();
 	const { shards, workers } = await runShards(
 		key,
