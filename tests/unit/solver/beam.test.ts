@@ -13,6 +13,7 @@ import type { StockView } from '../../../src/lib/server/solver/solve';
 import { refractiveIndex, checkPairPhysical, type ThickElement } from '../../../src/lib/optics';
 import { zodFields } from '../../../src/lib/server/api/http';
 import type { BeamSolution } from '../../../src/lib/solver/types';
+import { syntheticStock } from '../../bench/_synthetic-stock';
 
 let nextId = 1;
 /** An invented singlet (R1, R2 in mm; null = flat), glass 517642, in stock. */
@@ -210,6 +211,21 @@ describe('mode beam', () => {
 		// And every solver answer away from the scan's edges was found by the scan.
 		const inner = pairs.filter((s) => s.elements[0].firstVertexMm > 0.5 && s.gapsMm[0] > 1.5 && s.backDistanceMm > 5.5);
 		for (const s of inner) expect(found.some((f) => keyOf(f) === key(s) && Math.abs(f.p1 - s.elements[0].firstVertexMm) <= 0.26), `solver answer ${key(s)} at ${s.elements[0].firstVertexMm}`).toBe(true);
+	}, 120_000);
+
+	it('the pruned search (branch and bound, limit K) returns exactly the first K of the full answer set', async () => {
+		const big = stockOf(syntheticStock(80, 3));
+		for (const q of [
+			req,
+			beamQ({ input: { waistDiameterMm: 1, waistPositionMm: -200, mSquared: 1.3 }, target: { waistDiameterMm: 0.5, waistPositionMm: 400 }, minClearance: 1.5 }),
+			beamQ({ input: { waistDiameterMm: 0.006, waistPositionMm: 0 }, target: { waistDiameterMm: 3, waistPositionMm: 400 } })
+		]) {
+			const full = await solveBeamWithStock(big, { ...q, limit: 50 }, { inline: true, keepAll: true });
+			const top = await solveBeamWithStock(big, { ...q, limit: 7 }, { inline: true });
+			expect(full.solutions.length).toBeGreaterThan(7);
+			const sig = (s: BeamSolution) => `${s.elements.map((e) => `${e.partId}${e.reversed ? 'r' : ''}`).join('+')}@${s.objectDistanceMm.toFixed(6)}`;
+			expect(top.solutions.map(sig)).toEqual(full.solutions.slice(0, 7).map(sig));
+		}
 	}, 120_000);
 
 	it('a question without an answer says why and shows the nearest miss with its figures', async () => {

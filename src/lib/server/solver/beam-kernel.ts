@@ -166,12 +166,20 @@ class BestKeys {
 			this.len.pop();
 		}
 	}
+	/** The K-th key (efficiency key, class, length), or null while fewer than K are kept. */
+	kth(): [number, number, number] | null {
+		const n = this.eff.length;
+		return n === this.k ? [this.eff[n - 1], this.cls[n - 1], this.len[n - 1]] : null;
+	}
 	/** True when a key (e, c, l) that is a bound on what a configuration can reach cannot enter the top K. */
 	excludes(e: number, c: number, l: number): boolean {
 		const n = this.eff.length;
 		return n === this.k && this.cmp(e, c, l, n - 1) > 1e-9 * Math.max(1, l);
 	}
 }
+
+/** Elements whose pairs among themselves are solved before the sweep (the thinnest ones). */
+const SEED_COUNT = 60;
 
 /** Length bins per clearance class of the branch and bound (log scale, 0.1 mm to 100 m). */
 const LENGTH_BINS = 1200;
@@ -359,6 +367,9 @@ interface SweepArrays {
 	partIndex: Int32Array;
 	candidates: Int32Array;
 	partUnits: Int32Array;
+	/** 1 for the seed elements: pairs of two seeds were solved before the sweep. */
+	seed: Uint8Array;
+	bestKeys: BestKeys;
 }
 
 /**
@@ -377,7 +388,7 @@ function sweepPairs(
 	deadline: number,
 	cancel: Int32Array | null
 ): { buf: Int32Array; bufBin: Int16Array; count: number; cap: number; truncated: boolean } {
-	const { rows, cols, partOfCol, z1lo, z1hi, z2lo, z2hi, F, H1, H2, T, cls1, cls2, partIndex, candidates, partUnits } = a;
+	const { rows, cols, partOfCol, z1lo, z1hi, z2lo, z2hi, F, H1, H2, T, cls1, cls2, partIndex, candidates, partUnits, seed, bestKeys } = a;
 	let size = 1 << 12;
 	let buf: Int32Array = new Int32Array(size),
 		bufBin: Int16Array = new Int16Array(size);
@@ -394,6 +405,13 @@ function sweepPairs(
 	};
 	setCaps();
 	const ncols = cols.length;
+	// The K-th best key kept does not change during a sweep: read it once. An exact pair has the
+	// best efficiency key (1e6), so it is excluded when the K-th has 1e6 and a better class, or the
+	// same class and a shorter length (with the rounding margin of BestKeys.excludes).
+	const kth = bestKeys.kth();
+	const kOn = kth !== null && kth[0] === 1e6;
+	const kCls = kOn ? kth![1] : -1,
+		kLen = kOn ? kth![2] : Infinity;
 	for (let r = 0; r < rows.length; r++) {
 		if ((r & 15) === 0 && (Date.now() > deadline || (cancel !== null && Atomics.load(cancel, 0) !== 0))) return { buf, bufBin, count, cap, truncated: true };
 		const k1 = rows[r];
@@ -406,6 +424,7 @@ function sweepPairs(
 			c1 = cls1[k1],
 			part1 = partIndex[candidates[k1]];
 		const oneUnit = partUnits[part1] < 2;
+		const seeded = seed[k1] === 1;
 		for (let m = 0; m < ncols; m++) {
 			const k2 = cols[m];
 			const zlo2 = z2lo[k2],
@@ -414,12 +433,17 @@ function sweepPairs(
 				hi = b1 < zhi2 ? b1 : zhi2;
 			if (!(lo <= hi)) continue;
 			if (oneUnit && partOfCol[m] === part1) continue;
+			if (seeded && seed[k2] === 1) continue;
 			const c2 = cls2[k2];
 			const c = c1 < c2 ? c1 : c2;
+			if (c < kCls) continue;
 			const lim = capLen[c];
 			if (lim === 0) continue;
+			const lenLim = c === kCls ? kLen * (1 + 1e-9) + 1e-9 : Infinity;
+			// No pair is shorter than its two thicknesses and the smallest gap.
+			if (t1 + T[k2] + minGapMm > lenLim) continue;
 			const len = pairLengthBound(f1, h11, h21, t1, F[k2], H1[k2], H2[k2], T[k2], z0, zt, lo, hi, minGapMm);
-			if (!(len < lim)) continue;
+			if (!(len < lim) || len > lenLim) continue;
 			const b = rankBin(c, len);
 			if (b <= fromBin || b > cap) continue;
 			if (count === size) {
@@ -571,13 +595,22 @@ export function beamShard(input: BeamShardInput): BeamShardResult {
 		const cols = Int32Array.from(col);
 		const partOfCol = Int32Array.from(col, (k) => partIndex[candidates[k]]);
 		const capacity = Number.isFinite(input.topK) ? 1 << 16 : Infinity;
+		// Seeds: the thinnest parts. Their pairs are solved first, so the K-th best key is already tight
+		// when the sweep starts, and the sweep skips most pairs by their thicknesses alone.
+		const seed = new Uint8Array(n);
+		if (Number.isFinite(input.topK)) {
+			const byThickness = Array.from({ length: n }, (_, k) => k)
+				.filter((k) => cls1[k] >= 0 || cls2[k] >= 0)
+				.sort((x, y) => T[x] - T[y] || x - y);
+			for (const k of byThickness.slice(0, SEED_COUNT)) seed[k] = 1;
+		}
 		let buf: Int32Array = new Int32Array(0),
 			bufBin: Int16Array = new Int16Array(0);
 		let count = 0;
 		let swept = -1; // bins ≤ swept are complete in the buffer
 		const sweep = (fromBin: number): void => {
 			const r = sweepPairs(
-				{ rows, cols, partOfCol, z1lo, z1hi, z2lo, z2hi, F, H1, H2, T, cls1, cls2, partIndex, candidates, partUnits },
+				{ rows, cols, partOfCol, z1lo, z1hi, z2lo, z2hi, F, H1, H2, T, cls1, cls2, partIndex, candidates, partUnits, seed, bestKeys },
 				n,
 				z0,
 				zt,
@@ -625,6 +658,20 @@ export function beamShard(input: BeamShardInput): BeamShardResult {
 				bestKeys.add(efficiencyKey(effOut[0]), clearanceClass(clearance, p.minClearance), last - r.p1Mm);
 			}
 		};
+		for (const k1 of rows) {
+			if (seed[k1] !== 1) continue;
+			const part1 = partIndex[candidates[k1]];
+			for (const k2 of cols) {
+				if (seed[k2] !== 1 || (partIndex[candidates[k2]] === part1 && partUnits[part1] < 2)) continue;
+				const lo = z1lo[k1] > z2lo[k2] ? z1lo[k1] : z2lo[k2],
+					hi = z1hi[k1] < z2hi[k2] ? z1hi[k1] : z2hi[k2];
+				if (!(lo <= hi)) continue;
+				const len = pairLengthBound(F[k1], H1[k1], H2[k1], T[k1], F[k2], H1[k2], H2[k2], T[k2], z0, zt, lo, hi, p.minGapMm);
+				if (len === Infinity) continue;
+				const cls = cls1[k1] < cls2[k2] ? cls1[k1] : cls2[k2];
+				evaluatePair(k1, k2, rankBin(cls, len));
+			}
+		}
 		let done = -1;
 		while (!truncated && done < RANK_BINS - 1) {
 			sweep(done);
