@@ -117,8 +117,9 @@ export function irradianceText(wPerCm2: number): string {
 	return `${Number((wPerCm2 / 1e-3).toPrecision(3))} mW/cm²`;
 }
 
-/** A length in mm as µm below 1 mm ("20.0 µm"), else mm ("2.00 mm"). */
+/** A length in mm as µm below 1 mm ("20.0 µm"), m from 1000 mm ("2.95 m"), else mm ("2.00 mm"). */
 export function smallLength(mm: number | null | undefined): string {
 	if (mm === null || mm === undefined || !Number.isFinite(mm)) return '–';
-	return Math.abs(mm) < 1 ? `${(mm * 1000).toFixed(1)} µm` : `${mm.toFixed(2)} mm`;
+	if (Math.abs(mm) < 1) return `${(mm * 1000).toFixed(1)} µm`;
+	return Math.abs(mm) < 1000 ? `${mm.toFixed(2)} mm` : `${(mm / 1000).toFixed(2)} m`;
 }

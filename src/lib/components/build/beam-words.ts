@@ -34,7 +34,7 @@ export function beamFoci(s: BeamSolution, powerW: number | null): CautionFocus[]
 	const out: CautionFocus[] = [];
 	for (const w of s.beam.waists) {
 		if (w.kind === 'input' && w.diameterMm <= SMALL_WAIST_MM) {
-			out.push({ sentence: `The input beam is focused (Ø ${smallLength(w.diameterMm)}) at z = ${mm(w.zMm)}, where it starts`, irradianceWPerCm2: irr(w.diameterMm), diameterMm: w.diameterMm });
+			out.push({ sentence: `The beam starts from a focus (Ø ${smallLength(w.diameterMm)}) at z = ${mm(w.zMm)}`, irradianceWPerCm2: irr(w.diameterMm), diameterMm: w.diameterMm });
 		} else if (w.kind === 'intermediate') {
 			out.push({ sentence: `The beam comes to a focus between the parts, at z = ${mm(w.zMm)} (Ø ${smallLength(w.diameterMm)})`, irradianceWPerCm2: irr(w.diameterMm), diameterMm: w.diameterMm });
 		} else if (w.kind === 'output') {
