@@ -220,6 +220,26 @@ describe('Shape and expand a laser beam in the browser', () => {
 		await page.emulateMedia({ media: 'screen' });
 	});
 
+	it('offers "What purchase would help?" when nothing on the shelf shapes the beam well enough', async () => {
+		// One part only, and 99 % of a 0.677 mm waist 2 m on from a 2 mm beam at 1064 nm: that waist needs f ≥ 1000 mm
+		// (w0′ ≤ w0·f/z_R with z_R = πw0²/λ ≈ 2.95 m; Kogelnik & Li 1966, thin-lens waist transformation), which the shelf lacks.
+		await page.goto(
+			appUrl('/build?question=beam&preset=waist&inD=2+mm&inAt=0+mm&m2=1&outD=0.677+mm&outAt=2000+mm&wavelength=1064+nm&minEff=99&maxParts=1')
+		);
+		await page.waitForSelector('[data-testid=unlock-offer]', { timeout: 60_000 });
+		await page.click('[data-testid=unlock-button]');
+		await page.waitForSelector('[data-testid=purchase-suggestion]', { timeout: 60_000 });
+		const text = await page.locator('[data-testid=purchase-suggestion]').innerText();
+		expect(text).toMatch(/Buy \d+ × GC-|No single purchase|no purchase of a catalogued part can help/);
+		if (await page.locator('[data-testid=suggested-sku]').count()) {
+			// worded for a beam: its efficiency, not a magnification
+			await expect(page.locator('[data-testid=suggested-efficiency]').innerText()).resolves.toMatch(/^\d+\.\d %$/);
+			expect(text).not.toMatch(/Magnification/);
+		}
+		await expect(page.locator('[data-testid=laser-caution]').innerText()).resolves.toMatch(/laser safety officer/);
+		await screenshot(page, 'beam-purchase-suggestion');
+	});
+
 	it('fits a phone: the beam question, its answers, the setup page and the sheet', async () => {
 		await page.setViewportSize(PHONE);
 		try {
