@@ -87,7 +87,9 @@ function mathjsElement(part: CandidatePart, reversed: boolean, wavelengthNm: num
 /** q through a 2×2 mathjs matrix, complex: (A q + B)/(C q + D). */
 function qThrough(q: Complex, m: Matrix): Complex {
 	const [a, b, c, d] = [m.get([0, 0]), m.get([0, 1]), m.get([1, 0]), m.get([1, 1])];
-	return divide(add(mmul(a, q) as Complex, b) as Complex, add(mmul(c, q) as Complex, d) as Complex) as Complex;
+	const aq = mmul(a, q) as unknown as Complex,
+		cq = mmul(c, q) as unknown as Complex;
+	return divide(add(aq, b) as Complex, add(cq, d) as Complex) as Complex;
 }
 
 describe('mode beam', () => {
