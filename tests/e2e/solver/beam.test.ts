@@ -188,6 +188,18 @@ describe('Shape and expand a laser beam in the browser', () => {
 		expect(caution).toMatch(/focus between the two parts/);
 		await screenshot(page, 'beam-expand');
 		await shotOf(page, '[data-testid=beam-envelope-box]', 'beam-expand-drawing');
+		// saved, its page and its sheet draw the same expander and name the focus between the parts
+		await page.fill('input[name=name]', 'E2E 5× expander for the alignment laser');
+		await Promise.all([page.waitForURL(/\/build\/\d+$/), page.click('[data-testid=save-button]')]);
+		savedSetups.push(Number(new URL(page.url()).pathname.split('/').pop()));
+		await expect(page.locator('[data-testid=setup-question]').innerText()).resolves.toMatch(/Expand a 1\.00 mm beam 5× .* at most 250\.0 mm long, with a focus between the parts/);
+		await expectEnvelope(page, ['intermediate']);
+		await expectBeamCaution(page);
+		await Promise.all([page.waitForURL(/\/sheet$/), page.click('[data-testid=sheet-link]')]);
+		await expect(page.locator('[data-testid=sheet-expected]').innerText()).resolves.toMatch(/Gap between the parts \(vertex to vertex\) \d+\.\d\d mm/);
+		await expectEnvelope(page, ['intermediate']);
+		await expectBeamCaution(page);
+		await screenshot(page, 'beam-expand-sheet');
 	});
 
 	it('saves a focusing setup, reserves its parts and prints the build sheet with the caution', async () => {
