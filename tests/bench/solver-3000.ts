@@ -8,7 +8,7 @@
  */
 import { syntheticStock } from './_synthetic-stock';
 import { solveWithStock, type StockView } from '../../src/lib/server/solver/solve';
-import { solveRequestSchema } from '../../src/lib/solver/request';
+import { imagingRequestSchema as solveRequestSchema } from '../../src/lib/solver/request';
 import { warmUp } from '../../src/lib/server/solver/pool';
 
 const PARTS = 3000;

@@ -1,6 +1,7 @@
 /**
  * Glasscrib optics core: thick elements, ray transfer matrices, homogeneous points,
- * imaging solver kernels, real rays. Pure TypeScript with no framework, database, DOM or
+ * imaging solver kernels, real rays, Gaussian beams (q parameter, M², coupling, fibre
+ * modes) and the beam solvers' closed forms. Pure TypeScript with no framework, database, DOM or
  * Node-only imports, so it runs in the server, in a worker_thread and in the browser.
  *
  * Conventions (kept exactly everywhere in this module; see also DESIGN.md):
@@ -45,3 +46,9 @@ export * from './placement';
 export * from './raytrace';
 export * from './spot';
 export * from './seidel';
+export * from './gaussian';
+export * from './coupling';
+export * from './fibre';
+export * from './polynomial';
+export * from './beam-match';
+export * from './afocal';

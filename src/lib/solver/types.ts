@@ -4,7 +4,9 @@
  * measured from the object plane (z = 0), light travels towards +z.
  */
 
-/** The imaging question, as validated by `solveRequestSchema` (server). */
+import type { ParsedAfocalRequest, ParsedBeamRequest, ParsedImagingRequest } from './request';
+
+/** The imaging question, as validated by `imagingRequestSchema` (server). */
 export interface SolveRequest {
 	mode: 'imaging';
 	/** Working wavelength, nm. */
@@ -91,8 +93,10 @@ export interface RayPath {
 	points: [number, number][];
 }
 
-/** One answer of the solver. */
+/** One answer of the imaging solver. */
 export interface Solution {
+	/** Absent in setups saved before the beam modes existed. */
+	mode?: 'imaging';
 	/** Rank, 1 = best. */
 	rank: number;
 	elements: SolutionElement[];
@@ -172,8 +176,166 @@ export interface SolveStats {
 	partsSkipped: { sku: string; reason: string }[];
 }
 
+/** The answer to an imaging question. */
 export interface SolveResponse {
 	request: SolveRequest;
 	solutions: Solution[];
 	stats: SolveStats;
 }
+
+/*
+ * Mode `beam` and mode `afocal`. Positions: mode beam measures from the bench's reference plane
+ * z = 0 (light towards +z; the input waist may lie before it); mode afocal from the first part's
+ * first vertex. Diameters are full 1/e² intensity diameters.
+ */
+
+/** A waist of the beam along the bench (for the drawing and the caution). */
+export interface BeamWaist {
+	/** Where: 'input', 'intermediate' (a real focus between two parts) or 'output'. */
+	kind: 'input' | 'intermediate' | 'output';
+	/** Position along the axis, mm (mode beam: from z = 0). */
+	zMm: number;
+	/** 1/e² diameter of the (real, M²-scaled) beam at the waist, mm. */
+	diameterMm: number;
+	/** Rayleigh range, mm. */
+	rayleighRangeMm: number;
+}
+
+/** What the beam does at one part of an answer. */
+export interface BeamAtPart {
+	partIndex: number;
+	sku: string;
+	/** Largest 1/e² beam diameter at the part's vertices, mm. */
+	beamDiameterMm: number;
+	/** Clear aperture in use, mm. */
+	clearApertureMm: number;
+	/** Clear aperture over beam diameter (the clearance; ≥ the question's minClearance). */
+	clearance: number;
+	/** Beam diameter over clear aperture (1/clearance). */
+	fillRatio: number;
+	/** Mode beam: efficiency when this part alone moves −1 mm and +1 mm along the axis. */
+	efficiencyAtShift?: [number, number];
+	/** Mode beam: how much the efficiency drops for ±1 mm of this part (the larger drop), 0–1. */
+	efficiencyDropPerMm?: number;
+}
+
+/** The envelope ±w(z) of the beam for the to-scale drawing: samples (z, 1/e² radius), mm. */
+export type BeamEnvelope = [number, number][];
+
+/** Mode beam's figures of one answer (the contract's `beam` object). */
+export interface BeamFigures {
+	/** 1/e² diameter of the output waist, mm. */
+	outputWaistDiameterMm: number;
+	/** Position of the output waist (the focus), mm from z = 0. */
+	outputWaistPositionMm: number;
+	/** Overlap with the target beam, 0–1 (for M² = 1: the power coupled into the target mode). */
+	efficiency: number;
+	/** Smallest clearance (clear aperture over beam diameter) over the parts. */
+	minClearance: number;
+	/** First vertex of the first part to the last vertex of the last, mm. */
+	lengthMm: number;
+	/** Target asked (the fibre's mode field when a fibre was given), mm. */
+	targetWaistDiameterMm: number;
+	targetWaistPositionMm: number;
+	/** Output waist minus target position, mm. */
+	waistOffsetMm: number;
+	/** Output Rayleigh range, mm. */
+	outputRayleighRangeMm: number;
+	/** Far-field full-angle divergence of the output beam, mrad (2·M²λ/(πw₀)). */
+	outputDivergenceMrad: number;
+	/** Peak irradiance at the output waist, 2P/(πw₀²), in W/cm² (null when no power was given). */
+	peakIrradianceWPerCm2: number | null;
+	/** Every waist of the beam in order: input, real foci between the parts, output. */
+	waists: BeamWaist[];
+	/** Per part, in the order light meets them. */
+	parts: BeamAtPart[];
+	/** Input waist plane → output waist plane ray transfer matrix (thick elements, at the wavelength). */
+	systemMatrix: { A: number; B: number; C: number; D: number };
+	/** Samples of the envelope from the input waist (or z = 0) to past the output waist. */
+	envelope: BeamEnvelope;
+}
+
+/** One answer of mode `beam`. Element `firstVertexMm` is measured from z = 0. */
+export interface BeamSolution {
+	mode: 'beam';
+	/** Rank, 1 = best. */
+	rank: number;
+	elements: SolutionElement[];
+	/** z = 0 to the first vertex, mm (where the first part stands). */
+	objectDistanceMm: number;
+	/** Vertex gaps between consecutive parts, mm. */
+	gapsMm: number[];
+	/** Last vertex to the target waist position, mm. */
+	backDistanceMm: number;
+	beam: BeamFigures;
+}
+
+/** Mode afocal's figures of one answer (the contract's `afocal` object). */
+export interface AfocalFigures {
+	/** Output over input beam diameter, from the thick matrices at the wavelength (|A| of the afocal pair). */
+	expansion: number;
+	/** First vertex of the first part to the last vertex of the second, mm. */
+	lengthMm: number;
+	/** The output beam is turned upside down (a real focus between the parts). */
+	inverted: boolean;
+	/** Angle of the real ray at the input beam's full 1/e² radius after the pair, mrad (null: a part without surfaces, not traced). */
+	residualDivergenceMrad: number | null;
+	/** Position of the real focus between the parts, mm from the first vertex (null: none). */
+	intermediateFocusMm: number | null;
+	/** Vertex gap that makes the pair afocal at the wavelength, mm. */
+	gapMm: number;
+	/** Output beam 1/e² diameter, mm. */
+	outputBeamDiameterMm: number;
+	/** Smallest clear aperture over beam diameter over the two parts. */
+	minClearance: number;
+	parts: BeamAtPart[];
+	/** Pair ray transfer matrix (first to last vertex). */
+	systemMatrix: { A: number; B: number; C: number; D: number };
+	/** The traced marginal ray for the drawing (z from the first vertex, y), when traced. */
+	marginalRay: [number, number][] | null;
+}
+
+/** One answer of mode `afocal`. Element `firstVertexMm` is measured from the first part's first vertex (0 for it). */
+export interface AfocalSolution {
+	mode: 'afocal';
+	rank: number;
+	elements: SolutionElement[];
+	/** Always 0 (positions start at the first vertex). */
+	objectDistanceMm: number;
+	/** The one vertex gap, mm. */
+	gapsMm: number[];
+	/** Always 0. */
+	backDistanceMm: number;
+	afocal: AfocalFigures;
+}
+
+/** An answer of any mode. */
+export type AnySolution = Solution | BeamSolution | AfocalSolution;
+
+/** Why a beam or afocal question has no answer, with the nearest miss. */
+export interface NoAnswer {
+	/** A sentence: why nothing qualifies. */
+	reason: string;
+	/** What would help (a shorter focal length, a longer maximum length, ...), or null. */
+	hint: string | null;
+}
+
+/** The answer to a mode-beam question. `nearMiss` is set when `solutions` is empty and something came close. */
+export interface BeamSolveResponse {
+	request: ParsedBeamRequest;
+	solutions: BeamSolution[];
+	noAnswer: (NoAnswer & { nearMiss: BeamSolution | null }) | null;
+	stats: SolveStats;
+}
+
+/** The answer to a mode-afocal question. */
+export interface AfocalSolveResponse {
+	request: ParsedAfocalRequest;
+	solutions: AfocalSolution[];
+	noAnswer: (NoAnswer & { nearMiss: AfocalSolution | null }) | null;
+	stats: SolveStats;
+}
+
+/** The answer to any question (discriminate on `request.mode`). */
+export type AnySolveResponse = (SolveResponse & { request: ParsedImagingRequest }) | BeamSolveResponse | AfocalSolveResponse;
+

@@ -12,17 +12,19 @@ import { getDefaultWavelengthNm } from '$lib/server/catalogue/settings';
 import * as setups from '$lib/server/solver/setups';
 import * as setupList from '$lib/server/solver/setup-list';
 
-/** Saved setups listed under the form; the rest are on /build/setups. */
-const SAVED_ON_PAGE = 8;
 import * as solver from '$lib/server/solver/service';
 
+/** Saved setups listed under the form; the rest are on /build/setups. */
+const SAVED_ON_PAGE = 8;
+
 /**
- * The question lives in the URL. With JavaScript the page fetches the answer from
- * POST /api/v1/solve; without it (the form sends `nojs=1`) the load solves on the server.
+ * The question (imaging, beam with its preset, or afocal) lives in the URL. With JavaScript the
+ * page fetches the answer from POST /api/v1/solve; without it (the form sends `nojs=1`) the load
+ * solves on the server.
  */
 export const load = (async (event) => {
 	const user = requireRole(event, SOLVER_USERS);
-	const parsed = form.readForm(event.url.searchParams, form.formDefaults(await getDefaultWavelengthNm(db)));
+	const parsed = form.readBuildForm(event.url.searchParams, await getDefaultWavelengthNm(db));
 	let ssr: Awaited<ReturnType<typeof solver.solve>> | null = null;
 	let ssrError: string | null = null;
 	if (parsed.request && event.url.searchParams.get('nojs') === '1') {
@@ -69,7 +71,7 @@ export const actions = {
 	 */
 	unlock: async (event) => {
 		const user = requireRole(event, SOLVER_USERS);
-		const parsed = form.readForm(event.url.searchParams, form.formDefaults(await getDefaultWavelengthNm(db)));
+		const parsed = form.readBuildForm(event.url.searchParams, await getDefaultWavelengthNm(db));
 		if (!parsed.request) return fail(400, { unlock: { error: 'Ask a complete question first: the form above has a field to fix.' } });
 		try {
 			return { unlock: { answer: await unlockForQuestion(db, parsed.request, { id: user.id }, event.request.signal) } };

@@ -6,7 +6,7 @@
  * one user and MAX_ACTIVE in all at the same time (429 beyond).
  */
 import { describe, expect, it, vi } from 'vitest';
-import { solveRequestSchema } from '../../../src/lib/solver/request';
+import { imagingRequestSchema as solveRequestSchema } from '../../../src/lib/solver/request';
 import { buildElementSnapshot, type CandidatePart } from '../../../src/lib/server/solver/elements';
 import { searchShard, type SearchParams } from '../../../src/lib/server/solver/search-kernel';
 import { solveWithStock, type StockView } from '../../../src/lib/server/solver/solve';

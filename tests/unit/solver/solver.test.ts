@@ -7,7 +7,7 @@
 import { describe, expect, it } from 'vitest';
 import { multiply, matrix, type Matrix } from 'mathjs';
 import { solveWithStock, type StockView } from '../../../src/lib/server/solver/solve';
-import { solveRequestSchema } from '../../../src/lib/solver/request';
+import { imagingRequestSchema as solveRequestSchema } from '../../../src/lib/solver/request';
 import { buildElementSnapshot, type CandidatePart } from '../../../src/lib/server/solver/elements';
 import { refractiveIndex, cardinalPoints, checkPairPhysical, checkSinglePhysical } from '../../../src/lib/optics';
 import type { Solution } from '../../../src/lib/solver/types';

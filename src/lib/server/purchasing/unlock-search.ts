@@ -13,7 +13,7 @@ import * as solver from '$lib/server/solver/service';
 import { stockView } from '$lib/server/solver/load-stock';
 import { getSetup, type SetupView } from '$lib/server/solver/setups';
 import { totalsFor } from '$lib/server/stock/availability';
-import type { Solution } from '$lib/solver/types';
+import type { AnySolution } from '$lib/solver/types';
 import { bestSinglePurchase, shortfalls, unitsNeeded, type Shortfall } from './unlocks';
 
 /** Solutions the search returns for the unlock (the solver's own upper limit). */
@@ -37,22 +37,35 @@ export interface PurchaseOffer {
 }
 
 export interface SolutionBrief {
+	/** The question the solution answers (imaging, a laser beam, or a beam expander). */
+	mode: 'imaging' | 'beam' | 'afocal';
 	rank: number;
 	skus: string[];
 	/** Part ids in the order light meets them (a part used twice appears twice). */
 	partIds: number[];
-	magnification: number;
-	/** max(axial, edge) RMS spot over the Airy radius (null: not traced). */
+	/** Imaging: the magnification (null for the beam questions). */
+	magnification: number | null;
+	/** Imaging: max(axial, edge) RMS spot over the Airy radius (null: not traced, or a beam question). */
 	ratioToAiry: number | null;
-	/** max(axial, edge) RMS spot radius at the target plane, mm (null: not traced). */
+	/** Imaging: max(axial, edge) RMS spot radius at the target plane, mm (null: not traced, or a beam question). */
 	spotRmsMm: number | null;
-	/** Airy radius at the working f-number, mm. */
-	airyRadiusMm: number;
-	/** Object plane to the first vertex, mm. */
+	/** Imaging: Airy radius at the working f-number, mm (null for the beam questions). */
+	airyRadiusMm: number | null;
+	/** Object plane (beam: z = 0; afocal: 0) to the first vertex, mm. */
 	objectDistanceMm: number;
-	/** Last vertex to the target plane, mm. */
+	/** Last vertex to the target plane (beam: the target waist; afocal: 0), mm. */
 	backDistanceMm: number;
 	vignetted: boolean;
+	/** Beam: overlap with the target beam, 0–1 (null otherwise). */
+	efficiency: number | null;
+	/** Beam: output waist 1/e² diameter and position from z = 0, mm (null otherwise). */
+	outputWaistDiameterMm: number | null;
+	outputWaistPositionMm: number | null;
+	/** Afocal: expansion and residual divergence in mrad (null otherwise, or not traced). */
+	expansion: number | null;
+	residualDivergenceMrad: number | null;
+	/** Beam and afocal: first vertex to last vertex, mm (null for imaging). */
+	lengthMm: number | null;
 }
 
 /** A part a saved setup needs more of than is available to it now. */
@@ -75,18 +88,29 @@ export interface UnlockAnswer {
 	stats: { solutionsSearched: number; elapsedMs: number };
 }
 
-const brief = (s: Solution): SolutionBrief => ({
-	rank: s.rank,
-	skus: s.elements.map((e) => e.sku),
-	partIds: s.elements.map((e) => e.partId),
-	magnification: s.magnification,
-	ratioToAiry: s.spot.ratioToAiry,
-	spotRmsMm: s.spot.axialRmsMm === null && s.spot.edgeRmsMm === null ? null : Math.max(s.spot.axialRmsMm ?? 0, s.spot.edgeRmsMm ?? 0),
-	airyRadiusMm: s.spot.airyRadiusMm,
-	objectDistanceMm: s.objectDistanceMm,
-	backDistanceMm: s.backDistanceMm,
-	vignetted: s.vignetting.axial || s.vignetting.edge
-});
+/** What the pages and the API show of a solution of any question. */
+function brief(s: AnySolution): SolutionBrief {
+	const base = { rank: s.rank, skus: s.elements.map((e) => e.sku), partIds: s.elements.map((e) => e.partId), objectDistanceMm: s.objectDistanceMm, backDistanceMm: s.backDistanceMm };
+	const none = { magnification: null, ratioToAiry: null, spotRmsMm: null, airyRadiusMm: null, efficiency: null, outputWaistDiameterMm: null, outputWaistPositionMm: null, expansion: null, residualDivergenceMrad: null, lengthMm: null };
+	if (s.mode === 'beam') {
+		const b = s.beam;
+		return { ...base, ...none, mode: 'beam', vignetted: false, efficiency: b.efficiency, outputWaistDiameterMm: b.outputWaistDiameterMm, outputWaistPositionMm: b.outputWaistPositionMm, lengthMm: b.lengthMm };
+	}
+	if (s.mode === 'afocal') {
+		const a = s.afocal;
+		return { ...base, ...none, mode: 'afocal', vignetted: false, expansion: a.expansion, residualDivergenceMrad: a.residualDivergenceMrad, lengthMm: a.lengthMm };
+	}
+	return {
+		...base,
+		...none,
+		mode: 'imaging',
+		magnification: s.magnification,
+		ratioToAiry: s.spot.ratioToAiry,
+		spotRmsMm: s.spot.axialRmsMm === null && s.spot.edgeRmsMm === null ? null : Math.max(s.spot.axialRmsMm ?? 0, s.spot.edgeRmsMm ?? 0),
+		airyRadiusMm: s.spot.airyRadiusMm,
+		vignetted: s.vignetting.axial || s.vignetting.edge
+	};
+}
 
 async function offers(db: DbOrTx, short: readonly Shortfall[]): Promise<PurchaseOffer[]> {
 	if (!short.length) return [];
@@ -112,8 +136,9 @@ export async function unlockForQuestion(db: DbOrTx, question: Record<string, unk
 	const view = await stockView(db);
 	const available = new Map(view.parts.map((p) => [p.partId, p.available]));
 	const avail = (id: number) => available.get(id) ?? 0;
-	const fromStock = res.solutions.find((s) => shortfalls(s.elements, avail).length === 0) ?? null;
-	const best = bestSinglePurchase(res.solutions, avail);
+	const solutions: readonly AnySolution[] = res.solutions;
+	const fromStock = solutions.find((s) => shortfalls(s.elements, avail).length === 0) ?? null;
+	const best = bestSinglePurchase(solutions, avail);
 	let purchase: UnlockAnswer['purchase'] = null;
 	if (best) {
 		const [offer] = await offers(db, [best.purchase]);

@@ -15,6 +15,9 @@ import path from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import type { SearchParams } from './search-kernel';
 import type { SearchMessage, SnapshotMessage, WorkerReply } from './search-worker';
+import type { ModeSearchMessage } from './mode-shard';
+import type { BeamSearchParams } from './beam-kernel';
+import type { AfocalSearchParams } from './afocal-kernel';
 
 /** What the pool needs of a snapshot. */
 export interface PoolSnapshot {
@@ -148,6 +151,54 @@ export async function searchOnPool(snapshot: PoolSnapshot, search: PoolSearch): 
 					deadline: search.deadline,
 					cancel: cancelBuffer
 				};
+				return new Promise<ShardReply>((resolve, reject) => {
+					slot.pending.set(taskId, { resolve, reject });
+					slot.worker.postMessage(msg);
+				});
+			})
+		);
+	} finally {
+		search.signal?.removeEventListener('abort', onAbort);
+	}
+}
+
+/** A beam-mode search (mode-shard.ts): the mode, its kernel's parameters and the shared fields. */
+export type PoolModeSearch = Omit<PoolSearch, 'params'> & ({ mode: 'beam'; params: BeamSearchParams } | { mode: 'afocal'; params: AfocalSearchParams });
+
+/**
+ * Runs a beam-mode search on the workers, one shard per worker, over the same snapshot cache as
+ * the imaging search; cancel and deadline work the same way.
+ */
+export async function searchModeOnPool(snapshot: PoolSnapshot, search: PoolModeSearch): Promise<ShardReply[]> {
+	const list = await pool();
+	const cancelBuffer = new SharedArrayBuffer(4);
+	const cancel = new Int32Array(cancelBuffer);
+	const onAbort = () => Atomics.store(cancel, 0, 1);
+	if (search.signal?.aborted) onAbort();
+	search.signal?.addEventListener('abort', onAbort, { once: true });
+	try {
+		return await Promise.all(
+			list.map((slot, shardIndex) => {
+				if (!slot.keys.has(snapshot.key)) {
+					const msg: SnapshotMessage = { type: 'snapshot', ...snapshot };
+					slot.worker.postMessage(msg);
+					slot.keys.add(snapshot.key);
+					if (slot.keys.size > 4) slot.keys.delete(slot.keys.values().next().value as string);
+				}
+				const taskId = nextTask++;
+				const common = {
+					type: 'mode-search' as const,
+					taskId,
+					key: snapshot.key,
+					candidates: search.candidates,
+					partUnits: search.partUnits,
+					shardIndex,
+					shardCount: list.length,
+					topK: search.topK,
+					deadline: search.deadline,
+					cancel: cancelBuffer
+				};
+				const msg: ModeSearchMessage = search.mode === 'beam' ? { ...common, mode: 'beam', params: search.params } : { ...common, mode: 'afocal', params: search.params };
 				return new Promise<ShardReply>((resolve, reject) => {
 					slot.pending.set(taskId, { resolve, reject });
 					slot.worker.postMessage(msg);

@@ -6,6 +6,7 @@
  */
 import { isMainThread, parentPort, workerData } from 'node:worker_threads';
 import { searchShard, type SearchParams } from './search-kernel';
+import { runModeShard, type ModeSearchMessage } from './mode-shard';
 
 /** URL of this module (in the built app: its own chunk). */
 export const selfUrl = import.meta.url;
@@ -53,7 +54,7 @@ export type WorkerReply =
 function startLoop(): void {
 	const port = parentPort!;
 	const snapshots = new Map<string, SnapshotMessage>();
-	port.on('message', (msg: SnapshotMessage | SearchMessage) => {
+	port.on('message', (msg: SnapshotMessage | SearchMessage | ModeSearchMessage) => {
 		if (msg.type === 'snapshot') {
 			snapshots.set(msg.key, msg);
 			// Keep the few most recent snapshots (a stock change makes old ones useless).
@@ -64,6 +65,13 @@ function startLoop(): void {
 		try {
 			const snap = snapshots.get(msg.key);
 			if (!snap) throw new Error(`snapshot ${msg.key} is not loaded in this worker`);
+			if (msg.type === 'mode-search') {
+				// The beam modes (mode-shard.ts): same snapshot, same reply.
+				const r = runModeShard(snap, msg);
+				const reply: WorkerReply = { type: 'result', taskId: msg.taskId, ...r, ms: performance.now() - t0 };
+				port.postMessage(reply, [r.records.buffer as ArrayBuffer]);
+				return;
+			}
 			const r = searchShard({
 				packed: snap.packed,
 				seidel: snap.seidel,

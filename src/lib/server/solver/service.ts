@@ -1,5 +1,5 @@
 /**
- * The solve service the routes call: validate, admit (a light concurrency cap), load the
+ * The solve service the routes call (every mode: imaging, beam, afocal): validate, admit (a light concurrency cap), load the
  * stock view (cached by stock version), search on the pool with the request's abort signal.
  *
  * Rate limit: per instance, at most MAX_PER_USER solves of one user and MAX_ACTIVE solves
@@ -10,9 +10,10 @@
 import type { DbOrTx } from '$lib/server/db';
 import { DomainError } from '$lib/server/api/http';
 import { solveRequestSchema } from '$lib/solver/request';
-import type { SolveResponse } from '$lib/solver/types';
+import type { AnySolveResponse } from '$lib/solver/types';
 import { stockView } from './load-stock';
 import { solveWithStock } from './solve';
+import { solveBeamWithStock, solveAfocalWithStock } from './beam-solve';
 
 export const MAX_PER_USER = 2;
 export const MAX_ACTIVE = 6;
@@ -21,7 +22,7 @@ const active = new Map<number, number>();
 let total = 0;
 
 /** Validates `body` and solves it for `user`; aborting `signal` cancels the search. */
-export async function solve(db: DbOrTx, body: unknown, user: { id: number }, signal?: AbortSignal): Promise<SolveResponse> {
+export async function solve(db: DbOrTx, body: unknown, user: { id: number }, signal?: AbortSignal): Promise<AnySolveResponse> {
 	const req = solveRequestSchema.parse(body);
 	const mine = active.get(user.id) ?? 0;
 	if (mine >= MAX_PER_USER || total >= MAX_ACTIVE) {
@@ -31,6 +32,8 @@ export async function solve(db: DbOrTx, body: unknown, user: { id: number }, sig
 	total++;
 	try {
 		const stock = await stockView(db);
+		if (req.mode === 'beam') return await solveBeamWithStock(stock, req, { signal });
+		if (req.mode === 'afocal') return await solveAfocalWithStock(stock, req, { signal });
 		return await solveWithStock(stock, req, { signal });
 	} finally {
 		total--;

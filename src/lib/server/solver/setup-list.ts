@@ -20,8 +20,15 @@ export interface SavedSetupRow {
 	createdAt: string;
 	/** SKUs in the order light meets them. */
 	skus: string[];
+	/** The question: imaging (also setups saved before the beam modes), beam or afocal. */
+	mode: 'imaging' | 'beam' | 'afocal';
 	trackMm: number | null;
 	magnification: number | null;
+	/** Beam: where the target waist lies from z = 0, mm, and the wavelength, nm. */
+	targetWaistPositionMm: number | null;
+	wavelengthNm: number | null;
+	/** Afocal: the expansion asked for. */
+	expansion: number | null;
 	/** Active, unexpired reservations made for this setup; null when none. */
 	reserved: { units: number; partsNeeded: number; until: string } | null;
 }
@@ -75,7 +82,11 @@ export async function listSavedSetups(db: DbOrTx, query: SetupListQuery): Promis
 				skus: sql<string>`JSON_EXTRACT(${setups.solution}, '$.elements[*].sku')`,
 				partsNeeded: sql<number>`JSON_LENGTH(${setups.solution}, '$.elements')`,
 				trackMm: sql<string | null>`JSON_VALUE(${setups.query}, '$.trackMm')`,
-				magnification: sql<string | null>`JSON_VALUE(${setups.query}, '$.magnification')`
+				magnification: sql<string | null>`JSON_VALUE(${setups.query}, '$.magnification')`,
+				mode: sql<string | null>`JSON_VALUE(${setups.query}, '$.mode')`,
+				targetWaistPositionMm: sql<string | null>`JSON_VALUE(${setups.query}, '$.target.waistPositionMm')`,
+				wavelengthNm: sql<string | null>`JSON_VALUE(${setups.query}, '$.wavelengthNm')`,
+				expansion: sql<string | null>`JSON_VALUE(${setups.query}, '$.expansion')`
 			})
 			.from(setups)
 			.innerJoin(users, eq(users.id, setups.userId))
@@ -111,6 +122,10 @@ export async function listSavedSetups(db: DbOrTx, query: SetupListQuery): Promis
 			skus: stringList(r.skus),
 			trackMm: numberOrNull(r.trackMm),
 			magnification: numberOrNull(r.magnification),
+			mode: r.mode === 'beam' || r.mode === 'afocal' ? r.mode : 'imaging',
+			targetWaistPositionMm: numberOrNull(r.targetWaistPositionMm),
+			wavelengthNm: numberOrNull(r.wavelengthNm),
+			expansion: numberOrNull(r.expansion),
 			reserved: h ? { units: Number(h.units), partsNeeded: Number(r.partsNeeded), until: h.until.toISOString() } : null
 		};
 	});

@@ -1,5 +1,5 @@
 /**
- * Setups: a solver question saved with the solution chosen, for a project. The server never
+ * Setups: a solver question (any mode: imaging, beam, afocal) saved with the solution chosen, for a project. The server never
  * stores a solution a client sends: it takes the choice (which parts, which way round, where)
  * and re-evaluates it from the catalogue (matrix check, real rays, tolerance) before saving.
  * Reserving a setup reserves all its parts in one transaction (stock's `reserve`).
@@ -12,8 +12,10 @@ import { inTransaction } from '$lib/server/db/transaction';
 import { setups, projects, users, reservations } from '$lib/server/db/schema';
 import { DomainError } from '$lib/server/api/http';
 import { reserve, reservationRows } from '$lib/server/stock/reservations';
-import { solveRequestSchema, type ParsedSolveRequest } from '$lib/solver/request';
-import type { Solution } from '$lib/solver/types';
+import { solveRequestSchema, type ParsedAfocalRequest, type ParsedBeamRequest, type ParsedImagingRequest, type ParsedSolveRequest } from '$lib/solver/request';
+import type { AfocalSolution, AnySolution, BeamSolution, Solution } from '$lib/solver/types';
+import { afocalGapMm } from '$lib/optics';
+import { evaluateBeam, evaluateAfocal } from './beam-evaluate';
 import { buildElementSnapshot } from './elements';
 import { evaluatePlacement } from './evaluate';
 import { candidatePartsById } from './load-stock';
@@ -48,8 +50,12 @@ export const reserveInputSchema = z
 	})
 	.strict();
 
-/** The choice of a solution (what a client sends back to save it). */
-export function choiceOf(s: Solution): Choice {
+/**
+ * The choice of a solution (what a client sends back to save it). Mode beam: objectDistanceMm is
+ * the first vertex from z = 0 and backDistanceMm the last vertex to the target waist; mode afocal:
+ * both 0 and the one gap.
+ */
+export function choiceOf(s: AnySolution): Choice {
 	return {
 		elements: s.elements.map((e) => ({ partId: e.partId, reversed: e.reversed })),
 		objectDistanceMm: s.objectDistanceMm,
@@ -58,8 +64,69 @@ export function choiceOf(s: Solution): Choice {
 	};
 }
 
-/** Re-evaluates a choice from the catalogue; 400 when it does not image as the question asks. */
-export async function evaluateChoice(db: DbOrTx, query: ParsedSolveRequest, choice: Choice): Promise<Solution> {
+const notAnswer = (message: string, field = 'choice') => new DomainError(400, 'invalid-input', message, { [field]: message });
+
+/** The chosen parts as oriented elements at the question's wavelength; 400 when a part is unknown or cannot be built. */
+async function pickElements(db: DbOrTx, wavelengthNm: number, choice: Choice) {
+	const byId = await candidatePartsById(db, choice.elements.map((e) => e.partId));
+	const list = [...new Set(choice.elements.map((e) => e.partId))].map((id) => {
+		const p = byId.get(id);
+		if (!p) throw new DomainError(400, 'invalid-input', `Part ${id} is not in the catalogue (or archived).`, { choice: `Unknown part ${id}.` });
+		return p;
+	});
+	const snap = buildElementSnapshot(list, wavelengthNm);
+	if (snap.skipped.length) throw notAnswer(`${snap.skipped[0].sku}: ${snap.skipped[0].reason}`);
+	return choice.elements.map((c) => {
+		const pi = snap.parts.findIndex((p) => p.partId === c.partId);
+		let e = -1;
+		for (let k = 0; k < snap.elements.length; k++) if (snap.partIndex[k] === pi && (snap.reversed[k] === 1) === c.reversed) e = k;
+		if (e < 0 && snap.symmetricPart[pi]) e = snap.partIndex.indexOf(pi);
+		return { part: snap.parts[pi], element: snap.elements[e], symmetric: snap.symmetricPart[pi] };
+	});
+}
+
+/** Re-evaluates a mode-beam choice: it must fit the bench, clear the beam and reach the efficiency asked. */
+async function evaluateBeamChoice(db: DbOrTx, query: ParsedBeamRequest, choice: Choice): Promise<BeamSolution> {
+	if (choice.elements.length > query.maxElements) throw notAnswer(`The question allows ${query.maxElements} part(s).`);
+	const picked = await pickElements(db, query.wavelengthNm, choice);
+	const end = choice.objectDistanceMm + choice.gapsMm.reduce((a, g) => a + g, 0) + picked.reduce((a, p) => a + p.element.thicknessMm, 0) + choice.backDistanceMm;
+	if (Math.abs(end - query.target.waistPositionMm) > 1e-6 * Math.max(1, Math.abs(query.target.waistPositionMm))) throw notAnswer('Positions and thicknesses must add up to the target waist position.');
+	if (choice.objectDistanceMm < -1e-9) throw notAnswer('Every part lies at z ≥ 0.');
+	if (choice.gapsMm.some((g) => g < query.minGapMm - 1e-9)) throw notAnswer(`The gap must be at least ${query.minGapMm} mm.`);
+	if (choice.backDistanceMm < query.minWorkingDistanceMm - 1e-9) throw notAnswer(`The last part must end at least ${query.minWorkingDistanceMm} mm before the target waist.`);
+	const s = evaluateBeam(query, picked.map((p) => p.part), picked.map((p) => p.element), choice.objectDistanceMm, choice.gapsMm, picked.map((p) => p.symmetric));
+	if (s.beam.minClearance < query.minClearance * (1 - 1e-9)) throw notAnswer(`A clear aperture is only ${s.beam.minClearance.toFixed(2)}× the beam there (asked: ${query.minClearance}×).`);
+	if (s.beam.efficiency < query.minEfficiency) throw notAnswer(`This placement reaches ${(100 * s.beam.efficiency).toFixed(1)} % efficiency (asked: ${(100 * query.minEfficiency).toFixed(0)} %).`);
+	return { rank: 1, ...s };
+}
+
+/** Re-evaluates a mode-afocal choice: the gap must be the afocal one at the wavelength, and expansion, length and focus as asked. */
+async function evaluateAfocalChoice(db: DbOrTx, query: ParsedAfocalRequest, choice: Choice): Promise<AfocalSolution> {
+	if (choice.elements.length !== 2) throw notAnswer('An expander has two parts.');
+	const picked = await pickElements(db, query.wavelengthNm, choice);
+	const [m1, m2] = [picked[0].element.matrix, picked[1].element.matrix];
+	const g = afocalGapMm(m1[0], m1[1], m1[2], m1[3], m2[0], m2[1], m2[2], m2[3]);
+	if (g === null || Math.abs(g - choice.gapsMm[0]) > 1e-6 * Math.max(1, Math.abs(g))) throw notAnswer('The gap is not the afocal spacing of these parts at this wavelength.');
+	if (g < query.minGapMm - 1e-9) throw notAnswer(`The gap must be at least ${query.minGapMm} mm.`);
+	const ev = evaluateAfocal(query, picked.map((p) => p.part), picked.map((p) => p.element), g, picked.map((p) => p.symmetric));
+	const a = ev.solution.afocal;
+	if (ev.clipped) throw notAnswer('The input beam is clipped by a clear aperture of this pair.');
+	if (Math.abs(a.expansion / query.expansion - 1) > query.expansionTolerance + 1e-12) throw notAnswer(`This pair expands ${a.expansion.toFixed(3)}×, outside ${query.expansion}× ±${(100 * query.expansionTolerance).toFixed(1)} %.`);
+	if (a.lengthMm > query.maxLengthMm + 1e-9) throw notAnswer(`This pair is ${a.lengthMm.toFixed(1)} mm long (at most ${query.maxLengthMm} mm asked).`);
+	if (query.intermediateFocus !== undefined && (a.intermediateFocusMm !== null) !== query.intermediateFocus) throw notAnswer('This pair does not have the arrangement asked (focus between the parts or not).');
+	if (a.minClearance < query.minClearance * (1 - 1e-9)) throw notAnswer(`A clear aperture is only ${a.minClearance.toFixed(2)}× the beam there (asked: ${query.minClearance}×).`);
+	return { rank: 1, ...ev.solution };
+}
+
+/** Re-evaluates a choice from the catalogue for its question's mode; 400 when it is not an answer to it. */
+export async function evaluateChoice(db: DbOrTx, query: ParsedSolveRequest, choice: Choice): Promise<AnySolution> {
+	if (query.mode === 'beam') return evaluateBeamChoice(db, query, choice);
+	if (query.mode === 'afocal') return evaluateAfocalChoice(db, query, choice);
+	return evaluateImagingChoice(db, query, choice);
+}
+
+/** Re-evaluates an imaging choice; 400 when it does not image as the question asks. */
+async function evaluateImagingChoice(db: DbOrTx, query: ParsedImagingRequest, choice: Choice): Promise<Solution> {
 	const byId = await candidatePartsById(db, choice.elements.map((e) => e.partId));
 	const list = [...new Set(choice.elements.map((e) => e.partId))].map((id) => {
 		const p = byId.get(id);
@@ -132,8 +199,9 @@ export interface SetupView {
 	projectId: number | null;
 	projectCode: string | null;
 	projectName: string | null;
+	/** The question (any mode; setups saved before the beam modes are imaging). */
 	query: ParsedSolveRequest;
-	solution: Solution;
+	solution: AnySolution;
 	createdAt: string;
 	reservations: Awaited<ReturnType<typeof reservationRows>>;
 }
@@ -162,7 +230,7 @@ export async function getSetup(db: DbOrTx, id: number): Promise<SetupView> {
 		projectCode: row.projectCode,
 		projectName: row.projectName,
 		query: row.s.query as ParsedSolveRequest,
-		solution: row.s.solution as Solution,
+		solution: row.s.solution as AnySolution,
 		createdAt: row.s.createdAt.toISOString(),
 		reservations: rows.filter((r) => r.state === 'active')
 	};

@@ -6,7 +6,7 @@
  */
 import { DomainError } from '../api/http';
 import { ROOT_DOUBLE, ROOT_FAMILY } from '../../optics/imaging';
-import type { ParsedSolveRequest } from '../../solver/request';
+import type { ParsedImagingRequest } from '../../solver/request';
 import type { Solution, SolveResponse } from '../../solver/types';
 import { buildElementSnapshot, wavelengthCoveredByAnyMaterial, type CandidatePart, type ElementSnapshot } from './elements';
 import {
@@ -60,7 +60,7 @@ export interface SolveOptions {
 }
 
 /** Which elements of the snapshot the question allows, and how many units each part may use. */
-function candidateFilter(snap: ElementSnapshot, req: ParsedSolveRequest): { candidates: Int32Array; partUnits: Int32Array; parts: number } {
+export function candidateFilter(snap: ElementSnapshot, req: Pick<ParsedImagingRequest, 'partIds' | 'locationIds' | 'availableOnly'>): { candidates: Int32Array; partUnits: Int32Array; parts: number } {
 	const ids = req.partIds ? new Set(req.partIds) : null;
 	const locs = req.locationIds ? new Set(req.locationIds) : null;
 	const allowed = snap.parts.map((p) => {
@@ -75,7 +75,7 @@ function candidateFilter(snap: ElementSnapshot, req: ParsedSolveRequest): { cand
 }
 
 /** Solves the imaging question against `stock` (see the module comment). */
-export async function solveWithStock(stock: StockView, req: ParsedSolveRequest, options: SolveOptions = {}): Promise<SolveResponse> {
+export async function solveWithStock(stock: StockView, req: ParsedImagingRequest, options: SolveOptions = {}): Promise<SolveResponse> {
 	const t0 = performance.now();
 	if (!wavelengthCoveredByAnyMaterial(stock.parts, req.wavelengthNm)) {
 		throw new DomainError(400, 'invalid-input', 'Some fields are not valid.', {

@@ -98,13 +98,20 @@ const brief = {
 		rank: int,
 		skus: { type: 'array', items: { type: 'string' } },
 		partIds: { type: 'array', items: int, description: 'in the order light meets them' },
-		magnification: { type: 'number' },
-		ratioToAiry: { type: ['number', 'null'], description: 'max(axial, edge) RMS spot over the Airy radius' },
+		mode: { type: 'string', enum: ['imaging', 'beam', 'afocal'] },
+		magnification: { type: ['number', 'null'], description: 'imaging only' },
+		ratioToAiry: { type: ['number', 'null'], description: 'imaging: max(axial, edge) RMS spot over the Airy radius' },
 		spotRmsMm: { type: ['number', 'null'] },
-		airyRadiusMm: { type: 'number' },
+		airyRadiusMm: { type: ['number', 'null'] },
 		objectDistanceMm: { type: 'number' },
 		backDistanceMm: { type: 'number' },
-		vignetted: { type: 'boolean' }
+		vignetted: { type: 'boolean' },
+		efficiency: { type: ['number', 'null'], description: 'beam: overlap with the target beam, 0–1' },
+		outputWaistDiameterMm: { type: ['number', 'null'], description: 'beam' },
+		outputWaistPositionMm: { type: ['number', 'null'], description: 'beam, from z = 0' },
+		expansion: { type: ['number', 'null'], description: 'afocal' },
+		residualDivergenceMrad: { type: ['number', 'null'], description: 'afocal' },
+		lengthMm: { type: ['number', 'null'], description: 'beam and afocal: first vertex to last vertex' }
 	}
 };
 const shortPart = {

@@ -1,0 +1,60 @@
+/**
+ * The beam modes' shard search as the worker runs it: one message type for both modes (`beam`,
+ * `afocal`), dispatched to their kernels over the same element snapshot the imaging search uses.
+ * Relative imports only (the worker's chunk runs alone).
+ */
+import { beamShard, type BeamSearchParams } from './beam-kernel';
+import { afocalShard, type AfocalSearchParams } from './afocal-kernel';
+
+export type ModeSearchMessage = {
+	type: 'mode-search';
+	taskId: number;
+	key: string;
+	candidates: Int32Array;
+	partUnits: Int32Array;
+	shardIndex: number;
+	shardCount: number;
+	topK: number;
+	deadline: number;
+	cancel: SharedArrayBuffer;
+} & ({ mode: 'beam'; params: BeamSearchParams } | { mode: 'afocal'; params: AfocalSearchParams });
+
+/** A shard task of either mode (the message without its envelope). */
+export type ModeShardTask = {
+	candidates: Int32Array;
+	partUnits: Int32Array;
+	shardIndex: number;
+	shardCount: number;
+	topK: number;
+	deadline: number;
+	cancel?: SharedArrayBuffer | null;
+} & ({ mode: 'beam'; params: BeamSearchParams } | { mode: 'afocal'; params: AfocalSearchParams });
+
+/** What a shard of either mode returns (the imaging shard's shape). */
+export interface ModeShardResult {
+	records: Float64Array;
+	count: number;
+	configurationsEvaluated: number;
+	rootsFound: number;
+	physicalRoots: number;
+	truncated: boolean;
+}
+
+/** Runs one shard of a beam-mode search on `snap` (packed elements and part index). */
+export function runModeShard(
+	snap: { packed: Float64Array; partIndex: Int32Array },
+	msg: ModeShardTask
+): ModeShardResult {
+	const common = {
+		packed: snap.packed,
+		partIndex: snap.partIndex,
+		partUnits: msg.partUnits,
+		candidates: msg.candidates,
+		shardIndex: msg.shardIndex,
+		shardCount: msg.shardCount,
+		deadline: msg.deadline,
+		cancel: msg.cancel ? new Int32Array(msg.cancel) : null
+	};
+	if (msg.mode === 'beam') return beamShard({ ...common, params: msg.params, topK: msg.topK });
+	return afocalShard({ ...common, params: msg.params });
+}
