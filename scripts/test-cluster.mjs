@@ -118,7 +118,7 @@ try {
 	try {
 		await run(
 			'npx',
-			['vitest', 'run', '--config', 'vitest.cluster.config.ts', '--reporter=default', '--reporter=json', `--outputFile.json=${report}`, '--passWithNoTests', ...filters],
+			['vitest', 'run', '--config', 'tests/cluster/vitest.config.ts', '--reporter=default', '--reporter=json', `--outputFile.json=${report}`, '--passWithNoTests', ...filters],
 			{ cwd: ROOT, env: testEnv }
 		);
 	} catch {
