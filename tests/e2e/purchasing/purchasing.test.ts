@@ -23,7 +23,7 @@ describe('purchasing in Chromium', () => {
 		locationId = loc.id;
 		({ id: partId } = await parts.createPart(
 			db,
-			{ sku, name: 'Browser test biconvex 25 mm', kind: 'other', diameterMm: 25, eflMm: 75, reorderPoint: 2, reorderQuantity: 4, supplier: 'Quillmere Glassworks', unitPrice: 2950, leadTimeDays: 9 },
+			{ sku, name: 'Browser test biconvex 25 mm', kind: 'other', diameterMm: 25, eflMm: 75, reorderPoint: 2, reorderQuantity: 4, supplier: 'Quillmere Glassworks', unitPrice: 29.5, leadTimeDays: 9 },
 			{ id: stockroom.id }
 		));
 		await ops.receive(db, { partId, quantity: 1, locationId: loc.id }, { id: stockroom.id }); // 1 ≤ reorder point 2: flagged

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { formatDate, formatDateTime, glassesOf, kindLabel, KIND_LABELS } from '$lib/format';
+import { formatDate, formatDateTime, glassesOf, kindLabel, KIND_LABELS, stockWords } from '$lib/format';
 import { PART_KINDS } from '$lib/server/db/schema';
 
 describe('one date format for the pages', () => {
@@ -68,5 +68,13 @@ describe('pages write dates and headers one way (issue 16)', async () => {
 		for (const { p, text } of pages) {
 			for (const m of text.matchAll(/<th[^>]*>[\s\S]*?<\/th>/g)) expect(m[0], p).not.toMatch(/\buppercase\b/);
 		}
+	});
+});
+
+describe('stock by condition in one wording (issue 16)', () => {
+	it('names usable always and the other conditions when there are any', () => {
+		expect(stockWords({ usable: 3, quarantine: 1 })).toBe('3 usable · 1 in quarantine');
+		expect(stockWords({ usable: 0, quarantine: 1, damaged: 2 })).toBe('0 usable · 1 in quarantine · 2 damaged');
+		expect(stockWords({ usable: 4 })).toBe('4 usable');
 	});
 });

@@ -82,7 +82,7 @@ export const actions = {
 		const f = await event.request.formData();
 		const values = { quantity: text(f.get('quantity')), unitPrice: text(f.get('unitPrice')) };
 		const price = values.unitPrice.trim();
-		const cents = /^\d+(\.\d{1,2})?$/.test(price) ? Math.round(Number(price) * 100) : price === '' ? null : NaN;
-		return change(event, user, 'edit', { quantity: int(f.get('quantity')), unitPrice: cents }, values);
+		const major = /^\d+(\.\d{1,2})?$/.test(price) ? Number(price) : price === '' ? null : NaN;
+		return change(event, user, 'edit', { quantity: int(f.get('quantity')), unitPrice: major }, values);
 	}
 } satisfies Actions;
