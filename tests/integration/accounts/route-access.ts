@@ -107,6 +107,8 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	'/api/v1/stock/move': { POST: STOCK_EDITORS },
 	'/api/v1/stock/adjust': { POST: STOCK_EDITORS },
 	'/api/v1/stock-takes': { POST: STOCK_EDITORS },
+	'/labels': { GET: STOCK_EDITORS },
+	'/scan': { GET: STOCK_HANDLERS },
 	'/stock-take': { GET: STOCK_EDITORS, actions: { check: STOCK_EDITORS, commit: STOCK_EDITORS } },
 	'/stock-take/[location]': { url: '/stock-take/99999999', GET: STOCK_EDITORS, actions: { check: STOCK_EDITORS, commit: STOCK_EDITORS } },
 	'/api/v1/stock/scrap': { POST: STOCK_EDITORS },
