@@ -170,8 +170,8 @@ export const importsPaths: OpenApiPaths = {
 	},
 	'/datasheets/{id}': {
 		get: {
-			summary: 'Download a datasheet (streamed, as an attachment)',
-			parameters: [idParam('Datasheet id')],
+			summary: 'Download a datasheet (streamed, as an attachment), or view it inline with ?view=inline (browser viewer, sandbox CSP)',
+			parameters: [idParam('Datasheet id'), { name: 'view', in: 'query', required: false, schema: { type: 'string', enum: ['inline'] } }],
 			responses: { '200': { description: 'The bytes', content: { 'application/octet-stream': { schema: { type: 'string', format: 'binary' } } } }, ...errors(400, 401, 404, 503) }
 		},
 		delete: { summary: 'Delete a datasheet and its stored file', parameters: [idParam('Datasheet id')], responses: { '204': { description: 'Deleted' }, ...errors(400, 401, 403, 404, 503) } }
