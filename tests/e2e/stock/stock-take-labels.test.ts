@@ -139,8 +139,10 @@ describe('stock take, labels and scan in Chromium', () => {
 			const { page } = b;
 			await page.setViewportSize({ width: 390, height: 844 });
 			await signIn(page, 'stockroom@tarnwell.example');
-			await page.goto(appUrl('/scan'));
-			await page.click('[data-testid=scan-start]');
+			const res = await page.goto(appUrl('/scan'));
+			expect(res?.status(), (await page.locator('body').innerText()).slice(0, 400)).toBe(200);
+			expect(res?.headers()['permissions-policy']).toContain('camera=(self)');
+			await page.click('[data-testid=scan-start]', { timeout: 10_000 });
 			await page.waitForSelector('[data-testid=scan-result]', { timeout: 20_000 });
 			await expect(page.locator('[data-testid=scan-result]').innerText()).resolves.toContain(tag);
 			expect(await page.locator('[data-testid=scan-result]').getAttribute('data-kind')).toBe('part');
