@@ -111,29 +111,34 @@ function kindsMatching(text: string): (typeof PART_KINDS)[number][] {
 /**
  * The condition of a text query: every word must match somewhere (in any order). A text word matches
  * when the SKU, name, supplier part number or coating contains it, the material starts with it, or the
- * kind's name holds it. A number matches the focal length (the nominal EFL or the EFL at the lab's
- * wavelength within 1 %, either sign unless the word has one), the diameter, or a piece of the SKU or
- * supplier part number ("04" in "TW-A1D2-04"). So "doublet 100" finds the 100 mm doublets and
- * "100 doublet" the same.
+ * kind's name holds it. A number matches the focal length (the stored EFL at the lab's wavelength within
+ * 1 %, either sign unless the word has one) or the diameter. So "doublet 100" finds the 100 mm doublets
+ * and "100 doublet" the same. A single code-like word is a SKU / supplier part number prefix.
  */
 function textCondition(q: string): SQL | undefined {
 	const terms = textTerms(q);
 	if (!terms.length) return sql`false`;
+	// One code-like word ("TW-A1D2", "BK-0420": letters, a dash, digits) is a stock or supplier number:
+	// read as a prefix of the SKU or supplier part number, which their indexes answer.
+	if (terms.length === 1 && terms[0].number === null && /[a-z]/.test(terms[0].text) && /\d/.test(terms[0].text) && terms[0].text.includes('-')) {
+		const prefix = `${escapeLike(terms[0].text)}%`;
+		return or(like(parts.sku, prefix), like(parts.supplierPartNumber, prefix));
+	}
 	return and(
 		...terms.map((t) => {
-			const pattern = `%${escapeLike(t.text)}%`;
 			if (t.number !== null) {
-				const n = t.number;
-				// a number is a whole dash-separated piece of a code ("04" in "TW-A1D2-04"; not "50" in "KM-1050")
-				const w = escapeLike(t.text);
-				const pieces = (col: typeof parts.sku | typeof parts.supplierPartNumber) => or(eq(col, t.text), like(col, `%-${w}`), like(col, `${w}-%`), like(col, `%-${w}-%`));
-				const codes = t.signed ? undefined : or(pieces(parts.sku), pieces(parts.supplierPartNumber));
-				const efl = (col: typeof parts.eflMm | typeof parts.paraxialEflMm, tol: number) =>
-					t.signed
-						? sql`${col} between ${n - Math.abs(n) * tol} and ${n + Math.abs(n) * tol}`
-						: sql`abs(${col}) between ${n * (1 - tol)} and ${n * (1 + tol)}`;
-				return or(efl(parts.eflMm, 0.005), efl(parts.paraxialEflMm, 0.01), eq(parts.diameterMm, Math.abs(n)), codes);
+				// The stored EFL (every part has one: prescription, measurement or datasheet) within 1 %, and the
+				// diameter: index ranges (parts_efl_idx, parts_diameter_idx), so a number narrows the query fast.
+				const n = Math.abs(t.number);
+				const [lo, hi] = [n * 0.99, n * 1.01];
+				const efl = t.signed
+					? t.number < 0
+						? sql`${parts.paraxialEflMm} between ${-hi} and ${-lo}`
+						: sql`${parts.paraxialEflMm} between ${lo} and ${hi}`
+					: or(sql`${parts.paraxialEflMm} between ${lo} and ${hi}`, sql`${parts.paraxialEflMm} between ${-hi} and ${-lo}`);
+				return t.signed ? efl : or(efl, eq(parts.diameterMm, n));
 			}
+			const pattern = `%${escapeLike(t.text)}%`;
 			const kinds = kindsMatching(t.text);
 			return or(
 				like(parts.sku, pattern),
