@@ -3,7 +3,7 @@
  * The matching itself runs in SQL and is tested on the demo data in tests/integration/catalogue/search.test.ts.
  */
 import { describe, expect, it } from 'vitest';
-import { textTerms } from '../../../src/lib/server/catalogue/list';
+import { codePrefilter, textTerms } from '../../../src/lib/server/catalogue/list';
 
 describe('textTerms', () => {
 	it('splits at spaces and reads lengths as numbers, with or without sign, unit or prefix', () => {
@@ -25,5 +25,14 @@ describe('textTerms', () => {
 	it('drops words that mean nothing alone and caps the word count', () => {
 		expect(textTerms(' f = mm ')).toEqual([]);
 		expect(textTerms('a b c d e f g h i j k').length).toBe(8);
+	});
+});
+
+describe('codePrefilter (FULLTEXT terms for a SKU prefix)', () => {
+	it('uses the pieces after the first, of indexable length, not stopword prefixes', () => {
+		expect(codePrefilter('BK-0420')).toBe('+0420*');
+		expect(codePrefilter('tw-a1d2-04')).toBe('+a1d2*'); // "04" is shorter than the index keeps
+		expect(codePrefilter('TW-A1')).toBeNull();
+		expect(codePrefilter('KM-wit-123')).toBe('+123*'); // "wit" begins the stopword "with"
 	});
 });

@@ -103,6 +103,22 @@ export function textTerms(q: string): TextTerm[] {
 	return out.slice(0, 8);
 }
 
+/**
+ * InnoDB's built-in full-text stopwords (MariaDB's default list) and token sizes: a word that is a prefix
+ * of a stopword, or shorter than 3 characters, cannot be a `word*` term.
+ */
+const FT_STOPWORDS = 'a about an are as at be by com de en for from how i in is it la of on or that the this to was what when where who will with und www'.split(' ');
+
+/**
+ * FULLTEXT boolean terms every part whose SKU or supplier part number starts with `code` has: the pieces
+ * after the first (split where InnoDB splits words) each begin a word there. Null when none is usable.
+ */
+export function codePrefilter(code: string): string | null {
+	const words = code.split(/[\s\-./,:;()]+/).slice(1);
+	const usable = words.filter((w) => /^[A-Za-z0-9]+$/.test(w) && w.length >= 3 && w.length <= 84 && !FT_STOPWORDS.some((s) => s.startsWith(w.toLowerCase())));
+	return usable.length ? [...new Set(usable)].map((w) => `+${w}*`).join(' ') : null;
+}
+
 /** Part kinds whose code or label holds the text ("doublet" → achromatic-doublet, "convex" → plano-convex, biconvex). */
 function kindsMatching(text: string): (typeof PART_KINDS)[number][] {
 	return PART_KINDS.filter((k) => k.includes(text) || kindLabel(k).toLowerCase().includes(text));
@@ -122,7 +138,12 @@ function textCondition(q: string): SQL | undefined {
 	// read as a prefix of the SKU or supplier part number, which their indexes answer.
 	if (terms.length === 1 && terms[0].number === null && /[a-z]/.test(terms[0].text) && /\d/.test(terms[0].text) && terms[0].text.includes('-')) {
 		const prefix = `${escapeLike(terms[0].text)}%`;
-		return or(like(parts.sku, prefix), like(parts.supplierPartNumber, prefix));
+		// The FULLTEXT index narrows first: every later piece of the code begins a word of the SKU or part number.
+		const ft = codePrefilter(terms[0].text);
+		return and(
+			ft ? sql`match(${parts.sku}, ${parts.name}, ${parts.supplierPartNumber}) against (${ft} in boolean mode)` : undefined,
+			or(like(parts.sku, prefix), like(parts.supplierPartNumber, prefix))
+		);
 	}
 	return and(
 		...terms.map((t) => {
