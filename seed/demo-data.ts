@@ -202,13 +202,42 @@ function scaleForEfl(f: number, shape: (k: number) => DemoSurface[]): number {
 	return k;
 }
 
-const COATINGS = ['uncoated', 'AR 400-700 nm', 'AR 650-1050 nm', 'AR 1050-1700 nm'];
+/**
+ * The lab's own coating bands, named after what it uses them for (invented for the demo, no supplier's
+ * standard ranges): the visible relay band, the near-infrared band of the scanner's lasers, and the
+ * telecom band of the fibre bench.
+ */
+const COATINGS = ['uncoated', 'AR 430–670 nm (visible relay)', 'AR 760–980 nm (scanner NIR)', 'AR 1260–1620 nm (fibre bench)'];
+
+/**
+ * Which drawer of the demo stockroom holds a part (the cabinets of `DEMO_LOCATIONS`).
+ */
+export function drawerFor(p: Pick<DemoPart, 'kind' | 'diameterMm' | 'surfaces'>): string {
+	const m = p.surfaces[0]?.materialCode;
+	if (p.kind === 'other') return 'B2-D1';
+	if (m === 'fused-silica' || m === 'caf2') return 'B1-D3';
+	if (p.kind === 'plano-convex') return p.diameterMm < 20 ? 'A1-D1' : p.diameterMm < 40 ? 'A1-D2' : 'A1-D3';
+	if (p.kind === 'biconvex') return 'A2-D1';
+	if (p.kind === 'plano-concave' || p.kind === 'biconcave') return 'A2-D2';
+	if (p.kind.endsWith('meniscus')) return 'A2-D3';
+	return p.diameterMm < 20 ? 'B1-D1' : 'B1-D2';
+}
+
+/**
+ * The lab's own stock numbers: internal bin codes. "TW" (Tarnwell), the drawer without its dash, then the
+ * slot in that drawer counted from the front (`TW-A1D2-07`: cabinet A1, drawer 2, slot 7). They say where
+ * a part lives, not what it is: the catalogue's columns say that.
+ */
+export function binCode(drawer: string, slot: number): string {
+	return `TW-${drawer.replace('-', '')}-${String(slot).padStart(2, '0')}`;
+}
 
 /** The demo catalogue: 90 invented parts with computed prescriptions. */
 export function demoParts(): DemoPart[] {
 	const out: DemoPart[] = [];
 	const rnd = prng(20261202);
 	let pn = 1000;
+	const slots = new Map<string, number>();
 	const add = (
 		kind: DemoPart['kind'],
 		label: string,
@@ -218,25 +247,15 @@ export function demoParts(): DemoPart[] {
 		extra: Partial<DemoPart> = {}
 	) => {
 		const supplier = DEMO_SUPPLIERS[out.length % DEMO_SUPPLIERS.length];
-		const dTag = d < 20 ? '12' : d < 40 ? '25' : '50';
-		const fTag = String(Math.round(Math.abs(f))).padStart(3, '0');
-		const sign = f < 0 ? 'N' : '';
-		const kindTag: Record<DemoPart['kind'], string> = {
-			'plano-convex': 'PX',
-			biconvex: 'BX',
-			'plano-concave': 'PV',
-			biconcave: 'BV',
-			'positive-meniscus': 'MP',
-			'negative-meniscus': 'MN',
-			'achromatic-doublet': 'AD',
-			other: 'OT'
-		};
-		const matTag = extra.sku ? '' : geo.surfaces[0].materialCode === 'fused-silica' ? '-FS' : geo.surfaces[0].materialCode === 'caf2' ? '-CF' : '';
+		const drawer = drawerFor({ kind, diameterMm: d, surfaces: geo.surfaces });
+		const slot = (slots.get(drawer) ?? 0) + 1;
+		slots.set(drawer, slot);
+		const material = geo.surfaces[0]?.materialCode;
 		const basePrice = kind === 'achromatic-doublet' ? 6800 : kind.includes('meniscus') ? 3900 : 2600;
 		const sizeFactor = d < 20 ? 0.8 : d < 40 ? 1 : 2.1;
-		const matFactor = matTag === '-FS' ? 2.2 : matTag === '-CF' ? 4.5 : 1;
+		const matFactor = material === 'fused-silica' ? 2.2 : material === 'caf2' ? 4.5 : 1;
 		out.push({
-			sku: `GC-${kindTag[kind]}${dTag}-${sign}${fTag}${matTag}`,
+			sku: binCode(drawer, slot),
 			name: `${label} Ø${d} mm, f = ${f} mm`,
 			kind,
 			diameterMm: d,
@@ -281,7 +300,7 @@ export function demoParts(): DemoPart[] {
 	for (const f of [40, 50, 60, 75, 100, 125, 150, 200, 250, 300]) add('achromatic-doublet', 'Achromatic doublet', 25.4, f, doublet(25.4, f));
 	for (const f of [150, 200, 300]) add('achromatic-doublet', 'Achromatic doublet', 50.8, f, doublet(50.8, f));
 	// Two condensers known only from their datasheet numbers (no radii): a black-box model is used.
-	add('other', 'Aspheric condenser (datasheet only)', 25.4, 20, { surfaces: [], ct: 11.5, bfl: 12.3 }, { sku: 'GC-OT25-020-ASPH' });
-	add('other', 'Aspheric condenser (datasheet only)', 50.8, 40, { surfaces: [], ct: 17.0, bfl: 28.4 }, { sku: 'GC-OT50-040-ASPH' });
+	add('other', 'Aspheric condenser (datasheet only)', 25.4, 20, { surfaces: [], ct: 11.5, bfl: 12.3 });
+	add('other', 'Aspheric condenser (datasheet only)', 50.8, 40, { surfaces: [], ct: 17.0, bfl: 28.4 });
 	return out;
 }

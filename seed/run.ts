@@ -15,6 +15,7 @@ import {
 	DEMO_SUPPLIERS,
 	DEMO_USERS,
 	demoParts,
+	drawerFor,
 	prng
 } from './demo-data';
 
@@ -55,17 +56,6 @@ export async function seedDemo(db: Db, opts: { password: string; pepper?: string
 		for (const p of DEMO_PROJECTS) {
 			await tx.insert(t.projects).values({ ...p, ownerId: userIds.get('engineer') });
 		}
-
-		const drawerFor = (p: ReturnType<typeof demoParts>[number]) => {
-			const m = p.surfaces[0]?.materialCode;
-			if (p.kind === 'other') return 'B2-D1';
-			if (m === 'fused-silica' || m === 'caf2') return 'B1-D3';
-			if (p.kind === 'plano-convex') return p.diameterMm < 20 ? 'A1-D1' : p.diameterMm < 40 ? 'A1-D2' : 'A1-D3';
-			if (p.kind === 'biconvex') return 'A2-D1';
-			if (p.kind === 'plano-concave' || p.kind === 'biconcave') return 'A2-D2';
-			if (p.kind.endsWith('meniscus')) return 'A2-D3';
-			return p.diameterMm < 20 ? 'B1-D1' : 'B1-D2';
-		};
 
 		for (const p of demoParts()) {
 			const first = p.surfaces[0]?.materialCode ?? null;

@@ -92,7 +92,8 @@ const securityHeaders: Handle = async ({ event, resolve }) => {
 		set('X-Frame-Options', 'DENY');
 		set('X-Content-Type-Options', 'nosniff');
 		set('Referrer-Policy', 'same-origin');
-		set('Permissions-Policy', 'camera=(), microphone=(), geolocation=(), payment=(), usb=()');
+		// The camera only for the label scan page, on our own origin (links to it reload the page, so the policy applies).
+		set('Permissions-Policy', `camera=${event.url.pathname === '/scan' ? '(self)' : '()'}, microphone=(), geolocation=(), payment=(), usb=()`);
 		set('Strict-Transport-Security', 'max-age=31536000; includeSubDomains');
 		if (!event.url.pathname.startsWith('/_app/immutable/')) set('Cache-Control', 'no-store');
 		// API JSON (SECURITY.md 14.4.1): the charset said, and never shown as a page if a browser is sent to it.

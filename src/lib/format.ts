@@ -55,3 +55,14 @@ export function glassesOf(surfaces: readonly { material?: string | null }[]): st
 		.filter((m): m is string => !!m)
 		.join(' + ');
 }
+
+/**
+ * Stock of a part by condition in one wording for every page: "3 usable · 1 in quarantine · 1 damaged"
+ * (usable always, the others only when there are any). Only usable units count as on hand.
+ */
+export function stockWords(c: { usable: number; quarantine?: number; damaged?: number }): string {
+	const out = [`${c.usable} usable`];
+	if (c.quarantine) out.push(`${c.quarantine} in quarantine`);
+	if (c.damaged) out.push(`${c.damaged} damaged`);
+	return out.join(' · ');
+}

@@ -62,7 +62,7 @@ try {
 	const [{ id: userId }] = await db.select({ id: schema.users.id }).from(schema.users).where(eq(schema.users.role, 'engineer')).limit(1);
 	const locationIds = (await db.select({ id: schema.locations.id }).from(schema.locations)).map((l) => l.id);
 	const GLASSES: [string, number][] = [['517642', 1.517], ['589613', 1.589], ['620364', 1.62], ['785258', 1.785], ['fused-silica', 1.4585]];
-	const COATINGS = [null, 'MgF2', 'BBAR 400-700', 'BBAR 650-1050', 'V 1064', 'uncoated'];
+	const COATINGS = [null, 'MgF2', 'AR 430–670 nm (visible relay)', 'AR 760–980 nm (scanner NIR)', 'AR 1260–1620 nm (fibre bench)', 'uncoated'];
 	const DIAMETERS = [6, 12.7, 25.4, 50.8, 75];
 	const FOCALS = [15, 20, 25, 30, 40, 50, 60, 75, 100, 125, 150, 200, 250, 300, 400, 500, 750, 1000];
 	const t0 = performance.now();

@@ -16,12 +16,12 @@ export const CHROMIUM_ARGS = [
 	'--disable-sync'
 ];
 
-/** A fresh headless Chromium with an empty profile; close it with `close()`. */
-export async function openBrowser(): Promise<{ context: BrowserContext; page: Page; close: () => Promise<void> }> {
+/** A fresh headless Chromium with an empty profile; close it with `close()`. `args`: extra Chromium flags (a fake camera). */
+export async function openBrowser(opts: { args?: string[] } = {}): Promise<{ context: BrowserContext; page: Page; close: () => Promise<void> }> {
 	const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'glasscrib-chromium-'));
 	const context = await chromium.launchPersistentContext(dir, {
 		executablePath: process.env.CHROMIUM_PATH || '/usr/bin/chromium',
-		args: CHROMIUM_ARGS,
+		args: [...CHROMIUM_ARGS, ...(opts.args ?? [])],
 		viewport: { width: 1280, height: 860 }
 	});
 	const page = context.pages()[0] ?? (await context.newPage());

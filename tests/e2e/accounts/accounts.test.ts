@@ -90,12 +90,12 @@ describe('accounts in Chromium', () => {
 		await signIn(page, 'engineer@tarnwell.example');
 		await page.goto(appUrl('/parts'));
 		await page.waitForSelector('table');
-		expect(await page.locator('main').innerText()).toContain('GC-');
+		expect(await page.locator('main').innerText()).toContain('TW-');
 		await Promise.all([page.waitForURL((u) => u.pathname === '/signin'), page.click('header button:has-text("Sign out")')]);
 		await page.goBack();
 		await page.waitForLoadState('domcontentloaded');
 		// Pages are sent with Cache-Control: no-store, so Back asks the server again, which sends to sign-in.
 		expect(new URL(page.url()).pathname).toBe('/signin');
-		expect(await page.locator('body').innerText()).not.toContain('GC-');
+		expect(await page.locator('body').innerText()).not.toContain('TW-');
 	});
 });

@@ -1,3 +1,4 @@
+import fs from 'node:fs';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { and, eq, inArray } from 'drizzle-orm';
 import type { Page } from 'playwright-core';
@@ -23,7 +24,7 @@ describe('purchasing in Chromium', () => {
 		locationId = loc.id;
 		({ id: partId } = await parts.createPart(
 			db,
-			{ sku, name: 'Browser test biconvex 25 mm', kind: 'other', diameterMm: 25, eflMm: 75, reorderPoint: 2, reorderQuantity: 4, supplier: 'Quillmere Glassworks', unitPrice: 2950, leadTimeDays: 9 },
+			{ sku, name: 'Browser test biconvex 25 mm', kind: 'other', diameterMm: 25, eflMm: 75, reorderPoint: 2, reorderQuantity: 4, supplier: 'Quillmere Glassworks', unitPrice: 29.5, leadTimeDays: 9 },
 			{ id: stockroom.id }
 		));
 		await ops.receive(db, { partId, quantity: 1, locationId: loc.id }, { id: stockroom.id }); // 1 ≤ reorder point 2: flagged
@@ -50,6 +51,21 @@ describe('purchasing in Chromium', () => {
 		await row.locator('input[type=checkbox]').check();
 		await row.locator(`#qty-${partId}`).fill('5');
 		await screenshot(page, 'reorder-board-selected');
+		// "Export selection as CSV" downloads the file and logs no console error (issue 16)
+		const consoleErrors: string[] = [];
+		const onConsole = (m: { type: () => string; text: () => string }) => {
+			if (m.type() === 'error') consoleErrors.push(m.text());
+		};
+		page.on('console', onConsole);
+		const [download] = await Promise.all([page.waitForEvent('download'), page.click('button:has-text("Export selection as CSV")')]);
+		expect(download.suggestedFilename()).toMatch(/\.csv$/);
+		const csvText = fs.readFileSync((await download.path())!, 'utf8');
+		expect(csvText).toContain(`${sku},`);
+		expect(csvText).toMatch(/,5,29\.50,EUR,/);
+		await page.waitForTimeout(300);
+		page.off('console', onConsole);
+		expect(consoleErrors).toEqual([]);
+		expect(new URL(page.url()).pathname).toBe('/reorder');
 		await Promise.all([page.waitForURL((u) => u.pathname === '/requests'), page.click('button:has-text("Create 1 request")')]);
 		const req = page.locator(`[data-testid=request-row][data-sku="${sku}"]`);
 		await expect(req.getAttribute('data-status')).resolves.toBe('requested');
@@ -62,7 +78,8 @@ describe('purchasing in Chromium', () => {
 		await page.fill('#step-ref', 'QG-20261202');
 		await page.click('button:has-text("Mark ordered")');
 		await page.locator('[data-testid=request-status]:has-text("Ordered")').waitFor();
-		await page.selectOption('#rcv-loc', String(locationId));
+		// receiving preselects the part's drawer (issue 16)
+		await expect(page.inputValue('#rcv-loc')).resolves.toBe(String(locationId));
 		await screenshot(page, 'request-ordered');
 		await page.click('button:has-text("Receive into stock")');
 		await page.locator('[data-testid=request-status]:has-text("Received")').waitFor();

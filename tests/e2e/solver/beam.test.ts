@@ -219,7 +219,7 @@ describe('Shape and expand a laser beam in the browser', () => {
 		await page.waitForSelector('[data-testid=reservations] li');
 		await Promise.all([page.waitForURL(/\/sheet$/), page.click('[data-testid=sheet-link]')]);
 		const sheet = await page.locator('[data-testid=build-sheet]').innerText();
-		expect(sheet).toMatch(/GC-/);
+		expect(sheet).toMatch(/TW-/);
 		expect(sheet).toMatch(/A\d-D\d|B\d-D\d/);
 		expect(sheet).toMatch(/Target waist/);
 		expect(sheet).toMatch(/efficiency \d+\.\d %/);
@@ -242,7 +242,7 @@ describe('Shape and expand a laser beam in the browser', () => {
 		await page.click('[data-testid=unlock-button]');
 		await page.waitForSelector('[data-testid=purchase-suggestion]', { timeout: 60_000 });
 		const text = await page.locator('[data-testid=purchase-suggestion]').innerText();
-		expect(text).toMatch(/Buy \d+ × GC-|No single purchase|no purchase of a catalogued part can help/);
+		expect(text).toMatch(/Buy \d+ × TW-|No single purchase|no purchase of a catalogued part can help/);
 		if (await page.locator('[data-testid=suggested-sku]').count()) {
 			// worded for a beam: its efficiency, not a magnification
 			await expect(page.locator('[data-testid=suggested-efficiency]').innerText()).resolves.toMatch(/^\d+\.\d %$/);

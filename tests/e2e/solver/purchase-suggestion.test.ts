@@ -35,7 +35,7 @@ describe('What purchase would help? on /build', () => {
 		await page.click('[data-testid=unlock-button]');
 		await page.waitForSelector('[data-testid=purchase-suggestion]', { timeout: 30_000 });
 		const sku = await page.locator('[data-testid=suggested-sku]').innerText();
-		expect(sku).toMatch(/^GC-/);
+		expect(sku).toMatch(/^TW-[A-Z]\d[A-Z]\d-\d\d$/);
 		expect(Number(await page.locator('[data-testid=suggested-quantity]').innerText())).toBeGreaterThanOrEqual(1);
 		await expect(page.locator('[data-testid=suggested-lead-time]').innerText()).resolves.toMatch(/\d+ days|not recorded/);
 		const setup = await page.locator('[data-testid=suggested-setup]').innerText();
@@ -89,7 +89,7 @@ describe('What purchase would help? on /build', () => {
 			await expect(page.locator('[data-testid=laser-caution]').isVisible()).resolves.toBe(true);
 			await page.click('[data-testid=setup-short] [data-testid=unlock-button]');
 			await page.waitForSelector('[data-testid=purchase-suggestion]', { timeout: 30_000 });
-			await expect(page.locator('[data-testid=purchase-suggestion]').innerText()).resolves.toMatch(/Buy \d+ × GC-|No single purchase/);
+			await expect(page.locator('[data-testid=purchase-suggestion]').innerText()).resolves.toMatch(/Buy \d+ × TW-|No single purchase/);
 			await screenshot(page, 'setup-short-suggestion');
 		} finally {
 			await page.request.delete(appUrl(`/api/v1/reservations/${reservation.id}`), { headers: { origin } });

@@ -27,7 +27,7 @@ const planoConvex = (sku: string, over: Record<string, unknown> = {}) => ({
 	coating: `${tag}-coat`,
 	supplier: 'Kestrelmoor Optics',
 	supplierPartNumber: `${sku}-PN`,
-	unitPrice: 2450,
+	unitPrice: 24.5,
 	currency: 'EUR',
 	...over
 });
@@ -77,7 +77,7 @@ describe('parts API', () => {
 			clearApertureMm: null,
 			designWavelengthNm: 587.6,
 			supplier: 'Kestrelmoor Optics',
-			unitPrice: 2450,
+			unitPrice: 24.5,
 			currency: 'EUR',
 			onHand: 0,
 			available: 0,
@@ -179,9 +179,9 @@ describe('parts API', () => {
 		expect((await bad.json()).error.fields.diameterMm).toBeTruthy();
 
 		const purchaser = await cookieFor('purchaser@tarnwell.example');
-		const price = await api('PATCH', `/api/v1/parts/${partId}`, { cookie: purchaser }, { unitPrice: 2600 });
+		const price = await api('PATCH', `/api/v1/parts/${partId}`, { cookie: purchaser }, { unitPrice: 26 });
 		expect(price.status).toBe(200);
-		expect((await price.json()).unitPrice).toBe(2600);
+		expect((await price.json()).unitPrice).toBe(26);
 		const optics = await api('PATCH', `/api/v1/parts/${partId}`, { cookie: purchaser }, { diameterMm: 30 });
 		expect(optics.status).toBe(403);
 		const engineerPatch = await api('PATCH', `/api/v1/parts/${partId}`, { cookie: engineer }, { unitPrice: 1 });

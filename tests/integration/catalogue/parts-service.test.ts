@@ -32,7 +32,7 @@ const planoConvex = (sku: string, radiusMm = 51.7) => ({
 	surfaces: [{ radiusMm, thicknessMm: 4, material: '517642' }, { radiusMm: null }],
 	coating: 'test-coat',
 	supplier: 'Kestrelmoor Optics',
-	unitPrice: 2450,
+	unitPrice: 24.5,
 	currency: 'EUR'
 });
 
@@ -49,7 +49,8 @@ describe('parts service', () => {
 		expect(json.computed.eflMm).toBeCloseTo(51.7 / (n - 1), 4);
 		expect(json.surfaces).toEqual([{ radiusMm: 51.7, thicknessMm: 4, material: '517642' }, { radiusMm: null }]);
 		expect(json.supplier).toBe('Kestrelmoor Optics');
-		expect(json.unitPrice).toBe(2450);
+		expect(json.unitPrice).toBe(24.5);
+		expect((await db.select().from(t.parts).where(eq(t.parts.id, json.id)))[0].unitPriceMinor).toBe(2450);
 		expect(json.onHand).toBe(0);
 		expect(json.measured).toBeNull();
 	});
@@ -88,10 +89,10 @@ describe('parts service', () => {
 
 	it('lets a purchaser patch only purchasing fields', async () => {
 		const id = created[0];
-		await parts.updatePart(db, id, { reorderPoint: 3, unitPrice: 2600 }, { id: (await actor()).id, role: 'purchaser' });
+		await parts.updatePart(db, id, { reorderPoint: 3, unitPrice: 26 }, { id: (await actor()).id, role: 'purchaser' });
 		const json = await parts.getPartJson(db, id);
 		expect(json.reorderPoint).toBe(3);
-		expect(json.unitPrice).toBe(2600);
+		expect(json.unitPrice).toBe(26);
 		const err = await parts.updatePart(db, id, { name: 'renamed' }, { id: (await actor()).id, role: 'purchaser' }).catch((e) => e);
 		expect(err.status).toBe(403);
 	});

@@ -65,6 +65,15 @@ describe('datasheets through the app and s3rver', () => {
 		expect(dl.headers.get('x-content-type-options')).toBe('nosniff');
 		expect(dl.headers.get('content-security-policy')).toBe("default-src 'none'; sandbox");
 
+		// Viewed inline in the browser's own viewer (issue 16): the same bytes and the same sandbox CSP.
+		const view = await fetch(`${APP()}${sheet.downloadUrl}?view=inline`, { headers: { cookie: engineer } });
+		expect(view.status).toBe(200);
+		expect(view.headers.get('content-disposition')).toMatch(/^inline; filename=/);
+		expect(view.headers.get('content-security-policy')).toBe("default-src 'none'; sandbox");
+		expect(view.headers.get('x-content-type-options')).toBe('nosniff');
+		expect(sha(new Uint8Array(await view.arrayBuffer()))).toBe(sha(bytes));
+		expect((await fetch(`${APP()}${sheet.downloadUrl}?view=page`, { headers: { cookie: engineer } })).status).toBe(400);
+
 		// The original file name is kept as object metadata.
 		const obj = await store.get(row.s3Key);
 		expect(obj.metadata['original-filename']).toBe('Datasheet ø.pdf');

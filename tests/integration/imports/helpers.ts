@@ -43,6 +43,6 @@ export async function countParts(prefix: string) {
 /** A plano-convex row in the export's format (radius from f = R/(n-1), glass 517642). */
 export function pcxRow(sku: string, i: number) {
 	const r = (50 + (i % 400) * 0.5).toFixed(2);
-	return [sku, `Imported plano-convex ${i}`, 'plano-convex', '25.4', r, '4', '517642', '', '', '', '', 'Kestrelmoor Optics', `KM-IMP-${sku}`, String(1500 + (i % 100))].join(',');
+	return [sku, `Imported plano-convex ${i}`, 'plano-convex', '25.4', r, '4', '517642', '', '', '', '', 'Kestrelmoor Optics', `KM-IMP-${sku}`, (15 + (i % 100) / 100).toFixed(2)].join(','); // unitPrice in currency units (15.07)
 }
 export const PCX_HEADER = 'sku,name,kind,diameterMm,r1Mm,t1Mm,material1,r2Mm,t2Mm,material2,coating,supplier,supplierPartNumber,unitPrice';

@@ -42,7 +42,7 @@ describe('CSV export and import round trip', () => {
 				notes: '-3 dB at the edge',
 				supplier: 'Lumenvale Supply',
 				supplierPartNumber: `LV-${tag}`,
-				unitPrice: 3175
+				unitPrice: 31.75
 			},
 			{ id: actorId }
 		);
@@ -63,7 +63,8 @@ describe('CSV export and import round trip', () => {
 		// The export's header needs no mapping: every Glasscrib column maps to itself.
 		expect(suggestion.mapping.sku).toBe('sku');
 		expect(suggestion.mapping.r3Mm).toBe('r3Mm');
-		expect(suggestion.units.unitPrice).toBe('minor');
+		expect(suggestion.units.unitPrice).toBe('major'); // `unitPrice` is currency units, in the export as in the API
+		expect(mine).toContain(',31.75,EUR,');
 		const out = await importsService.runNow(db, store, id, 'check', actorId);
 		expect(out).toMatchObject({ status: 'checked', created: 0, updated: 0, rejected: 0 });
 		expect(out.unchanged).toBe(lines.length - 2); // header and the final empty line

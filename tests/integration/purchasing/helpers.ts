@@ -33,7 +33,7 @@ export function smtpMailer(): Mailer {
 export async function newPart(db: Db, actorId: number, sku: string, over: Record<string, unknown> = {}) {
 	const { id } = await parts.createPart(
 		db,
-		{ sku, name: `Purchasing test ${sku}`, kind: 'other', diameterMm: 25, eflMm: 100, reorderPoint: 2, reorderQuantity: 3, supplier: 'Quillmere Glassworks', unitPrice: 4200, leadTimeDays: 12, ...over },
+		{ sku, name: `Purchasing test ${sku}`, kind: 'other', diameterMm: 25, eflMm: 100, reorderPoint: 2, reorderQuantity: 3, supplier: 'Quillmere Glassworks', unitPrice: 42, leadTimeDays: 12, ...over },
 		{ id: actorId }
 	);
 	return id;

@@ -184,7 +184,7 @@ describe('purchasing API', () => {
 
 	it('a purchaser may PATCH only the purchasing fields of a part', async () => {
 		const p = await part('PF');
-		const ok = await api('PATCH', `/api/v1/parts/${p}`, { cookie }, { reorderPoint: 4, reorderQuantity: 6, leadTimeDays: 20, unitPrice: 1999 });
+		const ok = await api('PATCH', `/api/v1/parts/${p}`, { cookie }, { reorderPoint: 4, reorderQuantity: 6, leadTimeDays: 20, unitPrice: 19.99 });
 		expect(ok.status).toBe(200);
 		expect(await ok.json()).toMatchObject({ reorderPoint: 4, reorderQuantity: 6, leadTimeDays: 20 });
 		const no = await api('PATCH', `/api/v1/parts/${p}`, { cookie }, { reorderPoint: 5, name: 'Renamed' });
@@ -225,7 +225,7 @@ describe('purchasing API', () => {
 			supplier: 'Quillmere Glassworks',
 			supplierPartNumber: `=${tag}`,
 			quantity: 7,
-			unitPrice: 4200,
+			unitPrice: 42,
 			currency: 'EUR',
 			leadTimeDays: 12,
 			onHand: 3,

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { suggestMapping, MM_PER } from '$lib/server/imports/fields';
+import { hasDecimals, priceUnitUnknown, suggestMapping, suggestPriceUnit, MM_PER } from '$lib/server/imports/fields';
 import { compileMapping, parseNumberCell, readRow, fieldOfPath } from '$lib/server/imports/rows';
 import { partsHeader } from '$lib/server/imports/export';
 
@@ -24,7 +24,23 @@ describe('mapping suggestions', () => {
 			material1: 'Glass',
 			unitPrice: 'Price'
 		});
-		expect(s.units).toMatchObject({ diameterMm: 'in', eflMm: 'mm', unitPrice: 'major' });
+		expect(s.units).toMatchObject({ diameterMm: 'in', eflMm: 'mm' });
+		// "Price" names no unit: the values decide (see service.resolvePriceUnit)
+		expect(s.units.unitPrice).toBeUndefined();
+	});
+
+	it('takes the price unit from the header when it states one (issue 16)', () => {
+		expect(suggestMapping(['sku', 'unitPrice']).units.unitPrice).toBe('major'); // our own name: currency units
+		expect(suggestMapping(['sku', 'unitPriceMinor']).units.unitPrice).toBe('minor');
+		expect(suggestMapping(['sku', 'Price (cents)']).units.unitPrice).toBe('minor');
+		expect(suggestMapping(['sku', 'Price (EUR)']).units.unitPrice).toBe('major');
+		expect(suggestMapping(['sku', 'Preis €']).mapping.unitPrice).toBeUndefined(); // not a known name; mapped by hand
+		expect(suggestPriceUnit('Preis €')).toBe('major');
+		expect(suggestPriceUnit('Price')).toBeNull();
+		expect(hasDecimals('38.00')).toBe(true);
+		expect(hasDecimals('29,50')).toBe(true);
+		expect(hasDecimals('3800')).toBe(false);
+		expect(priceUnitUnknown('Price', ['3800', '45'])).toMatch(/cannot tell whether 3800 means 3800.00 or 38.00/);
 	});
 
 	it('prefers the mapping saved for the supplier where its columns still exist', () => {
@@ -44,8 +60,18 @@ describe('cells', () => {
 		expect(parseNumberCell('25,4', 'diameterMm', 'mm', ',')).toBe('Not a number.');
 		expect(parseNumberCell('abc', 'diameterMm', 'mm', ',')).toMatch(/Not a number/);
 		expect(parseNumberCell('import(x)', 'diameterMm', 'mm', ',')).toMatch(/Not a number/);
-		expect(parseNumberCell('12.50', 'unitPrice', 'major', ',')).toBe(1250);
+		expect(parseNumberCell('12.50', 'unitPrice', 'major', ',')).toBe(12.5);
 		expect(parseNumberCell('5 mm', 'leadTimeDays', undefined, ',')).toMatch(/plain number/);
+	});
+
+	it('reads prices in the unit of the column: currency units as they are, cents divided (issue 16)', () => {
+		expect(parseNumberCell('38.00', 'unitPrice', 'major', ',')).toBe(38);
+		expect(parseNumberCell('38', 'unitPrice', 'major', ',')).toBe(38);
+		expect(parseNumberCell('29,50', 'unitPrice', 'major', ';')).toBe(29.5);
+		expect(parseNumberCell('38.005', 'unitPrice', 'major', ',')).toMatch(/two decimals/);
+		expect(parseNumberCell('3800', 'unitPrice', 'minor', ',')).toBe(38);
+		expect(parseNumberCell('29.50', 'unitPrice', 'minor', ',')).toMatch(/Not whole cents/);
+		expect(parseNumberCell('38', 'unitPrice', undefined, ',')).toMatch(/unit of the price column is not known/);
 	});
 
 	it('reads a row into part input with surfaces and strips the formula prefix', () => {

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import Papa from 'papaparse';
-import { formatMinor, parseMinor, parseOrderCsv, toOrderCsv, ORDER_CSV_COLUMNS, type OrderLine } from '$lib/server/purchasing/csv';
+import { formatPrice, parsePrice, parseOrderCsv, toOrderCsv, ORDER_CSV_COLUMNS, type OrderLine } from '$lib/server/purchasing/csv';
 
 const line = (over: Partial<OrderLine>): OrderLine => ({
 	sku: 'TW-PCX-025-050',
@@ -8,7 +8,7 @@ const line = (over: Partial<OrderLine>): OrderLine => ({
 	supplier: 'Harrowgate Optical Works',
 	supplierPartNumber: 'HOW-5521',
 	quantity: 4,
-	unitPrice: 3850,
+	unitPrice: 38.5,
 	currency: 'EUR',
 	leadTimeDays: 14,
 	onHand: 1,
@@ -21,8 +21,8 @@ describe('order CSV', () => {
 	const lines = [
 		line({}),
 		line({ sku: 'TW-X', name: 'Comma, "quotes" and\na line break', supplier: null, supplierPartNumber: null, unitPrice: null, leadTimeDays: null }),
-		line({ sku: 'TW-F', name: '=HYPERLINK("http://x","y")', supplier: '+cmd', supplierPartNumber: '-12', unitPrice: 5, quantity: 100000 }),
-		line({ sku: 'TW-U', name: 'Linse Ø 12,7 mm · Brennweite 30', supplier: '@home', unitPrice: 100, currency: 'CHF' }),
+		line({ sku: 'TW-F', name: '=HYPERLINK("http://x","y")', supplier: '+cmd', supplierPartNumber: '-12', unitPrice: 0.05, quantity: 100000 }),
+		line({ sku: 'TW-U', name: 'Linse Ø 12,7 mm · Brennweite 30', supplier: '@home', unitPrice: 1, currency: 'CHF' }),
 		line({ sku: 'TW-T', name: '\tTabbed', supplierPartNumber: '\rcarriage' })
 	];
 
@@ -46,12 +46,13 @@ describe('order CSV', () => {
 	});
 
 	it('writes prices in major units', () => {
-		expect(formatMinor(3850)).toBe('38.50');
-		expect(formatMinor(5)).toBe('0.05');
-		expect(formatMinor(null)).toBe('');
-		expect(parseMinor('38.5')).toBe(3850);
-		expect(parseMinor('0.05')).toBe(5);
-		expect(parseMinor('')).toBeNull();
-		expect(() => parseMinor('1e3')).toThrow();
+		expect(formatPrice(38.5)).toBe('38.50');
+		expect(formatPrice(0.05)).toBe('0.05');
+		expect(formatPrice(null)).toBe('');
+		expect(parsePrice('38.5')).toBe(38.5);
+		expect(parsePrice('0.05')).toBe(0.05);
+		expect(parsePrice('')).toBeNull();
+		expect(() => parsePrice('1e3')).toThrow();
+		expect(() => parsePrice('1.005')).toThrow();
 	});
 });

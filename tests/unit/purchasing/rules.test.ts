@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { availableOf, flagReason, suggestedQuantity } from '$lib/server/purchasing/rules';
+import { availableOf, explainSuggestion, flagReason, suggestedQuantity } from '$lib/server/purchasing/rules';
 
 // The flagging rules are Glasscrib's own (issue "Purchasing", DEVELOPERS.md); the checks sit at each boundary.
 describe('flagging at the boundaries', () => {
@@ -46,6 +46,14 @@ describe('suggested order quantity (order-up-to with lead-time demand; common pr
 	it('lifts free stock one unit above the reorder point', () => {
 		// need = (3 + 1) − 2 = 2
 		expect(suggestedQuantity(base)).toBe(2);
+	});
+
+	it('says its arithmetic, with the figures that give the number (issue 16)', () => {
+		expect(explainSuggestion({ ...base, reorderQuantity: 5, onOrder: 1, quarantine: 1 })).toBe(
+			'reorder point 3 + 1 − (2 usable − 0 reserved) + 0 used in the lead time = 2; at least the reorder quantity 5; − 1 on order = 4 (1 in quarantine not counted)'
+		);
+		expect(suggestedQuantity({ ...base, reorderQuantity: 5, onOrder: 1 })).toBe(4);
+		expect(explainSuggestion({ ...base, onHand: 9, onOrder: 0 })).toBe('reorder point 3 + 1 − (9 usable − 0 reserved) + 0 used in the lead time = -5; − 0 on order = 0 (not below 0)');
 	});
 
 	it('never less than the reorder quantity', () => {

@@ -5,7 +5,7 @@
  * matrices, glass codes by their nd), so this checks the seed's design, not the optics core.
  */
 import { describe, expect, it } from 'vitest';
-import { demoParts } from '../../../seed/demo-data';
+import { binCode, demoParts, drawerFor } from '../../../seed/demo-data';
 import { computeDerived, toSurfaceSpecs } from '../../../src/lib/server/catalogue/derived';
 
 describe('the demo catalogue', () => {
@@ -13,6 +13,17 @@ describe('the demo catalogue', () => {
 
 	it('has unique SKUs', () => {
 		expect(new Set(parts.map((p) => p.sku)).size).toBe(parts.length);
+	});
+
+	it('names parts by our own bin codes and coating bands, no supplier scheme (issue 16)', () => {
+		for (const p of parts) {
+			// TW-<drawer>-<slot>: the drawer the seed puts the part in, the slot counted within it
+			expect(p.sku).toBe(binCode(drawerFor(p), Number(p.sku.slice(-2))));
+			expect(p.sku).not.toMatch(/\d{3}$|ASPH|-N\d/);
+		}
+		const coatings = new Set(parts.map((p) => p.coating));
+		expect(coatings.has('AR 650-1050 nm') || coatings.has('AR 1050-1700 nm')).toBe(false);
+		for (const c of coatings) expect(c).toMatch(/^(uncoated|AR \d+–\d+ nm \(.+\))$/);
 	});
 
 	it('gives every part with a prescription the focal length of its name at the d line, within 0.5 %', () => {

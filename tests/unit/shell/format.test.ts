@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { formatDate, formatDateTime, glassesOf, kindLabel, KIND_LABELS } from '$lib/format';
+import { formatDate, formatDateTime, glassesOf, kindLabel, KIND_LABELS, stockWords } from '$lib/format';
 import { PART_KINDS } from '$lib/server/db/schema';
 
 describe('one date format for the pages', () => {
@@ -36,5 +36,45 @@ describe('part kinds and glasses as people read them', () => {
 		// An air-spaced pair of the same glass names it twice: two pieces of glass.
 		expect(glassesOf([{ material: 'n-bk7' }, { material: null }, { material: 'n-bk7' }, {}])).toBe('n-bk7 + n-bk7');
 		expect(glassesOf([])).toBe('');
+	});
+});
+
+describe('pages write dates and headers one way (issue 16)', async () => {
+	const { readdirSync, readFileSync, statSync } = await import('node:fs');
+	const { join } = await import('node:path');
+	const walk = (dir: string): string[] =>
+		readdirSync(dir).flatMap((f) => {
+			const p = join(dir, f);
+			return statSync(p).isDirectory() ? walk(p) : p.endsWith('.svelte') ? [p] : [];
+		});
+	const pages = walk('src').map((p) => ({ p, text: readFileSync(p, 'utf8') }));
+
+	it('formats every shown date with formatDate/formatDateTime, never an ISO slice or a "UTC" suffix', () => {
+		const bad = pages.flatMap(({ p, text }) =>
+			text
+				.split('\n')
+				.map((line, i) => ({ line, i }))
+				// an ISO slice in markup, or "UTC" written as text (the date inputs' default value may slice)
+				.filter(({ line }) => /\{[^}]*\.slice\(0, 1[06]\)[^}]*\}|\bUTC\{|\} UTC\b/.test(line) && !/value=|const /.test(line))
+				.map(({ i }) => `${p}:${i + 1}`)
+		);
+		expect(bad).toEqual([]);
+	});
+
+	it('keeps table headers in the case they are written ("λ (nm)", not "Λ (NM)")', () => {
+		const css = readFileSync('src/app.css', 'utf8');
+		const th = css.slice(css.indexOf('.data-table th'), css.indexOf('}', css.indexOf('.data-table th')));
+		expect(th).not.toMatch(/uppercase/);
+		for (const { p, text } of pages) {
+			for (const m of text.matchAll(/<th[^>]*>[\s\S]*?<\/th>/g)) expect(m[0], p).not.toMatch(/\buppercase\b/);
+		}
+	});
+});
+
+describe('stock by condition in one wording (issue 16)', () => {
+	it('names usable always and the other conditions when there are any', () => {
+		expect(stockWords({ usable: 3, quarantine: 1 })).toBe('3 usable · 1 in quarantine');
+		expect(stockWords({ usable: 0, quarantine: 1, damaged: 2 })).toBe('0 usable · 1 in quarantine · 2 damaged');
+		expect(stockWords({ usable: 4 })).toBe('4 usable');
 	});
 });

@@ -53,8 +53,6 @@ export function readPartForm(form: FormData, opts: { clearEmpty?: boolean } = {}
 	if (opts.clearEmpty) {
 		for (const k of OPTIONAL_PART_FIELDS) if (!(k in input) && form.has(k)) input[k] = null;
 	}
-	// The price is typed in major units (12.50) and stored in minor units (1250).
-	if (typeof input.unitPrice === 'number') input.unitPrice = Math.round(input.unitPrice * 100);
 	const count = Number(form.get('surfaceCount') ?? 0);
 	const surfaces: Record<string, unknown>[] = [];
 	for (let i = 0; i < Math.min(count, 12); i++) {
@@ -70,7 +68,7 @@ export function readPartForm(form: FormData, opts: { clearEmpty?: boolean } = {}
 	return input;
 }
 
-/** A stored part as the part form's string values (price back in major units). */
+/** A stored part as the part form's string values (the price with two decimals). */
 export function partFormValues(input: {
 	[k: string]: unknown;
 	surfaces: { radiusMm: number | null; thicknessMm?: number | null; material?: string | null }[];
@@ -78,7 +76,7 @@ export function partFormValues(input: {
 	const out: Record<string, string> = {};
 	for (const [k, v] of Object.entries(input)) {
 		if (k === 'surfaces' || v === null || v === undefined) continue;
-		out[k] = k === 'unitPrice' ? (Number(v) / 100).toFixed(2) : String(v);
+		out[k] = k === 'unitPrice' ? Number(v).toFixed(2) : String(v);
 	}
 	out.surfaceCount = String(input.surfaces.length);
 	input.surfaces.forEach((s, i) => {

@@ -12,10 +12,9 @@
  *   (it stops after a page); the count uses a materialised set of available part ids (usable stock
  *   grouped once on the covering index `stock_usable_part_idx`, active reservations grouped once)
  *   instead of two lookups for each of 100,000 rows.
- * - The text query keeps its meaning (SKU or supplier part number starts with it, or the name
- *   contains it), but when the query has more than one word, the FULLTEXT index `parts_text_ft`
- *   first narrows the rows to those holding every later word as a word prefix, a condition every
- *   match meets (see `fulltextPrefilter`).
+ * - The text query matches word by word, in any order (`textCondition`): each word is looked for in
+ *   SKU, name, supplier part number, coating, material and kind, a number also as the focal length or
+ *   diameter. That reads every row of the catalogue (no index serves "contains"); measured by the bench.
  * - `total` is an exact count of the matching parts with the same conditions.
  * The EFL filter and sort use the stored `paraxial_efl_mm` (EFL at the lab's default wavelength),
  * so they need no optics at query time.
@@ -27,6 +26,7 @@ import type { DbOrTx } from '$lib/server/db';
 import { PART_KINDS, parts } from '$lib/server/db/schema';
 import { availableSql } from '$lib/server/stock/availability';
 import { partsJson } from './parts';
+import { kindLabel } from '$lib/format';
 import type { PartJson } from './part-json';
 
 /** Sortable columns of the list (allow-list) → the column sorted on. */
@@ -85,30 +85,93 @@ function escapeLike(s: string) {
 	return s.replace(/[\\%_]/g, (c) => '\\' + c);
 }
 
-/**
- * InnoDB's built-in full-text stopwords (MariaDB's default list): they are not indexed, so a word
- * that is a prefix of one of them cannot be used as a `word*` term.
- */
-const FT_STOPWORDS = 'a about an are as at be by com de en for from how i in is it la of on or that the this to was what when where who will with und www'.split(' ');
-/** innodb_ft_min_token_size / innodb_ft_max_token_size (defaults; our servers keep them). */
-const FT_MIN = 3;
-const FT_MAX = 84;
+/** One word of a text query: a number (a focal length or diameter in mm; `text` its digits) or a piece of text. */
+export type TextTerm = { number: number; signed: boolean; text: string } | { number: null; text: string };
 
 /**
- * A FULLTEXT boolean-mode term list that every row matching the text query `q` satisfies, or null
- * when there is none. Split `q` at characters that are word separators for InnoDB full-text
- * parsing too (space, - . / , : ; parentheses). A match has `q` as a substring of the name or as
- * the start of the SKU or supplier part number; either way each word of `q` after the first begins a
- * word there (the first may sit inside a word, as in "ano-convex"). So `+word*` for those later
- * words is a necessary condition, and the LIKE conditions still decide. Only plain ASCII words of
- * indexable length that do not begin a stopword are used.
+ * The words of a catalogue text query, each to be matched on its own (any order). A word that reads as
+ * a length ("100", "-50", "25.4", "100mm", "f=100", "Ø25.4") is a number; the rest is text, lower-cased.
+ * Lone signs and "f", "mm", "=" carry no meaning apart from a number and are dropped.
  */
-export function fulltextPrefilter(q: string): string | null {
-	const words = q.split(/[\s\-./,:;()]+/).slice(1);
-	const usable = words.filter(
-		(w) => /^[A-Za-z0-9]+$/.test(w) && w.length >= FT_MIN && w.length <= FT_MAX && !FT_STOPWORDS.some((s) => s.startsWith(w.toLowerCase()))
-	);
+export function textTerms(q: string): TextTerm[] {
+	const out: TextTerm[] = [];
+	for (const raw of q.toLowerCase().split(/[\s,;]+/)) {
+		const w = raw.replace(/^(f=|ø|⌀)/, '').replace(/mm$/, '');
+		if (!w || w === '=' || w === 'f' || w === '-' || w === '+') continue;
+		if (/^[-+]?\d+(\.\d+)?$/.test(w)) out.push({ number: Number(w), signed: /^[-+]/.test(w), text: w.replace(/^[-+]/, '') });
+		else out.push({ number: null, text: raw });
+	}
+	return out.slice(0, 8);
+}
+
+/**
+ * InnoDB's built-in full-text stopwords (MariaDB's default list) and token sizes: a word that is a prefix
+ * of a stopword, or shorter than 3 characters, cannot be a `word*` term.
+ */
+const FT_STOPWORDS = 'a about an are as at be by com de en for from how i in is it la of on or that the this to was what when where who will with und www'.split(' ');
+
+/**
+ * FULLTEXT boolean terms every part whose SKU or supplier part number starts with `code` has: the pieces
+ * after the first (split where InnoDB splits words) each begin a word there. Null when none is usable.
+ */
+export function codePrefilter(code: string): string | null {
+	const words = code.split(/[\s\-./,:;()]+/).slice(1);
+	const usable = words.filter((w) => /^[A-Za-z0-9]+$/.test(w) && w.length >= 3 && w.length <= 84 && !FT_STOPWORDS.some((s) => s.startsWith(w.toLowerCase())));
 	return usable.length ? [...new Set(usable)].map((w) => `+${w}*`).join(' ') : null;
+}
+
+/** Part kinds whose code or label holds the text ("doublet" → achromatic-doublet, "convex" → plano-convex, biconvex). */
+function kindsMatching(text: string): (typeof PART_KINDS)[number][] {
+	return PART_KINDS.filter((k) => k.includes(text) || kindLabel(k).toLowerCase().includes(text));
+}
+
+/**
+ * The condition of a text query: every word must match somewhere (in any order). A text word matches
+ * when the SKU, name, supplier part number or coating contains it, the material starts with it, or the
+ * kind's name holds it. A number matches the focal length (the stored EFL at the lab's wavelength within
+ * 1 %, either sign unless the word has one) or the diameter. So "doublet 100" finds the 100 mm doublets
+ * and "100 doublet" the same. A single code-like word is a SKU / supplier part number prefix.
+ */
+function textCondition(q: string): SQL | undefined {
+	const terms = textTerms(q);
+	if (!terms.length) return sql`false`;
+	// One code-like word ("TW-A1D2", "BK-0420": letters, a dash, digits) is a stock or supplier number:
+	// read as a prefix of the SKU or supplier part number, which their indexes answer.
+	if (terms.length === 1 && terms[0].number === null && /[a-z]/.test(terms[0].text) && /\d/.test(terms[0].text) && terms[0].text.includes('-')) {
+		const prefix = `${escapeLike(terms[0].text)}%`;
+		// The FULLTEXT index narrows first: every later piece of the code begins a word of the SKU or part number.
+		const ft = codePrefilter(terms[0].text);
+		return and(
+			ft ? sql`match(${parts.sku}, ${parts.name}, ${parts.supplierPartNumber}) against (${ft} in boolean mode)` : undefined,
+			or(like(parts.sku, prefix), like(parts.supplierPartNumber, prefix))
+		);
+	}
+	return and(
+		...terms.map((t) => {
+			if (t.number !== null) {
+				// The stored EFL (every part has one: prescription, measurement or datasheet) within 1 %, and the
+				// diameter: index ranges (parts_efl_idx, parts_diameter_idx), so a number narrows the query fast.
+				const n = Math.abs(t.number);
+				const [lo, hi] = [n * 0.99, n * 1.01];
+				const efl = t.signed
+					? t.number < 0
+						? sql`${parts.paraxialEflMm} between ${-hi} and ${-lo}`
+						: sql`${parts.paraxialEflMm} between ${lo} and ${hi}`
+					: or(sql`${parts.paraxialEflMm} between ${lo} and ${hi}`, sql`${parts.paraxialEflMm} between ${-hi} and ${-lo}`);
+				return t.signed ? efl : or(efl, eq(parts.diameterMm, n));
+			}
+			const pattern = `%${escapeLike(t.text)}%`;
+			const kinds = kindsMatching(t.text);
+			return or(
+				like(parts.sku, pattern),
+				like(parts.supplierPartNumber, pattern),
+				like(parts.name, pattern),
+				like(parts.coating, pattern),
+				like(parts.primaryMaterial, `${escapeLike(t.text)}%`),
+				kinds.length ? inArray(parts.kind, kinds) : undefined
+			);
+		})
+	);
 }
 
 /**
@@ -141,10 +204,7 @@ export function listConditions(q: ListQuery, availability: 'correlated' | 'set' 
 	if (q.archived === 'exclude') where.push(isNull(parts.archivedAt));
 	if (q.archived === 'only') where.push(isNotNull(parts.archivedAt));
 	if (q.q) {
-		const text = escapeLike(q.q);
-		const ft = fulltextPrefilter(q.q);
-		if (ft) where.push(sql`match(${parts.sku}, ${parts.name}, ${parts.supplierPartNumber}) against (${ft} in boolean mode)`);
-		where.push(or(like(parts.sku, `${text}%`), like(parts.name, `%${text}%`), like(parts.supplierPartNumber, `${text}%`)));
+		where.push(textCondition(q.q));
 	}
 	if (q.kind?.length) where.push(inArray(parts.kind, q.kind));
 	if (q.eflMin !== undefined) where.push(gte(parts.paraxialEflMm, q.eflMin));

@@ -5,6 +5,7 @@
  */
 import { z } from 'zod';
 import { text } from '$lib/input';
+import { isWholeCents } from '$lib/money';
 import { buildElement, resolveMaterial, thicknessesAtHeight } from '$lib/optics';
 import { toSurfaceSpecs } from './derived';
 import { PART_KINDS } from '$lib/server/db/schema';
@@ -60,8 +61,14 @@ const fields = {
 	coating: optionalText(80),
 	supplier: optionalText(120),
 	supplierPartNumber: optionalText(80),
-	/** Unit price in integer minor units (cents) of `currency`. */
-	unitPrice: optionalNumber(z.number().int('Whole cents only.').min(0).max(1e9)),
+	/** Unit price in currency units of `currency` (38.50), at most two decimals; stored as cents. */
+	unitPrice: optionalNumber(
+		z
+			.number({ error: 'Enter the price in currency units, e.g. 38.50.' })
+			.min(0, 'The price cannot be negative.')
+			.max(1e7, 'At most 10000000.')
+			.refine(isWholeCents, 'At most two decimals, e.g. 38.50.')
+	),
 	currency: text()
 		.trim()
 		.regex(/^[A-Z]{3}$/, 'Three capital letters (ISO 4217), e.g. EUR.'),

@@ -5,6 +5,7 @@
 import type { Measurement, Part, PartSurface } from '$lib/server/db/schema';
 import type { Totals } from '$lib/server/stock/availability';
 import type { EflSource } from './derived';
+import { toMajor } from '$lib/money';
 
 /** A surface in Part JSON: thickness and material describe the medium after it; the last has neither. */
 export interface SurfaceJson {
@@ -29,7 +30,7 @@ export interface PartJson {
 	coating: string | null;
 	supplier: string | null;
 	supplierPartNumber: string | null;
-	/** Unit price in integer minor units (cents) of `currency`. */
+	/** Unit price in currency units of `currency` (38.5 = 38.50 EUR). */
 	unitPrice: number | null;
 	currency: string;
 	leadTimeDays: number | null;
@@ -83,7 +84,7 @@ export function toPartJson(
 		coating: part.coating,
 		supplier: extra.supplierName,
 		supplierPartNumber: part.supplierPartNumber,
-		unitPrice: part.unitPriceMinor,
+		unitPrice: toMajor(part.unitPriceMinor),
 		currency: part.currency,
 		leadTimeDays: part.leadTimeDays,
 		reorderPoint: part.reorderPoint,

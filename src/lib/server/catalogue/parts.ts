@@ -27,6 +27,7 @@ import { opticsPartOf, paraxialColumns, type MeasuredEfl } from './derived';
 import { partInputSchema, partPatchSchema, PURCHASING_FIELDS, toSurfaceSpecs, type PartInput, type PartPatch } from './part-input';
 import { toPartJson, type PartJson } from './part-json';
 import { getDefaultWavelengthNm } from './settings';
+import { toMajor, toMinor } from '$lib/money';
 
 export { partInputSchema, partPatchSchema, partFieldsSchema, PURCHASING_FIELDS } from './part-input';
 export type { PartInput, PartPatch } from './part-input';
@@ -80,7 +81,7 @@ export function columnsOf(input: PartInput, supplierId: number | null) {
 		coating: input.coating ?? null,
 		supplierId,
 		supplierPartNumber: input.supplierPartNumber ?? null,
-		unitPriceMinor: input.unitPrice ?? null,
+		unitPriceMinor: input.unitPrice == null ? null : toMinor(input.unitPrice),
 		currency: input.currency,
 		leadTimeDays: input.leadTimeDays ?? null,
 		reorderPoint: input.reorderPoint,
@@ -188,7 +189,7 @@ export function toInput(record: PartRecord): PartInput {
 		coating: p.coating,
 		supplier: record.supplierName,
 		supplierPartNumber: p.supplierPartNumber,
-		unitPrice: p.unitPriceMinor,
+		unitPrice: toMajor(p.unitPriceMinor),
 		currency: p.currency,
 		leadTimeDays: p.leadTimeDays,
 		reorderPoint: p.reorderPoint,

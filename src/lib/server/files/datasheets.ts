@@ -278,7 +278,9 @@ export async function openDatasheet(
 	db: DbOrTx,
 	store: ObjectStore,
 	id: number,
-	which: 'file' | 'thumbnail' = 'file'
+	which: 'file' | 'thumbnail' = 'file',
+	/** 'inline': shown in the browser's own viewer (still under the sandbox CSP and nosniff). */
+	disposition: 'attachment' | 'inline' = 'attachment'
 ): Promise<{ object: StoredObject; headers: Record<string, string> }> {
 	const [row] = await db
 		.select({ d: datasheets, sku: parts.sku })
@@ -297,7 +299,7 @@ export async function openDatasheet(
 		};
 	}
 	const object = await store.get(d.s3Key);
-	return { object, headers: downloadHeaders(d, `${row.sku}-${d.id}.${EXTENSIONS[d.contentType]}`) };
+	return { object, headers: downloadHeaders(d, `${row.sku}-${d.id}.${EXTENSIONS[d.contentType]}`, disposition) };
 }
 
 /** Deletes a datasheet: its objects and its row, both or neither. */

@@ -62,8 +62,40 @@ export const isLengthField = (f: string) => ['diameterMm', 'clearApertureMm', 'e
 
 export const LENGTH_UNITS = ['mm', 'in'] as const;
 export type LengthUnit = (typeof LENGTH_UNITS)[number];
-/** unitPrice: 'minor' = integer cents as in Part JSON (and the export); 'major' = 42.50 style, ×100. */
-export const PRICE_UNITS = ['minor', 'major'] as const;
+/**
+ * unitPrice: 'major' = currency units (38.50), as Part JSON and the export write it under the name
+ * `unitPrice`; 'minor' = whole cents (3850), for supplier lists that write them.
+ */
+export const PRICE_UNITS = ['major', 'minor'] as const;
+export type PriceUnit = (typeof PRICE_UNITS)[number];
+
+/**
+ * The unit a price column's header states, or null when it states none: our own name `unitPrice` and
+ * headers naming a currency ("Price (EUR)", "Preis €") are currency units; `unitPriceMinor` and headers
+ * naming cents or minor units are cents.
+ */
+export function suggestPriceUnit(header: string): PriceUnit | null {
+	const h = header.trim();
+	if (h === 'unitPrice') return 'major';
+	if (/minor|\bcents?\b|\bct\b|\(ct\)/i.test(h)) return 'minor';
+	if (/\b(eur|usd|gbp|chf|sek|dkk|nok|pln|czk)\b|[€$£]/i.test(h)) return 'major';
+	return null;
+}
+
+/** A price cell written with decimals ("38.00", "29,50"): only currency units are written so. */
+export function hasDecimals(cell: string): boolean {
+	return /^\s*[€$£]?\s*\d*[.,]\d+\s*$/.test(cell);
+}
+
+/** Why a price column is refused when neither its header nor its values tell the unit. */
+export function priceUnitUnknown(column: string, sample: readonly string[]): string {
+	const eg = sample.filter(Boolean).slice(0, 2);
+	const first = eg[0] ?? '3800';
+	return (
+		`The column "${column}" holds only whole numbers${eg.length ? ` (${eg.join(', ')})` : ''}, so Glasscrib cannot tell whether ${first} means ` +
+		`${first}.00 or ${(Number(first) / 100).toFixed(2)}. Choose how the price is written, or name the column unitPrice (currency units, 38.00) or unitPriceMinor (cents, 3800).`
+	);
+}
 
 /** Millimetres per unit, from mathjs (so the factor is the standard one, 25.4 mm per inch exactly). */
 export const MM_PER: Record<LengthUnit, number> = {
@@ -157,6 +189,7 @@ const SYNONYMS: Record<string, string> = {
 	itemno: 'supplierPartNumber',
 	article: 'supplierPartNumber',
 	unitprice: 'unitPrice',
+	unitpriceminor: 'unitPrice',
 	price: 'unitPrice',
 	currency: 'currency',
 	leadtime: 'leadTimeDays',
@@ -226,7 +259,10 @@ export function suggestMapping(header: readonly string[], saved?: Suggestion | n
 			const u = suggestUnit(col);
 			if (u) units[field] = u;
 		}
-		if (field === 'unitPrice') units[field] = col.trim() === 'unitPrice' ? 'minor' : 'major';
+		if (field === 'unitPrice') {
+			const u = suggestPriceUnit(col);
+			if (u) units[field] = u;
+		}
 	}
 	return { mapping, units };
 }

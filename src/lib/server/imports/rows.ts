@@ -6,6 +6,7 @@
 import { unit } from 'mathjs';
 import { isLengthField, isNumericField, MAX_SURFACES, MM_PER, SCALAR_FIELDS, surfaceFields, type LengthUnit } from './fields';
 import { unescapeFormula, type Delimiter } from './csv';
+import { isWholeCents } from '$lib/money';
 
 export interface CellError {
 	field: string;
@@ -57,9 +58,15 @@ export function parseNumberCell(raw: string, field: string, defaultUnit: LengthU
 		return unit(value, UNIT_NAMES[m[2].toLowerCase()]).toNumber('mm');
 	}
 	if (isLengthField(field)) return value * MM_PER[(defaultUnit as LengthUnit) ?? 'mm'];
-	if (field === 'unitPrice' && defaultUnit === 'major') return Math.round(value * 100);
-	if (field === 'unitPrice' && !Number.isInteger(value)) {
-		return 'Not whole cents: this column is read as cents (1250). If the file writes prices like 12.50, choose "whole currency units" for the unit price.';
+	if (field === 'unitPrice') {
+		// The part input takes currency units (38.5); a cents column is divided here.
+		if (defaultUnit === 'major') return isWholeCents(value) ? value : 'At most two decimals: a price in currency units such as 38.50.';
+		if (defaultUnit === 'minor') {
+			return Number.isInteger(value)
+				? value / 100
+				: 'Not whole cents: this column is read as cents (3850). If the file writes prices like 38.50, choose "currency units" for the unit price.';
+		}
+		return 'The unit of the price column is not known: choose currency units (38.50) or cents (3850).';
 	}
 	return value;
 }

@@ -13,7 +13,9 @@ import { recordAudit } from '$lib/server/audit';
 import type { ObjectStore } from '$lib/server/files/s3';
 import { CSV_MAX_BYTES, csvLine, csvRecords, escapeFormula, spoolCsv, type CheckedCsv, type Delimiter, type SpooledCsv } from './csv';
 import { readMultipartStream } from '$lib/server/files/multipart';
-import { fieldLabel, IMPORT_FIELDS, isImportField, isLengthField, LENGTH_UNITS, PRICE_UNITS, suggestMapping, type Suggestion } from './fields';
+import { fieldLabel, hasDecimals, IMPORT_FIELDS, isImportField, isLengthField, LENGTH_UNITS, PRICE_UNITS, priceUnitUnknown, suggestMapping, type PriceUnit, type Suggestion } from './fields';
+import fs from 'node:fs';
+import type { Readable } from 'node:stream';
 import { isStale, runImport, STALE_AFTER_MS, type RunHooks } from './run';
 
 export interface ImportReport {
@@ -68,6 +70,11 @@ export async function createImport(
 			saved = (s.importMapping as Suggestion | null) ?? null;
 		}
 		const suggestion = suggestMapping(csv.header, saved);
+		const priceCol = suggestion.mapping.unitPrice;
+		if (priceCol && !suggestion.units.unitPrice) {
+			const u = await priceUnitFromValues(fs.createReadStream(csv.path), csv.delimiter, csv.header.indexOf(priceCol));
+			if (u.unit) suggestion.units.unitPrice = u.unit;
+		}
 		const key = `imports/${randomUUID()}.csv`;
 		const filename = (input.filename.split(/[\\/]/).pop() || 'import.csv').slice(0, 255);
 		await store.putFile(key, csv.path, 'text/csv; charset=utf-8', { 'original-filename': filename, sha256: csv.sha256 });
@@ -99,6 +106,30 @@ export async function createImport(
 	} finally {
 		if (!given) await csv.remove();
 	}
+}
+
+/**
+ * The unit a price column's values show: any cell written with decimals ("38.00", "29,50") means
+ * currency units; a column of whole numbers only (3800, 45) cannot be told apart (38.00 or 3800.00?),
+ * so `unit` is null and `sample` holds a few of its cells for the message. Reads the file once.
+ */
+export async function priceUnitFromValues(source: Readable, delimiter: Delimiter, column: number): Promise<{ unit: PriceUnit | null; sample: string[] }> {
+	const sample: string[] = [];
+	let first = true;
+	for await (const r of csvRecords(source, delimiter)) {
+		if (first) {
+			first = false;
+			continue;
+		}
+		const cell = (r[column] ?? '').trim();
+		if (!cell) continue;
+		if (hasDecimals(cell)) {
+			source.destroy();
+			return { unit: 'major', sample };
+		}
+		if (sample.length < 3) sample.push(cell);
+	}
+	return { unit: null, sample };
 }
 
 function isSpooled(f: unknown): f is SpooledCsv {
@@ -168,8 +199,12 @@ async function record(db: DbOrTx, id: number): Promise<ImportRecord> {
 	return rec;
 }
 
-/** Saves the column mapping, units and options (validated against the file's header). */
-export async function saveMapping(db: DbOrTx, id: number, body: unknown): Promise<MappingInput> {
+/**
+ * Saves the column mapping, units and options (validated against the file's header). A mapped price
+ * column needs a unit: given, stated by its header, or shown by its values (read from `store`); else
+ * 400 naming `units.unitPrice` (issue 16: a price is never guessed).
+ */
+export async function saveMapping(db: DbOrTx, id: number, body: unknown, store?: ObjectStore): Promise<MappingInput> {
 	const rec = await record(db, id);
 	if (rec.status === 'committed') throw new DomainError(409, 'already-committed', 'This import is already in the catalogue; start a new import to change it.');
 	if (!isStale(rec) && (rec.status === 'checking' || rec.status === 'committing')) {
@@ -178,6 +213,24 @@ export async function saveMapping(db: DbOrTx, id: number, body: unknown): Promis
 	const m = mappingSchema(rec.header).parse(body);
 	const mapping = Object.fromEntries(Object.entries(m.mapping).filter(([, c]) => c));
 	const units = Object.fromEntries(Object.entries(m.units).filter(([f]) => mapping[f]));
+	if (mapping.unitPrice && !units.unitPrice) {
+		const byName = suggestMapping([mapping.unitPrice]).units.unitPrice;
+		let unit: string | null = byName ?? null;
+		let sample: string[] = [];
+		if (!unit && store) {
+			const object = await store.get(rec.s3Key);
+			try {
+				({ unit, sample } = await priceUnitFromValues(object.body, rec.delimiter as Delimiter, rec.header.indexOf(mapping.unitPrice)));
+			} finally {
+				object.body.destroy();
+			}
+		}
+		if (!unit) {
+			const message = priceUnitUnknown(mapping.unitPrice, sample);
+			throw new DomainError(400, 'price-unit-unknown', message, { 'units.unitPrice': message });
+		}
+		units.unitPrice = unit;
+	}
 	await db
 		.update(imports)
 		.set({ mapping, units, options: { skuPrefix: m.skuPrefix || undefined, skipRejected: m.skipRejected }, status: rec.status === 'failed' ? 'uploaded' : rec.status })

@@ -1,4 +1,4 @@
-import { and, count, countDistinct, desc, eq, gt, isNull, sql } from 'drizzle-orm';
+import { and, count, countDistinct, desc, eq, gt, inArray, isNull, sql } from 'drizzle-orm';
 import type { DbOrTx } from '$lib/server/db';
 import { locations, parts, stock } from '$lib/server/db/schema';
 
@@ -31,5 +31,17 @@ export async function quarantineParts(db: DbOrTx, limit = 5) {
 			.limit(limit),
 		db.select({ n: countDistinct(stock.partId) }).from(stock).where(where)
 	]);
-	return { total: Number(n), items: rows.map((r) => ({ partId: r.partId, sku: r.sku, name: r.name, units: Number(r.units) })) };
+	// the usable units beside them, so the list and the part page say the same ("0 usable · 1 in quarantine")
+	const usable = rows.length
+		? await db
+				.select({ partId: stock.partId, q: sql<string>`sum(${stock.quantity})` })
+				.from(stock)
+				.where(and(eq(stock.condition, 'usable'), inArray(stock.partId, rows.map((r) => r.partId))))
+				.groupBy(stock.partId)
+		: [];
+	const usableOf = new Map(usable.map((u) => [u.partId, Number(u.q)]));
+	return {
+		total: Number(n),
+		items: rows.map((r) => ({ partId: r.partId, sku: r.sku, name: r.name, units: Number(r.units), usable: usableOf.get(r.partId) ?? 0 }))
+	};
 }

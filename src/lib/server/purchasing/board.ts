@@ -7,10 +7,11 @@ import { and, eq, gt, inArray, isNull, sql } from 'drizzle-orm';
 import type { DbOrTx } from '$lib/server/db';
 import { movements, parts, reservations, setups, suppliers } from '$lib/server/db/schema';
 import { totalsFor } from '$lib/server/stock/availability';
-import { availableOf, flagReason, suggestedQuantity, type FlagReason } from './rules';
+import { availableOf, explainSuggestion, flagReason, suggestedQuantity, type FlagReason } from './rules';
 import { setupIndex, shortfalls, type ElementRef, type SetupRef } from './unlocks';
 import { onOrderByPart } from './requests';
 import { openNotices } from './flags';
+import { toMajor } from '$lib/money';
 
 export const USAGE_DAYS = 90;
 
@@ -20,12 +21,17 @@ export interface BoardRow {
 	name: string;
 	supplier: string | null;
 	supplierPartNumber: string | null;
+	/** Currency units (38.5). */
 	unitPrice: number | null;
 	currency: string;
 	leadTimeDays: number | null;
 	reorderPoint: number;
 	reorderQuantity: number;
+	/** Usable units on hand (the only ones that count). */
 	onHand: number;
+	/** Units waiting for inspection and damaged units: shown, never counted as on hand. */
+	quarantine: number;
+	damaged: number;
 	reserved: number;
 	available: number;
 	/** Net units used over the last USAGE_DAYS days (from the ledger). */
@@ -33,6 +39,8 @@ export interface BoardRow {
 	/** Units on open requests, not yet received. */
 	onOrder: number;
 	suggestedQuantity: number;
+	/** The arithmetic behind `suggestedQuantity`, in words. */
+	suggestion: string;
 	/** Why the part is flagged; null when it is on the board only because it unlocks setups. */
 	flag: FlagReason | null;
 	/** Since when the current flag has been reported (the digest), or null. */
@@ -87,8 +95,11 @@ export async function boardRows(db: DbOrTx, opts: { partIds?: readonly number[] 
 		savedSetups(db),
 		openNotices(db)
 	]);
-	// Setups may name archived parts: those count as not available.
-	const { using, unlocking } = setupIndex(saved, (id) => (totals.has(id) ? availableOf(totals.get(id)!) : 0));
+	const held = await heldBySetup(db, saved.map((s) => s.id));
+	// Setups may name archived parts: those count as not available. A setup's own reservations count for it.
+	const { using, unlocking } = setupIndex(saved, (id, setupId) =>
+		totals.has(id) ? availableOf(totals.get(id)!) + (held.get(setupId)?.get(id) ?? 0) : 0
+	);
 	const since = new Map(notices.map((n) => [n.partId, n.reportedAt.toISOString()]));
 	const rows: BoardRow[] = [];
 	for (const { p, supplier } of list) {
@@ -98,37 +109,43 @@ export async function boardRows(db: DbOrTx, opts: { partIds?: readonly number[] 
 		if (only ? !only.has(p.id) : !flag && !unlocks.length) continue;
 		const u = usage.get(p.id) ?? 0;
 		const ordered = onOrder.get(p.id) ?? 0;
-		const suggested = Math.max(
-			suggestedQuantity({
-				onHand: t.onHand,
-				reserved: t.reserved,
-				reorderPoint: p.reorderPoint,
-				reorderQuantity: p.reorderQuantity,
-				usage: u,
-				usageDays: USAGE_DAYS,
-				leadTimeDays: p.leadTimeDays,
-				onOrder: ordered
-			}),
-			// a part on the board only for an unlock: at least the units the setups miss
-			flag ? 0 : Math.max(0, Math.max(0, ...unlocks.map((x) => x.missing)) - ordered)
-		);
+		const figures = {
+			onHand: t.onHand,
+			reserved: t.reserved,
+			reorderPoint: p.reorderPoint,
+			reorderQuantity: p.reorderQuantity,
+			usage: u,
+			usageDays: USAGE_DAYS,
+			leadTimeDays: p.leadTimeDays,
+			onOrder: ordered
+		};
+		const byRule = suggestedQuantity(figures);
+		// a part on the board only for an unlock: at least the units the setups miss
+		const missing = Math.max(0, ...unlocks.map((x) => x.missing));
+		const forSetups = flag ? 0 : Math.max(0, missing - ordered);
+		const suggested = Math.max(byRule, forSetups);
+		let suggestion = explainSuggestion({ ...figures, quarantine: t.quarantine, damaged: t.damaged });
+		if (forSetups > byRule) suggestion = `a saved setup misses ${missing}${ordered ? ` − ${ordered} on order` : ''} = ${forSetups} (the reorder rule alone: ${byRule})`;
 		rows.push({
 			partId: p.id,
 			sku: p.sku,
 			name: p.name,
 			supplier,
 			supplierPartNumber: p.supplierPartNumber,
-			unitPrice: p.unitPriceMinor,
+			unitPrice: toMajor(p.unitPriceMinor),
 			currency: p.currency,
 			leadTimeDays: p.leadTimeDays,
 			reorderPoint: p.reorderPoint,
 			reorderQuantity: p.reorderQuantity,
 			onHand: t.onHand,
+			quarantine: t.quarantine,
+			damaged: t.damaged,
 			reserved: t.reserved,
 			available: availableOf(t),
 			usage90d: u,
 			onOrder: ordered,
 			suggestedQuantity: suggested,
+			suggestion,
 			flag,
 			flaggedSince: since.get(p.id) ?? null,
 			setupsUsing: using.get(p.id)?.length ?? 0,
@@ -147,7 +164,7 @@ export interface WaitingSetup {
 }
 
 /** Units each saved setup's own active, unexpired reservations hold, by setup and part. */
-async function heldBySetup(db: DbOrTx, setupIds: number[]): Promise<Map<number, Map<number, number>>> {
+export async function heldBySetup(db: DbOrTx, setupIds: number[]): Promise<Map<number, Map<number, number>>> {
 	const held = new Map<number, Map<number, number>>();
 	if (!setupIds.length) return held;
 	const rows = await db
@@ -194,7 +211,7 @@ export async function waitingSetups(db: DbOrTx): Promise<WaitingSetup[]> {
 					partId: x.partId,
 					sku: r?.p.sku ?? `#${x.partId}`,
 					missing: x.missing,
-					unitPrice: r?.p.unitPriceMinor ?? null,
+					unitPrice: toMajor(r?.p.unitPriceMinor),
 					currency: r?.p.currency ?? 'EUR',
 					leadTimeDays: r?.p.leadTimeDays ?? null,
 					supplier: r?.supplier ?? null

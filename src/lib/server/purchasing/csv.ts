@@ -2,10 +2,12 @@
  * The reorder board's CSV for a supplier: one row per selected part, with the quantity to
  * order. Text cells that a spreadsheet would run as a formula (starting with = + - @, tab or
  * CR) get a leading apostrophe, which `parseOrderCsv` strips again (SECURITY.md, V5).
- * Prices are written in major units with two decimals ("12.50") next to their currency.
+ * Prices are written in currency units with two decimals ("12.50") next to their currency, under the
+ * column name `unitPrice`, as everywhere else in the product.
  */
 import Papa from 'papaparse';
 import type { BoardRow } from './board';
+import { priceText } from '$lib/money';
 
 export const ORDER_CSV_COLUMNS = [
 	'sku',
@@ -27,7 +29,7 @@ export interface OrderLine {
 	supplier: string | null;
 	supplierPartNumber: string | null;
 	quantity: number;
-	/** Minor units (cents). */
+	/** Currency units (38.5 = 38.50 in `currency`). */
 	unitPrice: number | null;
 	currency: string;
 	leadTimeDays: number | null;
@@ -40,21 +42,17 @@ const RISKY = /^[=+\-@\t\r]/;
 const guard = (s: string | null) => (s == null ? '' : RISKY.test(s) ? `'${s}` : s);
 const unguard = (s: string) => (s.startsWith("'") && RISKY.test(s.slice(1)) ? s.slice(1) : s);
 
-/** Minor units to "12.50". */
-export function formatMinor(minor: number | null): string {
-	if (minor == null) return '';
-	const sign = minor < 0 ? '-' : '';
-	const abs = Math.abs(minor);
-	return `${sign}${Math.floor(abs / 100)}.${String(abs % 100).padStart(2, '0')}`;
+/** Currency units to "12.50" (empty without a price). */
+export function formatPrice(major: number | null): string {
+	return priceText(major);
 }
 
-/** "12.50" to 1250 (null for an empty cell). */
-export function parseMinor(s: string): number | null {
+/** "12.50" to 12.5 (null for an empty cell); at most two decimals. */
+export function parsePrice(s: string): number | null {
 	const t = s.trim();
 	if (!t) return null;
-	const m = /^(\d+)(?:\.(\d{1,2}))?$/.exec(t);
-	if (!m) throw new Error(`Not a price: "${s}"`);
-	return Number(m[1]) * 100 + Number((m[2] ?? '0').padEnd(2, '0'));
+	if (!/^\d+(?:\.\d{1,2})?$/.test(t)) throw new Error(`Not a price: "${s}"`);
+	return Number(t);
 }
 
 /** A board row as an order line with the chosen quantity (default: the suggestion). */
@@ -85,7 +83,7 @@ export function toOrderCsv(lines: readonly OrderLine[]): string {
 				guard(l.supplier),
 				guard(l.supplierPartNumber),
 				String(l.quantity),
-				formatMinor(l.unitPrice),
+				formatPrice(l.unitPrice),
 				guard(l.currency),
 				l.leadTimeDays == null ? '' : String(l.leadTimeDays),
 				String(l.onHand),
@@ -112,7 +110,7 @@ export function parseOrderCsv(text: string): OrderLine[] {
 		supplier: text_(r.supplier),
 		supplierPartNumber: text_(r.supplierPartNumber),
 		quantity: int(r.quantity ?? ''),
-		unitPrice: parseMinor(r.unitPrice ?? ''),
+		unitPrice: parsePrice(r.unitPrice ?? ''),
 		currency: unguard(r.currency ?? ''),
 		leadTimeDays: r.leadTimeDays ? int(r.leadTimeDays) : null,
 		onHand: int(r.onHand ?? ''),

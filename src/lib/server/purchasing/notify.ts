@@ -3,6 +3,7 @@
  * Sent after the receipt committed; a failure is logged and does not undo the receipt.
  */
 import type { CoveredReservation } from './requests';
+import { formatDate } from '$lib/format';
 import type { Mailer } from './flags';
 
 /** One message per engineer, listing their reservations of the part that the receipt covers. */
@@ -18,7 +19,7 @@ export function coveredMessages(sku: string, received: number, covered: readonly
 			`${received} unit${received === 1 ? '' : 's'} of ${sku} ${received === 1 ? 'was' : 'were'} just received into stock.`,
 			...list.map(
 				(c) =>
-					`- Your reservation of ${c.quantity} unit${c.quantity === 1 ? '' : 's'} until ${c.until.toISOString().slice(0, 10)} is now ${c.fully ? 'fully' : 'partly'} covered by stock on hand.`
+					`- Your reservation of ${c.quantity} unit${c.quantity === 1 ? '' : 's'} until ${formatDate(c.until, 'UTC')} is now ${c.fully ? 'fully' : 'partly'} covered by stock on hand.`
 			),
 			'',
 			`Your reservations: ${new URL('/', origin).toString()}`

@@ -26,6 +26,7 @@ import { DomainError } from '$lib/server/api/http';
 import { receive as receiveStock } from '$lib/server/stock/operations';
 import { totalsOf } from '$lib/server/stock/availability';
 import { EDITABLE, NAMED_STEPS, RECEIVABLE, STATUS_LABELS, canStep, statusAfterReceipt } from './states';
+import { isWholeCents, toMajor, toMinor } from '$lib/money';
 
 export interface RequestActor {
 	id: number;
@@ -39,7 +40,14 @@ export const REQUEST_RECEIVERS: readonly Role[] = ['admin', 'purchaser', 'stockr
 
 const quantity = z.number({ error: 'Enter a number of units.' }).int('Whole units only.').min(1, 'At least 1 unit.').max(100_000, 'At most 100000 units.');
 const note = text().trim().max(2000, 'At most 2000 characters.').nullable().optional();
-const unitPrice = z.number({ error: 'Enter the price in cents.' }).int('Whole cents only.').min(0, 'The price cannot be negative.').max(1e9).nullable().optional();
+/** Currency units (38.50), at most two decimals; stored as cents. */
+const unitPrice = z
+	.number({ error: 'Enter the price in currency units, e.g. 38.50.' })
+	.min(0, 'The price cannot be negative.')
+	.max(1e7, 'At most 10000000.')
+	.refine(isWholeCents, 'At most two decimals, e.g. 38.50.')
+	.nullable()
+	.optional();
 const id = z.number({ error: 'Choose one.' }).int().positive();
 
 export const createRequestSchema = z
@@ -144,7 +152,7 @@ export async function createRequests(db: DbOrTx, inputs: readonly unknown[], act
 					supplierId: part.supplierId,
 					status: d.status,
 					quantity: d.quantity,
-					unitPriceMinor: d.unitPrice === undefined ? part.unitPriceMinor : d.unitPrice,
+					unitPriceMinor: d.unitPrice === undefined ? part.unitPriceMinor : d.unitPrice === null ? null : toMinor(d.unitPrice),
 					currency: part.currency,
 					leadTimeDays: part.leadTimeDays,
 					note: d.note || null,
@@ -261,7 +269,7 @@ export async function patchRequest(db: DbOrTx, requestId: number, input: unknown
 				});
 			}
 			if (d.quantity !== undefined) edits.quantity = d.quantity;
-			if (d.unitPrice !== undefined) edits.unitPriceMinor = d.unitPrice;
+			if (d.unitPrice !== undefined) edits.unitPriceMinor = d.unitPrice === null ? null : toMinor(d.unitPrice);
 		}
 		if (d.orderReference !== undefined) {
 			if (req.status === 'closed' || req.status === 'cancelled') {
@@ -323,7 +331,7 @@ export async function listRequests(db: DbOrTx, filter: { ids?: number[]; status?
 		status: r.status,
 		quantity: r.quantity,
 		receivedQuantity: r.receivedQuantity,
-		unitPrice: r.unitPriceMinor,
+		unitPrice: toMajor(r.unitPriceMinor),
 		currency: r.currency,
 		leadTimeDays: r.leadTimeDays,
 		orderReference: r.orderReference,

@@ -52,8 +52,31 @@ export interface SuggestionInput extends StockFigures {
  * An order-up-to rule with lead-time demand: common practice, no source.
  */
 export function suggestedQuantity(s: SuggestionInput): number {
+	return suggestionSteps(s).suggested;
+}
+
+/** The figures of `suggestedQuantity`, step by step (the board shows them). */
+export function suggestionSteps(s: SuggestionInput) {
 	const daily = s.usageDays > 0 ? Math.max(0, s.usage) / s.usageDays : 0;
 	const leadDemand = Math.ceil(daily * Math.max(0, s.leadTimeDays ?? 0) - 1e-9);
 	const need = s.reorderPoint + 1 - (s.onHand - s.reserved) + leadDemand;
-	return Math.max(0, Math.max(need, s.reorderQuantity) - Math.max(0, s.onOrder));
+	const target = Math.max(need, s.reorderQuantity);
+	const onOrder = Math.max(0, s.onOrder);
+	return { leadDemand, need, target, onOrder, suggested: Math.max(0, target - onOrder) };
+}
+
+/**
+ * The arithmetic behind a suggestion in words, e.g. "reorder point 2 + 1 − (3 usable − 1 reserved)
+ * + 0 used in the lead time = 1; at least the reorder quantity 4; − 0 on order = 4". Only usable units
+ * count: quarantined and damaged ones are named, as not counted, when there are any.
+ */
+export function explainSuggestion(s: SuggestionInput & { quarantine?: number; damaged?: number }): string {
+	const x = suggestionSteps(s);
+	const parts = [`reorder point ${s.reorderPoint} + 1 − (${s.onHand} usable − ${s.reserved} reserved) + ${x.leadDemand} used in the lead time = ${x.need}`];
+	const lifted = s.reorderQuantity > 0 && s.reorderQuantity > x.need;
+	if (lifted) parts.push(`at least the reorder quantity ${s.reorderQuantity}`);
+	const raw = (lifted ? s.reorderQuantity : x.need) - x.onOrder;
+	parts.push(`− ${x.onOrder} on order = ${x.suggested}${raw < 0 ? ' (not below 0)' : ''}`);
+	const aside = [s.quarantine ? `${s.quarantine} in quarantine` : '', s.damaged ? `${s.damaged} damaged` : ''].filter(Boolean);
+	return parts.join('; ') + (aside.length ? ` (${aside.join(' and ')} not counted)` : '');
 }

@@ -15,6 +15,7 @@ import { getSetup, type SetupView } from '$lib/server/solver/setups';
 import { totalsFor } from '$lib/server/stock/availability';
 import type { AnySolution } from '$lib/solver/types';
 import { bestSinglePurchase, shortfalls, unitsNeeded, type Shortfall } from './unlocks';
+import { toMajor } from '$lib/money';
 
 /** Solutions the search returns for the unlock (the solver's own upper limit). */
 const SEARCH_LIMIT = 50;
@@ -30,6 +31,7 @@ export interface PurchaseOffer {
 	name: string;
 	/** Units to buy. */
 	quantity: number;
+	/** Currency units (38.5). */
 	unitPrice: number | null;
 	currency: string;
 	supplier: string | null;
@@ -126,16 +128,25 @@ async function offers(db: DbOrTx, short: readonly Shortfall[]): Promise<Purchase
 	return short.flatMap((s) => {
 		const r = byId.get(s.partId);
 		if (!r) return [];
-		return [{ partId: s.partId, sku: r.p.sku, name: r.p.name, quantity: s.missing, unitPrice: r.p.unitPriceMinor, currency: r.p.currency, supplier: r.supplier, leadTimeDays: r.p.leadTimeDays }];
+		return [{ partId: s.partId, sku: r.p.sku, name: r.p.name, quantity: s.missing, unitPrice: toMajor(r.p.unitPriceMinor), currency: r.p.currency, supplier: r.supplier, leadTimeDays: r.p.leadTimeDays }];
 	});
 }
 
-/** Runs the search for `question` over the catalogue and picks the best single purchase. */
-export async function unlockForQuestion(db: DbOrTx, question: Record<string, unknown>, user: { id: number }, signal?: AbortSignal): Promise<UnlockAnswer> {
+/**
+ * Runs the search for `question` over the catalogue and picks the best single purchase. `held`: units
+ * that count as available on top of stock (a saved setup's own active reservations, kept for it).
+ */
+export async function unlockForQuestion(
+	db: DbOrTx,
+	question: Record<string, unknown>,
+	user: { id: number },
+	signal?: AbortSignal,
+	held: ReadonlyMap<number, number> = new Map()
+): Promise<UnlockAnswer> {
 	const res = await solver.solve(db, { ...question, availableOnly: false, limit: SEARCH_LIMIT }, user, signal);
 	const view = await stockView(db);
 	const available = new Map(view.parts.map((p) => [p.partId, p.available]));
-	const avail = (id: number) => available.get(id) ?? 0;
+	const avail = (id: number) => (available.get(id) ?? 0) + (held.get(id) ?? 0);
 	const solutions: readonly AnySolution[] = res.solutions;
 	const fromStock = solutions.find((s) => shortfalls(s.elements, avail).length === 0) ?? null;
 	const best = bestSinglePurchase(solutions, avail);
@@ -159,8 +170,7 @@ export async function setupShortfall(db: DbOrTx, setup: Pick<SetupView, 'solutio
 		ids.length ? db.select({ id: parts.id, archivedAt: parts.archivedAt }).from(parts).where(inArray(parts.id, ids)) : []
 	]);
 	const gone = new Set(archived.filter((p) => p.archivedAt).map((p) => p.id));
-	const held = new Map<number, number>();
-	for (const r of setup.reservations) if (r.state === 'active') held.set(r.partId, (held.get(r.partId) ?? 0) + r.quantity);
+	const held = heldBy(setup);
 	const availableTo = (id: number) => (gone.has(id) ? 0 : (totals.get(id)?.available ?? 0) + (held.get(id) ?? 0));
 	const short = shortfalls(setup.solution.elements, availableTo);
 	const need = unitsNeeded(setup.solution.elements);
@@ -171,10 +181,20 @@ export async function setupShortfall(db: DbOrTx, setup: Pick<SetupView, 'solutio
 	});
 }
 
-/** The unlock of a saved setup: its own shortfall, and the solver's best single purchase for its question. */
+/** Units the setup's own active reservations hold, by part. */
+function heldBy(setup: Pick<SetupView, 'reservations'>): Map<number, number> {
+	const held = new Map<number, number>();
+	for (const r of setup.reservations) if (r.state === 'active') held.set(r.partId, (held.get(r.partId) ?? 0) + r.quantity);
+	return held;
+}
+
+/**
+ * The unlock of a saved setup: its own shortfall, and the solver's best single purchase for its
+ * question, both with the units its own reservations hold counted as available to it.
+ */
 export async function unlockForSetup(db: DbOrTx, setupId: number, user: { id: number }, signal?: AbortSignal): Promise<UnlockAnswer> {
 	const setup = await getSetup(db, setupId);
 	const short = await setupShortfall(db, setup);
-	const answer = await unlockForQuestion(db, setup.query as unknown as Record<string, unknown>, user, signal);
+	const answer = await unlockForQuestion(db, setup.query as unknown as Record<string, unknown>, user, signal, heldBy(setup));
 	return { ...answer, setupBuildable: short.length === 0, setupShort: short };
 }

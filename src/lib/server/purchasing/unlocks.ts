@@ -68,8 +68,10 @@ export interface SetupRef {
 /**
  * Per part: the saved setups that cannot be built now and that buying this one part would
  * unlock (from each setup's saved solution), and the setups that use the part at all.
+ * `available(partId, setupId)` is what the setup may use: available stock plus the units its own
+ * active reservations hold (kept for it, so a fully reserved setup is buildable and unlocks nothing).
  */
-export function setupIndex(setups: readonly SetupRef[], available: (partId: number) => number) {
+export function setupIndex(setups: readonly SetupRef[], available: (partId: number, setupId: number) => number) {
 	const using = new Map<number, number[]>();
 	const unlocking = new Map<number, { setupId: number; name: string; missing: number }[]>();
 	for (const s of setups) {
@@ -78,7 +80,7 @@ export function setupIndex(setups: readonly SetupRef[], available: (partId: numb
 			list.push(s.id);
 			using.set(partId, list);
 		}
-		const p = singlePurchase(s.elements, available);
+		const p = singlePurchase(s.elements, (partId) => available(partId, s.id));
 		if (p) {
 			const list = unlocking.get(p.partId) ?? [];
 			list.push({ setupId: s.id, name: s.name, missing: p.missing });

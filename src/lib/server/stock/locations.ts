@@ -3,12 +3,12 @@
  * (upper-case letters and digits in segments joined by '-'); the name says what lives there.
  * A location that still holds stock cannot be archived.
  */
-import { and, asc, eq, gt, isNull, sql } from 'drizzle-orm';
+import { and, asc, desc, eq, gt, isNull, sql } from 'drizzle-orm';
 import { z } from 'zod';
 import { text } from '$lib/input';
 import type { DbOrTx } from '$lib/server/db';
 import { inTransaction } from '$lib/server/db/transaction';
-import { locations, parts, stock } from '$lib/server/db/schema';
+import { locations, movements, parts, stock } from '$lib/server/db/schema';
 import { DomainError } from '$lib/server/api/http';
 import { recordAudit } from '$lib/server/audit';
 
@@ -117,4 +117,28 @@ export async function stockRows(db: DbOrTx, filter: { locationId?: number; partI
 		.orderBy(asc(locations.code), asc(parts.sku), asc(stock.condition))
 		.limit(5000);
 	return rows;
+}
+
+/**
+ * The part's drawer: the (not archived) location holding most of its units now, else the one it was
+ * last received into (a part out of stock still has its place); null for a part never stocked.
+ */
+export async function homeLocationOf(db: DbOrTx, partId: number): Promise<number | null> {
+	const [held] = await db
+		.select({ id: stock.locationId, q: sql<string>`sum(${stock.quantity})` })
+		.from(stock)
+		.innerJoin(locations, eq(locations.id, stock.locationId))
+		.where(and(eq(stock.partId, partId), gt(stock.quantity, 0), isNull(locations.archivedAt)))
+		.groupBy(stock.locationId)
+		.orderBy(desc(sql`sum(${stock.quantity})`), asc(stock.locationId))
+		.limit(1);
+	if (held) return held.id;
+	const [last] = await db
+		.select({ id: movements.toLocationId })
+		.from(movements)
+		.innerJoin(locations, eq(locations.id, movements.toLocationId))
+		.where(and(eq(movements.partId, partId), isNull(locations.archivedAt)))
+		.orderBy(desc(movements.at), desc(movements.id))
+		.limit(1);
+	return last?.id ?? null;
 }

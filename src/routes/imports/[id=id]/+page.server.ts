@@ -10,6 +10,9 @@ import { STOCK_EDITORS } from '$lib/server/auth/roles';
 import { appStore } from '$lib/server/files/store';
 import { fieldLabel, isLengthField, MAX_SURFACES, SCALAR_FIELDS, surfaceFields } from '$lib/server/imports/fields';
 import * as importsService from '$lib/server/imports/service';
+import { parseNumberCell } from '$lib/server/imports/rows';
+import type { Delimiter } from '$lib/server/imports/csv';
+import { formatMoney } from '$lib/money';
 
 function idOf(params: { id: string }): number {
 	if (!/^\d{1,12}$/.test(params.id)) error(404, { code: 'not-found', message: 'There is no such import.' });
@@ -42,7 +45,20 @@ export const load = (async (event) => {
 		label: fieldLabel(f),
 		unit: f === 'unitPrice' ? 'price' : isLengthField(f) ? 'length' : null
 	}));
-	return { report, preview, previewError, fields, editable };
+	// Each preview row's price as the import will read it, with its currency (issue 16).
+	const priceCol = report.header.indexOf(report.mapping.unitPrice ?? '');
+	const currencyCol = report.header.indexOf(report.mapping.currency ?? '');
+	const prices =
+		priceCol < 0
+			? null
+			: preview.map((row) => {
+					const raw = (row[priceCol] ?? '').trim();
+					if (!raw) return { raw, text: 'no price', ok: true };
+					const currency = (currencyCol >= 0 ? (row[currencyCol] ?? '').trim().toUpperCase() : '') || 'EUR';
+					const v = parseNumberCell(raw, 'unitPrice', report.units.unitPrice as 'major' | 'minor' | undefined, report.delimiter as Delimiter);
+					return typeof v === 'string' ? { raw, text: v, ok: false } : { raw, text: `${formatMoney(v, currency)} (${currency})`, ok: true };
+				});
+	return { report, preview, previewError, fields, editable, prices };
 }) satisfies PageServerLoad;
 
 function mappingFrom(form: FormData) {
@@ -62,11 +78,11 @@ export const actions = {
 		const id = idOf(event.params);
 		const values = mappingFrom(await event.request.formData());
 		try {
-			await importsService.saveMapping(db, id, values);
+			await importsService.saveMapping(db, id, values, appStore());
 			await importsService.beginRun(db, id, 'check');
 		} catch (err) {
 			if (err instanceof ZodError) return fail(400, { errors: zodFields(err), values });
-			if (err instanceof DomainError) return fail(err.status, { errors: { _: err.message }, values });
+			if (err instanceof DomainError) return fail(err.status, { errors: { _: err.message, ...(err.fields ?? {}) }, values });
 			throw err;
 		}
 		importsService.startRun(db, appStore(), id, 'check', user.id);

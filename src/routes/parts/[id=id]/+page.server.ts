@@ -118,7 +118,9 @@ export const actions = {
 		const input: Record<string, unknown> = { ...readForm(form, ['quantity', 'projectId'], ['until', 'note']), partId: idOf(event) };
 		// A date picked in the form means "to the end of that day" (UTC).
 		if (typeof input.until === 'string' && /^\d{4}-\d{2}-\d{2}$/.test(input.until)) input.until = `${input.until}T23:59:59Z`;
-		return guarded('reserve', form, () => reservations.createReservation(db, input, { id: user.id }));
+		const out = await guarded('reserve', form, () => reservations.createReservation(db, input, { id: user.id }));
+		// After reserving, the form keeps the project and date (the next reservation is often for the same project).
+		return 'ok' in out ? { ...out, values: { projectId: String(form.get('projectId') ?? ''), until: String(form.get('until') ?? '') } } : out;
 	},
 	release: async (event) => {
 		const user = requireRole(event, RESERVERS);

@@ -9,7 +9,7 @@ import * as requests from '$lib/server/purchasing/requests';
 import { patchAndNotify } from '$lib/server/purchasing/service';
 import { REQUEST_VIEWERS } from '$lib/server/purchasing/roles';
 import { STATUS_LABELS } from '$lib/server/purchasing/states';
-import { listLocations } from '$lib/server/stock/locations';
+import { homeLocationOf, listLocations } from '$lib/server/stock/locations';
 import type { SignedInUser } from '$lib/server/auth/guard';
 
 function requestId(raw: string): number {
@@ -31,6 +31,8 @@ export const load = (async (event) => {
 		request,
 		labels: STATUS_LABELS,
 		locations: (await listLocations(db)).map((l) => ({ id: l.id, code: l.code, name: l.name })),
+		/** Receiving preselects the part's drawer. */
+		homeLocationId: await homeLocationOf(db, request.partId),
 		mayManage: PURCHASERS.includes(user.role)
 	};
 }) satisfies PageServerLoad;
@@ -82,7 +84,7 @@ export const actions = {
 		const f = await event.request.formData();
 		const values = { quantity: text(f.get('quantity')), unitPrice: text(f.get('unitPrice')) };
 		const price = values.unitPrice.trim();
-		const cents = /^\d+(\.\d{1,2})?$/.test(price) ? Math.round(Number(price) * 100) : price === '' ? null : NaN;
-		return change(event, user, 'edit', { quantity: int(f.get('quantity')), unitPrice: cents }, values);
+		const major = /^\d+(\.\d{1,2})?$/.test(price) ? Number(price) : price === '' ? null : NaN;
+		return change(event, user, 'edit', { quantity: int(f.get('quantity')), unitPrice: major }, values);
 	}
 } satisfies Actions;

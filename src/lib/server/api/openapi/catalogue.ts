@@ -29,7 +29,7 @@ const partFields = {
 	coating: nstr,
 	supplier: { ...nstr, description: 'supplier name (a new name creates the supplier)' },
 	supplierPartNumber: nstr,
-	unitPrice: { type: ['integer', 'null'], description: 'integer minor units (cents) of currency' },
+	unitPrice: { type: ['number', 'null'], multipleOf: 0.01, minimum: 0, description: 'currency units of `currency`, at most two decimals (38.50); the same in the CSV export and import' },
 	currency: { type: 'string', description: 'ISO 4217' },
 	leadTimeDays: { type: ['integer', 'null'] },
 	reorderPoint: int,

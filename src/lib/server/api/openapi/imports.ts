@@ -66,6 +66,34 @@ const multipartFile = (extra: Record<string, unknown> = {}, description = 'The f
 	}
 });
 
+const stockTakeResult = {
+	type: 'object',
+	properties: {
+		dryRun: { type: 'boolean' },
+		countedOn: { type: 'string', description: 'the count date ("3 Dec 2026")' },
+		lines: {
+			type: 'array',
+			items: {
+				type: 'object',
+				properties: {
+					row: { type: 'integer' },
+					locationId: { type: 'integer' },
+					locationCode: { type: 'string' },
+					partId: { type: 'integer' },
+					sku: { type: 'string' },
+					name: { type: 'string' },
+					condition: { type: 'string', enum: ['usable', 'quarantine', 'damaged'] },
+					booked: { type: 'integer' },
+					counted: { type: 'integer' },
+					difference: { type: 'integer', description: 'counted − booked' }
+				}
+			}
+		},
+		totals: { type: 'object', properties: { lines: { type: 'integer' }, differences: { type: 'integer' }, unitsFound: { type: 'integer' }, unitsMissing: { type: 'integer' } } },
+		movements: { type: 'array', items: { type: 'integer' } }
+	}
+};
+
 const csvResponse = (description: string) => ({ description, content: { 'text/csv': { schema: { type: 'string' } } } });
 
 export const importsPaths: OpenApiPaths = {
@@ -88,7 +116,7 @@ export const importsPaths: OpenApiPaths = {
 				{
 					supplier: { type: 'string', description: 'Supplier name for rows without their own' },
 					mapping: { type: 'string', description: 'JSON: Glasscrib field → column name' },
-					units: { type: 'string', description: 'JSON: length field → "mm" | "in"; unitPrice → "minor" (cents) | "major"' },
+					units: { type: 'string', description: 'JSON: length field → "mm" | "in"; unitPrice → "major" (currency units, 38.50) | "minor" (cents, 3850). Without it the header decides (`unitPrice`, a currency name: currency units; `unitPriceMinor`, "cents": cents), else the values (any with decimals: currency units); a price column whose unit cannot be told is refused (400, units.unitPrice)' },
 					skuPrefix: { type: 'string', description: 'New parts without a SKU get prefix + supplier part number' },
 					skipRejected: { type: 'boolean' },
 					dryRun: { type: 'boolean' }
@@ -142,8 +170,8 @@ export const importsPaths: OpenApiPaths = {
 	},
 	'/datasheets/{id}': {
 		get: {
-			summary: 'Download a datasheet (streamed, as an attachment)',
-			parameters: [idParam('Datasheet id')],
+			summary: 'Download a datasheet (streamed, as an attachment), or view it inline with ?view=inline (browser viewer, sandbox CSP)',
+			parameters: [idParam('Datasheet id'), { name: 'view', in: 'query', required: false, schema: { type: 'string', enum: ['inline'] } }],
 			responses: { '200': { description: 'The bytes', content: { 'application/octet-stream': { schema: { type: 'string', format: 'binary' } } } }, ...errors(400, 401, 404, 503) }
 		},
 		delete: { summary: 'Delete a datasheet and its stored file', parameters: [idParam('Datasheet id')], responses: { '204': { description: 'Deleted' }, ...errors(400, 401, 403, 404, 503) } }
@@ -153,6 +181,21 @@ export const importsPaths: OpenApiPaths = {
 			summary: 'The PNG thumbnail of a photo',
 			parameters: [idParam('Datasheet id')],
 			responses: { '200': { description: 'PNG', content: { 'image/png': { schema: { type: 'string', format: 'binary' } } } }, ...errors(400, 401, 404, 503) }
+		}
+	},
+	'/stock-takes': {
+		post: {
+			summary: 'Stock take from a counted CSV (admin, stockroom)',
+			description:
+				'Columns `locationCode, sku, condition, quantity` (condition may be empty: usable; quantity ≥ 0). The dry run answers each line with booked, counted and difference. ' +
+				'The commit writes one `adjust` movement per difference with the reason "stock take" and the count date in the note, all in one transaction (part rows locked, booked figures read again under the locks). ' +
+				'Any refused line (unknown location or SKU, archived part, a line given twice, a bad count): 400 `invalid-lines` listing every refused line, nothing written.',
+			requestBody: multipartFile({ dryRun: { type: 'boolean', description: 'true: compare only, write nothing' } }, 'The count (CSV, UTF-8)'),
+			responses: {
+				'200': jsonResponse('Dry run: the comparison', stockTakeResult),
+				'201': jsonResponse('Committed: the comparison and the movement ids written', stockTakeResult),
+				...errors(400, 401, 403, 413)
+			}
 		}
 	},
 	'/datasheets/match': {

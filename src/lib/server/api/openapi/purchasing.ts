@@ -4,6 +4,8 @@ import { errors, jsonBody, jsonResponse } from './types';
 
 const int = { type: 'integer' };
 const nint = { type: ['integer', 'null'] };
+/** One unit per name: `unitPrice` is always currency units with at most two decimals. */
+const price = { type: ['number', 'null'], multipleOf: 0.01, minimum: 0, description: 'currency units of `currency`, at most two decimals (38.50)' };
 const nstr = { type: ['string', 'null'] };
 const statuses = ['draft', 'requested', 'ordered', 'partly-received', 'received', 'closed', 'cancelled'];
 
@@ -15,17 +17,20 @@ const boardRow = {
 		name: { type: 'string' },
 		supplier: nstr,
 		supplierPartNumber: nstr,
-		unitPrice: { ...nint, description: 'minor units (cents) of currency' },
+		unitPrice: price,
 		currency: { type: 'string' },
 		leadTimeDays: nint,
 		reorderPoint: int,
 		reorderQuantity: int,
-		onHand: int,
+		onHand: { ...int, description: 'usable units on hand (only these count)' },
+		quarantine: { ...int, description: 'units waiting for inspection (not counted as on hand)' },
+		damaged: { ...int, description: 'damaged units (not counted as on hand)' },
 		reserved: int,
 		available: int,
 		usage90d: { ...int, description: 'issued + scrapped − returned over the last 90 days (ledger)' },
 		onOrder: { ...int, description: 'units on open requests, not yet received' },
 		suggestedQuantity: int,
+		suggestion: { type: 'string', description: 'the arithmetic behind suggestedQuantity, in words' },
 		flag: { type: ['string', 'null'], enum: ['reorder-point', 'over-reserved', null] },
 		flaggedSince: { type: ['string', 'null'], format: 'date-time' },
 		setupsUsing: int,
@@ -45,7 +50,7 @@ const request = {
 		status: { type: 'string', enum: statuses },
 		quantity: int,
 		receivedQuantity: int,
-		unitPrice: nint,
+		unitPrice: price,
 		currency: { type: 'string' },
 		leadTimeDays: nint,
 		orderReference: nstr,
@@ -83,14 +88,14 @@ const createInput = {
 		partId: int,
 		quantity: { ...int, minimum: 1, maximum: 100000 },
 		status: { type: 'string', enum: ['draft', 'requested'], default: 'draft' },
-		unitPrice: { ...nint, description: 'minor units; default: the part’s price' },
+		unitPrice: { ...price, description: 'currency units (38.50); default: the part’s price' },
 		note: nstr
 	}
 };
 
 const offer = {
 	type: 'object',
-	properties: { partId: int, sku: { type: 'string' }, name: { type: 'string' }, quantity: int, unitPrice: nint, currency: { type: 'string' }, supplier: nstr, leadTimeDays: nint }
+	properties: { partId: int, sku: { type: 'string' }, name: { type: 'string' }, quantity: int, unitPrice: price, currency: { type: 'string' }, supplier: nstr, leadTimeDays: nint }
 };
 const brief = {
 	type: 'object',
@@ -134,7 +139,7 @@ export const purchasingPaths: OpenApiPaths = {
 			],
 			responses: {
 				'200': {
-					description: 'CSV (UTF-8 with BOM): sku, name, supplier, supplierPartNumber, quantity, unitPrice (major units), currency, leadTimeDays, onHand, available, reorderPoint',
+					description: 'CSV (UTF-8 with BOM): sku, name, supplier, supplierPartNumber, quantity, unitPrice (currency units, 38.50), currency, leadTimeDays, onHand, available, reorderPoint',
 					content: { 'text/csv': { schema: { type: 'string' } } }
 				},
 				...errors(400, 401, 403)
@@ -197,7 +202,7 @@ export const purchasingPaths: OpenApiPaths = {
 				properties: {
 					status: { type: 'string', enum: statuses },
 					quantity: { ...int, minimum: 1 },
-					unitPrice: nint,
+					unitPrice: price,
 					orderReference: nstr,
 					receive: {
 						type: 'object',

@@ -59,7 +59,7 @@ export const POST = endpoint(async (event) => {
 			units: units ?? (mapping ? {} : created.suggestion.units),
 			skuPrefix: fields.skuPrefix ?? '',
 			skipRejected: flag(fields, 'skipRejected')
-		});
+		}, store);
 		const mode = flag(fields, 'dryRun') ? 'check' : 'commit';
 		const outcome = await importsService.runNow(db, store, created.id, mode, user.id);
 		const report = await importsService.getReport(db, created.id, 1000);

@@ -37,7 +37,7 @@ function patchFrom(values: Record<string, string>): Record<string, unknown> {
 		reorderQuantity: int(values.reorderQuantity) ?? 0,
 		supplier: values.supplier.trim() || null,
 		supplierPartNumber: values.supplierPartNumber.trim() || null,
-		unitPrice: price === '' ? null : /^\d+(\.\d{1,2})?$/.test(price) ? Math.round(Number(price) * 100) : NaN,
+		unitPrice: price === '' ? null : /^\d+(\.\d{1,2})?$/.test(price) ? Number(price) : NaN,
 		currency: values.currency.trim().toUpperCase(),
 		leadTimeDays: int(values.leadTimeDays)
 	};

@@ -2,7 +2,7 @@ import { Readable } from 'node:stream';
 import { z } from 'zod';
 import type { RequestHandler } from './$types';
 import { db } from '$lib/server/db';
-import { endpoint } from '$lib/server/api/http';
+import { ApiError, endpoint } from '$lib/server/api/http';
 import { requireRole } from '$lib/server/auth/guard';
 import { ANY_ROLE, STOCK_EDITORS } from '$lib/server/auth/roles';
 import * as datasheets from '$lib/server/files/datasheets';
@@ -10,11 +10,16 @@ import { appStore } from '$lib/server/files/store';
 
 const params = z.object({ id: z.coerce.number().int().positive() });
 
-/** Streams the file to a signed-in user, as an attachment that the browser never renders as a page. */
+/**
+ * Streams the file to a signed-in user: as an attachment, or with `?view=inline` shown in the browser's
+ * own viewer. Either way under `default-src 'none'; sandbox` and nosniff, so it never runs as a page of ours.
+ */
 export const GET = endpoint(async (event) => {
 	requireRole(event, ANY_ROLE);
 	const { id } = params.parse(event.params);
-	const { object, headers } = await datasheets.openDatasheet(db, appStore(), id);
+	const view = event.url.searchParams.get('view');
+	if (view !== null && view !== 'inline') throw new ApiError(400, 'invalid-input', 'view is "inline" or absent.', { view: 'Use view=inline.' });
+	const { object, headers } = await datasheets.openDatasheet(db, appStore(), id, 'file', view === 'inline' ? 'inline' : 'attachment');
 	return new Response(Readable.toWeb(object.body) as ReadableStream, { headers });
 }) satisfies RequestHandler;
 
