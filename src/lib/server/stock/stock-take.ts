@@ -13,7 +13,9 @@
  */
 import { and, eq, inArray, isNull } from 'drizzle-orm';
 import { z } from 'zod';
+import { text } from '$lib/input';
 import type { DbOrTx } from '$lib/server/db';
+import { inTransaction } from '$lib/server/db/transaction';
 import { CONDITIONS, locations, parts, stock, type Condition } from '$lib/server/db/schema';
 import { DomainError } from '$lib/server/api/http';
 import { formatDate } from '$lib/format';
@@ -26,8 +28,8 @@ export const MAX_LINES = 5000;
 
 const lineSchema = z
 	.object({
-		locationCode: z.string().trim().min(1, 'Give the location code.').max(40),
-		sku: z.string().trim().min(1, 'Give the SKU.').max(40),
+		locationCode: text().trim().min(1, 'Give the location code.').max(40),
+		sku: text().trim().min(1, 'Give the SKU.').max(40),
 		condition: z.preprocess((v) => (typeof v === 'string' && v.trim() === '' ? 'usable' : typeof v === 'string' ? v.trim().toLowerCase() : v), z.enum(CONDITIONS, { error: 'usable, quarantine or damaged.' })),
 		quantity: z.preprocess(
 			(v) => (typeof v === 'string' ? (v.trim() === '' ? Number.NaN : Number(v.trim())) : v),
@@ -150,7 +152,7 @@ export async function stockTake(
 		const lines = compare(resolved, await booked(db, [...new Set(resolved.map((l) => l.partId))]));
 		return { dryRun: true, countedOn, lines, totals: summarise(lines), movements: [] };
 	}
-	return db.transaction(async (tx) => {
+	return inTransaction(db, async (tx) => {
 		const resolved = await resolve(tx, input, rowOf);
 		const ids = [...new Set(resolved.map((l) => l.partId))].sort((a, b) => a - b);
 		// Lock every counted part first (id order, like every stock operation), then read the books under the locks.
