@@ -133,7 +133,7 @@ describe('catalogue and stock in Chromium (stockroom)', () => {
 		expect(efl).toBeLessThan(123.5);
 		await expect(page.locator('[data-testid=abcd]').count()).resolves.toBe(1);
 		// Nothing on the shelf yet: the stock operations open on receive.
-		await expect(page.locator('[data-testid=stock-totals]').innerText()).resolves.toMatch(/^0 on hand/);
+		await expect(page.locator('[data-testid=stock-totals]').innerText()).resolves.toMatch(/^0 usable · 0 available/);
 		await expect(page.locator('button[role=tab][aria-selected=true]').innerText()).resolves.toBe('receive');
 		// The lens drawing fills its box's height and sits in the middle of it.
 		const fig = (await page.locator('[data-testid=lens-figure]').boundingBox())!;
@@ -149,7 +149,7 @@ describe('catalogue and stock in Chromium (stockroom)', () => {
 		await form.locator('select[name=locationId]').selectOption({ index: 1 });
 		await form.locator('input[name=note]').fill('E2E delivery');
 		await Promise.all([page.waitForResponse((r) => r.url().includes('receive')), form.locator('button:has-text("Receive")').click()]);
-		await page.locator('[data-testid=stock-totals]', { hasText: '4 on hand · 4 available' }).waitFor();
+		await page.locator('[data-testid=stock-totals]', { hasText: '4 usable · 4 available' }).waitFor();
 		await expect(page.locator('[data-testid=ledger]').innerText()).resolves.toContain('E2E delivery');
 		// Dates read the same on every page: "2 Dec 2026, 04:46".
 		await expect(page.locator('[data-testid=ledger] tbody tr:first-child td:first-child').innerText()).resolves.toMatch(/^\d{1,2} [A-Z][a-z]{2} \d{4}, \d{2}:\d{2}$/);

@@ -109,7 +109,9 @@ const QUERY_VALUES = [
 	'https://evil.example/',
 	'javascript:alert(1)'
 ];
-const PATH_VALUES = ['%201', '1%20', '0x10', '1e3', '01', '-1', '0', '1.5', '+1', '99999999999999999999999', '%00', '1%00', '..%2F..%2Fetc%2Fpasswd', '%2e%2e', 'NaN', 'Infinity', '%ED%A0%80', '%FF', "1'%20OR%20'1'%3D'1", '%3Cscript%3E', '1,2', '1;2', '[1]'];
+// Not '%2e%2e' alone: the URL parser (client and server alike) reads it as '..' and sends the parent path, so it
+// never reaches the route's parameter (a POST there meets SvelteKit's trailing-slash 308 instead).
+const PATH_VALUES = ['%201', '1%20', '0x10', '1e3', '01', '-1', '0', '1.5', '+1', '99999999999999999999999', '%00', '1%00', '..%2F..%2Fetc%2Fpasswd', 'NaN', 'Infinity', '%ED%A0%80', '%FF', "1'%20OR%20'1'%3D'1", '%3Cscript%3E', '1,2', '1;2', '[1]'];
 
 export function resolve(schema: Schema | undefined, doc: { components?: { schemas?: Record<string, Schema> } }, depth = 0): Schema {
 	if (!schema || depth > 8) return {};
