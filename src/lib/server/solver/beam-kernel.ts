@@ -371,8 +371,14 @@ function rootMax(k: number, lo: number, hi: number): number {
  */
 interface ColumnLevel {
 	zMax: number;
-	/** cols are grouped by their clearance class as second part (cls2: 0, 1, 2); class g runs from classStart[g] to classStart[g + 1]. */
-	classStart: Int32Array;
+	/**
+	 * cols are grouped by their clearance class as second part (cls2: 0, 1, 2), then by the first
+	 * cap of `caps` at or above their largest Rayleigh range z₂hi (index j); group (g, j) runs from
+	 * segStart[g·caps.length + j] to the next entry.
+	 */
+	segStart: Int32Array;
+	/** The caps of the Rayleigh range shared by all levels (the last is ∞). */
+	caps: number[];
 	cols: Int32Array;
 	bound: Float64Array;
 	part: Int32Array;
@@ -402,6 +408,13 @@ function columnLevels(col: number[], cls2: Int8Array, z2lo: Float64Array, z2hi: 
 	const caps: number[] = [];
 	if (zLo < zHi) for (let j = 0; j < COLUMN_LEVELS; j++) caps.push(zLo * Math.pow(zHi / zLo, (j + 1) / COLUMN_LEVELS));
 	caps.push(Infinity);
+	const nb = caps.length;
+	const hb = new Int32Array(F.length);
+	for (const k of col) {
+		let j = 0;
+		while (!(z2hi[k] <= caps[j])) j++;
+		hb[k] = j;
+	}
 	const share = new Float64Array(F.length);
 	return caps.map((zMax) => {
 		for (const k of col) {
@@ -409,11 +422,11 @@ function columnLevels(col: number[], cls2: Int8Array, z2lo: Float64Array, z2hi: 
 			const kk = (F[k] * F[k]) / zt;
 			share[k] = z2lo[k] <= hi ? F[k] - rootMax(kk, z2lo[k], hi) - H1[k] + T[k] - roundingSlack(kk, F[k], H1[k], T[k]) : Infinity;
 		}
-		const order = col.slice().sort((x, y) => cls2[x] - cls2[y] || share[x] - share[y] || x - y);
-		const classStart = new Int32Array(4);
-		for (const k of order) classStart[cls2[k] + 1]++;
-		for (let g = 0; g < 3; g++) classStart[g + 1] += classStart[g];
-		return { zMax, classStart, cols: Int32Array.from(order), bound: Float64Array.from(order, (k) => share[k]), part: Int32Array.from(order, partOfK) };
+		const order = col.slice().sort((x, y) => cls2[x] - cls2[y] || hb[x] - hb[y] || share[x] - share[y] || x - y);
+		const segStart = new Int32Array(3 * nb + 1);
+		for (const k of order) segStart[cls2[k] * nb + hb[k] + 1]++;
+		for (let x = 0; x < 3 * nb; x++) segStart[x + 1] += segStart[x];
+		return { zMax, segStart, caps, cols: Int32Array.from(order), bound: Float64Array.from(order, (k) => share[k]), part: Int32Array.from(order, partOfK) };
 	});
 }
 
@@ -481,6 +494,7 @@ function sweepPairs(
 	const kCls = kOn ? kth![1] : -1,
 		kLen = kOn ? kth![2] : Infinity;
 	const pruneCols = beamKernelOptions.columnPruning;
+	const rowBoundAt = new Float64Array(levels[0].caps.length);
 	if (pruneCols && Number.isFinite(capacity)) {
 		// Starting cap from a sample of the rows (every SAMPLE_STRIDE-th): the bin where the sample's
 		// pairs, scaled up, fill half the buffer. Any cap is exact (the bins after it are swept
@@ -537,7 +551,7 @@ function sweepPairs(
 		// column of the class can go to the buffer. The limits only fall during the sweep, so taking
 		// them at the row's start is safe.
 		let level = levels[levels.length - 1];
-		let rowBound = 0;
+		const nb = levels[0].caps.length;
 		if (pruneCols) {
 			// The pair's Rayleigh range is at most b1: the first level that covers b1.
 			for (const l of levels)
@@ -546,20 +560,31 @@ function sweepPairs(
 					break;
 				}
 			const kRow = (f1 * f1) / z0;
-			rowBound = f1 - rootMax(kRow, a1, b1) + h21 + t1 - roundingSlack(kRow, f1, h21, t1);
+			// The first part's half, with the pair's Z also at most the group's cap (z₂hi ≤ cap); ∞ when
+			// the group's columns all lie below a1 (no overlap).
+			const caps = level.caps;
+			for (let j = 0; j < nb; j++) {
+				const top = caps[j] < b1 ? caps[j] : b1;
+				rowBoundAt[j] = a1 <= top ? f1 - rootMax(kRow, a1, top) + h21 + t1 - roundingSlack(kRow, f1, h21, t1) : Infinity;
+			}
 		}
 		const cols = level.cols,
 			partOfCol = level.part,
 			colBound = level.bound;
-		for (let g = 0; g < 3; g++) {
-			let m0 = level.classStart[g],
-				colEnd = level.classStart[g + 1];
+		for (let seg = 0; seg < 3 * nb; seg++) {
+			const g = Math.floor(seg / nb);
+			let m0 = level.segStart[seg],
+				colEnd = level.segStart[seg + 1];
+			if (m0 === colEnd) continue;
 			if (pruneCols) {
+				const rowBound = rowBoundAt[seg - g * nb];
+				if (rowBound === Infinity) continue;
 				const c = c1 < g ? c1 : g;
 				const limit = c < kCls ? -Infinity : c === kCls ? Math.min(capLen[c], kLen * (1 + 1e-9) + 1e-9) : capLen[c];
 				if (!(limit > 0)) continue;
-				if (limit !== Infinity) {
-					const edge = limit - rowBound + 1e-7 * (1 + Math.abs(limit) + Math.abs(rowBound));
+				{
+					// With no length limit, still stop at the columns whose Rayleigh interval lies above this level (bound ∞: no overlap).
+					const edge = limit === Infinity ? Number.MAX_VALUE : limit - rowBound + 1e-7 * (1 + Math.abs(limit) + Math.abs(rowBound));
 					let lo = m0,
 						hi = colEnd;
 					while (lo < hi) {
