@@ -14,6 +14,8 @@ import { refractiveIndex, checkPairPhysical, type ThickElement } from '../../../
 import { zodFields } from '../../../src/lib/server/api/http';
 import type { BeamSolution } from '../../../src/lib/solver/types';
 import { syntheticStock } from '../../bench/_synthetic-stock';
+import { beamKernelOptions } from '../../../src/lib/server/solver/beam-kernel';
+import { mulberry32 } from '../../../src/lib/prng';
 
 let nextId = 1;
 /** An invented singlet (R1, R2 in mm; null = flat), glass 517642, in stock. */
@@ -229,6 +231,53 @@ describe('mode beam', () => {
 			expect(top.solutions.map(sig)).toEqual(full.solutions.slice(0, 7).map(sig));
 		}
 	}, 120_000);
+
+	it('the sorted-column cut changes no answer: same solutions with and without it on seeded random stocks and questions', async () => {
+		const rnd = mulberry32(20261203);
+		let compared = 0,
+			withAnswers = 0;
+		try {
+			for (const [count, seed] of [
+				[150, 11],
+				[300, 12],
+				[450, 13]
+			]) {
+				const big = stockOf(syntheticStock(count, seed));
+				for (let n = 0; n < 4; n++) {
+					const parsed = solveRequestSchema.safeParse({
+						mode: 'beam',
+						wavelengthNm: [532, 633, 1064][Math.floor(rnd() * 3)],
+						input: { waistDiameterMm: 0.3 + 3 * rnd(), waistPositionMm: -200 * rnd(), mSquared: 1 + 0.5 * rnd() },
+						target: { waistDiameterMm: 0.02 + 0.8 * rnd(), waistPositionMm: 150 + 250 * rnd() },
+						minGapMm: 0.5 + rnd(),
+						minWorkingDistanceMm: 2 + 8 * rnd(),
+						minClearance: 1 + rnd(),
+						limit: 1 + Math.floor(12 * rnd())
+					});
+					if (!parsed.success) continue;
+					const q = parsed.data as ParsedBeamRequest;
+					// Full buffer and a small one (several sweeps, each starting from the sampled cap).
+					for (const capacity of [1 << 16, 64]) {
+						beamKernelOptions.bufferCapacity = capacity;
+						beamKernelOptions.columnPruning = false;
+						const plain = await solveBeamWithStock(big, q, { inline: true });
+						beamKernelOptions.columnPruning = true;
+						const cut = await solveBeamWithStock(big, q, { inline: true });
+						expect(plain.stats.truncated || cut.stats.truncated).toBe(false);
+						expect(cut.solutions).toEqual(plain.solutions);
+						expect(cut.noAnswer).toEqual(plain.noAnswer);
+						compared++;
+						if (plain.solutions.some((s) => s.elements.length === 2)) withAnswers++;
+					}
+				}
+			}
+		} finally {
+			beamKernelOptions.columnPruning = true;
+			beamKernelOptions.bufferCapacity = 1 << 16;
+		}
+		expect(compared).toBeGreaterThanOrEqual(12);
+		expect(withAnswers).toBeGreaterThanOrEqual(8);
+	}, 300_000);
 
 	it('a question without an answer says why and shows the nearest miss with its figures', async () => {
 		const r = await solveBeamWithStock(stockOf([lens(103, -103, 3, 25.4)]), beamQ({ maxElements: 1, input: { waistDiameterMm: 2, waistPositionMm: -100 }, target: { waistDiameterMm: 0.004, waistPositionMm: 250 } }), {

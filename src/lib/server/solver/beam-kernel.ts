@@ -349,11 +349,92 @@ function lastRange(packed: Float64Array, p: BeamSearchParams, e: number): [numbe
 	return lo <= hi ? [lo, hi] : null;
 }
 
+/**
+ * Test switches. With `columnPruning` off, every row of a sweep visits every column and the sweep
+ * starts with no cap (the search before the sorted-column cut); tests compare the two, also with a
+ * small `bufferCapacity` (pairs a sweep keeps, 65,536) so that small stocks need several sweeps.
+ * Never changed outside tests.
+ */
+export const beamKernelOptions = { columnPruning: true, bufferCapacity: 1 << 16 };
+
+/** Largest √max(0, k·Z − Z²) over Z in [lo, hi]. */
+function rootMax(k: number, lo: number, hi: number): number {
+	rootRange(k, lo, hi, range1);
+	return range1[1];
+}
+
+/**
+ * The second parts for rows whose middle Rayleigh range is at most `zMax`: `cols` sorted by
+ * `bound` ascending, where bound is a lower bound of the second part's share of any such pair's
+ * length bound, f₂ − max √(k₂Z − Z²) over Z in [z₂lo, min(z₂hi, zMax)], − h₁ + t (see
+ * `pairLengthBound`); ∞ when that interval is empty (no pair with such a row). `part`: part index.
+ */
+interface ColumnLevel {
+	zMax: number;
+	/**
+	 * cols are grouped by their clearance class as second part (cls2: 0, 1, 2), then by the first
+	 * cap of `caps` at or above their largest Rayleigh range z₂hi (index j); group (g, j) runs from
+	 * segStart[g·caps.length + j] to the next entry.
+	 */
+	segStart: Int32Array;
+	/** The caps of the Rayleigh range shared by all levels (the last is ∞). */
+	caps: number[];
+	cols: Int32Array;
+	bound: Float64Array;
+	part: Int32Array;
+}
+
+/**
+ * How far a half of the sorted-column bound is lowered against rounding: √(k·Z − Z²) near a root of
+ * the parabola carries an error up to about √ε·k (ε = 2.2e-16) in this computation and in
+ * pairLengthBound alike, and the sums about ε times their terms; 1e-7·(1 + k + |f| + |h| + t) is
+ * several times both.
+ */
+const roundingSlack = (k: number, f: number, h: number, t: number): number => 1e-7 * (1 + k + Math.abs(f) + Math.abs(h) + Math.abs(t));
+
+/** Rows sampled for the sweep's starting cap: every SAMPLE_STRIDE-th. */
+const SAMPLE_STRIDE = 32;
+
+/** Levels of the sorted-column cut (geometric in zMax over the second parts' Rayleigh ranges), plus the unrestricted one. */
+const COLUMN_LEVELS = 16;
+
+function columnLevels(col: number[], cls2: Int8Array, z2lo: Float64Array, z2hi: Float64Array, F: Float64Array, H1: Float64Array, T: Float64Array, zt: number, partOfK: (k: number) => number): ColumnLevel[] {
+	let zLo = Infinity,
+		zHi = 0;
+	for (const k of col) {
+		if (z2lo[k] > 0 && z2lo[k] < zLo) zLo = z2lo[k];
+		if (z2hi[k] > zHi) zHi = z2hi[k];
+	}
+	const caps: number[] = [];
+	if (zLo < zHi) for (let j = 0; j < COLUMN_LEVELS; j++) caps.push(zLo * Math.pow(zHi / zLo, (j + 1) / COLUMN_LEVELS));
+	caps.push(Infinity);
+	const nb = caps.length;
+	const hb = new Int32Array(F.length);
+	for (const k of col) {
+		let j = 0;
+		while (!(z2hi[k] <= caps[j])) j++;
+		hb[k] = j;
+	}
+	const share = new Float64Array(F.length);
+	return caps.map((zMax) => {
+		for (const k of col) {
+			const hi = z2hi[k] < zMax ? z2hi[k] : zMax;
+			const kk = (F[k] * F[k]) / zt;
+			share[k] = z2lo[k] <= hi ? F[k] - rootMax(kk, z2lo[k], hi) - H1[k] + T[k] - roundingSlack(kk, F[k], H1[k], T[k]) : Infinity;
+		}
+		const order = col.slice().sort((x, y) => cls2[x] - cls2[y] || hb[x] - hb[y] || share[x] - share[y] || x - y);
+		const segStart = new Int32Array(3 * nb + 1);
+		for (const k of order) segStart[cls2[k] * nb + hb[k] + 1]++;
+		for (let x = 0; x < 3 * nb; x++) segStart[x + 1] += segStart[x];
+		return { zMax, segStart, caps, cols: Int32Array.from(order), bound: Float64Array.from(order, (k) => share[k]), part: Int32Array.from(order, partOfK) };
+	});
+}
+
 /** The arrays a sweep over the pairs reads. */
 interface SweepArrays {
 	rows: number[];
-	cols: Int32Array;
-	partOfCol: Int32Array;
+	/** The second parts in orders for the sorted-column cut, by `zMax` ascending; the last has zMax = ∞. */
+	levels: ColumnLevel[];
 	z1lo: Float64Array;
 	z1hi: Float64Array;
 	z2lo: Float64Array;
@@ -388,7 +469,7 @@ function sweepPairs(
 	deadline: number,
 	cancel: Int32Array | null
 ): { buf: Int32Array; bufBin: Int16Array; count: number; cap: number; truncated: boolean } {
-	const { rows, cols, partOfCol, z1lo, z1hi, z2lo, z2hi, F, H1, H2, T, cls1, cls2, partIndex, candidates, partUnits, seed, bestKeys } = a;
+	const { rows, levels, z1lo, z1hi, z2lo, z2hi, F, H1, H2, T, cls1, cls2, partIndex, candidates, partUnits, seed, bestKeys } = a;
 	let size = 1 << 12;
 	let buf: Int32Array = new Int32Array(size),
 		bufBin: Int16Array = new Int16Array(size);
@@ -404,7 +485,7 @@ function sweepPairs(
 		}
 	};
 	setCaps();
-	const ncols = cols.length;
+	const ncols = levels[levels.length - 1].cols.length;
 	// The K-th best key kept does not change during a sweep: read it once. An exact pair has the
 	// best efficiency key (1e6), so it is excluded when the K-th has 1e6 and a better class, or the
 	// same class and a shorter length (with the rounding margin of BestKeys.excludes).
@@ -412,6 +493,42 @@ function sweepPairs(
 	const kOn = kth !== null && kth[0] === 1e6;
 	const kCls = kOn ? kth![1] : -1,
 		kLen = kOn ? kth![2] : Infinity;
+	const pruneCols = beamKernelOptions.columnPruning;
+	const rowBoundAt = new Float64Array(levels[0].caps.length);
+	if (pruneCols && Number.isFinite(capacity)) {
+		// Starting cap from a sample of the rows (every SAMPLE_STRIDE-th): the bin where the sample's
+		// pairs, scaled up, fill half the buffer. Any cap is exact (the bins after it are swept
+		// later); a good one lets the sorted-column cut work from the first row on.
+		const hist = new Float64Array(RANK_BINS);
+		for (let r = 0; r < rows.length; r += SAMPLE_STRIDE) {
+			const k1 = rows[r];
+			const a1 = z1lo[k1],
+				b1 = z1hi[k1],
+				c1 = cls1[k1];
+			const cols = levels[levels.length - 1].cols;
+			for (let m = 0; m < ncols; m++) {
+				const k2 = cols[m];
+				const lo = a1 > z2lo[k2] ? a1 : z2lo[k2],
+					hi = b1 < z2hi[k2] ? b1 : z2hi[k2];
+				if (!(lo <= hi)) continue;
+				const c = c1 < cls2[k2] ? c1 : cls2[k2];
+				if (c < kCls) continue;
+				const len = pairLengthBound(F[k1], H1[k1], H2[k1], T[k1], F[k2], H1[k2], H2[k2], T[k2], z0, zt, lo, hi, minGapMm);
+				if (len === Infinity || (c === kCls && len > kLen * (1 + 1e-9) + 1e-9)) continue;
+				const b = rankBin(c, len);
+				if (b > fromBin) hist[b] += SAMPLE_STRIDE;
+			}
+		}
+		let sum = 0;
+		for (let b = fromBin + 1; b < RANK_BINS; b++) {
+			sum += hist[b];
+			if (sum >= capacity / 2) {
+				cap = b;
+				break;
+			}
+		}
+		setCaps();
+	}
 	for (let r = 0; r < rows.length; r++) {
 		if ((r & 15) === 0 && (Date.now() > deadline || (cancel !== null && Atomics.load(cancel, 0) !== 0))) return { buf, bufBin, count, cap, truncated: true };
 		const k1 = rows[r];
@@ -425,50 +542,82 @@ function sweepPairs(
 			part1 = partIndex[candidates[k1]];
 		const oneUnit = partUnits[part1] < 2;
 		const seeded = seed[k1] === 1;
-		for (let m = 0; m < ncols; m++) {
-			const k2 = cols[m];
-			const zlo2 = z2lo[k2],
-				zhi2 = z2hi[k2];
-			const lo = a1 > zlo2 ? a1 : zlo2,
-				hi = b1 < zhi2 ? b1 : zhi2;
-			if (!(lo <= hi)) continue;
-			if (oneUnit && partOfCol[m] === part1) continue;
-			if (seeded && seed[k2] === 1) continue;
-			const c2 = cls2[k2];
-			const c = c1 < c2 ? c1 : c2;
-			if (c < kCls) continue;
-			const lim = capLen[c];
-			if (lim === 0) continue;
-			const lenLim = c === kCls ? kLen * (1 + 1e-9) + 1e-9 : Infinity;
-			// No pair is shorter than its two thicknesses and the smallest gap.
-			if (t1 + T[k2] + minGapMm > lenLim) continue;
-			const len = pairLengthBound(f1, h11, h21, t1, F[k2], H1[k2], H2[k2], T[k2], z0, zt, lo, hi, minGapMm);
-			if (!(len < lim) || len > lenLim) continue;
-			const b = rankBin(c, len);
-			if (b <= fromBin || b > cap) continue;
-			if (count === size) {
-				if (size < capacity) {
-					size *= 2;
-					const nb = new Int32Array(size);
-					nb.set(buf);
-					buf = nb;
-					const nbb = new Int16Array(size);
-					nbb.set(bufBin);
-					bufBin = nbb;
-				} else {
-					// Full: lower the cap to keep about half (at least one bin), drop the rest.
-					let keep = 0,
-						nc = fromBin;
-					while (nc < RANK_BINS - 1 && keep + inBuf[nc + 1] <= size / 2) keep += inBuf[++nc];
-					if (nc <= fromBin) nc = fromBin + 1;
-					let w = 0;
-					for (let x = 0; x < count; x++) if (bufBin[x] <= nc) (buf[w] = buf[x]), (bufBin[w++] = bufBin[x]);
-					count = w;
-					for (let x = nc + 1; x < RANK_BINS; x++) inBuf[x] = 0;
-					cap = nc;
-					setCaps();
-					if (b > cap) continue;
-					if (count === size) {
+		// Sorted-column cut: pairLengthBound(k1, k2) ≥ rowBound + bound[m] (each half taken over a
+		// Rayleigh interval that contains the pair's, and the bound's e is at least the smallest u
+		// plus the smallest v of any sign branch), and a pair of class c = min(c1, c2) goes to the
+		// buffer only when c ≥ kCls, its bound is below capLen[c] and, in class kCls, at most kLen
+		// (with lenLim's margin). Within one column class (bound ascending), once rowBound + bound[m]
+		// exceeds that limit (with a rounding margin far above the arithmetic's error), no later
+		// column of the class can go to the buffer. The limits only fall during the sweep, so taking
+		// them at the row's start is safe.
+		let level = levels[levels.length - 1];
+		const nb = levels[0].caps.length;
+		if (pruneCols) {
+			// The pair's Rayleigh range is at most b1: the first level that covers b1.
+			for (const l of levels)
+				if (l.zMax >= b1) {
+					level = l;
+					break;
+				}
+			const kRow = (f1 * f1) / z0;
+			// The first part's half, with the pair's Z also at most the group's cap (z₂hi ≤ cap); ∞ when
+			// the group's columns all lie below a1 (no overlap).
+			const caps = level.caps;
+			for (let j = 0; j < nb; j++) {
+				const top = caps[j] < b1 ? caps[j] : b1;
+				rowBoundAt[j] = a1 <= top ? f1 - rootMax(kRow, a1, top) + h21 + t1 - roundingSlack(kRow, f1, h21, t1) : Infinity;
+			}
+		}
+		const cols = level.cols,
+			partOfCol = level.part,
+			colBound = level.bound;
+		for (let seg = 0; seg < 3 * nb; seg++) {
+			const g = Math.floor(seg / nb);
+			let m0 = level.segStart[seg],
+				colEnd = level.segStart[seg + 1];
+			if (m0 === colEnd) continue;
+			if (pruneCols) {
+				const rowBound = rowBoundAt[seg - g * nb];
+				if (rowBound === Infinity) continue;
+				const c = c1 < g ? c1 : g;
+				const limit = c < kCls ? -Infinity : c === kCls ? Math.min(capLen[c], kLen * (1 + 1e-9) + 1e-9) : capLen[c];
+				if (!(limit > 0)) continue;
+				{
+					// With no length limit, still stop at the columns whose Rayleigh interval lies above this level (bound ∞: no overlap).
+					const edge = limit === Infinity ? Number.MAX_VALUE : limit - rowBound + 1e-7 * (1 + Math.abs(limit) + Math.abs(rowBound));
+					let lo = m0,
+						hi = colEnd;
+					while (lo < hi) {
+						const mid = (lo + hi) >> 1;
+						if (colBound[mid] > edge) hi = mid;
+						else lo = mid + 1;
+					}
+					colEnd = lo;
+				}
+			}
+			for (let m = m0; m < colEnd; m++) {
+				const k2 = cols[m];
+				const zlo2 = z2lo[k2],
+					zhi2 = z2hi[k2];
+				const lo = a1 > zlo2 ? a1 : zlo2,
+					hi = b1 < zhi2 ? b1 : zhi2;
+				if (!(lo <= hi)) continue;
+				if (oneUnit && partOfCol[m] === part1) continue;
+				if (seeded && seed[k2] === 1) continue;
+				const c2 = cls2[k2];
+				const c = c1 < c2 ? c1 : c2;
+				if (c < kCls) continue;
+				const lim = capLen[c];
+				if (lim === 0) continue;
+				const lenLim = c === kCls ? kLen * (1 + 1e-9) + 1e-9 : Infinity;
+				// No pair is shorter than its two thicknesses and the smallest gap.
+				if (t1 + T[k2] + minGapMm > lenLim) continue;
+				const len = pairLengthBound(f1, h11, h21, t1, F[k2], H1[k2], H2[k2], T[k2], z0, zt, lo, hi, minGapMm);
+				if (!(len < lim) || len > lenLim) continue;
+				const b = rankBin(c, len);
+				if (b <= fromBin || b > cap) continue;
+				if (count === size) {
+					if (size < capacity) {
 						size *= 2;
 						const nb = new Int32Array(size);
 						nb.set(buf);
@@ -476,12 +625,34 @@ function sweepPairs(
 						const nbb = new Int16Array(size);
 						nbb.set(bufBin);
 						bufBin = nbb;
+					} else {
+						// Full: lower the cap to keep about half (at least one bin), drop the rest.
+						let keep = 0,
+							nc = fromBin;
+						while (nc < RANK_BINS - 1 && keep + inBuf[nc + 1] <= size / 2) keep += inBuf[++nc];
+						if (nc <= fromBin) nc = fromBin + 1;
+						let w = 0;
+						for (let x = 0; x < count; x++) if (bufBin[x] <= nc) (buf[w] = buf[x]), (bufBin[w++] = bufBin[x]);
+						count = w;
+						for (let x = nc + 1; x < RANK_BINS; x++) inBuf[x] = 0;
+						cap = nc;
+						setCaps();
+						if (b > cap) continue;
+						if (count === size) {
+							size *= 2;
+							const nb = new Int32Array(size);
+							nb.set(buf);
+							buf = nb;
+							const nbb = new Int16Array(size);
+							nbb.set(bufBin);
+							bufBin = nbb;
+						}
 					}
 				}
+				buf[count] = k1 * n + k2;
+				bufBin[count++] = b;
+				inBuf[b]++;
 			}
-			buf[count] = k1 * n + k2;
-			bufBin[count++] = b;
-			inBuf[b]++;
 		}
 	}
 	return { buf, bufBin, count, cap, truncated: false };
@@ -592,9 +763,11 @@ export function beamShard(input: BeamShardInput): BeamShardResult {
 		for (let m1 = input.shardIndex; m1 < n; m1 += input.shardCount) if (cls1[m1] >= 0) rows.push(m1);
 		const col: number[] = [];
 		for (let k = 0; k < n; k++) if (cls2[k] >= 0) col.push(k);
+		// Second parts by their share of the length bound (ascending), per level of the row's Rayleigh
+		// range, so a row stops at the first column that cannot reach the limits (see sweepPairs).
+		const levels = columnLevels(col, cls2, z2lo, z2hi, F, H1, T, zt, (k) => partIndex[candidates[k]]);
 		const cols = Int32Array.from(col);
-		const partOfCol = Int32Array.from(col, (k) => partIndex[candidates[k]]);
-		const capacity = Number.isFinite(input.topK) ? 1 << 16 : Infinity;
+		const capacity = Number.isFinite(input.topK) ? beamKernelOptions.bufferCapacity : Infinity;
 		// Seeds: the thinnest parts. Their pairs are solved first, so the K-th best key is already tight
 		// when the sweep starts, and the sweep skips most pairs by their thicknesses alone.
 		const seed = new Uint8Array(n);
@@ -610,7 +783,7 @@ export function beamShard(input: BeamShardInput): BeamShardResult {
 		let swept = -1; // bins ≤ swept are complete in the buffer
 		const sweep = (fromBin: number): void => {
 			const r = sweepPairs(
-				{ rows, cols, partOfCol, z1lo, z1hi, z2lo, z2hi, F, H1, H2, T, cls1, cls2, partIndex, candidates, partUnits, seed, bestKeys },
+				{ rows, levels, z1lo, z1hi, z2lo, z2hi, F, H1, H2, T, cls1, cls2, partIndex, candidates, partUnits, seed, bestKeys },
 				n,
 				z0,
 				zt,
