@@ -13,6 +13,9 @@ const files = fs
 	.filter((f) => f.endsWith('.ts') && !f.startsWith('_'))
 	.filter((f) => !only.length || only.some((o) => f.includes(o)))
 	.sort();
+// The solver benches import modules that use `$lib`, which resolves through .svelte-kit/tsconfig.json:
+// generate it first (a fresh clone has none, and the bench then fails with "Cannot find package '$lib'").
+spawnSync('npx', ['svelte-kit', 'sync'], { stdio: 'inherit' });
 let failed = 0;
 for (const f of files) {
 	console.log(`\n== ${f} ==`);
