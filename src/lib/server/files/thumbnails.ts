@@ -10,10 +10,7 @@
  * `vite dev` the URL is a .ts file: it is then bundled once with esbuild into a temporary .mjs.
  */
 import { Worker } from 'node:worker_threads';
-import os from 'node:os';
-import fs from 'node:fs';
-import path from 'node:path';
-import { fileURLToPath, pathToFileURL } from 'node:url';
+import { workerFileOf } from '$lib/server/worker-file';
 import type { ThumbnailJob, ThumbnailReply } from './thumbnail-worker';
 import { MAX_IMAGE_MEGAPIXELS } from './image-size';
 
@@ -53,24 +50,7 @@ let workerUrl: Promise<URL> | null = null;
 
 async function bundleWorker(): Promise<URL> {
 	const mod = await import('./thumbnail-worker');
-	const url = mod.selfUrl;
-	if (!url.endsWith('.ts')) return new URL(url);
-	// Development and tests: bundle the TypeScript worker (with jimp) once per process.
-	const esbuild = await import('esbuild');
-	const out = path.join(os.tmpdir(), `glasscrib-thumbnail-worker-${process.pid}.mjs`);
-	await esbuild.build({
-		entryPoints: [fileURLToPath(url)],
-		bundle: true,
-		platform: 'node',
-		format: 'esm',
-		target: 'node20',
-		outfile: out,
-		logLevel: 'error',
-		// Some of jimp's dependencies use require(): give the ES module bundle one.
-		banner: { js: "import { createRequire as __cr } from 'node:module'; const require = __cr(import.meta.url);" }
-	});
-	process.once('exit', () => fs.rmSync(out, { force: true }));
-	return pathToFileURL(out);
+	return workerFileOf(mod.selfUrl, 'thumbnail-worker', { logLevel: 'error', requireShim: true });
 }
 
 function workerFile(): Promise<URL> {

@@ -9,10 +9,8 @@
  * .mjs, so workers run the same optimised code as in production.
  */
 import { Worker } from 'node:worker_threads';
+import { workerFileOf } from '$lib/server/worker-file';
 import os from 'node:os';
-import fs from 'node:fs';
-import path from 'node:path';
-import { fileURLToPath, pathToFileURL } from 'node:url';
 import type { SearchParams } from './search-kernel';
 import type { SearchMessage, SnapshotMessage, WorkerReply } from './search-worker';
 import type { ModeSearchMessage } from './mode-shard';
@@ -56,22 +54,7 @@ export function workerCount(): number {
 
 async function workerFile(): Promise<URL> {
 	const mod = await import('./search-worker');
-	const url = mod.selfUrl;
-	if (!url.endsWith('.ts')) return new URL(url);
-	// Development and tests: bundle the TypeScript worker once per process.
-	const esbuild = await import('esbuild');
-	const out = path.join(os.tmpdir(), `glasscrib-solver-worker-${process.pid}.mjs`);
-	await esbuild.build({
-		entryPoints: [fileURLToPath(url)],
-		bundle: true,
-		platform: 'node',
-		format: 'esm',
-		target: 'node20',
-		outfile: out,
-		logLevel: 'warning'
-	});
-	process.once('exit', () => fs.rmSync(out, { force: true }));
-	return pathToFileURL(out);
+	return workerFileOf(mod.selfUrl, 'solver-worker');
 }
 
 async function startWorkers(): Promise<Slot[]> {
