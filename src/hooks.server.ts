@@ -12,6 +12,23 @@ import { watchFlags } from '$lib/server/purchasing/watch';
 import { appStore } from '$lib/server/files/store';
 import { startImportWatchdog } from '$lib/server/imports/watchdog';
 import { originCheck } from '$lib/server/origin-check';
+import { isUnavailable } from '$lib/server/db/errno';
+
+/**
+ * The database went away while a hook (the session lookup) was using it: 503 with Retry-After, as the API
+ * handlers answer, instead of a 500. A load balancer retries elsewhere; a person sees "try again".
+ */
+const databaseDown: Handle = async ({ event, resolve }) => {
+	try {
+		return await resolve(event);
+	} catch (err) {
+		if (!isUnavailable(err)) throw err;
+		console.error(`[db] the database is not reachable (${event.request.method} ${event.url.pathname}):`, err instanceof Error ? err.message : err);
+		const message = 'The database cannot be reached just now; try again in a moment.';
+		if (event.url.pathname.startsWith('/api/')) return errorResponse(503, 'database-unavailable', message, undefined, { 'Retry-After': '5' });
+		return new Response(message, { status: 503, headers: { 'Retry-After': '5', 'Content-Type': 'text/plain; charset=utf-8' } });
+	}
+};
 
 /** Resolves the user once per request: a bearer token on the API, else the session cookie. */
 const resolveUser: Handle = async ({ event, resolve }) => {
@@ -121,7 +138,7 @@ export const init: ServerInit = async () => {
 };
 
 // originCheck: SvelteKit's form origin rule with a readable refusal, and the local instance's other loopback name.
-export const handle: Handle = sequence(securityHeaders, originCheck, resolveUser, gate, formBody, apiOrigin, watchFlags);
+export const handle: Handle = sequence(securityHeaders, databaseDown, originCheck, resolveUser, gate, formBody, apiOrigin, watchFlags);
 
 export const handleError: HandleServerError = ({ error: err, event, status, message }) => {
 	const id = event.locals?.requestId ?? randomUUID();

@@ -93,6 +93,12 @@ export function readGrastate(dataDir) {
 	return { uuid: field('uuid'), seqno: Number(field('seqno') ?? -1), safeToBootstrap: field('safe_to_bootstrap') === '1' };
 }
 
+/** The name of the node that node `index` asks first for a state transfer: the last node, or the one before it. */
+export function donorFor(index, count) {
+	const last = count - 1;
+	return `node${(index === last ? last - 1 : last) + 1}`;
+}
+
 /**
  * One node's mariadbd arguments. `ports` of every node make up the cluster address.
  * Sizes are for a laptop-sized demo; an institute's hosts set them in /etc/mysql (see the README).
@@ -138,6 +144,9 @@ export function nodeArgs({ index, dataDir, all, user, clusterName = 'glasscrib' 
 		`--wsrep-node-incoming-address=127.0.0.1:${me.sql}`,
 		'--wsrep-sst-method=rsync',
 		`--wsrep-sst-receive-address=127.0.0.1:${me.sst}`,
+		// A full copy (rsync SST) locks the donor against writes while it runs; prefer the node no app instance
+		// writes through (the last one) as donor, and any other node when it cannot serve (the trailing comma).
+		`--wsrep-sst-donor=${donorFor(index, all.length)},`,
 		'--wsrep-slave-threads=2',
 		// Causal reads: a read waits until this node has applied every write set the cluster committed
 		// before it, so a page served by one instance shows what was just written through the other.
@@ -190,6 +199,12 @@ export class GaleraCluster {
 		}
 		const args = nodeArgs({ index: i, dataDir, all: this.ports, user: this.user });
 		if (bootstrap) args.push('--wsrep-new-cluster');
+		else {
+			// After a crash grastate.dat says seqno -1: without the position read back from InnoDB the node
+			// would ask for a full copy (SST) instead of the missing write sets (IST from a donor's gcache).
+			const position = await this.recoverPosition(i, args);
+			if (position) args.push(`--wsrep-start-position=${position}`);
+		}
 		const child = startChild(`galera-node${i + 1}`, this.bin, args, { logStream: this.logStream(`galera-node${i + 1}`) });
 		this.children.set(i, child);
 		await until(
@@ -201,6 +216,22 @@ export class GaleraCluster {
 			timeoutMs
 		);
 		return child;
+	}
+
+	/**
+	 * The last committed position (uuid:seqno) of node i read back from its InnoDB log by
+	 * `mariadbd --wsrep-recover`, as the packaged service's start script does after a crash;
+	 * null when the state file already holds it, or the node has no data yet.
+	 */
+	async recoverPosition(i, args) {
+		const dataDir = this.dataDir(i);
+		const state = readGrastate(dataDir);
+		if (!state || state.seqno >= 0 || !fs.existsSync(path.join(dataDir, 'mysql'))) return null;
+		const log = path.join(dataDir, 'wsrep-recovery.log');
+		fs.rmSync(log, { force: true });
+		await run(this.bin, [...args, '--wsrep-recover', `--log-error=${log}`], { quiet: true }).catch(() => {});
+		const text = fs.existsSync(log) ? fs.readFileSync(log, 'utf8') : '';
+		return /WSREP: Recovered position:\s*([0-9a-f-]{36}:-?\d+)/.exec(text)?.[1] ?? null;
 	}
 
 	/** wsrep_local_state_comment of node i ('Synced', 'Donor/Desynced', ...) or null when it does not answer. */
