@@ -14,7 +14,7 @@ import { refractiveIndex, checkPairPhysical, type ThickElement } from '../../../
 import { zodFields } from '../../../src/lib/server/api/http';
 import type { BeamSolution } from '../../../src/lib/solver/types';
 import { syntheticStock } from '../../bench/_synthetic-stock';
-import { beamKernelOptions } from '../../../src/lib/server/solver/beam-kernel';
+import { beamKernelOptions, decodeRankKey, encodeRankKey } from '../../../src/lib/server/solver/beam-kernel';
 import { mulberry32 } from '../../../src/lib/prng';
 
 let nextId = 1;
@@ -231,6 +231,39 @@ describe('mode beam', () => {
 			expect(top.solutions.map(sig)).toEqual(full.solutions.slice(0, 7).map(sig));
 		}
 	}, 120_000);
+
+	it('shards that prune by the best K-th key any shard published return exactly the first K of the full answer set', async () => {
+		const big = stockOf(syntheticStock(120, 5));
+		for (const q of [
+			req,
+			beamQ({ input: { waistDiameterMm: 1, waistPositionMm: -200, mSquared: 1.3 }, target: { waistDiameterMm: 0.5, waistPositionMm: 400 }, minClearance: 1.5 }),
+			beamQ({ input: { waistDiameterMm: 0.006, waistPositionMm: 0 }, target: { waistDiameterMm: 3, waistPositionMm: 400 } })
+		]) {
+			const full = await solveBeamWithStock(big, { ...q, limit: 50 }, { inline: true, keepAll: true });
+			const alone = await solveBeamWithStock(big, { ...q, limit: 6 }, { inline: true, inlineShards: 3, keepAll: false });
+			const sig = (s: BeamSolution) => `${s.elements.map((e) => `${e.partId}${e.reversed ? 'r' : ''}`).join('+')}@${s.objectDistanceMm.toFixed(6)}`;
+			expect(full.solutions.length).toBeGreaterThan(6);
+			expect(alone.solutions.map(sig)).toEqual(full.solutions.slice(0, 6).map(sig));
+		}
+	}, 120_000);
+
+	it('a rank key survives its one-number form: order kept, length never rounded down', () => {
+		const keys: [number, number, number][] = [
+			[1e6, 2, 4.176177352351729],
+			[1e6, 2, 4.18],
+			[1e6, 1, 0.5],
+			[999_999, 2, 0.1],
+			[0, 0, 1e5]
+		];
+		const codes = keys.map(([e, c, l]) => encodeRankKey(e, c, l));
+		for (let i = 1; i < codes.length; i++) expect(codes[i - 1] > codes[i]).toBe(true);
+		for (const [i, [e, c, l]] of keys.entries()) {
+			const [e2, c2, l2] = decodeRankKey(codes[i]);
+			expect([e2, c2]).toEqual([e, c]);
+			expect(l2).toBeGreaterThanOrEqual(l);
+			expect(l2 - l).toBeLessThan(1e-6 * l);
+		}
+	});
 
 	it('the sorted-column cut changes no answer: same solutions with and without it on seeded random stocks and questions', async () => {
 		const rnd = mulberry32(20261203);

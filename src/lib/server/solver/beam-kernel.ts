@@ -71,6 +71,8 @@ export interface BeamShardInput {
 	topK: number;
 	deadline: number;
 	cancel?: Int32Array | null;
+	/** The best K-th rank key any shard of this search has published (encodeRankKey; 0 for none). */
+	sharedKth?: BigInt64Array | null;
 }
 
 export interface BeamShardResult {
@@ -136,15 +138,47 @@ class Kept {
 	}
 }
 
+/** Float32 bit patterns of lengths, rounded up (a published length is never shorter than the true one). */
+const f32 = new Float32Array(1),
+	u32 = new Uint32Array(f32.buffer);
+function lengthBitsUp(l: number): number {
+	f32[0] = l;
+	if (f32[0] < l) u32[0]++;
+	return u32[0];
+}
+
+/**
+ * A rank key in one number, larger for a better key: (efficiency key · 4 + class) in the high bits,
+ * the complement of the length's float32 bits (rounded up) in the low 32. Shards publish their K-th
+ * key as this number (an atomic maximum) and decode the best one published.
+ */
+export function encodeRankKey(e: number, c: number, l: number): bigint {
+	return (BigInt(e * 4 + c) << 32n) | BigInt(0xffffffff - lengthBitsUp(l));
+}
+export function decodeRankKey(key: bigint): [number, number, number] {
+	const high = Number(key >> 32n);
+	u32[0] = 0xffffffff - Number(key & 0xffffffffn);
+	return [Math.floor(high / 4), high % 4, f32[0]];
+}
+
 /**
  * The rank keys (efficiency key, clearance class, length) of the K best answers kept so far, for
  * the branch and bound: a pair whose best possible key ranks after the K-th cannot enter the top K.
+ * With a `shared` cell (one per search, read and written by every shard's worker), a shard also
+ * prunes by the best K-th key any shard has published: that shard already holds K answers that rank
+ * at least as well, so the pruned pair cannot be in the merged top K either.
  */
 class BestKeys {
 	private readonly eff: number[] = [];
 	private readonly cls: number[] = [];
 	private readonly len: number[] = [];
-	constructor(readonly k: number) {}
+	/** The best published K-th key decoded, and the raw value it was decoded from. */
+	private sharedSeen = 0n;
+	private readonly sharedKey: [number, number, number] = [0, 0, 0];
+	constructor(
+		readonly k: number,
+		private readonly shared: BigInt64Array | null = null
+	) {}
 	/** Negative when key (e, c, l) ranks before the stored key at index m. */
 	private cmp(e: number, c: number, l: number, m: number): number {
 		if (e !== this.eff[m]) return this.eff[m] - e;
@@ -165,16 +199,48 @@ class BestKeys {
 			this.cls.pop();
 			this.len.pop();
 		}
+		if (this.shared && this.eff.length === this.k) {
+			const m = this.k - 1;
+			const mine = encodeRankKey(this.eff[m], this.cls[m], this.len[m]);
+			for (let old = Atomics.load(this.shared, 0); mine > old; ) {
+				const was = Atomics.compareExchange(this.shared, 0, old, mine);
+				if (was === old) break;
+				old = was;
+			}
+		}
 	}
-	/** The K-th key (efficiency key, class, length), or null while fewer than K are kept. */
+	/** The best K-th key another shard published, when it beats this shard's own (else null). */
+	private published(): [number, number, number] | null {
+		if (!this.shared) return null;
+		const raw = Atomics.load(this.shared, 0);
+		if (raw === 0n) return null;
+		if (raw !== this.sharedSeen) {
+			const [e, c, l] = decodeRankKey(raw);
+			this.sharedKey[0] = e;
+			this.sharedKey[1] = c;
+			this.sharedKey[2] = l;
+			this.sharedSeen = raw;
+		}
+		return this.sharedKey;
+	}
+	/** The K-th key (efficiency key, class, length), or null while fewer than K are kept (here or in a shard that published). */
 	kth(): [number, number, number] | null {
 		const n = this.eff.length;
-		return n === this.k ? [this.eff[n - 1], this.cls[n - 1], this.len[n - 1]] : null;
+		const own: [number, number, number] | null = n === this.k ? [this.eff[n - 1], this.cls[n - 1], this.len[n - 1]] : null;
+		const pub = this.published();
+		if (!pub) return own;
+		if (!own) return [pub[0], pub[1], pub[2]];
+		const better = own[0] !== pub[0] ? own[0] > pub[0] : own[1] !== pub[1] ? own[1] > pub[1] : own[2] <= pub[2];
+		return better ? own : [pub[0], pub[1], pub[2]];
 	}
 	/** True when a key (e, c, l) that is a bound on what a configuration can reach cannot enter the top K. */
 	excludes(e: number, c: number, l: number): boolean {
 		const n = this.eff.length;
-		return n === this.k && this.cmp(e, c, l, n - 1) > 1e-9 * Math.max(1, l);
+		if (n === this.k && this.cmp(e, c, l, n - 1) > 1e-9 * Math.max(1, l)) return true;
+		const pub = this.published();
+		if (!pub) return false;
+		const d = e !== pub[0] ? pub[0] - e : c !== pub[1] ? pub[1] - c : l - pub[2];
+		return d > 1e-9 * Math.max(1, l);
 	}
 }
 
@@ -709,7 +775,7 @@ export function beamShard(input: BeamShardInput): BeamShardResult {
 			ub2[k] = h > 0 ? h / (p.targetWaistRadiusMm * Math.sqrt(1 + (dz / p.targetRayleighMm) ** 2)) : Infinity;
 		}
 	}
-	const bestKeys = new BestKeys(input.topK);
+	const bestKeys = new BestKeys(input.topK, input.sharedKth ?? null);
 	const thin: (ThinEquivalent | null)[] = candidates.length ? Array.from(candidates, (e) => { const o = e * ELEMENT_STRIDE; return thinEquivalent(packed[o + EL_A], packed[o + EL_B], packed[o + EL_C], packed[o + EL_D]); }) : [];
 	// Single parts: shard 0 does them all.
 	if (input.shardIndex === 0) {
@@ -815,6 +881,9 @@ export function beamShard(input: BeamShardInput): BeamShardResult {
 				const last = r.p1Mm + part1.thicknessMm + r.gapMm + part2.thicknessMm;
 				const d = p.targetZMm - last;
 				if (!(r.p1Mm >= 0)) continue;
+				// Its length is known now: a root that ranks after the K-th even as an exact match with its
+				// pair's best clearance class is skipped before the physical checks and the walk.
+				if (bestKeys.excludes(1e6, cls, last - r.p1Mm)) continue;
 				if ((checkPairPhysical(packed, e1, e2, r.p1Mm + p.minWorkingDistanceMm, r.gapMm, d, p.minWorkingDistanceMm, p.minGapMm) & ~PHYS_OBJECT_PLANE) !== 0) continue;
 				const clearance = walk(packed, p, e1, r.p1Mm, e2, r.gapMm, effOut);
 				if (!(clearance >= p.minClearance * (1 - 1e-12))) continue;

@@ -38,7 +38,13 @@ async function runShards(
 	task: Omit<ModeShardTask, 'shardIndex' | 'shardCount'>,
 	options: SolveOptions
 ): Promise<{ shards: ModeShardResult[]; workers: number }> {
-	if (options.inline) return { shards: [runModeShard(snap, { ...task, shardIndex: 0, shardCount: 1 } as ModeShardTask)], workers: 0 };
+	if (options.inline) {
+		const shardCount = options.inlineShards ?? 1;
+		// The pool's shared buffer (cancel flag, best K-th key), so that later shards prune by earlier ones' keys.
+		const cancel = shardCount > 1 ? new SharedArrayBuffer(16) : null;
+		const shards = Array.from({ length: shardCount }, (_, shardIndex) => runModeShard(snap, { ...task, shardIndex, shardCount, cancel } as ModeShardTask));
+		return { shards, workers: 0 };
+	}
 	const shards = await searchModeOnPool(
 		{ key, packed: snap.packed, seidel: snap.seidel, partIndex: snap.partIndex, untraceable: snap.untraceable },
 		{ ...task, signal: options.signal } as Parameters<typeof searchModeOnPool>[1]

@@ -55,6 +55,8 @@ export function runModeShard(
 		deadline: msg.deadline,
 		cancel: msg.cancel ? new Int32Array(msg.cancel) : null
 	};
-	if (msg.mode === 'beam') return beamShard({ ...common, params: msg.params, topK: msg.topK });
+	// The search's shared buffer: the cancel flag at byte 0, the best K-th rank key published at byte 8.
+	const sharedKth = msg.cancel && msg.cancel.byteLength >= 16 ? new BigInt64Array(msg.cancel, 8, 1) : null;
+	if (msg.mode === 'beam') return beamShard({ ...common, params: msg.params, topK: msg.topK, sharedKth });
 	return afocalShard({ ...common, params: msg.params });
 }

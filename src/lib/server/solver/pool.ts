@@ -154,7 +154,8 @@ export type PoolModeSearch = Omit<PoolSearch, 'params'> & ({ mode: 'beam'; param
  */
 export async function searchModeOnPool(snapshot: PoolSnapshot, search: PoolModeSearch): Promise<ShardReply[]> {
 	const list = await pool();
-	const cancelBuffer = new SharedArrayBuffer(4);
+	// The cancel flag (Int32 at byte 0) and the shards' best K-th rank key (BigInt64 at byte 8, see beam-kernel.ts).
+	const cancelBuffer = new SharedArrayBuffer(16);
 	const cancel = new Int32Array(cancelBuffer);
 	const onAbort = () => Atomics.store(cancel, 0, 1);
 	if (search.signal?.aborted) onAbort();

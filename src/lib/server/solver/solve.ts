@@ -57,6 +57,8 @@ export interface SolveOptions {
 	inline?: boolean;
 	/** Keep every physical root (inline only; tests). */
 	keepAll?: boolean;
+	/** Inline beam modes only (tests): run this many shards one after another, sharing their K-th key as the pool's workers do. */
+	inlineShards?: number;
 }
 
 /** Which elements of the snapshot the question allows, and how many units each part may use. */
