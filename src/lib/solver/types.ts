@@ -158,6 +158,16 @@ export interface ToleranceRow {
 	magnification: [number | null, number | null];
 }
 
+/**
+ * A long search's progress, streamed by `POST /api/v1/solve` when the client accepts `application/x-ndjson`:
+ * the fraction searched (0–1) and the parts of the best candidate found so far (by the search's own key, before
+ * the final real-ray check; `efficiency` in the beam mode).
+ */
+export interface SolveProgress {
+	fraction: number;
+	best: { parts: string[]; efficiency?: number } | null;
+}
+
 export interface SolveStats {
 	partsConsidered: number;
 	elementsConsidered: number;

@@ -25,6 +25,7 @@ import { ELEMENT_STRIDE, EL_A, EL_B, EL_C, EL_D, EL_THICKNESS, EL_SEMI_APERTURE 
 import { thinEquivalent, middleRayleighRange, bestSinglePlacement, pairMatchRoots, type MatchBeams, type MatchPart, type ThinEquivalent } from '../../optics/beam-match';
 import { checkSinglePhysical, checkPairPhysical, PHYS_OBJECT_PLANE } from '../../optics/physical';
 import { overlapFromQ } from '../../optics/coupling';
+import { offerBest, PG_FRACTION } from './progress';
 
 /** Numbers per beam record. */
 export const BREC_STRIDE = 8;
@@ -73,6 +74,13 @@ export interface BeamShardInput {
 	cancel?: Int32Array | null;
 	/** The best K-th rank key any shard of this search has published (encodeRankKey; 0 for none). */
 	sharedKth?: BigInt64Array | null;
+	/** This shard's progress slot (progress.ts). */
+	progress?: Float64Array | null;
+}
+
+/** A record's rank key as one progress score (lower is better): efficiency key, clearance class, length. */
+function progressScore(efficiency: number, clearance: number, minClearance: number, lengthMm: number): number {
+	return ((1e6 - efficiencyKey(efficiency)) * 3 + (2 - clearanceClass(clearance, minClearance))) * 1e6 + Math.min(lengthMm, 999_999);
 }
 
 export interface BeamShardResult {
@@ -517,6 +525,8 @@ interface SweepArrays {
 	/** 1 for the seed elements: pairs of two seeds were solved before the sweep. */
 	seed: Uint8Array;
 	bestKeys: BestKeys;
+	/** The shard's progress slot: a sweep counts for the first half of the fraction. */
+	progress: Float64Array | null;
 }
 
 /**
@@ -535,7 +545,7 @@ function sweepPairs(
 	deadline: number,
 	cancel: Int32Array | null
 ): { buf: Int32Array; bufBin: Int16Array; count: number; cap: number; truncated: boolean } {
-	const { rows, levels, z1lo, z1hi, z2lo, z2hi, F, H1, H2, T, cls1, cls2, partIndex, candidates, partUnits, seed, bestKeys } = a;
+	const { rows, levels, z1lo, z1hi, z2lo, z2hi, F, H1, H2, T, cls1, cls2, partIndex, candidates, partUnits, seed, bestKeys, progress } = a;
 	let size = 1 << 12;
 	let buf: Int32Array = new Int32Array(size),
 		bufBin: Int16Array = new Int16Array(size);
@@ -596,7 +606,10 @@ function sweepPairs(
 		setCaps();
 	}
 	for (let r = 0; r < rows.length; r++) {
-		if ((r & 15) === 0 && (Date.now() > deadline || (cancel !== null && Atomics.load(cancel, 0) !== 0))) return { buf, bufBin, count, cap, truncated: true };
+		if ((r & 15) === 0) {
+			if (Date.now() > deadline || (cancel !== null && Atomics.load(cancel, 0) !== 0)) return { buf, bufBin, count, cap, truncated: true };
+			if (progress !== null && fromBin < 0) progress[PG_FRACTION] = (0.5 * r) / rows.length;
+		}
 		const k1 = rows[r];
 		const a1 = z1lo[k1],
 			b1 = z1hi[k1],
@@ -729,6 +742,7 @@ export function beamShard(input: BeamShardInput): BeamShardResult {
 	const { packed, partIndex, partUnits, candidates, params: p } = input;
 	const kept = new Kept(input.topK, p.minClearance);
 	counters.fill(0);
+	const progress = input.progress ?? null;
 	const cancel = input.cancel ?? null;
 	let truncated = false;
 	const beams: MatchBeams = { inWaistZMm: p.inWaistZMm, inRayleighMm: p.inRayleighMm, targetZMm: p.targetZMm, targetRayleighMm: p.targetRayleighMm };
@@ -803,6 +817,7 @@ export function beamShard(input: BeamShardInput): BeamShardResult {
 			rec[BREC_LENGTH] = part.thicknessMm;
 			rec[BREC_PARTS] = 1;
 			kept.push(rec);
+			offerBest(progress, e, -1, progressScore(effOut[0], clearance, p.minClearance, part.thicknessMm));
 			bestKeys.add(efficiencyKey(effOut[0]), clearanceClass(clearance, p.minClearance), part.thicknessMm);
 		}
 	}
@@ -849,7 +864,7 @@ export function beamShard(input: BeamShardInput): BeamShardResult {
 		let swept = -1; // bins ≤ swept are complete in the buffer
 		const sweep = (fromBin: number): void => {
 			const r = sweepPairs(
-				{ rows, levels, z1lo, z1hi, z2lo, z2hi, F, H1, H2, T, cls1, cls2, partIndex, candidates, partUnits, seed, bestKeys },
+				{ rows, levels, z1lo, z1hi, z2lo, z2hi, F, H1, H2, T, cls1, cls2, partIndex, candidates, partUnits, seed, bestKeys, progress },
 				n,
 				z0,
 				zt,
@@ -897,6 +912,7 @@ export function beamShard(input: BeamShardInput): BeamShardResult {
 				rec[BREC_LENGTH] = last - r.p1Mm;
 				rec[BREC_PARTS] = 2;
 				kept.push(rec);
+				offerBest(progress, e1, e2, progressScore(effOut[0], clearance, p.minClearance, last - r.p1Mm));
 				bestKeys.add(efficiencyKey(effOut[0]), clearanceClass(clearance, p.minClearance), last - r.p1Mm);
 			}
 		};
@@ -943,6 +959,7 @@ export function beamShard(input: BeamShardInput): BeamShardResult {
 				}
 				const code = buf[r];
 				evaluatePair(Math.floor(code / n), code % n, b);
+				if (progress !== null && (o & 255) === 0) progress[PG_FRACTION] = 0.5 + (0.5 * o) / count;
 			}
 			if (closed || truncated) break;
 			done = swept;
@@ -950,6 +967,7 @@ export function beamShard(input: BeamShardInput): BeamShardResult {
 		}
 	}
 	kept.prune();
+	if (progress !== null && !truncated) progress[PG_FRACTION] = 1;
 	return {
 		records: kept.data,
 		count: kept.count,

@@ -8,7 +8,7 @@ import { DomainError } from '../api/http';
 import type { ParsedAfocalRequest, ParsedBeamRequest } from '../../solver/request';
 import type { AfocalSolution, AfocalSolveResponse, BeamSolution, BeamSolveResponse, SolveStats } from '../../solver/types';
 import { wavelengthCoveredByAnyMaterial } from './elements';
-import { snapshotFor, candidateFilter, type StockView, type SolveOptions } from './solve';
+import { snapshotFor, candidateFilter, watchProgress, type StockView, type SolveOptions } from './solve';
 import { searchModeOnPool, workerCount } from './pool';
 import { runModeShard, type ModeShardResult, type ModeShardTask } from './mode-shard';
 import {
@@ -34,7 +34,7 @@ function checkWavelength(stock: StockView, wavelengthNm: number): void {
 
 async function runShards(
 	key: string,
-	snap: { packed: Float64Array; seidel: Float64Array; partIndex: Int32Array; untraceable: Uint8Array },
+	snap: { packed: Float64Array; seidel: Float64Array; partIndex: Int32Array; untraceable: Uint8Array; parts: { sku: string }[] },
 	task: Omit<ModeShardTask, 'shardIndex' | 'shardCount'>,
 	options: SolveOptions
 ): Promise<{ shards: ModeShardResult[]; workers: number }> {
@@ -45,11 +45,22 @@ async function runShards(
 		const shards = Array.from({ length: shardCount }, (_, shardIndex) => runModeShard(snap, { ...task, shardIndex, shardCount, cancel } as ModeShardTask));
 		return { shards, workers: 0 };
 	}
-	const shards = await searchModeOnPool(
-		{ key, packed: snap.packed, seidel: snap.seidel, partIndex: snap.partIndex, untraceable: snap.untraceable },
-		{ ...task, signal: options.signal } as Parameters<typeof searchModeOnPool>[1]
-	);
-	return { shards, workers: workerCount() };
+	const workers = workerCount();
+	const sku = (e: number) => snap.parts[snap.partIndex[e]].sku;
+	const watch = watchProgress(options, workers, ({ i, j, score }) => ({
+		parts: (j < 0 ? [i] : [i, j]).map(sku),
+		// progressScore (beam-kernel.ts): efficiency key · 3e6 + …; the afocal kernel does not report a best.
+		...(task.mode === 'beam' ? { efficiency: (1e6 - Math.floor(score / 3e6)) / 1e6 } : {})
+	}));
+	try {
+		const shards = await searchModeOnPool(
+			{ key, packed: snap.packed, seidel: snap.seidel, partIndex: snap.partIndex, untraceable: snap.untraceable },
+			{ ...task, signal: options.signal, progress: watch.buffer } as Parameters<typeof searchModeOnPool>[1]
+		);
+		return { shards, workers };
+	} finally {
+		watch.stop();
+	}
 }
 
 function stats(shards: ModeShardResult[], parts: number, elements: number, traced: number, t0: number, searchMs: number, workers: number, skipped: SolveStats['partsSkipped']): SolveStats {

@@ -5,6 +5,7 @@
  */
 import { beamShard, type BeamSearchParams } from './beam-kernel';
 import { afocalShard, type AfocalSearchParams } from './afocal-kernel';
+import { progressSlot } from './progress';
 
 export type ModeSearchMessage = {
 	type: 'mode-search';
@@ -17,6 +18,7 @@ export type ModeSearchMessage = {
 	topK: number;
 	deadline: number;
 	cancel: SharedArrayBuffer;
+	progress?: SharedArrayBuffer | null;
 } & ({ mode: 'beam'; params: BeamSearchParams } | { mode: 'afocal'; params: AfocalSearchParams });
 
 /** A shard task of either mode (the message without its envelope). */
@@ -28,6 +30,8 @@ export type ModeShardTask = {
 	topK: number;
 	deadline: number;
 	cancel?: SharedArrayBuffer | null;
+	/** The search's progress buffer (progress.ts); the shard writes its own slot. */
+	progress?: SharedArrayBuffer | null;
 } & ({ mode: 'beam'; params: BeamSearchParams } | { mode: 'afocal'; params: AfocalSearchParams });
 
 /** What a shard of either mode returns (the imaging shard's shape). */
@@ -57,6 +61,7 @@ export function runModeShard(
 	};
 	// The search's shared buffer: the cancel flag at byte 0, the best K-th rank key published at byte 8.
 	const sharedKth = msg.cancel && msg.cancel.byteLength >= 16 ? new BigInt64Array(msg.cancel, 8, 1) : null;
-	if (msg.mode === 'beam') return beamShard({ ...common, params: msg.params, topK: msg.topK, sharedKth });
+	const progress = progressSlot(msg.progress, msg.shardIndex);
+	if (msg.mode === 'beam') return beamShard({ ...common, params: msg.params, topK: msg.topK, sharedKth, progress });
 	return afocalShard({ ...common, params: msg.params });
 }

@@ -33,6 +33,8 @@ export interface PoolSearch {
 	topK: number;
 	deadline: number;
 	signal?: AbortSignal;
+	/** A progress buffer (progress.ts) with a slot per worker: the shards write their progress into it. */
+	progress?: SharedArrayBuffer | null;
 }
 
 export type ShardReply = Extract<WorkerReply, { type: 'result' }>;
@@ -132,7 +134,8 @@ export async function searchOnPool(snapshot: PoolSnapshot, search: PoolSearch): 
 					shardCount: list.length,
 					topK: search.topK,
 					deadline: search.deadline,
-					cancel: cancelBuffer
+					cancel: cancelBuffer,
+					progress: search.progress ?? null
 				};
 				return new Promise<ShardReply>((resolve, reject) => {
 					slot.pending.set(taskId, { resolve, reject });
@@ -180,7 +183,8 @@ export async function searchModeOnPool(snapshot: PoolSnapshot, search: PoolModeS
 					shardCount: list.length,
 					topK: search.topK,
 					deadline: search.deadline,
-					cancel: cancelBuffer
+					cancel: cancelBuffer,
+					progress: search.progress ?? null
 				};
 				const msg: ModeSearchMessage = search.mode === 'beam' ? { ...common, mode: 'beam', params: search.params } : { ...common, mode: 'afocal', params: search.params };
 				return new Promise<ShardReply>((resolve, reject) => {

@@ -29,6 +29,7 @@ import {
 } from '../../optics/imaging';
 import { checkSinglePhysical, checkPairPhysical } from '../../optics/physical';
 import { evalSeidel } from './seidel-poly';
+import { offerBest, PG_FRACTION } from './progress';
 
 /** Numbers per candidate record. */
 export const REC_STRIDE = 12;
@@ -99,7 +100,12 @@ export interface ShardInput {
 	deadline: number;
 	/** Stop when cancel[0] becomes non-zero (SharedArrayBuffer from the pool). */
 	cancel?: Int32Array | null;
+	/** This shard's progress slot (progress.ts): rows done and the best candidate so far. */
+	progress?: Float64Array | null;
 }
+
+/** The running shard's progress slot (one shard at a time per thread). */
+let progressOut: Float64Array | null = null;
 
 const roots = new Float64Array(2 * ROOT_STRIDE);
 /** Scratch for the screen: fills and the spherical estimate. */
@@ -309,6 +315,7 @@ function consider(top: TopK, packed: Float64Array, seidel: Float64Array, p: Sear
 	rec[REC_SA_MM] = screenOut[2];
 	rec[REC_UNTRACEABLE] = untr ? 1 : 0;
 	top.push(rec);
+	offerBest(progressOut, i, j, score);
 }
 
 /** Every single element of the candidates. */
@@ -476,6 +483,7 @@ function pairRow(
 export function searchShard(input: ShardInput): ShardResult {
 	const top = new TopK(input.topK);
 	counters.fill(0);
+	progressOut = input.progress ?? null;
 	let truncated = false;
 	const cancel = input.cancel ?? null;
 	// Single parts: shard 0 does them all (there are few).
@@ -483,14 +491,19 @@ export function searchShard(input: ShardInput): ShardResult {
 	if (input.params.maxElements >= 2) {
 		const { packed, seidel, partIndex, untraceable, partUnits, candidates, params } = input;
 		const soa = toSoa(packed);
+		const rows = Math.max(1, Math.ceil((candidates.length - input.shardIndex) / input.shardCount));
+		let done = 0;
 		for (let q = input.shardIndex; q < candidates.length; q += input.shardCount) {
 			if (Date.now() > input.deadline || (cancel !== null && Atomics.load(cancel, 0) !== 0)) {
 				truncated = true;
 				break;
 			}
 			pairRow(packed, seidel, partIndex, untraceable, partUnits, candidates, params, top, soa, candidates[q]);
+			if (progressOut) progressOut[PG_FRACTION] = ++done / rows;
 		}
 	}
+	if (progressOut && !truncated) progressOut[PG_FRACTION] = 1;
+	progressOut = null;
 	return {
 		records: top.sorted(),
 		count: top.count,

@@ -7,6 +7,7 @@
 import { isMainThread, parentPort, workerData } from 'node:worker_threads';
 import { searchShard, type SearchParams } from './search-kernel';
 import { runModeShard, type ModeSearchMessage } from './mode-shard';
+import { progressSlot } from './progress';
 
 /** URL of this module (in the built app: its own chunk). */
 export const selfUrl = import.meta.url;
@@ -35,6 +36,7 @@ export interface SearchMessage {
 	topK: number;
 	deadline: number;
 	cancel: SharedArrayBuffer;
+	progress?: SharedArrayBuffer | null;
 }
 
 export type WorkerReply =
@@ -84,7 +86,8 @@ function startLoop(): void {
 				shardCount: msg.shardCount,
 				topK: msg.topK,
 				deadline: msg.deadline,
-				cancel: new Int32Array(msg.cancel)
+				cancel: new Int32Array(msg.cancel),
+				progress: progressSlot(msg.progress, msg.shardIndex)
 			});
 			const reply: WorkerReply = { type: 'result', taskId: msg.taskId, ...r, ms: performance.now() - t0 };
 			port.postMessage(reply, [r.records.buffer as ArrayBuffer]);

@@ -7,7 +7,8 @@
 import { DomainError } from '../api/http';
 import { ROOT_DOUBLE, ROOT_FAMILY } from '../../optics/imaging';
 import type { ParsedImagingRequest } from '../../solver/request';
-import type { Solution, SolveResponse } from '../../solver/types';
+import type { Solution, SolveProgress, SolveResponse } from '../../solver/types';
+import { progressBuffer, readProgress } from './progress';
 import { buildElementSnapshot, wavelengthCoveredByAnyMaterial, type CandidatePart, type ElementSnapshot } from './elements';
 import {
 	searchShard,
@@ -59,6 +60,37 @@ export interface SolveOptions {
 	keepAll?: boolean;
 	/** Inline beam modes only (tests): run this many shards one after another, sharing their K-th key as the pool's workers do. */
 	inlineShards?: number;
+	/** Called a few times a second while the pool searches (not inline), with the fraction searched and the best so far. */
+	onProgress?: (p: SolveProgress) => void;
+	/** How often onProgress is called, ms (default 250). */
+	progressEveryMs?: number;
+}
+
+/**
+ * Watches a pool search's progress buffer for `onProgress` (nothing when there is no listener): the caller passes
+ * `buffer` to the pool and calls `stop()` when the search has ended. `describe` turns the best candidate's element
+ * indices and score into what the client is shown.
+ */
+export function watchProgress(
+	options: SolveOptions,
+	shards: number,
+	describe: (best: { i: number; j: number; score: number }) => SolveProgress['best']
+): { buffer: SharedArrayBuffer | null; stop: () => void } {
+	const listener = options.onProgress;
+	if (!listener || options.inline) return { buffer: null, stop: () => {} };
+	const buffer = progressBuffer(shards);
+	const tell = () => {
+		const { fraction, best } = readProgress(buffer, shards);
+		listener({ fraction, best: best ? describe(best) : null });
+	};
+	const timer = setInterval(tell, options.progressEveryMs ?? 250);
+	return {
+		buffer,
+		stop: () => {
+			clearInterval(timer);
+			tell();
+		}
+	};
 }
 
 /** Which elements of the snapshot the question allows, and how many units each part may use. */
@@ -119,10 +151,15 @@ export async function solveWithStock(stock: StockView, req: ParsedImagingRequest
 		];
 	} else {
 		workers = workerCount();
-		shards = await searchOnPool(
-			{ key, packed: snap.packed, seidel: snap.seidel, partIndex: snap.partIndex, untraceable: snap.untraceable },
-			{ candidates, partUnits, params, topK: TOP_K_PER_SHARD, deadline, signal: options.signal }
-		);
+		const watch = watchProgress(options, workers, ({ i, j }) => ({ parts: (j < 0 ? [i] : [i, j]).map((e) => snap.parts[snap.partIndex[e]].sku) }));
+		try {
+			shards = await searchOnPool(
+				{ key, packed: snap.packed, seidel: snap.seidel, partIndex: snap.partIndex, untraceable: snap.untraceable },
+				{ candidates, partUnits, params, topK: TOP_K_PER_SHARD, deadline, signal: options.signal, progress: watch.buffer }
+			);
+		} finally {
+			watch.stop();
+		}
 	}
 	const searchMs = performance.now() - tSearch;
 	if (options.signal?.aborted) throw new DomainError(499, 'cancelled', 'The request was cancelled.');
