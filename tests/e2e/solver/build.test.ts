@@ -47,6 +47,27 @@ describe('Build from stock in the browser', () => {
 		expect(await page.inputValue('input[name=track]')).toBe('350 mm');
 	});
 
+	it('a search that runs long shows its progress and can be stopped from the page', async () => {
+		// Hold the answer back for 4 s (the demo stock answers at once), so that the page shows the long-search view.
+		await page.route('**/api/v1/solve', async (route) => {
+			await new Promise((r) => setTimeout(r, 4000));
+			await route.continue().catch(() => {});
+		});
+		try {
+			await page.goto(appUrl('/build?track=360+mm&magnification=-0.5&na=0.02&objectHeight=1+mm'));
+			await page.waitForSelector('[data-testid=stop-search]', { timeout: 10_000 });
+			await expect(page.locator('[data-testid=search-progress] progress').getAttribute('max')).resolves.toBe('100');
+			await expect(page.locator('[data-testid=search-progress]').innerText()).resolves.toContain('% searched');
+			await screenshot(page, 'build-long-search');
+			await page.click('[data-testid=stop-search]');
+			await page.waitForSelector('[data-testid=search-stopped]');
+			await expect(page.locator('[data-testid=search-progress]').count()).resolves.toBe(0);
+			await expect(page.locator('[data-testid=solution-row]').count()).resolves.toBe(0);
+		} finally {
+			await page.unroute('**/api/v1/solve');
+		}
+	});
+
 	it('shows field messages for a bad question', async () => {
 		await page.goto(appUrl('/build?track=0&magnification=-0.5&na=0.03'));
 		await page.waitForSelector('[data-field-error=track]');
