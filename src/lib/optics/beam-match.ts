@@ -20,7 +20,7 @@
  * (0, min(f₁²/z₀, f₂²/z_t)] are all the answers; each is checked against the unsquared F on each of
  * the four sign branches, polished by Newton's method on F, and then re-verified by the matrices.
  */
-import { realRootsIn, polyMultiply, polyAdd, polyDerivative } from './polynomial';
+import { realRootsIn, realRootsInto, polyMultiply, polyAdd, polyDerivative } from './polynomial';
 import { overlapFromQ } from './coupling';
 
 /** A part seen by the ABCD law: focal length and principal planes (null for an afocal part). */
@@ -155,63 +155,94 @@ export function pairMatchRoots(beams: MatchBeams, e1: MatchPart, e2: MatchPart, 
 	if (!(zMin <= zMax) || !(zMax > 0)) return [];
 	const sAll = beams.targetZMm - beams.inWaistZMm - e1.thicknessMm - e2.thicknessMm + t1.h1Mm - t1.h2Mm + t2.h1Mm - t2.h2Mm;
 	const kk = sAll - 2 * f1 - 2 * f2;
-	// p(Z) = Z·α²(1 + Z/z₀)², q(Z) = Z·β²(1 + Z/z_t)²: cubics.
-	const p = [k1, (2 * k1) / z0 - z0 * z0, k1 / (z0 * z0) - 2 * z0, -1];
-	const q = [k2, (2 * k2) / zt - zt * zt, k2 / (zt * zt) - 2 * zt, -1];
-	const r = polyAdd(polyAdd(p, q, -1), [0, kk * kk], -1);
-	const poly = polyAdd(polyMultiply(r, r), polyMultiply([0, 4 * kk * kk], q), -1);
+	// p(Z) = Z·α²(1 + Z/z₀)², q(Z) = Z·β²(1 + Z/z_t)²: cubics; r = p − q − kk²·Z; the sextic r² − 4kk²·Z·q.
+	// Built in place (the search solves it for every pair it keeps): the same sums, in the same order, as
+	// polyAdd/polyMultiply would make.
+	const p0 = k1,
+		p1 = (2 * k1) / z0 - z0 * z0,
+		p2 = k1 / (z0 * z0) - 2 * z0;
+	const q0 = k2,
+		q1 = (2 * k2) / zt - zt * zt,
+		q2 = k2 / (zt * zt) - 2 * zt,
+		q3 = -1;
+	const r0 = p0 - q0,
+		r1 = p1 - q1 - kk * kk,
+		r2 = p2 - q2,
+		r3 = -1 - q3;
+	const m = 4 * kk * kk;
+	const c = sextic;
+	c[0] = r0 * r0;
+	c[1] = r0 * r1 + r1 * r0 - m * q0;
+	c[2] = r0 * r2 + r1 * r1 + r2 * r0 - m * q1;
+	c[3] = r0 * r3 + r1 * r2 + r2 * r1 + r3 * r0 - m * q2;
+	c[4] = r1 * r3 + r2 * r2 + r3 * r1 - m * q3;
+	c[5] = r2 * r3 + r3 * r2;
+	c[6] = r3 * r3;
 	// Scale Z to [0, 1] over the interval for a better conditioned search.
-	const roots = realRootsIn(scaleArgument(poly, zMax), zMin / zMax, 1).map((u) => u * zMax);
+	let scale = 1;
+	for (let k = 0; k < 7; k++) {
+		c[k] *= scale;
+		scale *= zMax;
+	}
+	const nRoots = realRootsInto(c, 7, zMin / zMax, 1, sexticRoots);
 	const out: PairRoot[] = [];
-	const branch = (z: number, s1: number, s2: number) => {
-		const al = Math.sqrt(Math.max(0, k1 / z - z0 * z0)),
-			be = Math.sqrt(Math.max(0, k2 / z - zt * zt));
-		return { al, be, F: s1 * al * (1 + z / z0) + s2 * be * (1 + z / zt) - kk, size: al * (1 + z / z0) + be * (1 + z / zt) + Math.abs(kk) };
-	};
-	for (const z0root of roots) {
+	for (let n = 0; n < nRoots; n++) {
+		const z0root = sexticRoots[n] * zMax;
 		if (!(z0root > 0)) continue;
-		for (const s1 of [1, -1]) {
-			for (const s2 of [1, -1]) {
+		for (let s1 = 1; s1 >= -1; s1 -= 2) {
+			for (let s2 = 1; s2 >= -1; s2 -= 2) {
 				let z = z0root;
-				let br = branch(z, s1, s2);
-				if (!(Math.abs(br.F) <= 1e-6 * br.size)) continue;
-				if (br.al === 0 && s1 < 0) continue;
-				if (br.be === 0 && s2 < 0) continue;
+				let F = branchF(z, s1, s2, k1, k2, z0, zt, kk);
+				const al = brAl,
+					be = brBe;
+				if (!(Math.abs(F) <= 1e-6 * brSize)) continue;
+				if (al === 0 && s1 < 0) continue;
+				if (be === 0 && s2 < 0) continue;
+				let alz = al,
+					bez = be;
 				// Newton on the unsquared F (numeric slope), kept only while it improves.
-				for (let it = 0; it < 4 && br.F !== 0; it++) {
+				for (let it = 0; it < 4 && F !== 0; it++) {
 					const h = 1e-7 * z;
-					const slope = (branch(z + h, s1, s2).F - branch(z - h, s1, s2).F) / (2 * h);
+					const slope = (branchF(z + h, s1, s2, k1, k2, z0, zt, kk) - branchF(z - h, s1, s2, k1, k2, z0, zt, kk)) / (2 * h);
 					if (!(Math.abs(slope) > 0)) break;
-					const zn = z - br.F / slope;
+					const zn = z - F / slope;
 					if (!(zn > 0 && zn <= zMax * (1 + 1e-12))) break;
-					const bn = branch(zn, s1, s2);
-					if (!(Math.abs(bn.F) < Math.abs(br.F))) break;
+					const Fn = branchF(zn, s1, s2, k1, k2, z0, zt, kk);
+					if (!(Math.abs(Fn) < Math.abs(F))) break;
 					z = zn;
-					br = bn;
+					F = Fn;
+					alz = brAl;
+					bez = brBe;
 				}
-				const aDist = f1 + s1 * br.al,
-					bDist = f2 + s2 * br.be;
+				const aDist = f1 + s1 * alz,
+					bDist = f2 + s2 * bez;
 				const eDist = sAll - aDist - bDist;
-				const p1 = beams.inWaistZMm + aDist - t1.h1Mm;
+				const pos = beams.inWaistZMm + aDist - t1.h1Mm;
 				const gap = eDist - t2.h1Mm + t1.h2Mm;
-				const eff = pairEfficiency(beams, e1, e2, p1, gap);
+				const eff = pairEfficiency(beams, e1, e2, pos, gap);
 				if (!(eff >= 1 - 1e-9)) continue;
-				if (out.some((o) => Math.abs(o.p1Mm - p1) <= 1e-7 * Math.max(1, Math.abs(p1)) && Math.abs(o.gapMm - gap) <= 1e-7 * Math.max(1, Math.abs(gap)))) continue;
-				out.push({ p1Mm: p1, gapMm: gap, middleRayleighMm: z });
+				if (out.some((o) => Math.abs(o.p1Mm - pos) <= 1e-7 * Math.max(1, Math.abs(pos)) && Math.abs(o.gapMm - gap) <= 1e-7 * Math.max(1, Math.abs(gap)))) continue;
+				out.push({ p1Mm: pos, gapMm: gap, middleRayleighMm: z });
 			}
 		}
 	}
 	return out;
 }
 
-/** Coefficients of p(s·u) as a polynomial in u. */
-function scaleArgument(c: number[], s: number): number[] {
-	let k = 1;
-	return c.map((v) => {
-		const out = v * k;
-		k *= s;
-		return out;
-	});
+const sextic = new Float64Array(7);
+const sexticRoots = new Float64Array(8);
+/** α, β and the size of the terms of the last branchF call. */
+let brAl = 0,
+	brBe = 0,
+	brSize = 0;
+/** The unsquared match condition F(Z) = s₁α(1 + Z/z₀) + s₂β(1 + Z/z_t) − kk of one sign branch (α, β in brAl, brBe). */
+function branchF(z: number, s1: number, s2: number, k1: number, k2: number, z0: number, zt: number, kk: number): number {
+	const al = Math.sqrt(Math.max(0, k1 / z - z0 * z0)),
+		be = Math.sqrt(Math.max(0, k2 / z - zt * zt));
+	brAl = al;
+	brBe = be;
+	brSize = al * (1 + z / z0) + be * (1 + z / zt) + Math.abs(kk);
+	return s1 * al * (1 + z / z0) + s2 * be * (1 + z / zt) - kk;
 }
 
 

@@ -47,23 +47,38 @@ export function polyAdd(a: ArrayLike<number>, b: ArrayLike<number>, s = 1): numb
 	return out;
 }
 
-/** Degree after dropping leading coefficients that are zero relative to the largest (1e-14). */
-function effectiveDegree(c: ArrayLike<number>): number {
+/** Degree after dropping leading coefficients that are zero relative to the largest (1e-14); c[0..n-1] are read. */
+function effectiveDegree(c: ArrayLike<number>, n = c.length): number {
 	let big = 0;
-	for (let k = 0; k < c.length; k++) big = Math.max(big, Math.abs(c[k]));
+	for (let k = 0; k < n; k++) big = Math.max(big, Math.abs(c[k]));
 	if (big === 0) return -1;
-	let d = c.length - 1;
+	let d = n - 1;
 	while (d > 0 && Math.abs(c[d]) <= 1e-14 * big) d--;
 	return d;
 }
 
+/** p(x) by Horner's rule over c[0..deg]. */
+function valueTo(c: Float64Array, deg: number, x: number): number {
+	let v = 0;
+	for (let k = deg; k >= 0; k--) v = v * x + c[k];
+	return v;
+}
+
+/** Σ|c_k|·|x|^k over c[0..deg]. */
+function scaleTo(c: Float64Array, deg: number, x: number): number {
+	let v = 0;
+	const ax = Math.abs(x);
+	for (let k = deg; k >= 0; k--) v = v * ax + Math.abs(c[k]);
+	return v;
+}
+
 /** The root of p in [a, b], where p(a) and p(b) have opposite signs (Illinois regula falsi with bisection). */
-function bracketRoot(c: ArrayLike<number>, a: number, b: number, fa: number, fb: number): number {
+function bracketRoot(c: Float64Array, deg: number, a: number, b: number, fa: number, fb: number): number {
 	for (let it = 0; it < 200; it++) {
 		let x = (a * fb - b * fa) / (fb - fa);
 		// Every fourth step (or when the secant leaves the bracket) a plain bisection keeps it shrinking.
 		if (it % 4 === 3 || !(x > Math.min(a, b) && x < Math.max(a, b))) x = 0.5 * (a + b);
-		const fx = polyValue(c, x);
+		const fx = valueTo(c, deg, x);
 		if (fx === 0) return x;
 		if (fx * fb < 0) {
 			a = b;
@@ -79,37 +94,69 @@ function bracketRoot(c: ArrayLike<number>, a: number, b: number, fa: number, fb:
 /** Relative size of |p(x)| against its terms below which a critical point counts as a (double) root. */
 const TOUCH_TOL = 1e-11;
 
+/** Highest degree the allocation-free search takes. */
+export const MAX_ROOT_DEGREE = 12;
+// Workspace per recursion level (the derivative of level k is level k + 1): coefficients and roots.
+const levelCoef = Array.from({ length: MAX_ROOT_DEGREE + 2 }, () => new Float64Array(MAX_ROOT_DEGREE + 1));
+const levelRoots = Array.from({ length: MAX_ROOT_DEGREE + 2 }, () => new Float64Array(MAX_ROOT_DEGREE + 2));
+
+/**
+ * Roots of the polynomial levelCoef[level][0..len−1] in [lo, hi] into `out` (ascending); returns how many. Values
+ * are taken over all `len` coefficients; negligible leading ones only lower the degree of the derivative taken.
+ */
+function rootsAtLevel(level: number, len: number, lo: number, hi: number, out: Float64Array): number {
+	const c = levelCoef[level];
+	const deg = effectiveDegree(c, len);
+	const top = len - 1;
+	if (deg <= 0) return 0;
+	if (deg === 1) {
+		const x = -c[0] / c[1];
+		if (x >= lo && x <= hi) {
+			out[0] = x;
+			return 1;
+		}
+		return 0;
+	}
+	const d = levelCoef[level + 1];
+	for (let k = 1; k <= deg; k++) d[k - 1] = k * c[k];
+	const crit = levelRoots[level + 1];
+	const nc = rootsAtLevel(level + 1, deg, lo, hi, crit);
+	let n = 0;
+	const push = (x: number) => {
+		if (n === 0 || Math.abs(x - out[n - 1]) > 1e-12 * Math.max(1, Math.abs(x))) out[n++] = x;
+	};
+	let a = lo;
+	let fa = valueTo(c, top, lo);
+	if (fa === 0) push(lo);
+	for (let k = 0; k <= nc; k++) {
+		const b = k < nc ? crit[k] : hi;
+		const fb = valueTo(c, top, b);
+		if (fb === 0) push(b);
+		else if (fa !== 0 && fa * fb < 0) push(bracketRoot(c, top, a, b, fa, fb));
+		else if (k < nc && Math.abs(fb) <= TOUCH_TOL * scaleTo(c, top, b)) push(b); // touches zero at a critical point: a double root
+		a = b;
+		fa = fb;
+	}
+	return n;
+}
+
+/**
+ * Every real root of p (c[0..n−1], n ≤ MAX_ROOT_DEGREE + 1) in [lo, hi], ascending (a double root once), written
+ * into `out` (room for n + 1); returns how many. Allocates nothing: for the beam search's hot path.
+ */
+export function realRootsInto(c: ArrayLike<number>, n: number, lo: number, hi: number, out: Float64Array): number {
+	if (!(lo <= hi)) return 0;
+	if (n > MAX_ROOT_DEGREE + 1) throw new Error(`degree ${n - 1} is above ${MAX_ROOT_DEGREE}`);
+	const top = levelCoef[0];
+	for (let k = 0; k < n; k++) top[k] = c[k];
+	return rootsAtLevel(0, n, lo, hi, out);
+}
+
 /**
  * Every real root of p in [lo, hi], ascending (a double root once). Empty for the zero
  * polynomial (every x is a root: the caller decides what that means).
  */
 export function realRootsIn(c: ArrayLike<number>, lo: number, hi: number): number[] {
-	if (!(lo <= hi)) return [];
-	const deg = effectiveDegree(c);
-	if (deg <= 0) return [];
-	if (deg === 1) {
-		const x = -c[0] / c[1];
-		return x >= lo && x <= hi ? [x] : [];
-	}
-	const crit = realRootsIn(polyDerivative(Array.prototype.slice.call(c, 0, deg + 1) as number[]), lo, hi);
-	const pts = [lo, ...crit, hi];
-	const out: number[] = [];
-	const push = (x: number) => {
-		if (!out.length || Math.abs(x - out[out.length - 1]) > 1e-12 * Math.max(1, Math.abs(x))) out.push(x);
-	};
-	let fa = polyValue(c, pts[0]);
-	if (fa === 0) push(pts[0]);
-	for (let k = 1; k < pts.length; k++) {
-		const a = pts[k - 1],
-			b = pts[k];
-		const fb = polyValue(c, b);
-		if (fb === 0) push(b);
-		else if (fa !== 0 && fa * fb < 0) {
-			push(bracketRoot(c, a, b, fa, fb));
-		} else if (k < pts.length - 1 && Math.abs(fb) <= TOUCH_TOL * polyScale(c, b)) {
-			push(b); // touches zero at a critical point: a double root
-		}
-		fa = fb;
-	}
-	return out;
+	const out = new Float64Array(c.length + 1);
+	return Array.from(out.subarray(0, realRootsInto(c, c.length, lo, hi, out)));
 }
