@@ -28,6 +28,7 @@ import { partInputSchema, partPatchSchema, PURCHASING_FIELDS, toSurfaceSpecs, ty
 import { toPartJson, type PartJson } from './part-json';
 import { getDefaultWavelengthNm } from './settings';
 import { toMajor, toMinor } from '$lib/money';
+import { parseCoatingBand } from '$lib/coating';
 
 export { partInputSchema, partPatchSchema, partFieldsSchema, PURCHASING_FIELDS } from './part-input';
 export type { PartInput, PartPatch } from './part-input';
@@ -66,6 +67,9 @@ async function supplierIdFor(tx: DbOrTx, name: string | null | undefined, actor:
 
 /** The parts row of a validated input (without the derived EFL columns); also used by CSV imports. */
 export function columnsOf(input: PartInput, supplierId: number | null) {
+	// The schema's check refused a text whose band cannot be read, so a failed parse here is no band.
+	const coating = parseCoatingBand(input.coating);
+	const band = coating.ok ? coating.band : null;
 	const firstGlass = input.surfaces.find((s, i) => i < input.surfaces.length - 1 && s.material)?.material ?? null;
 	return {
 		sku: input.sku,
@@ -79,6 +83,8 @@ export function columnsOf(input: PartInput, supplierId: number | null) {
 		designWavelengthNm: input.designWavelengthNm,
 		primaryMaterial: firstGlass ? firstGlass.toLowerCase() : null,
 		coating: input.coating ?? null,
+		coatingMinNm: band?.minNm ?? null,
+		coatingMaxNm: band?.maxNm ?? null,
 		supplierId,
 		supplierPartNumber: input.supplierPartNumber ?? null,
 		unitPriceMinor: input.unitPrice == null ? null : toMinor(input.unitPrice),

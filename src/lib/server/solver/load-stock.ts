@@ -9,6 +9,7 @@ import type { DbOrTx } from '$lib/server/db';
 import { parts, partSurfaces, measurements, stock, locations, reservations } from '$lib/server/db/schema';
 import { currentStockVersion } from '$lib/server/stock/version';
 import type { CandidatePart } from './elements';
+import { bandOf } from '$lib/coating';
 import type { StockView } from './solve';
 
 /** A cached view older than this is reloaded even if the version did not move (reservations expire). */
@@ -77,7 +78,9 @@ export async function loadCandidateParts(db: DbOrTx, now = new Date()): Promise<
 			measured: m ? { eflMm: m.eflMm, wavelengthNm: m.wavelengthNm, uncertaintyMm: m.uncertaintyMm } : null,
 			onHand,
 			available: Math.max(0, onHand - (reserved.get(p.id) ?? 0)),
-			locations: locs
+			locations: locs,
+			coating: p.coating,
+			coatingBandNm: bandOf(p.coatingMinNm, p.coatingMaxNm)
 		};
 	});
 }

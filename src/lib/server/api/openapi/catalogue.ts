@@ -44,6 +44,11 @@ const part = {
 	properties: {
 		id: int,
 		...partFields,
+		coatingBandNm: {
+			type: ['object', 'null'],
+			properties: { minNm: num, maxNm: num },
+			description: 'coating band read from `coating`: "AR 400–700 nm" → 400–700; one wavelength ("V-coat 1064 nm") → ±2 %; null when the text names no wavelength'
+		},
 		onHand: { ...int, description: 'usable units in all locations' },
 		available: { ...int, description: 'on hand − active unexpired reservations' },
 		measured: {
