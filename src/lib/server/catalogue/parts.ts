@@ -29,6 +29,7 @@ import { toPartJson, type PartJson } from './part-json';
 import { getDefaultWavelengthNm } from './settings';
 import { toMajor, toMinor } from '$lib/money';
 import { parseCoatingBand } from '$lib/coating';
+import { syncLabMaterials } from './lab-materials';
 
 export { partInputSchema, partPatchSchema, partFieldsSchema, PURCHASING_FIELDS } from './part-input';
 export type { PartInput, PartPatch } from './part-input';
@@ -162,6 +163,7 @@ export async function refreshDerived(tx: DbOrTx, partId: number, defaultWaveleng
 
 /** Creates a part from unknown input (throws ZodError / DomainError 409). Returns its id. */
 export async function createPart(db: DbOrTx, input: unknown, actor: Actor): Promise<{ id: number }> {
+	await syncLabMaterials(db);
 	const data = partInputSchema.parse(input);
 	return inTransaction(db, async (tx) => {
 		const cols = columnsOf(data, await supplierIdFor(tx, data.supplier, actor));
@@ -227,6 +229,7 @@ export function assertPatchAllowed(role: Role | undefined, patch: PartPatch) {
  * the actor carries a role.
  */
 export async function updatePart(db: DbOrTx, id: number, patch: unknown, actor: Actor): Promise<{ id: number }> {
+	await syncLabMaterials(db);
 	const data = partPatchSchema.parse(patch);
 	if (actor.role) assertPatchAllowed(actor.role, data);
 	return inTransaction(db, async (tx) => {

@@ -10,6 +10,7 @@ import { parts, partSurfaces, measurements, stock, locations, reservations } fro
 import { currentStockVersion } from '$lib/server/stock/version';
 import type { CandidatePart } from './elements';
 import { bandOf } from '$lib/coating';
+import { syncLabMaterials } from '$lib/server/catalogue/lab-materials';
 import type { StockView } from './solve';
 
 /** A cached view older than this is reloaded even if the version did not move (reservations expire). */
@@ -87,6 +88,8 @@ export async function loadCandidateParts(db: DbOrTx, now = new Date()): Promise<
 
 /** The current stock view, from the cache when the stock version has not moved. */
 export async function stockView(db: DbOrTx): Promise<StockView> {
+	// The lab's own materials, as another instance may have added one (adding one bumps the stock version).
+	await syncLabMaterials(db);
 	const version = await currentStockVersion(db);
 	if (cached && cached.version === version && Date.now() - cached.loadedAt < MAX_AGE_MS) return cached.view;
 	if (!loading) {
