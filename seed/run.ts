@@ -8,6 +8,7 @@ import { createDb, type Db } from '../src/lib/server/db/client';
 import * as t from '../src/lib/server/db/schema';
 import { hashPassword } from '../src/lib/server/auth/password';
 import { paraxialColumns } from '../src/lib/server/catalogue/derived';
+import { parseCoatingBand } from '../src/lib/coating';
 import {
 	DEMO_LOCATIONS,
 	DEMO_MATERIALS,
@@ -18,6 +19,13 @@ import {
 	drawerFor,
 	prng
 } from './demo-data';
+
+/** The coating band of a demo part, read from its coating text as the part service does. */
+function coatingColumns(coating: string | null) {
+	const r = parseCoatingBand(coating);
+	const band = r.ok ? r.band : null;
+	return { coatingMinNm: band?.minNm ?? null, coatingMaxNm: band?.maxNm ?? null };
+}
 
 export const DEFAULT_DEMO_PASSWORD = 'tarnwell-bench-2026';
 const DEFAULT_WAVELENGTH_NM = 587.6;
@@ -74,6 +82,7 @@ export async function seedDemo(db: Db, opts: { password: string; pepper?: string
 					eflSource: 'nominal',
 					primaryMaterial: first,
 					coating: p.coating,
+					...coatingColumns(p.coating),
 					supplierId: supplierIds.get(p.supplier),
 					supplierPartNumber: p.supplierPartNumber,
 					unitPriceMinor: p.unitPriceMinor,

@@ -30,7 +30,8 @@ export const NAV: NavItem[] = [
 export const ADMIN_NAV: NavItem[] = [
 	{ href: '/admin/users', label: 'Users', roles: ['admin'] },
 	{ href: '/admin/outbox', label: 'Outbox', roles: ['admin'] },
-	{ href: '/admin/settings', label: 'Lab settings', roles: ['admin'] }
+	{ href: '/admin/settings', label: 'Lab settings', roles: ['admin'] },
+	{ href: '/admin/materials', label: 'Materials', roles: ['admin'] }
 ];
 
 export function navFor(role: Role | undefined): NavItem[] {

@@ -8,6 +8,13 @@
  *   digits are (nd − 1)·1000, the last three vd·10, e.g. 517642 → nd = 1.517, vd = 64.2),
  *   with a two-term Cauchy dispersion fitted to nd and vd.
  *
+ * - materials the lab adds from a supplier's datasheet (Sellmeier or Cauchy coefficients, the
+ *   datasheet's range and its source), registered at run time with `setLabMaterials` by the
+ *   server (`src/lib/server/catalogue/lab-materials.ts`), which keeps them in the database.
+ *
+ * Every model carries its formula (`kind`) and the range it is valid in: outside it there is no
+ * index (`WavelengthOutOfRangeError`), never an extrapolation.
+ *
  * All indices are relative to air, and air (material null) has n = 1 exactly.
  * Wavelengths are in nm at the API; the Sellmeier formulas below use µm internally.
  */
@@ -36,7 +43,9 @@ export interface MaterialModel {
 	/** Canonical name, e.g. 'fused-silica' or '517642'. */
 	readonly name: string;
 	/** Which kind of formula gives n(λ). */
-	readonly kind: 'sellmeier' | 'glass-code';
+	readonly kind: 'sellmeier' | 'cauchy' | 'glass-code';
+	/** Built into the optics core from the open literature, a glass code, or added by the lab. */
+	readonly origin: 'open' | 'glass-code' | 'lab';
 	/** Lowest wavelength (nm) at which the formula is valid. */
 	readonly minNm: number;
 	/** Highest wavelength (nm) at which the formula is valid. */
@@ -111,6 +120,7 @@ function sellmeierModel(spec: SellmeierSpec): MaterialModel {
 	return {
 		name: spec.name,
 		kind: 'sellmeier',
+		origin: 'open',
 		minNm: spec.minNm,
 		maxNm: spec.maxNm,
 		source: spec.source,
@@ -130,6 +140,106 @@ for (const spec of SELLMEIER) {
 
 /** Canonical names of the open Sellmeier materials, for pickers and messages. */
 export const OPEN_MATERIALS: readonly string[] = SELLMEIER.map((s) => s.name);
+
+/**
+ * The open materials as data, for listings: Sellmeier B_i and C_i = λ_i² (µm²), the range and the
+ * paper. (The code keeps the resonance wavelengths λ_i as printed in the papers.)
+ */
+export function openMaterialSpecs(): LabMaterialSpec[] {
+	return SELLMEIER.map((s) => ({
+		code: s.name,
+		name: s.name,
+		formula: 'sellmeier' as const,
+		b: [...s.b],
+		c: s.lambdaUm.map((l) => l * l),
+		minNm: s.minNm,
+		maxNm: s.maxNm,
+		source: s.source
+	}));
+}
+
+/**
+ * A material the lab adds from a datasheet. Sellmeier: n² − 1 = Σ B_i·λ²/(λ² − C_i), λ in µm, C_i in µm²
+ * (the usual datasheet form); Cauchy: n = A + B/λ² + C/λ⁴ + … with `terms` = [A, B, C, …], λ in µm.
+ */
+export type LabMaterialSpec =
+	| { code: string; name: string; formula: 'sellmeier'; b: number[]; c: number[]; minNm: number; maxNm: number; source: string }
+	| { code: string; name: string; formula: 'cauchy'; terms: number[]; minNm: number; maxNm: number; source: string };
+
+/** The model of a lab material (no checks: see `dispersionProblem`). */
+export function labMaterialModel(spec: LabMaterialSpec): MaterialModel {
+	let index: (wavelengthNm: number) => number;
+	if (spec.formula === 'sellmeier') {
+		const b = [...spec.b],
+			c = [...spec.c];
+		index = (wavelengthNm) => {
+			const x = (wavelengthNm / 1000) ** 2;
+			let n2 = 1;
+			for (let i = 0; i < b.length; i++) n2 += (b[i] * x) / (x - c[i]);
+			return Math.sqrt(n2);
+		};
+	} else {
+		const t = [...spec.terms];
+		index = (wavelengthNm) => {
+			const inv = 1 / (wavelengthNm / 1000) ** 2;
+			let n = 0,
+				p = 1;
+			for (const a of t) {
+				n += a * p;
+				p *= inv;
+			}
+			return n;
+		};
+	}
+	return { name: spec.code, kind: spec.formula, origin: 'lab', minNm: spec.minNm, maxNm: spec.maxNm, source: spec.source, indexUnchecked: index };
+}
+
+/** Largest index any formula may give (no optical material in use comes near; common practice, no source). */
+const MAX_PLAUSIBLE_INDEX = 5;
+
+/**
+ * Why a lab material's formula cannot be used over its stated range, or null: a pole of the
+ * Sellmeier form inside the range, or an index that is not a finite number between 1 and 5 at any
+ * of 400 wavelengths spread over it (with both ends).
+ */
+export function dispersionProblem(spec: LabMaterialSpec): string | null {
+	if (!(spec.minNm > 0 && spec.maxNm > spec.minNm)) return 'The range must run from a lower to a higher wavelength.';
+	if (spec.formula === 'sellmeier') {
+		if (spec.b.length !== spec.c.length) return 'Give as many C as B coefficients.';
+		const lo = (spec.minNm / 1000) ** 2,
+			hi = (spec.maxNm / 1000) ** 2;
+		const pole = spec.c.find((c) => c >= lo && c <= hi);
+		if (pole !== undefined) return `C = ${pole} µm² puts a pole of the formula at ${Math.round(Math.sqrt(pole) * 1000)} nm, inside the range.`;
+	}
+	const model = labMaterialModel(spec);
+	const steps = 400;
+	for (let k = 0; k <= steps; k++) {
+		const wl = spec.minNm + ((spec.maxNm - spec.minNm) * k) / steps;
+		const n = model.indexUnchecked(wl);
+		if (!Number.isFinite(n) || n <= 1 || n > MAX_PLAUSIBLE_INDEX) {
+			return `The formula gives n = ${Number.isFinite(n) ? n.toFixed(4) : 'no number'} at ${Math.round(wl)} nm: an index must lie between 1 and ${MAX_PLAUSIBLE_INDEX} over the whole range.`;
+		}
+	}
+	return null;
+}
+
+/** Lab materials by code (lower case), set by the server from the database. */
+let LAB = new Map<string, MaterialModel>();
+
+/**
+ * Replaces the registered lab materials (the server calls it with every row of its table). Codes
+ * that name an open material or look like a glass code are refused earlier, at the edge.
+ */
+export function setLabMaterials(specs: readonly LabMaterialSpec[]): void {
+	const next = new Map<string, MaterialModel>();
+	for (const s of specs) next.set(s.code.trim().toLowerCase(), labMaterialModel(s));
+	LAB = next;
+}
+
+/** True when the name is an open material built into the core (or one of its aliases). */
+export function isOpenMaterialName(name: string): boolean {
+	return BY_NAME.has(name.trim().toLowerCase());
+}
 
 const GLASS_CODE = /^(\d{3})(\d{3})(?:\.\d+)?$/;
 
@@ -157,6 +267,7 @@ export function glassCodeModel(nd: number, vd: number, name = glassCodeName(nd, 
 	return {
 		name,
 		kind: 'glass-code',
+		origin: 'glass-code',
 		minNm: GLASS_CODE_RANGE_NM[0],
 		maxNm: GLASS_CODE_RANGE_NM[1],
 		source:
@@ -194,7 +305,7 @@ export function parseGlassCode(code: string): { nd: number; vd: number } | null 
  */
 export function resolveMaterial(material: string): MaterialModel {
 	const key = material.trim().toLowerCase();
-	const known = BY_NAME.get(key);
+	const known = BY_NAME.get(key) ?? LAB.get(key);
 	if (known) return known;
 	const code = parseGlassCode(key);
 	if (code) return glassCodeModel(code.nd, code.vd, key.slice(0, 6));

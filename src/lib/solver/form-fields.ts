@@ -37,6 +37,7 @@ export const IMAGING_DEFAULTS = {
 	minGap: '1 mm',
 	minWd: '5 mm',
 	available: 'true',
+	coating: 'any',
 	maxParts: '2'
 };
 export type ImagingValues = typeof IMAGING_DEFAULTS;
@@ -56,6 +57,7 @@ const BEAM_COMMON = {
 	clearance: '1.5',
 	minEff: '80',
 	available: 'true',
+	coating: 'any',
 	maxParts: '2',
 	power: '',
 	mfd: '',
@@ -85,6 +87,7 @@ export const AFOCAL_DEFAULTS = {
 	minGap: '1 mm',
 	clearance: '1.5',
 	available: 'true',
+	coating: 'any',
 	power: ''
 };
 export type AfocalValues = typeof AFOCAL_DEFAULTS;

@@ -33,7 +33,9 @@ export function shorterWorkingDistanceMm(s: Pick<Solution, 'objectDistanceMm' | 
  * Ranking key (lower is better), compared in order: vignetting first (none, then field edge, then
  * on axis: an answer that clips the marginal ray does not deliver the NA asked for, and one that
  * clips the field edge does not image the whole object, so neither may rank above an answer that
- * does what was asked); then spot over Airy in steps of 25 % (all diffraction-limited answers,
+ * does what was asked); then coating (an answer that uses a part outside its coating band comes
+ * after every in-band one of the same vignetting class: it images as asked but loses light and
+ * adds stray light at that part's surfaces); then spot over Airy in steps of 25 % (all diffraction-limited answers,
  * ratio ≤ 1, tie), untraced after traced; the smaller working distance in steps of 10 mm (longer
  * first); part count; then the exact spot ratio.
  */
@@ -42,7 +44,12 @@ export function rankKey(s: Omit<Solution, 'rank'>): number[] {
 	const bucket = spotBand(r);
 	const vig = s.vignetting.axial ? 2 : s.vignetting.edge ? 1 : 0;
 	const wd = -Math.floor(shorterWorkingDistanceMm(s) / WORKING_DISTANCE_STEP_MM);
-	return [vig, bucket, wd, s.elements.length, r ?? 1e9];
+	return [vig, coatingClass(s), bucket, wd, s.elements.length, r ?? 1e9];
+}
+
+/** 1 when an answer uses a part outside its coating band (any mode), else 0. */
+export function coatingClass(s: { warnings?: readonly { code: string }[] }): number {
+	return s.warnings?.some((w) => w.code === 'coating-out-of-band') ? 1 : 0;
 }
 
 /** Compares two ranking keys. */
@@ -52,13 +59,13 @@ export function compareKeys(a: number[], b: number[]): number {
 }
 
 /** Which part of the ranking key put an answer below the one ranked just above it. */
-export type RankStep = 'vignetting' | 'spot band' | 'working distance' | 'part count' | 'exact spot' | 'tie';
+export type RankStep = 'vignetting' | 'coating' | 'spot band' | 'working distance' | 'part count' | 'exact spot' | 'tie';
 
 /** The first criterion in which `below` loses to `above` (by `rankKey`). */
 export function decidingStep(above: Omit<Solution, 'rank'>, below: Omit<Solution, 'rank'>): RankStep {
 	const a = rankKey(above),
 		b = rankKey(below);
-	const steps: RankStep[] = ['vignetting', 'spot band', 'working distance', 'part count', 'exact spot'];
+	const steps: RankStep[] = ['vignetting', 'coating', 'spot band', 'working distance', 'part count', 'exact spot'];
 	for (let k = 0; k < steps.length; k++) if (a[k] !== b[k]) return steps[k];
 	return 'tie';
 }

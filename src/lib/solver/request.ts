@@ -45,6 +45,12 @@ export const imagingRequestSchema = z
 			.pipe(z.number().min(0, 'The minimum working distance cannot be negative.').max(10_000, 'The minimum working distance must be at most 10000 mm.'))
 			.default(5),
 		availableOnly: z.boolean({ error: 'availableOnly must be true or false.' }).default(true),
+		/**
+		 * Leave out parts whose coating band (read from their coating text) does not cover the wavelength.
+		 * Off by default: such parts are then used, their answers carry a coating warning and rank after
+		 * in-band ones. Parts without a known band are never left out.
+		 */
+		inCoatingBandOnly: z.boolean({ error: 'inCoatingBandOnly must be true or false.' }).default(false),
 		partIds: z.array(z.number().int().positive(), { error: 'partIds must be a list of part ids.' }).min(1, 'Give at least one part id, or leave partIds out.').max(5000, 'At most 5000 part ids.').optional(),
 		locationIds: z
 			.array(z.number().int().positive(), { error: 'locationIds must be a list of location ids.' })
@@ -78,6 +84,7 @@ export const DEFAULT_MIN_EFFICIENCY = 0.8;
 /** Fields every mode shares (stock filter, answer count, time budget). */
 const shared = {
 	availableOnly: imagingRequestSchema.shape.availableOnly,
+	inCoatingBandOnly: imagingRequestSchema.shape.inCoatingBandOnly,
 	partIds: imagingRequestSchema.shape.partIds,
 	locationIds: imagingRequestSchema.shape.locationIds,
 	limit: imagingRequestSchema.shape.limit,

@@ -29,6 +29,8 @@ export interface SolveRequest {
 	minWorkingDistanceMm: number;
 	/** Only parts with available stock (false: catalogue parts without stock too, marked "to buy"). */
 	availableOnly: boolean;
+	/** Leave out parts whose coating band does not cover the wavelength (else they are used, with a warning). */
+	inCoatingBandOnly: boolean;
 	/** Restrict the search to these parts (a kit). */
 	partIds?: number[];
 	/** Restrict the search to parts with usable stock in these locations (a drawer). */
@@ -87,6 +89,17 @@ export interface SolutionElement {
 	backPrincipalZMm: number | null;
 }
 
+/**
+ * Something an answer does that its figures do not show: today a part used outside its coating band
+ * (`code` 'coating-out-of-band'; the message says "coating"). Such answers rank after in-band ones.
+ */
+export interface SolutionWarning {
+	code: 'coating-out-of-band';
+	partId: number;
+	sku: string;
+	message: string;
+}
+
 /** A traced ray for the drawing: polyline points (z, y) from the object plane. */
 export interface RayPath {
 	kind: 'marginal' | 'chief' | 'edge-rim' | 'principal';
@@ -143,6 +156,8 @@ export interface Solution {
 	rays: RayPath[];
 	/** Tolerance view: what each part's EFL error does. */
 	tolerance: ToleranceRow[];
+	/** Warnings (a part outside its coating band); absent in setups saved before they existed. */
+	warnings?: SolutionWarning[];
 }
 
 /** Effect of one part's EFL being off by its tolerance. */
@@ -183,7 +198,19 @@ export interface SolveStats {
 	/** The search stopped at its time budget before covering every pair. */
 	truncated: boolean;
 	workers: number;
-	partsSkipped: { sku: string; reason: string }[];
+	/**
+	 * Parts left out of this question and why, one entry per reason: no refractive index at the
+	 * wavelength (the material's formula does not reach it), no model at all, or outside its coating
+	 * band when the question asked to leave those out. `skus`: up to 5 of them, to look one up.
+	 */
+	partsExcluded: PartsExcluded[];
+}
+
+/** One reason parts were left out of a question, and how many. */
+export interface PartsExcluded {
+	reason: string;
+	count: number;
+	skus: string[];
 }
 
 /** The answer to an imaging question. */
@@ -278,6 +305,7 @@ export interface BeamSolution {
 	/** Last vertex to the target waist position, mm. */
 	backDistanceMm: number;
 	beam: BeamFigures;
+	warnings?: SolutionWarning[];
 }
 
 /** Mode afocal's figures of one answer (the contract's `afocal` object). */
@@ -317,6 +345,7 @@ export interface AfocalSolution {
 	/** Always 0. */
 	backDistanceMm: number;
 	afocal: AfocalFigures;
+	warnings?: SolutionWarning[];
 }
 
 /** An answer of any mode. */

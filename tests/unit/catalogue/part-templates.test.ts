@@ -75,6 +75,37 @@ describe('kind templates of the part form', () => {
 		expect(colour(doublet)).toBeLessThan(colour(singlet) / 5);
 	});
 
+	/**
+	 * The doublet's radii come from the chosen glasses' own dispersion: the thin-lens achromat condition
+	 * φ1/V1 + φ2/V2 = 0 (Hecht, Optics, 5th ed. 2017, §6.3.2; Smith, Modern Optical Engineering, 4th ed.
+	 * 2008, §13.1; both from memory), V from the material model, then the split corrected for thickness.
+	 * The focal shift between F and C is the back focus at F minus at C. Before, the template used the
+	 * Abbe numbers of 517642/620364 whatever glasses were chosen: +1.15 mm for 589613/785257.
+	 */
+	it.each([
+		['589613', '785257', 100, 25.4],
+		['517642', '620364', 100, 25.4],
+		['589613', '785257', 50, 12.7],
+		['517642', '785257', 200, 50.8]
+	] as const)('achromatic doublet %s/%s, f %s mm, Ø %s mm: F–C focal shift near zero', (crown, flint, f, diameterMm) => {
+		const s = surfaceTemplate('achromatic-doublet', { eflMm: f, diameterMm, material: crown, flint })!;
+		expect(s.map((x) => x.material)).toEqual([crown, flint, null]);
+		const derived = (wl: number) => {
+			const r = computeDerived(
+				{ surfaces: toSurfaceSpecs(s), eflMm: null, bflMm: null, centerThicknessMm: null, designWavelengthNm: 587.6, diameterMm, clearApertureMm: null, primaryMaterial: null },
+				wl
+			);
+			if (!r.ok) throw new Error(r.message);
+			return r.value;
+		};
+		const shift = derived(486.1327).bflMm! - derived(656.2725).bflMm!;
+		// 0.01 mm of radius rounding moves it by a few µm; a singlet of this f shifts by about f/V ≈ 1.6–4 mm.
+		expect(Math.abs(shift)).toBeLessThan(0.005 * (f / 100));
+		expect(Math.abs(derived(587.5618).eflMm / f - 1)).toBeLessThan(0.002);
+		const input = partInputSchema.safeParse({ sku: 'TPL-2', name: 'Template doublet', kind: 'achromatic-doublet', diameterMm, surfaces: s });
+		expect(input.success).toBe(true);
+	});
+
 	it("has no template for 'other'", () => {
 		expect(surfaceTemplate('other', { eflMm: 100, diameterMm: 25.4 })).toBeNull();
 	});

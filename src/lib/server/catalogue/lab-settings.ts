@@ -4,6 +4,7 @@
  * stored EFL of every part (`recomputeDerived`, in batches: a few reads and one UPDATE per 1000
  * parts), all in one transaction with the setting itself.
  */
+import { syncLabMaterials } from './lab-materials';
 import { and, asc, desc, eq, gt, inArray } from 'drizzle-orm';
 import { escape } from 'mysql2';
 import { sql } from 'drizzle-orm';
@@ -99,6 +100,7 @@ export async function recomputeDerived(tx: DbOrTx, wavelengthNm: number, opts: {
 /** Sets the lab's default wavelength and recomputes every part's stored EFL at it, in one transaction. */
 export async function setDefaultWavelength(db: DbOrTx, input: unknown, actor: { id: number }): Promise<RecomputeOutcome & { from: number; to: number }> {
 	const { defaultWavelengthNm: to } = labSettingsSchema.parse(input);
+	await syncLabMaterials(db);
 	const run = async (tx: Tx | DbOrTx) => {
 		const from = await getDefaultWavelengthNm(tx);
 		await tx

@@ -8,6 +8,7 @@ import { text } from '$lib/input';
 import { isWholeCents } from '$lib/money';
 import { buildElement, resolveMaterial, thicknessesAtHeight } from '$lib/optics';
 import { toSurfaceSpecs } from './derived';
+import { parseCoatingBand } from '$lib/coating';
 import { PART_KINDS } from '$lib/server/db/schema';
 
 const optionalNumber = (schema: z.ZodNumber) => schema.nullable().optional();
@@ -95,6 +96,8 @@ export type PartFields = z.infer<typeof partFieldsSchema>;
 /** Cross-field and optics checks of a whole part; adds issues at the field they concern. */
 export function checkPart(p: PartFields, ctx: { addIssue: (i: { code: 'custom'; message: string; path: (string | number)[] }) => void }) {
 	const issue = (path: (string | number)[], message: string) => ctx.addIssue({ code: 'custom', message, path });
+	const coating = parseCoatingBand(p.coating);
+	if (!coating.ok) issue(['coating'], coating.message);
 	if (p.clearApertureMm != null && p.clearApertureMm > p.diameterMm) {
 		issue(['clearApertureMm'], 'The clear aperture cannot exceed the diameter.');
 	}

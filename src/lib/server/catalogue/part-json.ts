@@ -6,6 +6,7 @@ import type { Measurement, Part, PartSurface } from '$lib/server/db/schema';
 import type { Totals } from '$lib/server/stock/availability';
 import type { EflSource } from './derived';
 import { toMajor } from '$lib/money';
+import { bandOf } from '$lib/coating';
 
 /** A surface in Part JSON: thickness and material describe the medium after it; the last has neither. */
 export interface SurfaceJson {
@@ -28,6 +29,8 @@ export interface PartJson {
 	centerThicknessMm: number | null;
 	designWavelengthNm: number;
 	coating: string | null;
+	/** The coating band read from `coating` (a range, or one line ±2 %: `$lib/coating`); null when it names no wavelength. */
+	coatingBandNm: { minNm: number; maxNm: number } | null;
 	supplier: string | null;
 	supplierPartNumber: string | null;
 	/** Unit price in currency units of `currency` (38.5 = 38.50 EUR). */
@@ -82,6 +85,7 @@ export function toPartJson(
 		centerThicknessMm: part.centerThicknessMm,
 		designWavelengthNm: part.designWavelengthNm,
 		coating: part.coating,
+		coatingBandNm: bandOf(part.coatingMinNm, part.coatingMaxNm),
 		supplier: extra.supplierName,
 		supplierPartNumber: part.supplierPartNumber,
 		unitPrice: toMajor(part.unitPriceMinor),

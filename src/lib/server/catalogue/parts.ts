@@ -28,6 +28,8 @@ import { partInputSchema, partPatchSchema, PURCHASING_FIELDS, toSurfaceSpecs, ty
 import { toPartJson, type PartJson } from './part-json';
 import { getDefaultWavelengthNm } from './settings';
 import { toMajor, toMinor } from '$lib/money';
+import { parseCoatingBand } from '$lib/coating';
+import { syncLabMaterials } from './lab-materials';
 
 export { partInputSchema, partPatchSchema, partFieldsSchema, PURCHASING_FIELDS } from './part-input';
 export type { PartInput, PartPatch } from './part-input';
@@ -66,6 +68,9 @@ async function supplierIdFor(tx: DbOrTx, name: string | null | undefined, actor:
 
 /** The parts row of a validated input (without the derived EFL columns); also used by CSV imports. */
 export function columnsOf(input: PartInput, supplierId: number | null) {
+	// The schema's check refused a text whose band cannot be read, so a failed parse here is no band.
+	const coating = parseCoatingBand(input.coating);
+	const band = coating.ok ? coating.band : null;
 	const firstGlass = input.surfaces.find((s, i) => i < input.surfaces.length - 1 && s.material)?.material ?? null;
 	return {
 		sku: input.sku,
@@ -79,6 +84,8 @@ export function columnsOf(input: PartInput, supplierId: number | null) {
 		designWavelengthNm: input.designWavelengthNm,
 		primaryMaterial: firstGlass ? firstGlass.toLowerCase() : null,
 		coating: input.coating ?? null,
+		coatingMinNm: band?.minNm ?? null,
+		coatingMaxNm: band?.maxNm ?? null,
 		supplierId,
 		supplierPartNumber: input.supplierPartNumber ?? null,
 		unitPriceMinor: input.unitPrice == null ? null : toMinor(input.unitPrice),
@@ -156,6 +163,7 @@ export async function refreshDerived(tx: DbOrTx, partId: number, defaultWaveleng
 
 /** Creates a part from unknown input (throws ZodError / DomainError 409). Returns its id. */
 export async function createPart(db: DbOrTx, input: unknown, actor: Actor): Promise<{ id: number }> {
+	await syncLabMaterials(db);
 	const data = partInputSchema.parse(input);
 	return inTransaction(db, async (tx) => {
 		const cols = columnsOf(data, await supplierIdFor(tx, data.supplier, actor));
@@ -221,6 +229,7 @@ export function assertPatchAllowed(role: Role | undefined, patch: PartPatch) {
  * the actor carries a role.
  */
 export async function updatePart(db: DbOrTx, id: number, patch: unknown, actor: Actor): Promise<{ id: number }> {
+	await syncLabMaterials(db);
 	const data = partPatchSchema.parse(patch);
 	if (actor.role) assertPatchAllowed(actor.role, data);
 	return inTransaction(db, async (tx) => {

@@ -16,6 +16,7 @@
  * batch by batch (at most MAX_STORED_ERRORS of them), and the writer's caches are bounded.
  */
 import { and, DrizzleQueryError, eq } from 'drizzle-orm';
+import { syncLabMaterials } from '$lib/server/catalogue/lab-materials';
 import type { Db, DbOrTx, Tx } from '$lib/server/db';
 import { inTransaction } from '$lib/server/db/transaction';
 import { isUnavailable } from '$lib/server/db/errno';
@@ -308,6 +309,7 @@ export async function runImport(
 ): Promise<RunOutcome> {
 	activeRuns.add(importId);
 	try {
+		await syncLabMaterials(db);
 		return await runImportUnwatched(db, store, importId, mode, opts);
 	} finally {
 		activeRuns.delete(importId);

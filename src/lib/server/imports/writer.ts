@@ -133,6 +133,8 @@ const PART_KEYS = [
 	'designWavelengthNm',
 	'primaryMaterial',
 	'coating',
+	'coatingMinNm',
+	'coatingMaxNm',
 	'supplierId',
 	'supplierPartNumber',
 	'unitPriceMinor',

@@ -8,7 +8,9 @@ import { DomainError } from '../api/http';
 import type { ParsedAfocalRequest, ParsedBeamRequest } from '../../solver/request';
 import type { AfocalSolution, AfocalSolveResponse, BeamSolution, BeamSolveResponse, SolveStats } from '../../solver/types';
 import { wavelengthCoveredByAnyMaterial } from './elements';
-import { snapshotFor, candidateFilter, watchProgress, type StockView, type SolveOptions } from './solve';
+import { snapshotFor, candidateFilter, watchProgress, withCoatingWarnings, type StockView, type SolveOptions } from './solve';
+import { outsideCoating } from './exclusions';
+import { coatingClass } from '../../solver/ranking';
 import { searchModeOnPool, workerCount } from './pool';
 import { runModeShard, type ModeShardResult, type ModeShardTask } from './mode-shard';
 import {
@@ -63,7 +65,7 @@ async function runShards(
 	}
 }
 
-function stats(shards: ModeShardResult[], parts: number, elements: number, traced: number, t0: number, searchMs: number, workers: number, skipped: SolveStats['partsSkipped']): SolveStats {
+function stats(shards: ModeShardResult[], parts: number, elements: number, traced: number, t0: number, searchMs: number, workers: number, excluded: SolveStats['partsExcluded']): SolveStats {
 	const sum = (f: (s: ModeShardResult) => number) => shards.reduce((a, s) => a + f(s), 0);
 	return {
 		partsConsidered: parts,
@@ -76,18 +78,23 @@ function stats(shards: ModeShardResult[], parts: number, elements: number, trace
 		searchMs: Math.round(searchMs * 10) / 10,
 		truncated: shards.some((s) => s.truncated),
 		workers,
-		partsSkipped: skipped
+		partsExcluded: excluded
 	};
 }
 
 const pct = (x: number) => `${(100 * x).toFixed(x >= 0.995 ? 1 : 0)} %`;
 
-/** Mode beam against `stock` (see the module comment). */
+/**
+ * Mode beam against `stock` (see the module comment). Answers that use a part outside its coating
+ * band rank after every in-band answer: when the stock holds such parts (and the question does not
+ * leave them out), the in-band parts are searched first; only when they give fewer answers than the
+ * limit is the whole stock searched, and its answers with an out-of-band part follow.
+ */
 export async function solveBeamWithStock(stock: StockView, req: ParsedBeamRequest, options: SolveOptions = {}): Promise<BeamSolveResponse> {
 	const t0 = performance.now();
 	checkWavelength(stock, req.wavelengthNm);
 	const { key, snapshot: snap } = snapshotFor(stock, req.wavelengthNm);
-	const { candidates, partUnits, parts } = candidateFilter(snap, req);
+	const all = candidateFilter(snap, req);
 	const b = beamNumbers(req);
 	const params: BeamSearchParams = {
 		inWaistZMm: b.inWaistZMm,
@@ -104,52 +111,71 @@ export async function solveBeamWithStock(stock: StockView, req: ParsedBeamReques
 	};
 	// Each shard keeps its exact best `limit`: the merge of the shards' best is then the exact top `limit`.
 	const topK = options.keepAll ? Infinity : req.limit;
-	const tSearch = performance.now();
-	const { shards, workers } = await runShards(
-		key,
-		snap,
-		{ mode: 'beam', params, candidates, partUnits, topK, deadline: Date.now() + req.timeBudgetMs },
-		options
-	);
-	const searchMs = performance.now() - tSearch;
-	if (options.signal?.aborted) throw new DomainError(499, 'cancelled', 'The request was cancelled.');
-	// Merge the shards' records in exact rank order.
-	let total = 0;
-	for (const s of shards) total += s.count;
-	const all = new Float64Array(Math.max(1, total) * BREC_STRIDE);
-	let at = 0;
-	for (const s of shards) {
-		all.set(s.records.subarray(0, s.count * BREC_STRIDE), at * BREC_STRIDE);
-		at += s.count;
-	}
-	const order = Array.from({ length: total }, (_, k) => k).sort((x, y) => compareBeamRecords(all, x, y, req.minClearance));
-	const evaluate = (k: number): Omit<BeamSolution, 'rank'> => {
-		const o = k * BREC_STRIDE;
-		const i = all[o + BREC_I],
-			j = all[o + BREC_J];
-		const idx = j < 0 ? [i] : [i, j];
-		return evaluateBeam(
-			req,
-			idx.map((e) => snap.parts[snap.partIndex[e]]),
-			idx.map((e) => snap.elements[e]),
-			all[o + BREC_P1],
-			j < 0 ? [] : [all[o + BREC_GAP]],
-			idx.map((e) => snap.symmetricPart[snap.partIndex[e]])
-		);
+	const deadline = Date.now() + req.timeBudgetMs;
+	let searchMs = 0;
+	const searched: ModeShardResult[] = [];
+	const pass = async (filter: { candidates: Int32Array; partUnits: Int32Array }) => {
+		const tSearch = performance.now();
+		const { shards, workers } = await runShards(key, snap, { mode: 'beam', params, candidates: filter.candidates, partUnits: filter.partUnits, topK, deadline }, options);
+		searchMs += performance.now() - tSearch;
+		searched.push(...shards);
+		if (options.signal?.aborted) throw new DomainError(499, 'cancelled', 'The request was cancelled.');
+		// Merge the shards' records in exact rank order.
+		let total = 0;
+		for (const s of shards) total += s.count;
+		const recs = new Float64Array(Math.max(1, total) * BREC_STRIDE);
+		let at = 0;
+		for (const s of shards) {
+			recs.set(s.records.subarray(0, s.count * BREC_STRIDE), at * BREC_STRIDE);
+			at += s.count;
+		}
+		const order = Array.from({ length: total }, (_, k) => k).sort((x, y) => compareBeamRecords(recs, x, y, req.minClearance));
+		const partsOf = (k: number) => {
+			const o = k * BREC_STRIDE;
+			const i = recs[o + BREC_I],
+				j = recs[o + BREC_J];
+			return j < 0 ? [i] : [i, j];
+		};
+		const evaluate = (k: number): Omit<BeamSolution, 'rank'> => {
+			const o = k * BREC_STRIDE;
+			const idx = partsOf(k);
+			const ps = idx.map((e) => snap.parts[snap.partIndex[e]]);
+			const ev = evaluateBeam(req, ps, idx.map((e) => snap.elements[e]), recs[o + BREC_P1], idx.length < 2 ? [] : [recs[o + BREC_GAP]], idx.map((e) => snap.symmetricPart[snap.partIndex[e]]));
+			return withCoatingWarnings(ev, ps, req.wavelengthNm);
+		};
+		const outOfBand = (k: number) => partsOf(k).some((e) => outsideCoating(snap.parts[snap.partIndex[e]], req.wavelengthNm));
+		const qualifying = order.filter((k) => recs[k * BREC_STRIDE + BREC_EFFICIENCY] >= req.minEfficiency);
+		return { shards, workers, total, order, qualifying, evaluate, outOfBand };
 	};
-	const limit = options.keepAll ? total : req.limit;
-	const qualifying = order.filter((k) => all[k * BREC_STRIDE + BREC_EFFICIENCY] >= req.minEfficiency);
-	const solutions: BeamSolution[] = qualifying.slice(0, limit).map((k, n) => ({ rank: n + 1, ...evaluate(k) }));
+	const limit = options.keepAll ? Infinity : req.limit;
+	const someOutOfBand = !req.inCoatingBandOnly && snap.parts.some((p) => outsideCoating(p, req.wavelengthNm));
+	let picked: Omit<BeamSolution, 'rank'>[] = [];
+	let last: Awaited<ReturnType<typeof pass>>;
+	if (someOutOfBand) {
+		const inBand = await pass(candidateFilter(snap, req, (p) => !outsideCoating(p, req.wavelengthNm)));
+		picked = inBand.qualifying.slice(0, limit).map(inBand.evaluate);
+		last = inBand;
+		if (picked.length < limit) {
+			const whole = await pass(all);
+			picked.push(...whole.qualifying.filter(whole.outOfBand).slice(0, limit - picked.length).map(whole.evaluate));
+			// The nearest miss comes from the whole stock.
+			last = whole;
+		}
+	} else {
+		last = await pass(all);
+		picked = last.qualifying.slice(0, limit).map(last.evaluate);
+	}
+	const solutions: BeamSolution[] = picked.map((s, n) => ({ rank: n + 1, ...s }));
 	let noAnswer: BeamSolveResponse['noAnswer'] = null;
 	if (!solutions.length) {
-		const near = order.length ? { rank: 1, ...evaluate(order[0]) } : null;
-		noAnswer = beamNoAnswer(req, near, parts);
+		const near = last.order.length ? { rank: 1, ...last.evaluate(last.order[0]) } : null;
+		noAnswer = beamNoAnswer(req, near, all.parts);
 	}
 	return {
 		request: req,
 		solutions,
 		noAnswer,
-		stats: stats(shards, parts, candidates.length, solutions.length, t0, searchMs, workers, snap.skipped)
+		stats: stats(searched, all.parts, all.candidates.length, solutions.length, t0, searchMs, last.workers, all.excluded)
 	};
 }
 
@@ -183,7 +209,7 @@ export async function solveAfocalWithStock(stock: StockView, req: ParsedAfocalRe
 	const t0 = performance.now();
 	checkWavelength(stock, req.wavelengthNm);
 	const { key, snapshot: snap } = snapshotFor(stock, req.wavelengthNm);
-	const { candidates, partUnits, parts } = candidateFilter(snap, req);
+	const { candidates, partUnits, parts, excluded } = candidateFilter(snap, req);
 	const params: AfocalSearchParams = {
 		expansion: req.expansion,
 		expansionTolerance: req.expansionTolerance,
@@ -216,7 +242,7 @@ export async function solveAfocalWithStock(stock: StockView, req: ParsedAfocalRe
 		})[0];
 		noAnswer = afocalNoAnswer(req, near ? { rank: 1, ...near } : null, parts);
 	}
-	return { request: req, solutions, noAnswer, stats: stats(shards, parts, candidates.length, evaluated.length, t0, searchMs, workers, snap.skipped) };
+	return { request: req, solutions, noAnswer, stats: stats(shards, parts, candidates.length, evaluated.length, t0, searchMs, workers, excluded) };
 }
 
 function evaluateAfocalRecords(snap: ReturnType<typeof snapshotFor>['snapshot'], req: ParsedAfocalRequest, shards: ModeShardResult[]): Omit<AfocalSolution, 'rank'>[] {
@@ -232,14 +258,19 @@ function evaluateAfocalRecords(snap: ReturnType<typeof snapshotFor>['snapshot'],
 				s.records[o + AREC_GAP],
 				idx.map((e) => snap.symmetricPart[snap.partIndex[e]])
 			);
-			if (!ev.clipped) out.push(ev.solution);
+			if (!ev.clipped) out.push(withCoatingWarnings(ev.solution, idx.map((e) => snap.parts[snap.partIndex[e]]), req.wavelengthNm));
 		}
 	}
 	return out;
 }
 
-/** Afocal rank: traced answers first by residual divergence (to 1e-4 mrad), then length; untraced (black-box) ones after, by length. */
+/**
+ * Afocal rank: in-band answers before those using a part outside its coating band; then traced answers
+ * first by residual divergence (to 1e-4 mrad), then length; untraced (black-box) ones after, by length.
+ */
 export function compareAfocal(x: Omit<AfocalSolution, 'rank'>, y: Omit<AfocalSolution, 'rank'>): number {
+	const coat = coatingClass(x) - coatingClass(y);
+	if (coat !== 0) return coat;
 	const rx = x.afocal.residualDivergenceMrad,
 		ry = y.afocal.residualDivergenceMrad;
 	if ((rx === null) !== (ry === null)) return rx === null ? 1 : -1;

@@ -17,6 +17,7 @@ import {
 } from '../../optics';
 import type { PartPlace } from '../../solver/types';
 import { SEIDEL_STRIDE, seidelPolynomial } from './seidel-poly';
+import { datasheetOnlyReason, exclusionReason } from './exclusions';
 
 /** A catalogue part as the solver sees it. */
 export interface CandidatePart {
@@ -41,6 +42,9 @@ export interface CandidatePart {
 	available: number;
 	/** Where the usable units are. */
 	locations: PartPlace[];
+	/** The coating text and the band read from it (`$lib/coating`); absent or null: no band known. */
+	coating?: string | null;
+	coatingBandNm?: { minNm: number; maxNm: number } | null;
 }
 
 /** Clear aperture in use: the stated one or 90 % of the diameter (common practice, no source). */
@@ -67,8 +71,8 @@ export interface ElementSnapshot {
 	symmetricPart: boolean[];
 	/** 1 for an element without surfaces (black box: no real-ray trace). */
 	untraceable: Uint8Array;
-	/** Parts that cannot be built at this wavelength, with the reason. */
-	skipped: { sku: string; reason: string }[];
+	/** Parts that cannot be built at this wavelength, with the reason (grouped into `stats.partsExcluded`). */
+	skipped: { sku: string; reason: string; part: CandidatePart }[];
 }
 
 /** The part as a thick element in catalogue orientation, or the reason it cannot be one. */
@@ -77,10 +81,10 @@ export function partElement(part: CandidatePart, wavelengthNm: number): { ok: tr
 	const measured = part.measured ? { eflMm: part.measured.eflMm, wavelengthNm: part.measured.wavelengthNm } : null;
 	if (part.surfaces.length >= 2) {
 		const r = buildElement(part.surfaces, wavelengthNm, { clearApertureMm, measured });
-		return r.ok ? { ok: true, element: r.value } : { ok: false, reason: r.error.message };
+		return r.ok ? { ok: true, element: r.value } : { ok: false, reason: exclusionReason(r.error, wavelengthNm) };
 	}
 	if (wavelengthNm < GLASS_CODE_RANGE_NM[0] || wavelengthNm > GLASS_CODE_RANGE_NM[1]) {
-		return { ok: false, reason: `A datasheet-only part is taken to be optical glass, known ${GLASS_CODE_RANGE_NM[0]}–${GLASS_CODE_RANGE_NM[1]} nm.` };
+		return { ok: false, reason: datasheetOnlyReason(wavelengthNm, GLASS_CODE_RANGE_NM) };
 	}
 	if (part.eflMm === null || part.bflMm === null || part.centerThicknessMm === null) {
 		return { ok: false, reason: 'No prescription and no EFL, BFL and centre thickness to model it from.' };
@@ -96,7 +100,7 @@ export function partElement(part: CandidatePart, wavelengthNm: number): { ok: tr
 		},
 		wavelengthNm
 	);
-	return r.ok ? { ok: true, element: r.value } : { ok: false, reason: r.error.message };
+	return r.ok ? { ok: true, element: r.value } : { ok: false, reason: exclusionReason(r.error, wavelengthNm) };
 }
 
 /** True when turning the element round gives the same optics (equiconvex lens, window). */
@@ -121,11 +125,11 @@ export function buildElementSnapshot(parts: readonly CandidatePart[], wavelength
 	const rev: number[] = [];
 	const kept: CandidatePart[] = [];
 	const sym: boolean[] = [];
-	const skipped: { sku: string; reason: string }[] = [];
+	const skipped: ElementSnapshot['skipped'] = [];
 	for (const part of parts) {
 		const built = partElement(part, wavelengthNm);
 		if (!built.ok) {
-			skipped.push({ sku: part.sku, reason: built.reason });
+			skipped.push({ sku: part.sku, reason: built.reason, part });
 			continue;
 		}
 		const pi = kept.length;

@@ -142,6 +142,7 @@ export function readForm(
 		minGapMm,
 		minWorkingDistanceMm,
 		availableOnly: values.available !== 'false',
+		inCoatingBandOnly: values.coating === 'band',
 		maxElements: values.maxParts === '1' ? 1 : 2
 	});
 	if (checked.success && !Object.keys(errors).length) return { values, submitted, errors, request: checked.data };
@@ -328,7 +329,8 @@ export function readBeamForm(params: URLSearchParams, preset: BeamPreset): FormR
 			minClearance: r.number('clearance', 'Enter a clearance factor, such as 1.5.'),
 			minEfficiency: minEffPercent === undefined ? undefined : minEffPercent / 100,
 			powerW: powerW ?? undefined,
-			availableOnly: values.available !== 'false'
+			availableOnly: values.available !== 'false',
+			inCoatingBandOnly: values.coating === 'band'
 		},
 		errors,
 		(k) => formFieldOf('beam', k, preset, fibreField)
@@ -358,7 +360,8 @@ export function readAfocalForm(params: URLSearchParams): FormResult<AfocalValues
 			intermediateFocus: values.focus === 'focus' ? true : values.focus === 'none' ? false : undefined,
 			minGapMm: r.length('minGap', 'Minimum gap'),
 			minClearance: r.number('clearance', 'Enter a clearance factor, such as 1.5.'),
-			availableOnly: values.available !== 'false'
+			availableOnly: values.available !== 'false',
+			inCoatingBandOnly: values.coating === 'band'
 		},
 		errors,
 		(k) => AFOCAL_FIELD_OF_API[k] ?? k

@@ -9,6 +9,8 @@ import type { DbOrTx } from '$lib/server/db';
 import { parts, partSurfaces, measurements, stock, locations, reservations } from '$lib/server/db/schema';
 import { currentStockVersion } from '$lib/server/stock/version';
 import type { CandidatePart } from './elements';
+import { bandOf } from '$lib/coating';
+import { syncLabMaterials } from '$lib/server/catalogue/lab-materials';
 import type { StockView } from './solve';
 
 /** A cached view older than this is reloaded even if the version did not move (reservations expire). */
@@ -77,13 +79,17 @@ export async function loadCandidateParts(db: DbOrTx, now = new Date()): Promise<
 			measured: m ? { eflMm: m.eflMm, wavelengthNm: m.wavelengthNm, uncertaintyMm: m.uncertaintyMm } : null,
 			onHand,
 			available: Math.max(0, onHand - (reserved.get(p.id) ?? 0)),
-			locations: locs
+			locations: locs,
+			coating: p.coating,
+			coatingBandNm: bandOf(p.coatingMinNm, p.coatingMaxNm)
 		};
 	});
 }
 
 /** The current stock view, from the cache when the stock version has not moved. */
 export async function stockView(db: DbOrTx): Promise<StockView> {
+	// The lab's own materials, as another instance may have added one (adding one bumps the stock version).
+	await syncLabMaterials(db);
 	const version = await currentStockVersion(db);
 	if (cached && cached.version === version && Date.now() - cached.loadedAt < MAX_AGE_MS) return cached.view;
 	if (!loading) {

@@ -18,6 +18,7 @@ import { afocalGapMm } from '$lib/optics';
 import { evaluateBeam, evaluateAfocal } from './beam-evaluate';
 import { buildElementSnapshot } from './elements';
 import { evaluatePlacement } from './evaluate';
+import { withCoatingWarnings } from './solve';
 import { candidatePartsById } from './load-stock';
 
 export const choiceSchema = z
@@ -97,7 +98,7 @@ async function evaluateBeamChoice(db: DbOrTx, query: ParsedBeamRequest, choice: 
 	const s = evaluateBeam(query, picked.map((p) => p.part), picked.map((p) => p.element), choice.objectDistanceMm, choice.gapsMm, picked.map((p) => p.symmetric));
 	if (s.beam.minClearance < query.minClearance * (1 - 1e-9)) throw notAnswer(`A clear aperture is only ${s.beam.minClearance.toFixed(2)}× the beam there (asked: ${query.minClearance}×).`);
 	if (s.beam.efficiency < query.minEfficiency) throw notAnswer(`This placement reaches ${(100 * s.beam.efficiency).toFixed(1)} % efficiency (asked: ${(100 * query.minEfficiency).toFixed(0)} %).`);
-	return { rank: 1, ...s };
+	return { rank: 1, ...withCoatingWarnings(s, picked.map((p) => p.part), query.wavelengthNm) };
 }
 
 /** Re-evaluates a mode-afocal choice: the gap must be the afocal one at the wavelength, and expansion, length and focus as asked. */
@@ -115,7 +116,7 @@ async function evaluateAfocalChoice(db: DbOrTx, query: ParsedAfocalRequest, choi
 	if (a.lengthMm > query.maxLengthMm + 1e-9) throw notAnswer(`This pair is ${a.lengthMm.toFixed(1)} mm long (at most ${query.maxLengthMm} mm asked).`);
 	if (query.intermediateFocus !== undefined && (a.intermediateFocusMm !== null) !== query.intermediateFocus) throw notAnswer('This pair does not have the arrangement asked (focus between the parts or not).');
 	if (a.minClearance < query.minClearance * (1 - 1e-9)) throw notAnswer(`A clear aperture is only ${a.minClearance.toFixed(2)}× the beam there (asked: ${query.minClearance}×).`);
-	return { rank: 1, ...ev.solution };
+	return { rank: 1, ...withCoatingWarnings(ev.solution, picked.map((p) => p.part), query.wavelengthNm) };
 }
 
 /** Re-evaluates a choice from the catalogue for its question's mode; 400 when it is not an answer to it. */
@@ -173,7 +174,7 @@ async function evaluateImagingChoice(db: DbOrTx, query: ParsedImagingRequest, ch
 		});
 	}
 	const family = picked.length === 2 && Math.abs(ev.solution.systemMatrix.C) * query.trackMm < 1e-9;
-	return { rank: 1, ...ev.solution, afocalFamily: family, spot: { ...ev.solution.spot, screenEstimateMm: 0 } };
+	return { rank: 1, ...withCoatingWarnings(ev.solution, picked.map((p) => p.part), query.wavelengthNm), afocalFamily: family, spot: { ...ev.solution.spot, screenEstimateMm: 0 } };
 }
 
 /** Saves a setup; returns its id. */

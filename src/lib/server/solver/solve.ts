@@ -7,7 +7,7 @@
 import { DomainError } from '../api/http';
 import { ROOT_DOUBLE, ROOT_FAMILY } from '../../optics/imaging';
 import type { ParsedImagingRequest } from '../../solver/request';
-import type { Solution, SolveProgress, SolveResponse } from '../../solver/types';
+import type { PartsExcluded, Solution, SolveProgress, SolveResponse } from '../../solver/types';
 import { progressBuffer, readProgress } from './progress';
 import { buildElementSnapshot, wavelengthCoveredByAnyMaterial, type CandidatePart, type ElementSnapshot } from './elements';
 import {
@@ -25,6 +25,13 @@ import {
 } from './search-kernel';
 import { searchOnPool, workerCount } from './pool';
 import { evaluatePlacement, rankKey, compareKeys } from './evaluate';
+import { coatingExclusionReason, coatingWarnings, groupExcluded, outsideCoating } from './exclusions';
+
+/** The answer with its coating warnings (parts in the order light meets them); none → no `warnings` key change. */
+export function withCoatingWarnings<S extends { warnings?: Solution['warnings'] }>(s: S, parts: readonly CandidatePart[], wavelengthNm: number): S {
+	const w = coatingWarnings(parts, wavelengthNm);
+	return { ...s, warnings: [...(s.warnings ?? []).filter((x) => x.code !== 'coating-out-of-band'), ...w] };
+}
 
 /** Candidates each shard keeps for the final stage. */
 export const TOP_K_PER_SHARD = 400;
@@ -93,19 +100,38 @@ export function watchProgress(
 	};
 }
 
-/** Which elements of the snapshot the question allows, and how many units each part may use. */
-export function candidateFilter(snap: ElementSnapshot, req: Pick<ParsedImagingRequest, 'partIds' | 'locationIds' | 'availableOnly'>): { candidates: Int32Array; partUnits: Int32Array; parts: number } {
+/**
+ * Which elements of the snapshot the question allows, and how many units each part may use; and the
+ * parts the question's own filter (kit, drawer, available units) would take that are left out anyway,
+ * with the reason (no index at the wavelength, or outside the coating band when the question leaves
+ * those out): `stats.partsExcluded`. `onlyParts` narrows further (the in-band pass of mode beam).
+ */
+export function candidateFilter(
+	snap: ElementSnapshot,
+	req: Pick<ParsedImagingRequest, 'partIds' | 'locationIds' | 'availableOnly'> & { inCoatingBandOnly?: boolean },
+	onlyParts?: (p: CandidatePart) => boolean
+): { candidates: Int32Array; partUnits: Int32Array; parts: number; excluded: PartsExcluded[] } {
 	const ids = req.partIds ? new Set(req.partIds) : null;
 	const locs = req.locationIds ? new Set(req.locationIds) : null;
-	const allowed = snap.parts.map((p) => {
+	const asked = (p: CandidatePart) => {
 		if (ids && !ids.has(p.partId)) return false;
 		if (locs && !p.locations.some((l) => locs.has(l.locationId) && l.quantity > 0)) return false;
 		return !req.availableOnly || p.available > 0;
+	};
+	const out: { sku: string; reason: string }[] = [];
+	for (const s of snap.skipped) if (asked(s.part)) out.push(s);
+	const allowed = snap.parts.map((p) => {
+		if (!asked(p)) return false;
+		if (req.inCoatingBandOnly && outsideCoating(p, snap.wavelengthNm)) {
+			out.push({ sku: p.sku, reason: coatingExclusionReason(snap.wavelengthNm) });
+			return false;
+		}
+		return !onlyParts || onlyParts(p);
 	});
 	const partUnits = Int32Array.from(snap.parts.map((p) => (req.availableOnly ? p.available : Math.max(2, p.available))));
 	const list: number[] = [];
 	for (let e = 0; e < snap.elements.length; e++) if (allowed[snap.partIndex[e]]) list.push(e);
-	return { candidates: Int32Array.from(list), partUnits, parts: allowed.filter(Boolean).length };
+	return { candidates: Int32Array.from(list), partUnits, parts: allowed.filter(Boolean).length, excluded: groupExcluded(out) };
 }
 
 /** Solves the imaging question against `stock` (see the module comment). */
@@ -117,7 +143,7 @@ export async function solveWithStock(stock: StockView, req: ParsedImagingRequest
 		});
 	}
 	const { key, snapshot: snap } = snapshotFor(stock, req.wavelengthNm);
-	const { candidates, partUnits, parts } = candidateFilter(snap, req);
+	const { candidates, partUnits, parts, excluded } = candidateFilter(snap, req);
 	const params: SearchParams = {
 		trackMm: req.trackMm,
 		magnification: req.magnification,
@@ -196,7 +222,7 @@ export async function solveWithStock(stock: StockView, req: ParsedImagingRequest
 			req,
 			idx.map((e) => snap.symmetricPart[snap.partIndex[e]])
 		);
-		if (ev.verified) evaluated.push(ev.solution);
+		if (ev.verified) evaluated.push(withCoatingWarnings(ev.solution, idx.map((e) => snap.parts[snap.partIndex[e]]), req.wavelengthNm));
 	}
 	const keyed = evaluated.map((s) => ({ s, k: rankKey(s) }));
 	keyed.sort((a, b) => compareKeys(a.k, b.k));
@@ -218,7 +244,7 @@ export async function solveWithStock(stock: StockView, req: ParsedImagingRequest
 			searchMs: Math.round(searchMs * 10) / 10,
 			truncated: shards.some((s) => s.truncated),
 			workers,
-			partsSkipped: snap.skipped
+			partsExcluded: excluded
 		}
 	};
 }

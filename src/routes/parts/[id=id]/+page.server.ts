@@ -6,6 +6,7 @@ import { RESERVERS, STOCK_EDITORS, STOCK_HANDLERS, ANY_ROLE } from '$lib/server/
 import * as parts from '$lib/server/catalogue/parts';
 import * as measurements from '$lib/server/catalogue/measurements';
 import { computeDerived } from '$lib/server/catalogue/derived';
+import { syncLabMaterials } from '$lib/server/catalogue/lab-materials';
 import { opticsPartOf } from '$lib/server/catalogue/derived';
 import { getDefaultWavelengthNm } from '$lib/server/catalogue/settings';
 import { readForm, toNumber } from '$lib/server/catalogue/forms';
@@ -24,6 +25,7 @@ export const load = (async (event) => {
 	const user = requireRole(event, ANY_ROLE);
 	const id = idOf(event);
 	const record = await parts.getPart(db, id);
+	await syncLabMaterials(db);
 	if (!record) error(404, { message: 'There is no such part.' });
 	const defaultNm = await getDefaultWavelengthNm(db);
 	const wlParam = toNumber(event.url.searchParams.get('wl'));

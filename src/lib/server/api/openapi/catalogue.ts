@@ -44,6 +44,11 @@ const part = {
 	properties: {
 		id: int,
 		...partFields,
+		coatingBandNm: {
+			type: ['object', 'null'],
+			properties: { minNm: num, maxNm: num },
+			description: 'coating band read from `coating`: "AR 400–700 nm" → 400–700; one wavelength ("V-coat 1064 nm") → ±2 %; null when the text names no wavelength'
+		},
 		onHand: { ...int, description: 'usable units in all locations' },
 		available: { ...int, description: 'on hand − active unexpired reservations' },
 		measured: {
@@ -100,6 +105,21 @@ const reservation = {
 const idParam = [{ name: 'id', in: 'path', required: true, schema: int }];
 const q = (name: string, schema: unknown, description?: string) => ({ name, in: 'query', required: false, schema, description });
 
+const material = {
+	type: 'object',
+	properties: {
+		code: { type: 'string' },
+		name: { type: 'string' },
+		origin: { type: 'string', enum: ['open', 'lab', 'glass-code'] },
+		formula: { type: 'string', enum: ['sellmeier', 'cauchy', 'glass-code'] },
+		coefficients: { type: 'object', description: 'Sellmeier { b, c } (c in µm²), Cauchy { terms }, glass code { nd, vd }' },
+		minNm: num,
+		maxNm: num,
+		source: { type: 'string' },
+		nd: nnum,
+		vd: nnum
+	}
+};
 const body = (required: string[], properties: Record<string, unknown>) => jsonBody({ type: 'object', additionalProperties: false, required, properties });
 const common = { partId: int, quantity: { ...int, minimum: 1 }, note: nstr };
 
@@ -192,6 +212,27 @@ export const cataloguePaths: OpenApiPaths = {
 	'/locations': {
 		get: { summary: 'Storage locations', parameters: [q('archived', { type: 'string', enum: ['include'] })], responses: { '200': jsonResponse('Locations', { type: 'object', properties: { items: { type: 'array', items: location } } }), ...errors(401) } },
 		post: { summary: 'Create a location (admin, stockroom)', requestBody: body(['code', 'name'], { code: { type: 'string' }, name: { type: 'string' } }), responses: { '201': jsonResponse('The location', location), ...errors(400, 401, 403, 409, 415) } }
+	},
+	'/materials': {
+		get: {
+			summary: 'Every material with its dispersion formula, valid range and source: open (built in), the lab\'s own, glass codes',
+			responses: { '200': jsonResponse('Materials', { type: 'object', properties: { items: { type: 'array', items: material } } }), ...errors(401) }
+		},
+		post: {
+			summary: 'Add a lab material from a datasheet (admin): Sellmeier b and c (µm²), or Cauchy terms [A, B, …] (λ in µm), its range and source',
+			requestBody: body(['formula', 'code', 'name', 'minNm', 'maxNm', 'source'], {
+				formula: { type: 'string', enum: ['sellmeier', 'cauchy'] },
+				code: { type: 'string', description: 'what a part surface names; not an open material or a glass code' },
+				name: { type: 'string' },
+				b: { type: 'array', items: num, description: 'Sellmeier B coefficients (1 to 6)' },
+				c: { type: 'array', items: num, description: 'Sellmeier C coefficients in µm², as many as B' },
+				terms: { type: 'array', items: num, description: 'Cauchy A, B, C, … (2 to 5), λ in µm' },
+				minNm: num,
+				maxNm: num,
+				source: { type: 'string', description: 'supplier, datasheet, edition or date' }
+			}),
+			responses: { '201': jsonResponse('The material', material), ...errors(400, 401, 403, 409, 415) }
+		}
 	},
 	'/locations/{id}': {
 		get: { summary: 'One location with its stock', parameters: idParam, responses: { '200': jsonResponse('The location', location), ...errors(401, 404) } },

@@ -7,6 +7,7 @@ const int = { type: 'integer' };
 
 const shared = {
 	availableOnly: { type: 'boolean', default: true, description: 'false: catalogue parts without stock too, marked toBuy' },
+	inCoatingBandOnly: { type: 'boolean', default: false, description: 'true: leave out parts whose coating band does not cover the wavelength (else they are used, with a coating warning, ranked after in-band answers)' },
 	partIds: { type: 'array', items: int, description: 'restrict to a kit' },
 	locationIds: { type: 'array', items: int, description: 'restrict to parts with usable stock in these locations' },
 	limit: { ...int, minimum: 1, maximum: 50, default: 10 },
@@ -30,6 +31,7 @@ const imagingRequest = {
 		minGapMm: { ...num, minimum: 0, default: 1 },
 		minWorkingDistanceMm: { ...num, minimum: 0, default: 5 },
 		availableOnly: { type: 'boolean', default: true, description: 'false: catalogue parts without stock too, marked toBuy' },
+		inCoatingBandOnly: { type: 'boolean', default: false, description: 'true: leave out parts outside their coating band' },
 		partIds: { type: 'array', items: int, description: 'restrict to a kit' },
 		locationIds: { type: 'array', items: int, description: 'restrict to parts with usable stock in these locations' },
 		limit: { ...int, minimum: 1, maximum: 50, default: 10 },
@@ -134,7 +136,8 @@ const solution = {
 	description:
 		'elements [{partId, sku, reversed, symmetric, orientation ("as catalogued (surface 1 faces the object)" or "reversed (surface N faces the object)", plus flat/curved side for a plano lens), firstVertexMm (from the object plane), eflMm, eflSource, toBuy, available, locations}], ' +
 		'objectDistanceMm, gapsMm, backDistanceMm, magnification, systemMatrix {A,B,C,D}, pointTransferMatrix (3x3 row-major), ' +
-		'afocalFamily, doubleRoot, spot {axialRmsMm, edgeRmsMm, airyRadiusMm, ratioToAiry, untracedReason}, vignetting {axial, edge, worstFill}, rays, tolerance'
+		'afocalFamily, doubleRoot, spot {axialRmsMm, edgeRmsMm, airyRadiusMm, ratioToAiry, untracedReason}, vignetting {axial, edge, worstFill}, rays, tolerance, ' +
+		'warnings [{code: "coating-out-of-band", partId, sku, message}] (a part used outside its coating band; such answers rank after in-band ones)'
 };
 
 const choice = {
@@ -176,7 +179,17 @@ export const solverPaths: OpenApiPaths = {
 						noAnswer,
 						stats: {
 							type: 'object',
-							properties: { partsConsidered: int, configurationsEvaluated: int, elapsedMs: num, truncated: { type: 'boolean' } }
+							properties: {
+								partsConsidered: int,
+								configurationsEvaluated: int,
+								elapsedMs: num,
+								truncated: { type: 'boolean' },
+								partsExcluded: {
+									type: 'array',
+									description: 'parts left out and why, one entry per reason (no index at the wavelength, outside the coating band when asked)',
+									items: { type: 'object', properties: { reason: { type: 'string' }, count: int, skus: { type: 'array', items: { type: 'string' } } } }
+								}
+							}
 						}
 					}
 				}),

@@ -31,7 +31,11 @@ export type PartKind = (typeof PART_KINDS)[number];
 
 /**
  * Optical materials. `code` is what a part surface refers to: an open material name with a
- * published Sellmeier formula (e.g. 'fused-silica', 'caf2') or a six-digit glass code ('517642').
+ * published Sellmeier formula built into the optics core (e.g. 'fused-silica', 'caf2'), a six-digit
+ * glass code ('517642'), or a material the lab added from a supplier's datasheet: then `coefficients`
+ * holds its Sellmeier or Cauchy coefficients (`model`), `minNm`–`maxNm` the range the datasheet states
+ * and `source` where they come from (see `src/lib/server/catalogue/lab-materials.ts`). nd and vd are
+ * null for a lab material whose range leaves out the d, F or C line.
  */
 export const materials = mysqlTable(
 	'materials',
@@ -39,10 +43,17 @@ export const materials = mysqlTable(
 		id: id(),
 		code: varchar('code', { length: 32 }).notNull(),
 		name: varchar('name', { length: 120 }).notNull(),
-		model: mysqlEnum('model', ['sellmeier', 'glass-code']).notNull(),
-		nd: double('nd').notNull(),
-		vd: double('vd').notNull(),
-		notes: text('notes')
+		model: mysqlEnum('model', ['sellmeier', 'cauchy', 'glass-code']).notNull(),
+		nd: double('nd'),
+		vd: double('vd'),
+		notes: text('notes'),
+		/** Lab materials: `{ "b": [...], "c": [...] }` (Sellmeier, c in µm²) or `{ "terms": [A, B, C, ...] }` (Cauchy, λ in µm). */
+		coefficients: json('coefficients'),
+		minNm: double('min_nm'),
+		maxNm: double('max_nm'),
+		source: text('source'),
+		createdBy: ref('created_by').references(() => users.id),
+		createdAt: timestamp('created_at').defaultNow()
 	},
 	(t) => [uniqueIndex('materials_code_uq').on(t.code)]
 );
@@ -83,6 +94,9 @@ export const parts = mysqlTable(
 		/** Material code of the first glass, for the material filter. */
 		primaryMaterial: varchar('primary_material', { length: 32 }),
 		coating: varchar('coating', { length: 80 }),
+		/** The coating band read from `coating` (`$lib/coating`): both null when the text names no wavelength. */
+		coatingMinNm: double('coating_min_nm'),
+		coatingMaxNm: double('coating_max_nm'),
 		supplierId: ref('supplier_id').references(() => suppliers.id),
 		supplierPartNumber: varchar('supplier_part_number', { length: 80 }),
 		/** Money in integer minor units (cents) of `currency`. */
