@@ -7,7 +7,18 @@
  * ray aims at the axial point of the pupil plane z = pupilZMm (default: the first
  * surface's vertex, right for a stop at or near the first part).
  */
-import { type TraceSystem, RAY_STRIDE, TRACE_OK, TRACE_MISSED, traceRay, startRay, heightAtPlane } from './raytrace';
+import {
+	type TraceSystem,
+	RAY_STRIDE,
+	SKEW_STRIDE,
+	TRACE_OK,
+	TRACE_MISSED,
+	TRACE_BEHIND,
+	traceRay,
+	traceSkewRay,
+	startRay,
+	heightAtPlane
+} from './raytrace';
 
 /** Options shared by the spot and aperture functions. */
 export interface FanOptions {
@@ -168,7 +179,7 @@ export function traceFan(sys: TraceSystem, objectHeightMm: number, options: FanO
 			continue;
 		}
 		const status = traceRay(sys, ray, heightsMm);
-		const reached = status === TRACE_OK ? sys.count : ray[5] + (status === TRACE_MISSED ? 0 : 1);
+		const reached = status === TRACE_OK ? sys.count : ray[5] + (status === TRACE_MISSED || status === TRACE_BEHIND ? 0 : 1);
 		for (let s = 0; s < reached; s++) points.push({ zMm: surfaceZ(sys, s, heightsMm[s]), yMm: heightsMm[s] });
 		if (status === TRACE_OK) {
 			const y = heightAtPlane(ray, zImg);
@@ -222,14 +233,17 @@ function heights(sys: TraceSystem, objectYMm: number, sinAngle: number): { h: Fl
 	const h = new Float64Array(sys.count);
 	const ray = new Float64Array(RAY_STRIDE);
 	if (!startRay(ray, objectYMm, sinAngle)) return { h, upTo: 0 };
-	const status = traceRay(sys, ray, h);
+	// Not clipped: the report says how far outside each aperture the requested rays would pass.
+	const status = traceRay(sys, ray, h, false);
 	return { h, upTo: status === TRACE_OK ? sys.count : ray[5] };
 }
 
 /**
  * The marginal ray (axial point, direction sine NA), the chief ray and the two rim rays
  * of the field edge (`objectHeightMm`), heights at every surface against its clear
- * aperture: the vignetting check of the solver.
+ * aperture, traced through the apertures (not clipped): how far outside each aperture the
+ * requested rays would pass. The figures themselves come from clipped rays (`axialCone`,
+ * `fieldGridSpot`).
  */
 export function apertureReport(sys: TraceSystem, objectHeightMm: number, options: FanOptions): ApertureReport {
 	const sc = chiefSine(sys, objectHeightMm, options.pupilZMm);
@@ -273,4 +287,197 @@ export function workingFNumber(imageSideNA: number): number {
 /** Image-side NA of an imaging system in air: NA' = NA/|m| (paraxial; the sine condition). */
 export function imageSideNA(objectNA: number, magnification: number): number {
 	return objectNA / Math.abs(magnification);
+}
+
+/** The cone of the axial object point that the apertures pass. */
+export interface AxialCone {
+	/** Direction sine asked for (the question's NA). */
+	readonly requestedSine: number;
+	/** Largest direction sine, at most the one asked for, whose ray passes every surface. */
+	readonly passedSine: number;
+	/**
+	 * The aperture stop: the surface that stops the axial cone as it opens (whether or not it
+	 * cuts the cone asked for); −1 when no surface does below a direction sine of 0.999.
+	 */
+	readonly stopSurface: number;
+	/** Fraction of the requested cone lost, 1 − (passed/requested)² (equal power per unit of direction-sine area). */
+	readonly lostFraction: number;
+}
+
+/** Bisection steps of `axialCone` (the limit is found to 2⁻³⁶ of a direction sine). */
+const CONE_STEPS = 36;
+
+/**
+ * Finds the aperture stop and the axial cone it passes: the largest direction sine u whose
+ * real ray from the axial object point passes every surface (clear apertures, glass edges,
+ * no miss, nothing behind), by bisection on u in (0, 0.999); the surface that stops the ray
+ * just beyond that limit is the aperture stop. The cone passed is min(requested, limit). It
+ * assumes the rays that pass form one disc (no ray passes beyond the first that is stopped),
+ * true for centred systems of lenses without a central obstruction.
+ */
+export function axialCone(sys: TraceSystem, requestedSine: number): AxialCone {
+	const ray = new Float64Array(RAY_STRIDE);
+	const passes = (u: number) => startRay(ray, 0, u) && traceRay(sys, ray) === TRACE_OK;
+	let lo = 0,
+		hi = 0.999;
+	if (passes(hi)) return { requestedSine, passedSine: requestedSine, stopSurface: -1, lostFraction: 0 };
+	let stopSurface = ray[5];
+	for (let i = 0; i < CONE_STEPS; i++) {
+		const mid = 0.5 * (lo + hi);
+		if (passes(mid)) lo = mid;
+		else {
+			hi = mid;
+			stopSurface = ray[5];
+		}
+	}
+	const passedSine = Math.min(requestedSine, lo);
+	const ratio = passedSine / requestedSine;
+	return { requestedSine, passedSine, stopSurface, lostFraction: Math.max(0, 1 - ratio * ratio) };
+}
+
+/**
+ * Direction sine of the real chief ray of the object point at `objectHeightMm`: the ray that
+ * crosses the axis at the aperture stop (`stopSurface`), found by the secant method on its
+ * height there (traced through the apertures: the chief ray is a reference, whether or not
+ * it passes). With no stop (−1), or when the search does not converge, the ray aimed at the
+ * first vertex (`chiefSine`).
+ */
+export function stopChiefSine(sys: TraceSystem, objectHeightMm: number, stopSurface: number): number {
+	const first = chiefSine(sys, objectHeightMm);
+	if (stopSurface <= 0 || objectHeightMm === 0) return first;
+	const upTo: TraceSystem = { ...sys, count: stopSurface + 1 };
+	const ray = new Float64Array(RAY_STRIDE);
+	const h = new Float64Array(upTo.count);
+	const heightAtStop = (u: number): number | null => {
+		if (!startRay(ray, objectHeightMm, u)) return null;
+		return traceRay(upTo, ray, h, false) === TRACE_OK ? h[stopSurface] : null;
+	};
+	let u0 = first,
+		y0 = heightAtStop(u0);
+	let u1 = first + 1e-4,
+		y1 = heightAtStop(u1);
+	for (let i = 0; i < 30 && y0 !== null && y1 !== null; i++) {
+		if (Math.abs(y1) < 1e-10 || y1 === y0) return u1;
+		const u2 = u1 - (y1 * (u1 - u0)) / (y1 - y0);
+		u0 = u1;
+		y0 = y1;
+		u1 = u2;
+		y1 = heightAtStop(u1);
+	}
+	return y1 !== null && Math.abs(y1) < 1e-6 ? u1 : first;
+}
+
+/** The field point's spot from a pupil grid of skew rays. */
+export interface GridSpot {
+	/** 'skew-grid': RMS radius in two dimensions over a grid of skew rays. */
+	readonly kind: 'skew-grid';
+	/** RMS radius about the centroid of the rays that arrive, mm (the figure ranked by). */
+	readonly rmsAboutCentroidMm: number;
+	/** RMS radius about the landing point of the chief ray, mm (null when the chief ray is lost). */
+	readonly rmsAboutChiefMm: number | null;
+	/** Centroid height in the evaluation plane, mm (x = 0 by symmetry). */
+	readonly centroidMm: number;
+	/** Grid rays that arrive (each counts twice: the grid is mirrored about the meridional plane). */
+	readonly raysTraced: number;
+	/** Grid rays lost at an aperture, by a miss, behind a surface or by total internal reflection. */
+	readonly raysFailed: number;
+	/** Fraction of the grid's disc of directions that arrives (raysTraced over all grid rays). */
+	readonly passedFraction: number;
+}
+
+/** Options of `fieldGridSpot`. */
+export interface GridOptions {
+	/** Direction sine of the chief ray (the centre of the cone), in the meridional plane. */
+	readonly sinChief: number;
+	/** Radius of the cone in direction sines (the disc of (L, M − sin θc) sampled). */
+	readonly radiusSine: number;
+	/** Grid cells across the disc's diameter (even; default 16: about 200 rays, 100 traced). */
+	readonly grid?: number;
+	/** Evaluation plane (default: the system's image plane). */
+	readonly imageZMm?: number;
+}
+
+const skew = new Float64Array(SKEW_STRIDE);
+
+/**
+ * RMS spot of the object point (0, `objectHeightMm`) from a square grid of skew rays over a
+ * disc of directions: direction cosines L = r·pₓ, M = sin θc + r·p_y with (pₓ, p_y) the
+ * centres of the cells of an n × n grid over [−1, 1]² that lie in the unit disc, r the
+ * cone's radius in direction sines. Equal power per cell (a Lambertian object radiates
+ * equal power per unit of direction-cosine area). The system is symmetric about the
+ * meridional plane, so only pₓ > 0 is traced and each ray stands for its mirror image too
+ * (the centroid lies in the meridional plane). Rays lost anywhere are left out of the spot
+ * and counted. Null-free: when no ray arrives the figures are NaN and `raysTraced` 0.
+ */
+export function fieldGridSpot(sys: TraceSystem, objectHeightMm: number, options: GridOptions): GridSpot {
+	const n = Math.max(2, 2 * Math.round((options.grid ?? 16) / 2));
+	const zImg = options.imageZMm ?? sys.imageZMm;
+	const step = 2 / n;
+	let all = 0,
+		traced = 0,
+		sx2 = 0,
+		sy = 0,
+		sy2 = 0;
+	for (let i = 0; i < n / 2; i++) {
+		const px = (i + 0.5) * step;
+		for (let j = 0; j < n; j++) {
+			const py = -1 + (j + 0.5) * step;
+			if (px * px + py * py > 1) continue;
+			all++;
+			const L = options.radiusSine * px,
+				M = options.sinChief + options.radiusSine * py;
+			const N2 = 1 - L * L - M * M;
+			if (!(N2 > 0)) continue;
+			skew[0] = 0;
+			skew[1] = objectHeightMm;
+			skew[2] = 0;
+			skew[3] = L;
+			skew[4] = M;
+			skew[5] = Math.sqrt(N2);
+			if (traceSkewRay(sys, skew) !== TRACE_OK) continue;
+			const dz = skew[5];
+			if (!(Math.abs(dz) > 1e-15)) continue;
+			const t = (zImg - skew[2]) / dz;
+			const x = skew[0] + t * skew[3],
+				y = skew[1] + t * skew[4];
+			traced++;
+			sx2 += x * x;
+			sy += y;
+			sy2 += y * y;
+		}
+	}
+	const mean = traced > 0 ? sy / traced : NaN;
+	const meanR2 = traced > 0 ? (sx2 + sy2) / traced : NaN;
+	const chief = landing(sys, objectHeightMm, options.sinChief, zImg);
+	const aboutChief = chief === null || traced === 0 ? null : Math.sqrt(Math.max(0, (sx2 + sy2 - 2 * chief * sy) / traced + chief * chief));
+	return {
+		kind: 'skew-grid',
+		rmsAboutCentroidMm: Math.sqrt(Math.max(0, meanR2 - mean * mean)),
+		rmsAboutChiefMm: aboutChief,
+		centroidMm: mean,
+		raysTraced: traced,
+		raysFailed: all - traced,
+		passedFraction: all > 0 ? traced / all : 0
+	};
+}
+
+/**
+ * Combines spots of one field point at several wavelengths, equal weight each, into the RMS
+ * radius about the common centroid: the mean over the wavelengths of the mean square radius
+ * about the origin, less the square of the mean centroid (x centroids are 0 by symmetry).
+ * `spots` gives each wavelength's RMS about its own centroid and that centroid's height;
+ * null when a wavelength has no ray.
+ */
+export function combinedRmsMm(spots: readonly { rmsAboutCentroidMm: number; centroidMm: number }[]): number | null {
+	if (spots.length === 0) return null;
+	let m = 0,
+		r2 = 0;
+	for (const s of spots) {
+		if (!Number.isFinite(s.rmsAboutCentroidMm) || !Number.isFinite(s.centroidMm)) return null;
+		m += s.centroidMm;
+		r2 += s.rmsAboutCentroidMm * s.rmsAboutCentroidMm + s.centroidMm * s.centroidMm;
+	}
+	m /= spots.length;
+	r2 /= spots.length;
+	return Math.sqrt(Math.max(0, r2 - m * m));
 }

@@ -1,8 +1,11 @@
 /**
  * The solver's output stage for one placement: the object-to-target matrix and its check,
- * exact real rays (axial spot, field-edge spot, clear-aperture report), the Airy radius,
- * the rays of the drawing, and the tolerance view. Used for the search's best candidates
- * and again, independently, when a setup is saved (the server re-evaluates what it stores).
+ * exact real rays stopped by the real apertures (the aperture stop and the axial cone it passes,
+ * the axial spot, the field-edge spot from a pupil grid of skew rays, the fraction of the
+ * requested cone lost on axis and at the field edge), the Airy radius, the figures over the
+ * colour band (axial colour, band spots), the rays of the drawing, and the tolerance view.
+ * Used for the search's best candidates and again, independently, when a setup is saved (the
+ * server re-evaluates what it stores).
  */
 import {
 	create,
@@ -14,7 +17,12 @@ import {
 	cardinalPoints,
 	traceSystemFromLayout,
 	axialSpot,
-	tangentialSpot,
+	axialCone,
+	stopChiefSine,
+	fieldGridSpot,
+	combinedRmsMm,
+	defaultColourBand,
+	reverseElement,
 	apertureReport,
 	airyRadiusMm,
 	workingFNumber,
@@ -26,21 +34,30 @@ import {
 	sagMm,
 	RAY_STRIDE,
 	TRACE_OK,
+	TRACE_CLIPPED,
+	TRACE_TIR,
 	firstVertexPositionsMm,
+	type ColourBand,
+	type GridSpot,
 	type Layout,
 	type ThickElement,
 	type TraceSystem
 } from '../../optics';
-import type { RayPath, Solution, SolutionElement, ToleranceRow } from '../../solver/types';
+import type { ColourFigures, RayPath, Solution, SolutionElement, ToleranceRow } from '../../solver/types';
 import { orientationText } from '../../solver/orientation';
-import { clearApertureOf, type CandidatePart } from './elements';
+import { EDGE_BLOCKED_RATIO, VIGNETTING_TOLERANCE } from '../../solver/ranking';
+import { clearApertureOf, partElement, type CandidatePart } from './elements';
 
 /** Tolerance of the independent matrix check of a returned solution (|B| in mm, |A − m| relative). */
 export const VERIFY_B_TOL_MM = 1e-6;
 export const VERIFY_A_TOL = 1e-6;
 
-/** Rays per fan of the final trace. */
+/** Rays (rings) of the axial spot of the final trace. */
 const FAN_RAYS = 32;
+/** Cells across the field edge's pupil grid (16: about 200 directions, half of them traced by symmetry). */
+const EDGE_GRID = 16;
+/** The field edge's spot grid spans this much more than the axial cone the stop passes (then the whole request when rays reach its rim). */
+const EDGE_GRID_MARGIN = 1.25;
 
 /** A placement to evaluate: which elements (already oriented) and where. */
 export interface PlacementChoice {
@@ -62,6 +79,8 @@ export interface EvalQuestion {
 	trackMm: number;
 	objectNA: number;
 	objectHeightMm: number;
+	/** Band of the colour figures (default: `defaultColourBand` of the working wavelength). */
+	band?: ColourBand;
 }
 
 /** Evaluated placement with the figures the ranking needs. */
@@ -89,7 +108,9 @@ function rayPolyline(sys: TraceSystem, yObj: number, sinAngle: number): [number,
 	const heights = new Float64Array(sys.count);
 	if (!startRay(ray, yObj, sinAngle)) return null;
 	const status = traceRay(sys, ray, heights);
-	const upTo = status === TRACE_OK ? sys.count : ray[5];
+	// A ray stopped at an aperture (or by total internal reflection) ends where it met that surface;
+	// one that missed a surface or would have met it behind its last point ends at its last surface.
+	const upTo = status === TRACE_OK ? sys.count : status === TRACE_CLIPPED || status === TRACE_TIR ? ray[5] + 1 : ray[5];
 	const pts: [number, number][] = [[0, yObj]];
 	for (let k = 0; k < upTo; k++) {
 		const sag = sagMm(sys.curvaturePerMm[k], heights[k]) ?? 0;
@@ -158,6 +179,133 @@ function perturbed(choice: PlacementChoice, k: number, dev: number): { shiftMm: 
 	return { shiftMm: img.imageDistanceMm - choice.backDistanceMm, magnification: img.magnification };
 }
 
+/** The aperture stop as (part index, surface 1-based within the part). */
+function stopOf(sys: TraceSystem, k: number): { partIndex: number; surface: number } {
+	const e = sys.elementIndex[k];
+	let first = k;
+	while (first > 0 && sys.elementIndex[first - 1] === e) first--;
+	return { partIndex: e, surface: k - first + 1 };
+}
+
+/** The field edge traced: its grid spot, the fraction of the requested cone lost, and the grid used. */
+interface EdgeTrace {
+	spot: GridSpot;
+	lostFraction: number;
+	sinChief: number;
+	radiusSine: number;
+}
+
+/**
+ * The field edge's pupil grid around the real chief ray (through the centre of the aperture
+ * stop). The fraction lost is counted over the requested cone (radius NA in direction sines);
+ * the spot comes from a finer grid over EDGE_GRID_MARGIN × the axial cone passed when the stop
+ * cuts the cone, kept only if it holds at least 80 % of the light the full grid found (else rays
+ * outside it pass, and the full grid is used).
+ */
+function edgeTrace(sys: TraceSystem, h: number, na: number, passedSine: number, stopSurface: number): EdgeTrace {
+	const sinChief = stopChiefSine(sys, h, stopSurface);
+	const full = fieldGridSpot(sys, h, { sinChief, radiusSine: na, grid: EDGE_GRID });
+	const r = Math.min(na, EDGE_GRID_MARGIN * passedSine);
+	if (r >= na || !(r > 0)) return { spot: full, lostFraction: 1 - full.passedFraction, sinChief, radiusSine: na };
+	const fine = fieldGridSpot(sys, h, { sinChief, radiusSine: r, grid: EDGE_GRID });
+	const fineShare = fine.passedFraction * (r / na) ** 2;
+	if (fine.raysTraced > 0 && fineShare >= 0.8 * full.passedFraction) {
+		return { spot: fine, lostFraction: 1 - fineShare, sinChief, radiusSine: r };
+	}
+	return { spot: full, lostFraction: 1 - full.passedFraction, sinChief, radiusSine: na };
+}
+
+/**
+ * For the drawing: the largest offset δ ≤ na (direction sines) on one side of the chief ray whose
+ * meridional ray still passes every aperture, by bisection; null when the chief ray itself is lost.
+ */
+function rimOffset(sys: TraceSystem, h: number, sinChief: number, sign: number, na: number): number | null {
+	const ray = new Float64Array(RAY_STRIDE);
+	const passes = (d: number) => startRay(ray, h, sinChief + sign * d) && traceRay(sys, ray) === TRACE_OK;
+	if (!passes(0)) return null;
+	if (passes(na)) return na;
+	let lo = 0,
+		hi = na;
+	for (let i = 0; i < 24; i++) {
+		const mid = 0.5 * (lo + hi);
+		if (passes(mid)) lo = mid;
+		else hi = mid;
+	}
+	return lo;
+}
+
+/** Elements of a part at another wavelength, in the orientation asked for (or why not), cached per part. */
+const elementsAt = new WeakMap<CandidatePart, Map<string, ThickElement | string>>();
+function elementAt(part: CandidatePart, reversed: boolean, wavelengthNm: number): ThickElement | string {
+	let cache = elementsAt.get(part);
+	if (!cache) {
+		cache = new Map();
+		elementsAt.set(part, cache);
+	}
+	const key = `${wavelengthNm}|${reversed ? 1 : 0}`;
+	let e = cache.get(key);
+	if (e === undefined) {
+		const built = partElement(part, wavelengthNm);
+		e = built.ok ? (reversed ? reverseElement(built.element) : built.element) : `${part.sku} has no model at ${wavelengthNm} nm: ${built.reason}`;
+		cache.set(key, e);
+	}
+	return e;
+}
+
+/**
+ * Figures over the colour band (`q.band`, default `defaultColourBand`), with the parts at the
+ * positions found at the working wavelength and the target plane where it is: the axial colour
+ * (paraxial image position at the longest minus at the shortest wavelength), and the RMS radius
+ * about the common centroid on axis and at the field edge, each band wavelength with equal
+ * weight, from the same rays (the axial cone the stop passes; the field edge's grid).
+ */
+function colourFigures(
+	choice: PlacementChoice,
+	q: EvalQuestion,
+	layout: Layout,
+	diameters: number[],
+	mag: number,
+	trace: { tracedNA: number | null; grid: EdgeTrace | null } | null
+): ColourFigures {
+	const band = q.band ?? defaultColourBand(q.wavelengthNm);
+	const bandNm: [number, number, number] = [band[0], band[1], band[2]];
+	const airy = airyRadiusMm(band[1], workingFNumber(imageSideNA(trace?.tracedNA ?? q.objectNA, mag)));
+	const none = (note: string): ColourFigures => ({ bandNm, axialColourMm: null, axialRmsMm: null, edgeRmsMm: null, airyRadiusMm: airy, ratioToAiry: null, note });
+	const layouts: Layout[] = [];
+	for (const w of band) {
+		const els: ThickElement[] = [];
+		for (let k = 0; k < choice.parts.length; k++) {
+			const e = elementAt(choice.parts[k], choice.elements[k].reversed, w);
+			if (typeof e === 'string') return none(e);
+			els.push(e);
+		}
+		layouts.push({ ...layout, elements: els });
+	}
+	const imageAt = (l: Layout) => imageAfter(layoutMatrix(create(), { ...l, backDistanceMm: 0 }))?.imageDistanceMm ?? null;
+	const short = imageAt(layouts[0]),
+		long = imageAt(layouts[2]);
+	const axialColourMm = short === null || long === null ? null : long - short;
+	if (trace === null || trace.tracedNA === null || !(trace.tracedNA > 0)) {
+		return { ...none(trace === null ? 'A part without a prescription cannot be traced with real rays.' : 'No real ray reaches the target plane.'), axialColourMm };
+	}
+	const axial: { rmsAboutCentroidMm: number; centroidMm: number }[] = [];
+	const edge: { rmsAboutCentroidMm: number; centroidMm: number }[] = [];
+	for (const l of layouts) {
+		const sys = traceSystemFromLayout(l, diameters);
+		if (!sys.ok) return { ...none(sys.error.message), axialColourMm };
+		const a = axialSpot(sys.value, { na: trace.tracedNA, rays: FAN_RAYS });
+		if (a) axial.push({ rmsAboutCentroidMm: a.rmsAboutCentroidMm, centroidMm: 0 });
+		if (trace.grid) {
+			const g = fieldGridSpot(sys.value, q.objectHeightMm, { sinChief: trace.grid.sinChief, radiusSine: trace.grid.radiusSine, grid: EDGE_GRID });
+			if (g.raysTraced > 0) edge.push({ rmsAboutCentroidMm: g.rmsAboutCentroidMm, centroidMm: g.centroidMm });
+		}
+	}
+	const axialRmsMm = axial.length === band.length ? combinedRmsMm(axial) : null;
+	const edgeRmsMm = trace.grid ? (edge.length === band.length ? combinedRmsMm(edge) : null) : axialRmsMm;
+	const ratioToAiry = axialRmsMm === null ? null : Math.max(axialRmsMm, edgeRmsMm ?? axialRmsMm) / airy;
+	return { bandNm, axialColourMm, axialRmsMm, edgeRmsMm, airyRadiusMm: airy, ratioToAiry, note: null };
+}
+
 /** Evaluates a placement (see the module comment). */
 export function evaluatePlacement(choice: PlacementChoice, q: EvalQuestion, symmetricParts: boolean[]): Evaluated {
 	const layout: Layout = {
@@ -176,57 +324,66 @@ export function evaluatePlacement(choice: PlacementChoice, q: EvalQuestion, symm
 	const vertices = firstVertexPositionsMm(layout);
 	const lens = matrixBetween(choice.elements, choice.gapsMm);
 
-	const airy = airyRadiusMm(q.wavelengthNm, workingFNumber(imageSideNA(q.objectNA, mag)));
-	const traced = traceSystemFromLayout(layout);
+	const diameters = choice.parts.map((p) => p.diameterMm);
+	const traced = traceSystemFromLayout(layout, diameters);
+	const hEdge = q.objectHeightMm;
 	let axialRms: number | null = null,
 		edgeRms: number | null = null,
 		untracedReason: string | null = null;
-	let vigAxial = false,
-		vigEdge = false,
+	let axialLost: number | null = null,
+		edgeLost: number | null = null,
+		tracedNA: number | null = null,
+		stop: { partIndex: number; surface: number } | null = null,
+		grid: EdgeTrace | null = null,
 		worstFill = 0;
 	const rays: RayPath[] = [];
 	if (traced.ok) {
 		const sys = traced.value;
-		const opts = { na: q.objectNA, rays: FAN_RAYS };
-		const axial = axialSpot(sys, opts);
-		axialRms = axial ? axial.rmsAboutChiefMm : null;
-		if (q.objectHeightMm > 0) {
-			const edge = tangentialSpot(sys, q.objectHeightMm, opts);
-			edgeRms = edge ? edge.rmsAboutChiefMm : null;
-		} else edgeRms = axialRms;
-		const rep = apertureReport(sys, q.objectHeightMm, opts);
-		for (const s of rep.surfaces) {
-			if (Number.isFinite(s.semiApertureMm)) {
-				const m = s.marginalMm ?? Infinity;
-				const e = Math.max(s.chiefMm ?? 0, s.edgeRimMm ?? Infinity);
-				if (m > s.semiApertureMm) vigAxial = true;
-				if (q.objectHeightMm > 0 && e > s.semiApertureMm) vigEdge = true;
-				worstFill = Math.max(worstFill, Math.max(m, q.objectHeightMm > 0 ? e : 0) / s.semiApertureMm);
+		const cone = axialCone(sys, q.objectNA);
+		tracedNA = cone.passedSine;
+		axialLost = cone.lostFraction;
+		stop = cone.stopSurface >= 0 ? stopOf(sys, cone.stopSurface) : null;
+		const axial = cone.passedSine > 0 ? axialSpot(sys, { na: cone.passedSine, rays: FAN_RAYS }) : null;
+		axialRms = axial ? axial.rmsAboutCentroidMm : null;
+		if (hEdge > 0) {
+			grid = edgeTrace(sys, hEdge, q.objectNA, cone.passedSine, cone.stopSurface);
+			edgeRms = grid.spot.raysTraced > 0 ? grid.spot.rmsAboutCentroidMm : null;
+			edgeLost = grid.lostFraction;
+		} else {
+			edgeRms = axialRms;
+			edgeLost = 0;
+		}
+		const rep = apertureReport(sys, hEdge, { na: q.objectNA });
+		for (const sf of rep.surfaces) {
+			if (!Number.isFinite(sf.semiApertureMm)) continue;
+			for (const v of [sf.marginalMm, hEdge > 0 ? sf.chiefMm : null, hEdge > 0 ? sf.edgeRimMm : null]) {
+				if (v !== null && Number.isFinite(v)) worstFill = Math.max(worstFill, v / sf.semiApertureMm);
 			}
 		}
-		if (rep.raysFailed > 0) {
-			vigAxial ||= rep.surfaces.some((s) => s.marginalMm === null);
-			vigEdge ||= q.objectHeightMm > 0;
-		}
-		if (axialRms === null) untracedReason = 'No real ray of the axial fan reaches the target plane.';
-		const na = q.objectNA;
+		if (axialRms === null) untracedReason = 'No real ray of the axial cone reaches the target plane.';
 		for (const sgn of [1, -1]) {
-			const pts = rayPolyline(sys, 0, sgn * na);
+			const pts = rayPolyline(sys, 0, sgn * cone.passedSine);
 			if (pts) rays.push({ kind: 'marginal', points: pts });
 		}
-		if (q.objectHeightMm > 0) {
-			const sc = chiefSine(sys, q.objectHeightMm);
-			const chief = rayPolyline(sys, q.objectHeightMm, sc);
+		if (hEdge > 0 && grid) {
+			const sc = grid.sinChief;
+			const chief = rayPolyline(sys, hEdge, sc);
 			if (chief) rays.push({ kind: 'chief', points: chief });
 			for (const sgn of [1, -1]) {
-				const pts = rayPolyline(sys, q.objectHeightMm, sc + sgn * na);
+				const off = rimOffset(sys, hEdge, sc, sgn, q.objectNA);
+				const pts = off === null ? null : rayPolyline(sys, hEdge, sc + sgn * off);
 				if (pts) rays.push({ kind: 'edge-rim', points: pts });
 			}
 		}
 	} else {
 		untracedReason = 'A part without a prescription (black box) cannot be traced with real rays; the answer is paraxial only.';
 	}
-	const h = q.objectHeightMm > 0 ? q.objectHeightMm : Math.max(1, 0.2 * Math.min(...choice.parts.map((p) => clearApertureOf(p) / 2)));
+	const airy = airyRadiusMm(q.wavelengthNm, workingFNumber(imageSideNA(tracedNA ?? q.objectNA, mag)));
+	const vigAxial = axialLost !== null && axialLost > VIGNETTING_TOLERANCE;
+	const vigEdge = hEdge > 0 && edgeLost !== null && edgeLost > VIGNETTING_TOLERANCE;
+	const blocked = hEdge > 0 && edgeLost !== null && axialLost !== null && 1 - edgeLost < EDGE_BLOCKED_RATIO * (1 - axialLost);
+	const colour = colourFigures(choice, q, layout, diameters, mag, traced.ok ? { tracedNA, grid } : null);
+	const h = hEdge > 0 ? hEdge : Math.max(1, 0.2 * Math.min(...choice.parts.map((p) => clearApertureOf(p) / 2)));
 	rays.push(...principalRays(layout, lens, mag * h, h, q.trackMm));
 
 	const used = new Map<number, number>();
@@ -293,10 +450,21 @@ export function evaluatePlacement(choice: PlacementChoice, q: EvalQuestion, symm
 				edgeRmsMm: edgeRms,
 				airyRadiusMm: airy,
 				ratioToAiry: ratio,
+				statistic: 'rms-radius-about-centroid',
 				untracedReason,
 				screenEstimateMm: choice.screenEstimateMm
 			},
-			vignetting: { axial: vigAxial, edge: vigEdge, worstFill },
+			vignetting: {
+				axial: vigAxial,
+				edge: vigEdge,
+				worstFill,
+				axialLostFraction: axialLost,
+				edgeLostFraction: edgeLost,
+				edgeBlocked: blocked,
+				tracedNA,
+				stop
+			},
+			colour,
 			rays,
 			tolerance
 		}

@@ -159,7 +159,7 @@ export async function solveWithStock(stock: StockView, req: ParsedImagingRequest
 		);
 		if (ev.verified) evaluated.push(ev.solution);
 	}
-	const keyed = evaluated.map((s) => ({ s, k: rankKey(s) }));
+	const keyed = evaluated.map((s) => ({ s, k: rankKey(s, req.rankBy) }));
 	keyed.sort((a, b) => compareKeys(a.k, b.k));
 	const limit = options.keepAll ? keyed.length : req.limit;
 	const solutions: Solution[] = keyed.slice(0, limit).map(({ s }, n) => ({ rank: n + 1, ...s }));
