@@ -20,6 +20,8 @@ import {
 	axialCone,
 	stopChiefSine,
 	fieldGridSpot,
+	edgePupil,
+	pupilSpot,
 	combinedRmsMm,
 	defaultColourBand,
 	reverseElement,
@@ -38,7 +40,7 @@ import {
 	TRACE_TIR,
 	firstVertexPositionsMm,
 	type ColourBand,
-	type GridSpot,
+	type PupilEllipse,
 	type Layout,
 	type ThickElement,
 	type TraceSystem
@@ -54,10 +56,11 @@ export const VERIFY_A_TOL = 1e-6;
 
 /** Rays (rings) of the axial spot of the final trace. */
 const FAN_RAYS = 32;
-/** Cells across the field edge's pupil grid (16: about 200 directions, half of them traced by symmetry). */
+/** Rings and spokes (over the half plane, mirrored) of the field edge's sample of its passed cone: 96 rays standing for 192. */
+const EDGE_RINGS = 12;
+const EDGE_SPOKES = 8;
+/** Cells across the square grid used when the field edge's passed rays do not surround a passing centre. */
 const EDGE_GRID = 16;
-/** The field edge's spot grid spans this much more than the axial cone the stop passes (then the whole request when rays reach its rim). */
-const EDGE_GRID_MARGIN = 1.25;
 
 /** A placement to evaluate: which elements (already oriented) and where. */
 export interface PlacementChoice {
@@ -122,7 +125,11 @@ function rayPolyline(sys: TraceSystem, yObj: number, sinAngle: number): [number,
 	return pts;
 }
 
-/** The paraxial construction of the whole system: parallel ray, focal ray, both via H and H'. */
+/**
+ * The paraxial construction of the whole system: parallel ray, focal ray, both via H and H'.
+ * Drawn only when it runs forwards (object plane ≤ H ≤ H' ≤ target plane): with crossed or
+ * distant principal planes the construction would run backwards, and no drawn path may.
+ */
 function principalRays(layout: Layout, systemLens: Float64Array, imageY: number, h: number, trackMm: number): RayPath[] {
 	const cp = cardinalPoints(systemLens);
 	if (!cp || h === 0) return [];
@@ -130,6 +137,7 @@ function principalRays(layout: Layout, systemLens: Float64Array, imageY: number,
 	const zLast = trackMm - layout.backDistanceMm; // last vertex
 	const zH = z1 + cp.frontPrincipalMm,
 		zH2 = zLast + cp.backPrincipalMm;
+	if (!(0 <= zH && zH <= zH2 && zH2 <= trackMm)) return [];
 	const zF = z1 - cp.fflMm;
 	// Parallel ray: (0, h) → H at h → H' at h → image point.
 	const parallel: RayPath = {
@@ -187,32 +195,40 @@ function stopOf(sys: TraceSystem, k: number): { partIndex: number; surface: numb
 	return { partIndex: e, surface: k - first + 1 };
 }
 
-/** The field edge traced: its grid spot, the fraction of the requested cone lost, and the grid used. */
+/** The field edge traced: its spot, the fraction of the requested cone lost, and how it was sampled. */
 interface EdgeTrace {
-	spot: GridSpot;
+	rmsMm: number | null;
 	lostFraction: number;
 	sinChief: number;
-	radiusSine: number;
+	/** The passed part of the cone, sampled by `pupilSpot` (null: nothing passes, or the fallback grid was used). */
+	pupil: PupilEllipse | null;
 }
 
 /**
- * The field edge's pupil grid around the real chief ray (through the centre of the aperture
- * stop). The fraction lost is counted over the requested cone (radius NA in direction sines);
- * the spot comes from a finer grid over EDGE_GRID_MARGIN × the axial cone passed when the stop
- * cuts the cone, kept only if it holds at least 80 % of the light the full grid found (else rays
- * outside it pass, and the full grid is used).
+ * The field edge around its real chief ray (through the centre of the aperture stop): the passed
+ * part of the requested cone (`edgePupil`) sampled by `pupilSpot`; when the passed rays do not
+ * surround a passing centre, a square grid over the whole requested cone (`fieldGridSpot`);
+ * when nothing passes, the field edge is blocked (all of its cone lost, no spot).
  */
-function edgeTrace(sys: TraceSystem, h: number, na: number, passedSine: number, stopSurface: number): EdgeTrace {
+function edgeTrace(sys: TraceSystem, h: number, na: number, stopSurface: number): EdgeTrace {
 	const sinChief = stopChiefSine(sys, h, stopSurface);
-	const full = fieldGridSpot(sys, h, { sinChief, radiusSine: na, grid: EDGE_GRID });
-	const r = Math.min(na, EDGE_GRID_MARGIN * passedSine);
-	if (r >= na || !(r > 0)) return { spot: full, lostFraction: 1 - full.passedFraction, sinChief, radiusSine: na };
-	const fine = fieldGridSpot(sys, h, { sinChief, radiusSine: r, grid: EDGE_GRID });
-	const fineShare = fine.passedFraction * (r / na) ** 2;
-	if (fine.raysTraced > 0 && fineShare >= 0.8 * full.passedFraction) {
-		return { spot: fine, lostFraction: 1 - fineShare, sinChief, radiusSine: r };
+	const pupil = edgePupil(sys, h, sinChief, na);
+	if (pupil) {
+		const spot = pupilSpot(sys, h, pupil, { rings: EDGE_RINGS, spokes: EDGE_SPOKES });
+		if (spot.raysTraced > 0) return { rmsMm: spot.rmsAboutCentroidMm, lostFraction: 1 - spot.passedShare, sinChief, pupil };
 	}
-	return { spot: full, lostFraction: 1 - full.passedFraction, sinChief, radiusSine: na };
+	const grid = fieldGridSpot(sys, h, { sinChief, radiusSine: na, grid: EDGE_GRID });
+	return { rmsMm: grid.raysTraced > 0 ? grid.rmsAboutCentroidMm : null, lostFraction: 1 - grid.passedFraction, sinChief, pupil: null };
+}
+
+/** The field edge's spot at another wavelength, sampled as `edgeTrace` sampled it. */
+function edgeSpotAt(sys: TraceSystem, h: number, na: number, e: EdgeTrace): { rmsAboutCentroidMm: number; centroidMm: number } | null {
+	if (e.pupil) {
+		const spot = pupilSpot(sys, h, e.pupil, { rings: EDGE_RINGS, spokes: EDGE_SPOKES });
+		return spot.raysTraced > 0 ? spot : null;
+	}
+	const grid = fieldGridSpot(sys, h, { sinChief: e.sinChief, radiusSine: na, grid: EDGE_GRID });
+	return grid.raysTraced > 0 ? grid : null;
 }
 
 /**
@@ -296,8 +312,8 @@ function colourFigures(
 		const a = axialSpot(sys.value, { na: trace.tracedNA, rays: FAN_RAYS });
 		if (a) axial.push({ rmsAboutCentroidMm: a.rmsAboutCentroidMm, centroidMm: 0 });
 		if (trace.grid) {
-			const g = fieldGridSpot(sys.value, q.objectHeightMm, { sinChief: trace.grid.sinChief, radiusSine: trace.grid.radiusSine, grid: EDGE_GRID });
-			if (g.raysTraced > 0) edge.push({ rmsAboutCentroidMm: g.rmsAboutCentroidMm, centroidMm: g.centroidMm });
+			const g = edgeSpotAt(sys.value, q.objectHeightMm, q.objectNA, trace.grid);
+			if (g) edge.push(g);
 		}
 	}
 	const axialRmsMm = axial.length === band.length ? combinedRmsMm(axial) : null;
@@ -346,8 +362,8 @@ export function evaluatePlacement(choice: PlacementChoice, q: EvalQuestion, symm
 		const axial = cone.passedSine > 0 ? axialSpot(sys, { na: cone.passedSine, rays: FAN_RAYS }) : null;
 		axialRms = axial ? axial.rmsAboutCentroidMm : null;
 		if (hEdge > 0) {
-			grid = edgeTrace(sys, hEdge, q.objectNA, cone.passedSine, cone.stopSurface);
-			edgeRms = grid.spot.raysTraced > 0 ? grid.spot.rmsAboutCentroidMm : null;
+			grid = edgeTrace(sys, hEdge, q.objectNA, cone.stopSurface);
+			edgeRms = grid.rmsMm;
 			edgeLost = grid.lostFraction;
 		} else {
 			edgeRms = axialRms;
