@@ -14,6 +14,8 @@ import {
 	traceRay,
 	startRay,
 	fieldGridSpot,
+	axialCone,
+	stopChiefSine,
 	refractiveIndex,
 	RAY_STRIDE,
 	SKEW_STRIDE,
@@ -292,5 +294,43 @@ describe('spot figures against the independent trace', () => {
 			if (q) all.push(q[1]);
 		}
 		expect(Math.sqrt(all.reduce((a, y) => a + y * y, 0) / all.length)).toBeCloseTo(1.596, 2);
+	});
+});
+
+describe('the aperture stop (geometry and Snell: height 100·tan θ + 5·tan θ′ with sin θ′ = sin θ/n at the back face of a window; common practice, no source)', () => {
+	it('a window stops the cone at its back face (the ray still rises in the glass); a smaller second part further on takes over as the stop', () => {
+		const win = element([{ radiusMm: null, thicknessMm: 5, material: '517642' }, { radiusMm: null }], 587.6, 10);
+		const one = traceSystemFromLayout({ objectDistanceMm: 100, elements: [win], gapsMm: [], backDistanceMm: 50 });
+		if (!one.ok) throw one.error;
+		const n = refractiveIndex('517642', 587.6);
+		const height = (u: number) => 100 * Math.tan(Math.asin(u)) + 5 * Math.tan(Math.asin(u / n));
+		let lo = 0,
+			hi = 0.2;
+		for (let i = 0; i < 80; i++) {
+			const mid = (lo + hi) / 2;
+			if (height(mid) < 5) lo = mid;
+			else hi = mid;
+		}
+		const cone = axialCone(one.value, 0.2);
+		expect(cone.stopSurface).toBe(1);
+		expect(cone.passedSine).toBeCloseTo(lo, 9);
+		expect(cone.lostFraction).toBeCloseTo(1 - (cone.passedSine / 0.2) ** 2, 12);
+		// Asked for less than the window passes: nothing lost, the stop is still the window's first face.
+		expect(axialCone(one.value, 0.01)).toMatchObject({ passedSine: 0.01, lostFraction: 0, stopSurface: 1 });
+		// A 4 mm window 100 mm further on: the ray through the rim of its back face has 200·tan θ + 6·tan θ′ = 2.
+		const small = element([{ radiusMm: null, thicknessMm: 1, material: '517642' }, { radiusMm: null }], 587.6, 4);
+		const two = traceSystemFromLayout({ objectDistanceMm: 100, elements: [win, small], gapsMm: [100], backDistanceMm: 50 });
+		if (!two.ok) throw two.error;
+		const c2 = axialCone(two.value, 0.2);
+		expect(c2.stopSurface).toBe(3);
+		expect(c2.passedSine).toBeGreaterThan(2 / 206);
+		expect(c2.passedSine).toBeLessThan(2 / 200);
+		// The chief ray of a field point crosses the axis at the stop's centre.
+		const u = stopChiefSine(two.value, 3, c2.stopSurface);
+		const ray = new Float64Array(RAY_STRIDE);
+		const hts = new Float64Array(4);
+		startRay(ray, 3, u);
+		traceRay(two.value, ray, hts, false);
+		expect(Math.abs(hts[3])).toBeLessThan(1e-9);
 	});
 });
