@@ -198,6 +198,8 @@ function stopOf(sys: TraceSystem, k: number): { partIndex: number; surface: numb
 /** The field edge traced: its spot, the fraction of the requested cone lost, and how it was sampled. */
 interface EdgeTrace {
 	rmsMm: number | null;
+	/** Centroid height of the edge spot, mm (NaN when no ray arrives). */
+	centroidMm: number;
 	lostFraction: number;
 	sinChief: number;
 	/** The passed part of the cone, sampled by `pupilSpot` (null: nothing passes, or the fallback grid was used). */
@@ -215,10 +217,10 @@ function edgeTrace(sys: TraceSystem, h: number, na: number, stopSurface: number)
 	const pupil = edgePupil(sys, h, sinChief, na);
 	if (pupil) {
 		const spot = pupilSpot(sys, h, pupil, { rings: EDGE_RINGS, spokes: EDGE_SPOKES });
-		if (spot.raysTraced > 0) return { rmsMm: spot.rmsAboutCentroidMm, lostFraction: 1 - spot.passedShare, sinChief, pupil };
+		if (spot.raysTraced > 0) return { rmsMm: spot.rmsAboutCentroidMm, centroidMm: spot.centroidMm, lostFraction: 1 - spot.passedShare, sinChief, pupil };
 	}
 	const grid = fieldGridSpot(sys, h, { sinChief, radiusSine: na, grid: EDGE_GRID });
-	return { rmsMm: grid.raysTraced > 0 ? grid.rmsAboutCentroidMm : null, lostFraction: 1 - grid.passedFraction, sinChief, pupil: null };
+	return { rmsMm: grid.raysTraced > 0 ? grid.rmsAboutCentroidMm : null, centroidMm: grid.centroidMm, lostFraction: 1 - grid.passedFraction, sinChief, pupil: null };
 }
 
 /** The field edge's spot at another wavelength, sampled as `edgeTrace` sampled it. */
@@ -281,7 +283,7 @@ function colourFigures(
 	layout: Layout,
 	diameters: number[],
 	mag: number,
-	trace: { tracedNA: number | null; grid: EdgeTrace | null } | null
+	trace: { tracedNA: number | null; grid: EdgeTrace | null; axialRms: number | null } | null
 ): ColourFigures {
 	const band = q.band ?? defaultColourBand(q.wavelengthNm);
 	const bandNm: [number, number, number] = [band[0], band[1], band[2]];
@@ -306,7 +308,14 @@ function colourFigures(
 	}
 	const axial: { rmsAboutCentroidMm: number; centroidMm: number }[] = [];
 	const edge: { rmsAboutCentroidMm: number; centroidMm: number }[] = [];
-	for (const l of layouts) {
+	for (let b = 0; b < layouts.length; b++) {
+		if (band[b] === q.wavelengthNm) {
+			// The working wavelength itself: its figures are already traced.
+			if (trace.axialRms !== null) axial.push({ rmsAboutCentroidMm: trace.axialRms, centroidMm: 0 });
+			if (trace.grid && trace.grid.rmsMm !== null) edge.push({ rmsAboutCentroidMm: trace.grid.rmsMm, centroidMm: trace.grid.centroidMm });
+			continue;
+		}
+		const l = layouts[b];
 		const sys = traceSystemFromLayout(l, diameters);
 		if (!sys.ok) return { ...none(sys.error.message), axialColourMm };
 		const a = axialSpot(sys.value, { na: trace.tracedNA, rays: FAN_RAYS });
@@ -322,8 +331,21 @@ function colourFigures(
 	return { bandNm, axialColourMm, axialRmsMm, edgeRmsMm, airyRadiusMm: airy, ratioToAiry, note: null };
 }
 
-/** Evaluates a placement (see the module comment). */
-export function evaluatePlacement(choice: PlacementChoice, q: EvalQuestion, symmetricParts: boolean[]): Evaluated {
+/** What `evaluatePlacement` computes beyond the figures that rank (both by default). */
+export interface EvalOptions {
+	/** The figures over the colour band (`solution.colour`); without it `colour` is left out. */
+	colour?: boolean;
+	/** The drawing's rays (`solution.rays`); without it `rays` is empty. */
+	drawing?: boolean;
+}
+
+/**
+ * Evaluates a placement (see the module comment). The search evaluates its candidates without the
+ * drawing (and without the colour band unless it ranks by it), then evaluates the answers it returns
+ * again in full: the figures that rank are the same either way.
+ */
+export function evaluatePlacement(choice: PlacementChoice, q: EvalQuestion, symmetricParts: boolean[], options: EvalOptions = {}): Evaluated {
+	const drawing = options.drawing ?? true;
 	const layout: Layout = {
 		objectDistanceMm: choice.objectDistanceMm,
 		elements: choice.elements,
@@ -377,11 +399,11 @@ export function evaluatePlacement(choice: PlacementChoice, q: EvalQuestion, symm
 			}
 		}
 		if (axialRms === null) untracedReason = 'No real ray of the axial cone reaches the target plane.';
-		for (const sgn of [1, -1]) {
+		for (const sgn of drawing ? [1, -1] : []) {
 			const pts = rayPolyline(sys, 0, sgn * cone.passedSine);
 			if (pts) rays.push({ kind: 'marginal', points: pts });
 		}
-		if (hEdge > 0 && grid) {
+		if (drawing && hEdge > 0 && grid) {
 			const sc = grid.sinChief;
 			const chief = rayPolyline(sys, hEdge, sc);
 			if (chief) rays.push({ kind: 'chief', points: chief });
@@ -398,9 +420,9 @@ export function evaluatePlacement(choice: PlacementChoice, q: EvalQuestion, symm
 	const vigAxial = axialLost !== null && axialLost > VIGNETTING_TOLERANCE;
 	const vigEdge = hEdge > 0 && edgeLost !== null && edgeLost > VIGNETTING_TOLERANCE;
 	const blocked = hEdge > 0 && edgeLost !== null && axialLost !== null && 1 - edgeLost < EDGE_BLOCKED_RATIO * (1 - axialLost);
-	const colour = colourFigures(choice, q, layout, diameters, mag, traced.ok ? { tracedNA, grid } : null);
+	const colour = options.colour ?? true ? colourFigures(choice, q, layout, diameters, mag, traced.ok ? { tracedNA, grid, axialRms } : null) : undefined;
 	const h = hEdge > 0 ? hEdge : Math.max(1, 0.2 * Math.min(...choice.parts.map((p) => clearApertureOf(p) / 2)));
-	rays.push(...principalRays(layout, lens, mag * h, h, q.trackMm));
+	if (drawing) rays.push(...principalRays(layout, lens, mag * h, h, q.trackMm));
 
 	const used = new Map<number, number>();
 	const elements: SolutionElement[] = choice.elements.map((el, k) => {
