@@ -148,7 +148,7 @@ export interface Solution {
 		axial: boolean;
 		/** Part of the requested cone lost at the field edge (more than the tolerance). */
 		edge: boolean;
-		/** Largest height of the requested rays (not clipped) over the clear semi-aperture across all surfaces (> 1: clipped). */
+		/** Largest height of the requested rays (traced through the apertures) over the semi-aperture across all surfaces (> 1: clipped); a ray that misses a sphere altogether is not counted. */
 		worstFill: number;
 		/** Fraction of the requested cone (the question's NA) lost on axis, 0–1 (null: not traced). Absent in older saved setups. */
 		axialLostFraction?: number | null;
