@@ -75,3 +75,17 @@ describe('m = +1, track 400 mm, half field 5 mm, NA 0.05, on the demo catalogue'
 		for (let k = 1; k < r.solutions.length; k++) expect(compareKeys(rankKey(r.solutions[k - 1]), rankKey(r.solutions[k]))).toBeLessThanOrEqual(0);
 	});
 });
+
+describe('ranking by the colour band (rankBy "band")', () => {
+	it('orders by the band figures, which every returned answer carries (F–d–C at 587.6 nm)', async () => {
+		const parts = demoStock();
+		const req = imagingRequestSchema.parse({ wavelengthNm: 587.6, trackMm: 300, magnification: -0.5, objectNA: 0.05, objectHeightMm: 2, limit: 20, rankBy: 'band' });
+		const r = await solveWithStock({ key: `demo-band-${Math.random()}`, parts }, req, { inline: true });
+		expect(r.solutions.length).toBeGreaterThan(5);
+		for (const s of r.solutions) {
+			expect(s.colour!.bandNm).toEqual([486.1, 587.6, 656.3]);
+			expect(Number.isFinite(s.colour!.axialColourMm!)).toBe(true);
+		}
+		for (let k = 1; k < r.solutions.length; k++) expect(compareKeys(rankKey(r.solutions[k - 1], 'band'), rankKey(r.solutions[k], 'band'))).toBeLessThanOrEqual(0);
+	});
+});
