@@ -37,7 +37,8 @@ export const IMAGING_DEFAULTS = {
 	minGap: '1 mm',
 	minWd: '5 mm',
 	available: 'true',
-	maxParts: '2'
+	maxParts: '2',
+	rankBy: 'monochromatic'
 };
 export type ImagingValues = typeof IMAGING_DEFAULTS;
 

@@ -142,7 +142,8 @@ export function readForm(
 		minGapMm,
 		minWorkingDistanceMm,
 		availableOnly: values.available !== 'false',
-		maxElements: values.maxParts === '1' ? 1 : 2
+		maxElements: values.maxParts === '1' ? 1 : 2,
+		rankBy: values.rankBy === 'band' ? 'band' : 'monochromatic'
 	});
 	if (checked.success && !Object.keys(errors).length) return { values, submitted, errors, request: checked.data };
 	if (!checked.success) {
