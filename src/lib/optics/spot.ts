@@ -293,8 +293,10 @@ export interface AxialCone {
 	readonly lostFraction: number;
 }
 
-/** Bisection steps of `axialCone` (the limit is found to 2⁻³⁶ of a direction sine). */
+/** Bisection steps of `axialCone` when the stop cuts the cone asked for (the limit to 2⁻³⁶ of a direction sine). */
 const CONE_STEPS = 36;
+/** Bisection steps when the whole cone asked for passes: only which surface stops the cone as it opens further is wanted. */
+const STOP_STEPS = 16;
 
 /**
  * Finds the aperture stop and the axial cone it passes: the largest direction sine u whose
@@ -307,11 +309,14 @@ const CONE_STEPS = 36;
 export function axialCone(sys: TraceSystem, requestedSine: number): AxialCone {
 	const ray = new Float64Array(RAY_STRIDE);
 	const passes = (u: number) => startRay(ray, 0, u) && traceRay(sys, ray) === TRACE_OK;
-	let lo = 0,
-		hi = 0.999;
-	if (passes(hi)) return { requestedSine, passedSine: requestedSine, stopSurface: -1, lostFraction: 0 };
+	const top = 0.999;
+	if (passes(top)) return { requestedSine, passedSine: requestedSine, stopSurface: -1, lostFraction: 0 };
 	let stopSurface = ray[5];
-	for (let i = 0; i < CONE_STEPS; i++) {
+	// When the whole cone asked for passes, only the stop's name is wanted: a coarse search above it will do.
+	const whole = requestedSine < top && passes(requestedSine);
+	let lo = whole ? requestedSine : 0,
+		hi = top;
+	for (let i = 0; i < (whole ? STOP_STEPS : CONE_STEPS); i++) {
 		const mid = 0.5 * (lo + hi);
 		if (passes(mid)) lo = mid;
 		else {
