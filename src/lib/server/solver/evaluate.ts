@@ -175,17 +175,17 @@ function perturbed(choice: PlacementChoice, k: number, dev: number): { shiftMm: 
 export interface EvalOptions {
 	/** The figures over the colour band (`solution.colour`); without it `colour` is left out. */
 	colour?: boolean;
-	/** The drawing's rays (`solution.rays`); without it `rays` is empty. */
-	drawing?: boolean;
+	/** The drawing's rays (`solution.rays`), the tolerance view (`solution.tolerance`) and `vignetting.worstFill`; without it they are empty (0). */
+	details?: boolean;
 }
 
 /**
  * Evaluates a placement (see the module comment). The search evaluates its candidates without the
- * drawing (and without the colour band unless it ranks by it), then evaluates the answers it returns
+ * drawing and the tolerance view (and without the colour band unless it ranks by it), then evaluates the answers it returns
  * again in full: the figures that rank are the same either way.
  */
 export function evaluatePlacement(choice: PlacementChoice, q: EvalQuestion, symmetricParts: boolean[], options: EvalOptions = {}): Evaluated {
-	const drawing = options.drawing ?? true;
+	const drawing = options.details ?? true;
 	const layout: Layout = {
 		objectDistanceMm: choice.objectDistanceMm,
 		elements: choice.elements,
@@ -231,7 +231,7 @@ export function evaluatePlacement(choice: PlacementChoice, q: EvalQuestion, symm
 			edgeRms = axialRms;
 			edgeLost = 0;
 		}
-		const rep = apertureReport(sys, hEdge, { na: q.objectNA });
+		const rep = drawing ? apertureReport(sys, hEdge, { na: q.objectNA }) : { surfaces: [] };
 		for (const sf of rep.surfaces) {
 			if (!Number.isFinite(sf.semiApertureMm)) continue;
 			for (const v of [sf.marginalMm, hEdge > 0 ? sf.chiefMm : null, hEdge > 0 ? sf.edgeRimMm : null]) {
@@ -295,7 +295,7 @@ export function evaluatePlacement(choice: PlacementChoice, q: EvalQuestion, symm
 		};
 	});
 
-	const tolerance: ToleranceRow[] = choice.elements.map((_, k) => {
+	const tolerance: ToleranceRow[] = (drawing ? choice.elements : []).map((_, k) => {
 		const { rel, basis } = relUncertainty(choice.parts[k]);
 		const plus = perturbed(choice, k, rel),
 			minus = perturbed(choice, k, -rel);

@@ -137,9 +137,9 @@ export async function solveWithStock(stock: StockView, req: ParsedImagingRequest
 	const toTrace = options.keepAll ? all : all.slice(0, TRACE_COUNT);
 
 	// Every candidate with the figures that rank (the colour band only when it ranks); the answers
-	// returned are evaluated again in full (drawing rays, colour band): the same figures, so the same order.
+	// returned are evaluated again in full (drawing rays, tolerance view, colour band): the same figures, so the same order.
 	const evaluated: { s: Omit<Solution, 'rank'>; again: () => Omit<Solution, 'rank'> }[] = [];
-	const rankOnly = { colour: req.rankBy === 'band', drawing: false };
+	const rankOnly = { colour: req.rankBy === 'band', details: false };
 	for (const { rec } of toTrace) {
 		const i = rec[REC_I],
 			j = rec[REC_J];
