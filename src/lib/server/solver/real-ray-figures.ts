@@ -71,7 +71,9 @@ export function edgeTrace(sys: TraceSystem, h: number, na: number, stopSurface: 
 	const pupil = edgePupil(sys, h, sinChief, na);
 	if (pupil) {
 		const spot = pupilSpot(sys, h, pupil, { rings: EDGE_RINGS, spokes: EDGE_SPOKES });
-		if (spot.raysTraced > 0) return { rmsMm: spot.rmsAboutCentroidMm, centroidMm: spot.centroidMm, lostFraction: 1 - spot.passedShare, sinChief, pupil };
+		// Rounding in the share of a cone that passes whole (ellipse = the cone) is not a loss.
+		const lost = 1 - spot.passedShare;
+		if (spot.raysTraced > 0) return { rmsMm: spot.rmsAboutCentroidMm, centroidMm: spot.centroidMm, lostFraction: lost < 1e-12 ? 0 : lost, sinChief, pupil };
 	}
 	const grid = fieldGridSpot(sys, h, { sinChief, radiusSine: na, grid: EDGE_GRID });
 	return { rmsMm: grid.raysTraced > 0 ? grid.rmsAboutCentroidMm : null, centroidMm: grid.centroidMm, lostFraction: 1 - grid.passedFraction, sinChief, pupil: null };
