@@ -45,6 +45,8 @@ export * from './physical';
 export * from './placement';
 export * from './raytrace';
 export * from './spot';
+export * from './field-spot';
+export * from './colour';
 export * from './seidel';
 export * from './gaussian';
 export * from './coupling';

@@ -1,10 +1,15 @@
 /**
- * Exact meridional real-ray trace through spherical and flat surfaces (Snell's law in
- * vector form), for the solver's final check and the drawings.
+ * Exact real-ray trace through spherical and flat surfaces (Snell's law in vector form), for
+ * the solver's final check and the drawings: meridional rays (`traceRay`) and skew rays in
+ * three dimensions (`traceSkewRay`).
  *
- * A ray is (z, y) in mm with unit direction (dirZ, dirY) in the meridional plane. The
- * object plane is z = 0, object space is air. Rays that miss a surface or meet total
- * internal reflection stop there with a status; they are counted, never silently lost.
+ * A meridional ray is (z, y) in mm with unit direction (dirZ, dirY); a skew ray adds x and
+ * dirX. The object plane is z = 0, object space is air. Every ray is stopped by the real
+ * apertures: at each surface it must land within the surface's clear semi-aperture (never
+ * more than the glass edge), it must meet the surface at all, and it must meet it ahead of
+ * the point where it left the previous one (a ray never runs backwards). A ray that fails
+ * any of these, or meets total internal reflection, stops there with a status and the
+ * surface; it is counted as lost, never traced on.
  */
 import { type Result, ok, fail, NoPrescriptionError } from './errors';
 import type { Layout } from './system';
@@ -20,7 +25,11 @@ export interface TraceSystem {
 	readonly curvaturePerMm: Float64Array;
 	/** Refractive index after each surface (before surface 0 it is 1, air). */
 	readonly indexAfter: Float64Array;
-	/** Clear semi-aperture at each surface, mm (Infinity when unknown). */
+	/**
+	 * Semi-aperture that stops rays at each surface, mm: half the clear aperture, or half the
+	 * outer (glass) diameter when that is smaller or the clear aperture is unknown; Infinity when
+	 * neither is known.
+	 */
 	readonly semiApertureMm: Float64Array;
 	/** Which element (index into the layout) each surface belongs to. */
 	readonly elementIndex: Int32Array;
@@ -31,8 +40,10 @@ export interface TraceSystem {
 /**
  * The surfaces of a layout for tracing. Fails with 'no-prescription' when an element is
  * a black box (it has no surfaces to trace; the solver then ranks it paraxially only).
+ * `outerDiametersMm` (one per element, null when unknown) are the glass edges: a clear
+ * aperture is never larger than its part.
  */
-export function traceSystemFromLayout(layout: Layout): Result<TraceSystem> {
+export function traceSystemFromLayout(layout: Layout, outerDiametersMm: readonly (number | null)[] = []): Result<TraceSystem> {
 	const vertices = firstVertexPositionsMm(layout);
 	let count = 0;
 	for (const e of layout.elements) {
@@ -56,7 +67,8 @@ export function traceSystemFromLayout(layout: Layout): Result<TraceSystem> {
 			sys.zMm[k] = vertices[ei] + s.vertexMm;
 			sys.curvaturePerMm[k] = s.radiusMm === null ? 0 : 1 / s.radiusMm;
 			sys.indexAfter[k] = s.indexAfter;
-			sys.semiApertureMm[k] = e.clearApertureMm === null ? Infinity : e.clearApertureMm / 2;
+			const outer = outerDiametersMm[ei] ?? null;
+			sys.semiApertureMm[k] = Math.min(e.clearApertureMm === null ? Infinity : e.clearApertureMm / 2, outer === null ? Infinity : outer / 2);
 			sys.elementIndex[k] = ei;
 			k++;
 		}
@@ -72,22 +84,34 @@ export const TRACE_OK = 0;
 export const TRACE_MISSED = 1;
 /** Trace status: total internal reflection at a surface. */
 export const TRACE_TIR = 2;
+/** Trace status: the ray lands outside the surface's semi-aperture (clear aperture or glass edge). */
+export const TRACE_CLIPPED = 3;
+/** Trace status: the ray would meet the surface behind the point where it left the previous one. */
+export const TRACE_BEHIND = 4;
+/**
+ * How far behind its start a surface hit may lie and still count as ahead, mm: rounding only
+ * (a ray starting on a surface and meeting the next one at the same point, e.g. a cemented rim).
+ */
+const BEHIND_TOL_MM = 1e-9;
 
 /**
  * Traces the ray in `ray` ([z, y, dirZ, dirY] with a unit direction, in air before the
  * first surface) through every surface, in place: on return `ray` holds the ray just
  * after the last surface, ray[4] the status (TRACE_*) and ray[5] the index of the
  * surface where it stopped (−1 when it passed all). `heightsMm`, if given, receives the
- * ray height at each surface met. Returns the status. Allocates nothing.
+ * ray height at each surface met (also at the surface that clipped it). Returns the
+ * status. Allocates nothing. `clip` false traces through the apertures (to report how far
+ * outside a ray would pass; never for figures).
  *
  * Intersection: the ray is first carried to the vertex tangent plane (height Y there),
  * then the sphere c(Z² + Y²) − 2Z = 0 is met at t = F / (B + √(B² − cF)) further on,
  * F = cY², B = dirZ − c·Y·dirY: the root on the vertex side, exact also for c = 0
  * (the classical two-step transfer; t may be negative when the surface bulges
- * towards the ray). A ray not moving towards +z, or beside the sphere, has missed.
+ * towards the ray). A ray not moving towards +z, or beside the sphere, has missed; one
+ * whose total step from its last point is negative meets the surface behind it.
  * Refraction: n'·d' = n·d + (n' cos I' − n cos I)·N with N = (1 − cZ, −cY).
  */
-export function traceRay(sys: TraceSystem, ray: Float64Array, heightsMm: Float64Array | null = null): number {
+export function traceRay(sys: TraceSystem, ray: Float64Array, heightsMm: Float64Array | null = null, clip = true): number {
 	let z = ray[0],
 		y = ray[1],
 		dz = ray[2],
@@ -107,9 +131,11 @@ export function traceRay(sys: TraceSystem, ray: Float64Array, heightsMm: Float64
 		const den = disc >= 0 ? b + Math.sqrt(disc) : -1;
 		if (!(den > 0)) return stop(ray, z, y, dz, dy, TRACE_MISSED, k);
 		const t = f / den;
+		if (t0 + t < -BEHIND_TOL_MM) return stop(ray, z, y, dz, dy, TRACE_BEHIND, k);
 		z += t * dz;
 		y += t * dy;
 		if (heightsMm !== null) heightsMm[k] = y;
+		if (clip && Math.abs(y) > sys.semiApertureMm[k]) return stop(ray, z, y, dz, dy, TRACE_CLIPPED, k);
 		const nz = 1 - c * (z - sys.zMm[k]),
 			ny = -c * y;
 		const cosI = dz * nz + dy * ny;
@@ -172,4 +198,93 @@ export function axialCrossingMm(sys: TraceSystem, sinAngle: number): number | nu
 	if (!startRay(ray, 0, sinAngle) || traceRay(sys, ray) !== TRACE_OK) return null;
 	if (!(Math.abs(ray[3]) > 1e-300)) return null;
 	return ray[0] - (ray[1] * ray[2]) / ray[3];
+}
+
+/** Numbers in a skew-ray state buffer: x, y, z, dirX, dirY, dirZ, status, surface. */
+export const SKEW_STRIDE = 8;
+
+/**
+ * Traces the skew ray in `ray` ([x, y, z, dirX, dirY, dirZ] with a unit direction, in air
+ * before the first surface) through every surface, in place, with the same rules as
+ * `traceRay` (clipped at each surface's semi-aperture by the radial distance √(x² + y²),
+ * lost when it misses a surface or would meet it behind its last point). On return ray[6]
+ * is the status and ray[7] the surface where it stopped (−1 when it passed all). Allocates
+ * nothing.
+ *
+ * Intersection: to the vertex tangent plane, then t = F / (B + √(B² − cF)) with
+ * F = c(X² + Y²), B = dirZ − c(X·dirX + Y·dirY); refraction as in `traceRay` with the
+ * normal N = (−cX, −cY, 1 − cZ) (Z from the vertex).
+ */
+export function traceSkewRay(sys: TraceSystem, ray: Float64Array): number {
+	let x = ray[0],
+		y = ray[1],
+		z = ray[2],
+		dx = ray[3],
+		dy = ray[4],
+		dz = ray[5];
+	let nBefore = 1;
+	let status = TRACE_OK,
+		at = -1;
+	for (let k = 0; k < sys.count; k++) {
+		if (!(dz > 0)) {
+			status = TRACE_MISSED;
+			at = k;
+			break;
+		}
+		const c = sys.curvaturePerMm[k];
+		const t0 = (sys.zMm[k] - z) / dz;
+		z = sys.zMm[k];
+		x += t0 * dx;
+		y += t0 * dy;
+		const f = c * (x * x + y * y);
+		const b = dz - c * (x * dx + y * dy);
+		const disc = b * b - c * f;
+		const den = disc >= 0 ? b + Math.sqrt(disc) : -1;
+		if (!(den > 0)) {
+			status = TRACE_MISSED;
+			at = k;
+			break;
+		}
+		const t = f / den;
+		if (t0 + t < -BEHIND_TOL_MM) {
+			status = TRACE_BEHIND;
+			at = k;
+			break;
+		}
+		x += t * dx;
+		y += t * dy;
+		z += t * dz;
+		const semi = sys.semiApertureMm[k];
+		if (x * x + y * y > semi * semi) {
+			status = TRACE_CLIPPED;
+			at = k;
+			break;
+		}
+		const nx = -c * x,
+			ny = -c * y,
+			nz = 1 - c * (z - sys.zMm[k]);
+		const cosI = dx * nx + dy * ny + dz * nz;
+		const nAfter = sys.indexAfter[k];
+		const mu = nBefore / nAfter;
+		const k2 = 1 - mu * mu * (1 - cosI * cosI);
+		if (k2 < 0) {
+			status = TRACE_TIR;
+			at = k;
+			break;
+		}
+		const g = (cosI >= 0 ? Math.sqrt(k2) : -Math.sqrt(k2)) - mu * cosI;
+		dx = mu * dx + g * nx;
+		dy = mu * dy + g * ny;
+		dz = mu * dz + g * nz;
+		nBefore = nAfter;
+	}
+	ray[0] = x;
+	ray[1] = y;
+	ray[2] = z;
+	ray[3] = dx;
+	ray[4] = dy;
+	ray[5] = dz;
+	ray[6] = status;
+	ray[7] = at;
+	return status;
 }

@@ -7,7 +7,7 @@
  * ray aims at the axial point of the pupil plane z = pupilZMm (default: the first
  * surface's vertex, right for a stop at or near the first part).
  */
-import { type TraceSystem, RAY_STRIDE, TRACE_OK, TRACE_MISSED, traceRay, startRay, heightAtPlane } from './raytrace';
+import { type TraceSystem, RAY_STRIDE, TRACE_OK, TRACE_MISSED, TRACE_BEHIND, traceRay, startRay, heightAtPlane } from './raytrace';
 
 /** Options shared by the spot and aperture functions. */
 export interface FanOptions {
@@ -45,8 +45,8 @@ function firstVertex(sys: TraceSystem): number {
 	return sys.count > 0 ? sys.zMm[0] : 0;
 }
 
-/** Height of one ray at `zMm`, or null when it fails. */
-function landing(sys: TraceSystem, objectYMm: number, sinAngle: number, zMm: number): number | null {
+/** Height at `zMm` of the meridional ray from (0, objectYMm) with direction sine `sinAngle`, or null when it is lost. */
+export function landingHeight(sys: TraceSystem, objectYMm: number, sinAngle: number, zMm: number): number | null {
 	if (!startRay(scratch, objectYMm, sinAngle) || traceRay(sys, scratch) !== TRACE_OK) return null;
 	return heightAtPlane(scratch, zMm);
 }
@@ -70,7 +70,7 @@ export function axialSpot(sys: TraceSystem, options: FanOptions): SpotResult | n
 		failed = 0;
 	for (let k = 1; k <= K; k++) {
 		const rho = Math.sqrt((k - 0.5) / K);
-		const y = landing(sys, 0, rho * options.na, zImg);
+		const y = landingHeight(sys, 0, rho * options.na, zImg);
 		if (y === null) failed++;
 		else {
 			sum2 += y * y;
@@ -104,7 +104,7 @@ export function tangentialSpot(sys: TraceSystem, objectHeightMm: number, options
 	const K = options.rays ?? 32;
 	const zImg = options.imageZMm ?? sys.imageZMm;
 	const sinChief = chiefSine(sys, objectHeightMm, options.pupilZMm);
-	const chief = landing(sys, objectHeightMm, sinChief, zImg);
+	const chief = landingHeight(sys, objectHeightMm, sinChief, zImg);
 	if (chief === null) return null;
 	let sum = 0,
 		sum2 = 0,
@@ -112,7 +112,7 @@ export function tangentialSpot(sys: TraceSystem, objectHeightMm: number, options
 		failed = 0;
 	for (let k = 1; k <= K; k++) {
 		const rho = -1 + (2 * k - 1) / K;
-		const y = landing(sys, objectHeightMm, sinChief + rho * options.na, zImg);
+		const y = landingHeight(sys, objectHeightMm, sinChief + rho * options.na, zImg);
 		if (y === null) failed++;
 		else {
 			const e = y - chief;
@@ -168,7 +168,7 @@ export function traceFan(sys: TraceSystem, objectHeightMm: number, options: FanO
 			continue;
 		}
 		const status = traceRay(sys, ray, heightsMm);
-		const reached = status === TRACE_OK ? sys.count : ray[5] + (status === TRACE_MISSED ? 0 : 1);
+		const reached = status === TRACE_OK ? sys.count : ray[5] + (status === TRACE_MISSED || status === TRACE_BEHIND ? 0 : 1);
 		for (let s = 0; s < reached; s++) points.push({ zMm: surfaceZ(sys, s, heightsMm[s]), yMm: heightsMm[s] });
 		if (status === TRACE_OK) {
 			const y = heightAtPlane(ray, zImg);
@@ -222,14 +222,17 @@ function heights(sys: TraceSystem, objectYMm: number, sinAngle: number): { h: Fl
 	const h = new Float64Array(sys.count);
 	const ray = new Float64Array(RAY_STRIDE);
 	if (!startRay(ray, objectYMm, sinAngle)) return { h, upTo: 0 };
-	const status = traceRay(sys, ray, h);
+	// Not clipped: the report says how far outside each aperture the requested rays would pass.
+	const status = traceRay(sys, ray, h, false);
 	return { h, upTo: status === TRACE_OK ? sys.count : ray[5] };
 }
 
 /**
  * The marginal ray (axial point, direction sine NA), the chief ray and the two rim rays
  * of the field edge (`objectHeightMm`), heights at every surface against its clear
- * aperture: the vignetting check of the solver.
+ * aperture, traced through the apertures (not clipped): how far outside each aperture the
+ * requested rays would pass. The figures themselves come from clipped rays (`axialCone`,
+ * `fieldGridSpot`).
  */
 export function apertureReport(sys: TraceSystem, objectHeightMm: number, options: FanOptions): ApertureReport {
 	const sc = chiefSine(sys, objectHeightMm, options.pupilZMm);
@@ -273,4 +276,87 @@ export function workingFNumber(imageSideNA: number): number {
 /** Image-side NA of an imaging system in air: NA' = NA/|m| (paraxial; the sine condition). */
 export function imageSideNA(objectNA: number, magnification: number): number {
 	return objectNA / Math.abs(magnification);
+}
+
+/** The cone of the axial object point that the apertures pass. */
+export interface AxialCone {
+	/** Direction sine asked for (the question's NA). */
+	readonly requestedSine: number;
+	/** Largest direction sine, at most the one asked for, whose ray passes every surface. */
+	readonly passedSine: number;
+	/**
+	 * The aperture stop: the surface that stops the axial cone as it opens (whether or not it
+	 * cuts the cone asked for); −1 when no surface does below a direction sine of 0.999.
+	 */
+	readonly stopSurface: number;
+	/** Fraction of the requested cone lost, 1 − (passed/requested)² (equal power per unit of direction-sine area). */
+	readonly lostFraction: number;
+}
+
+/** Bisection steps of `axialCone` when the stop cuts the cone asked for (the limit to 2⁻³⁶ of a direction sine). */
+const CONE_STEPS = 36;
+/** Bisection steps when the whole cone asked for passes: only which surface stops the cone as it opens further is wanted. */
+const STOP_STEPS = 16;
+
+/**
+ * Finds the aperture stop and the axial cone it passes: the largest direction sine u whose
+ * real ray from the axial object point passes every surface (clear apertures, glass edges,
+ * no miss, nothing behind), by bisection on u in (0, 0.999); the surface that stops the ray
+ * just beyond that limit is the aperture stop. The cone passed is min(requested, limit). It
+ * assumes the rays that pass form one disc (no ray passes beyond the first that is stopped),
+ * true for centred systems of lenses without a central obstruction.
+ */
+export function axialCone(sys: TraceSystem, requestedSine: number): AxialCone {
+	const ray = new Float64Array(RAY_STRIDE);
+	const passes = (u: number) => startRay(ray, 0, u) && traceRay(sys, ray) === TRACE_OK;
+	const top = 0.999;
+	if (passes(top)) return { requestedSine, passedSine: requestedSine, stopSurface: -1, lostFraction: 0 };
+	let stopSurface = ray[5];
+	// When the whole cone asked for passes, only the stop's name is wanted: a coarse search above it will do.
+	const whole = requestedSine < top && passes(requestedSine);
+	let lo = whole ? requestedSine : 0,
+		hi = top;
+	for (let i = 0; i < (whole ? STOP_STEPS : CONE_STEPS); i++) {
+		const mid = 0.5 * (lo + hi);
+		if (passes(mid)) lo = mid;
+		else {
+			hi = mid;
+			stopSurface = ray[5];
+		}
+	}
+	const passedSine = Math.min(requestedSine, lo);
+	const ratio = passedSine / requestedSine;
+	return { requestedSine, passedSine, stopSurface, lostFraction: Math.max(0, 1 - ratio * ratio) };
+}
+
+/**
+ * Direction sine of the real chief ray of the object point at `objectHeightMm`: the ray that
+ * crosses the axis at the aperture stop (`stopSurface`), found by the secant method on its
+ * height there (traced through the apertures: the chief ray is a reference, whether or not
+ * it passes). With no stop (−1), or when the search does not converge, the ray aimed at the
+ * first vertex (`chiefSine`).
+ */
+export function stopChiefSine(sys: TraceSystem, objectHeightMm: number, stopSurface: number): number {
+	const first = chiefSine(sys, objectHeightMm);
+	if (stopSurface <= 0 || objectHeightMm === 0) return first;
+	const upTo: TraceSystem = { ...sys, count: stopSurface + 1 };
+	const ray = new Float64Array(RAY_STRIDE);
+	const h = new Float64Array(upTo.count);
+	const heightAtStop = (u: number): number | null => {
+		if (!startRay(ray, objectHeightMm, u)) return null;
+		return traceRay(upTo, ray, h, false) === TRACE_OK ? h[stopSurface] : null;
+	};
+	let u0 = first,
+		y0 = heightAtStop(u0);
+	let u1 = first + 1e-4,
+		y1 = heightAtStop(u1);
+	for (let i = 0; i < 30 && y0 !== null && y1 !== null; i++) {
+		if (Math.abs(y1) < 1e-10 || y1 === y0) return u1;
+		const u2 = u1 - (y1 * (u1 - u0)) / (y1 - y0);
+		u0 = u1;
+		y0 = y1;
+		u1 = u2;
+		y1 = heightAtStop(u1);
+	}
+	return y1 !== null && Math.abs(y1) < 1e-6 ? u1 : first;
 }

@@ -38,7 +38,8 @@ export const IMAGING_DEFAULTS = {
 	minWd: '5 mm',
 	available: 'true',
 	coating: 'any',
-	maxParts: '2'
+	maxParts: '2',
+	rankBy: 'monochromatic'
 };
 export type ImagingValues = typeof IMAGING_DEFAULTS;
 

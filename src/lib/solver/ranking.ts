@@ -9,6 +9,19 @@ import type { Solution } from './types';
 export const SPOT_BAND_FACTOR = 1.25;
 /** The shorter working distance counts in whole steps of this, mm. */
 export const WORKING_DISTANCE_STEP_MM = 10;
+/**
+ * Losses of the requested cone up to this fraction count as none: about the resolution of the
+ * field-edge ray grid, and below a brightness change one notices (a rule of this product).
+ */
+export const VIGNETTING_TOLERANCE = 0.02;
+/**
+ * The field edge counts as blocked when it passes less than this fraction of the light the axis
+ * passes (relative illumination below 50 %; a rule of this product, common practice, no source).
+ */
+export const EDGE_BLOCKED_RATIO = 0.5;
+
+/** Which figures rank the answers: at the working wavelength, or over the colour band. */
+export type RankBy = 'monochromatic' | 'band';
 
 /**
  * The spot band of a ratio to Airy: 0 for ratio ≤ 1 (diffraction-limited answers all tie),
@@ -29,22 +42,49 @@ export function shorterWorkingDistanceMm(s: Pick<Solution, 'objectDistanceMm' | 
 	return Math.min(s.objectDistanceMm, s.backDistanceMm);
 }
 
+/** True when the answer's field edge is blocked (see EDGE_BLOCKED_RATIO). Answers saved before it was recorded: false. */
+export function edgeBlocked(s: Pick<Solution, 'vignetting'>): boolean {
+	return s.vignetting.edgeBlocked === true;
+}
+
 /**
- * Ranking key (lower is better), compared in order: vignetting first (none, then field edge, then
- * on axis: an answer that clips the marginal ray does not deliver the NA asked for, and one that
- * clips the field edge does not image the whole object, so neither may rank above an answer that
- * does what was asked); then coating (an answer that uses a part outside its coating band comes
- * after every in-band one of the same vignetting class: it images as asked but loses light and
- * adds stray light at that part's surfaces); then spot over Airy in steps of 25 % (all diffraction-limited answers,
- * ratio ≤ 1, tie), untraced after traced; the smaller working distance in steps of 10 mm (longer
- * first); part count; then the exact spot ratio.
+ * Vignetting class of an answer (lower is better): 0 the whole requested cone passes on axis and
+ * at the field edge (losses within VIGNETTING_TOLERANCE); 1 the field edge loses part of its cone;
+ * 2 the axis loses part of the cone (the setup does not deliver the NA asked for); 3 the field
+ * edge is blocked (it is not imaged: never above an answer that images the whole field).
  */
-export function rankKey(s: Omit<Solution, 'rank'>): number[] {
-	const r = s.spot.ratioToAiry;
+export function vignettingClass(s: Pick<Solution, 'vignetting'>): number {
+	return edgeBlocked(s) ? 3 : s.vignetting.axial ? 2 : s.vignetting.edge ? 1 : 0;
+}
+
+/** The ratio to Airy an answer is ranked by: the monochromatic one, or the band's (null: not traced). */
+export function rankedRatio(s: Pick<Solution, 'spot' | 'colour'>, by: RankBy = 'monochromatic'): number | null {
+	return by === 'band' ? (s.colour?.ratioToAiry ?? null) : s.spot.ratioToAiry;
+}
+
+/**
+ * The spot band to show for an answer: null when its field edge is blocked (no band is shown:
+ * a blocked field is never "within the Airy radius", whatever its axis does).
+ */
+export function shownSpotBand(s: Pick<Solution, 'spot' | 'colour' | 'vignetting'>, by: RankBy = 'monochromatic'): number | null {
+	return edgeBlocked(s) ? null : spotBand(rankedRatio(s, by));
+}
+
+/**
+ * Ranking key (lower is better), compared in order: the vignetting class (`vignettingClass`: an
+ * answer that clips the field edge does not image the whole object and one that clips the axis
+ * does not deliver the NA asked for, so neither ranks above an answer that does what was asked;
+ * a blocked field edge comes last); then coating (an answer that uses a part outside its coating band comes after
+ * every in-band one of the same vignetting class: it images as asked but loses light and adds stray light at that
+ * part's surfaces); then spot over Airy (monochromatic or over the band, `by`) in
+ * steps of 25 % (all diffraction-limited answers, ratio ≤ 1, tie), untraced after traced; the
+ * smaller working distance in steps of 10 mm (longer first); part count; then the exact ratio.
+ */
+export function rankKey(s: Omit<Solution, 'rank'>, by: RankBy = 'monochromatic'): number[] {
+	const r = rankedRatio(s, by);
 	const bucket = spotBand(r);
-	const vig = s.vignetting.axial ? 2 : s.vignetting.edge ? 1 : 0;
 	const wd = -Math.floor(shorterWorkingDistanceMm(s) / WORKING_DISTANCE_STEP_MM);
-	return [vig, coatingClass(s), bucket, wd, s.elements.length, r ?? 1e9];
+	return [vignettingClass(s), coatingClass(s), bucket, wd, s.elements.length, r ?? 1e9];
 }
 
 /** 1 when an answer uses a part outside its coating band (any mode), else 0. */
@@ -62,9 +102,9 @@ export function compareKeys(a: number[], b: number[]): number {
 export type RankStep = 'vignetting' | 'coating' | 'spot band' | 'working distance' | 'part count' | 'exact spot' | 'tie';
 
 /** The first criterion in which `below` loses to `above` (by `rankKey`). */
-export function decidingStep(above: Omit<Solution, 'rank'>, below: Omit<Solution, 'rank'>): RankStep {
-	const a = rankKey(above),
-		b = rankKey(below);
+export function decidingStep(above: Omit<Solution, 'rank'>, below: Omit<Solution, 'rank'>, by: RankBy = 'monochromatic'): RankStep {
+	const a = rankKey(above, by),
+		b = rankKey(below, by);
 	const steps: RankStep[] = ['vignetting', 'coating', 'spot band', 'working distance', 'part count', 'exact spot'];
 	for (let k = 0; k < steps.length; k++) if (a[k] !== b[k]) return steps[k];
 	return 'tie';

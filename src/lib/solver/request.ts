@@ -58,6 +58,9 @@ export const imagingRequestSchema = z
 			.max(200, 'At most 200 location ids.')
 			.optional(),
 		limit: z.number().int('The limit must be a whole number.').min(1, 'The limit must be at least 1.').max(50, 'The limit must be at most 50.').default(10),
+		rankBy: z
+			.enum(['monochromatic', 'band'], { error: 'rankBy must be "monochromatic" (the working wavelength) or "band" (over the colour band).' })
+			.default('monochromatic'),
 		timeBudgetMs: z
 			.number()
 			.int()

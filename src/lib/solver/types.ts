@@ -37,6 +37,8 @@ export interface SolveRequest {
 	locationIds?: number[];
 	/** How many solutions to return. */
 	limit: number;
+	/** Rank by the figures at the working wavelength ('monochromatic', the default) or over the colour band ('band'). */
+	rankBy: 'monochromatic' | 'band';
 	/** Time budget of the search, ms. */
 	timeBudgetMs: number;
 }
@@ -131,11 +133,21 @@ export interface Solution {
 	/** The root is a merged double root (happens at m = ±1). */
 	doubleRoot: boolean;
 	spot: {
-		/** True RMS spot radius of the axial point at the target plane, mm (null: not traced). */
+		/**
+		 * RMS spot radius of the axial point at the target plane, mm, about the centroid (in two
+		 * dimensions; on axis the centroid is the axis): rays of the cone the aperture stop passes
+		 * (null: not traced).
+		 */
 		axialRmsMm: number | null;
-		/** Tangential-fan RMS spot radius of the field edge at the target plane, mm. */
+		/**
+		 * RMS spot radius of the field edge at the target plane, mm: the same statistic (radius about
+		 * the centroid, two dimensions) from a pupil grid of skew rays; rays lost at an aperture are
+		 * left out (null: not traced, or no ray of the field edge arrives).
+		 */
 		edgeRmsMm: number | null;
-		/** Airy radius 1.22·λ·N' at the working f-number, mm. */
+		/** The statistic of both figures (absent in setups saved before it was stated). */
+		statistic?: 'rms-radius-about-centroid';
+		/** Airy radius 1.22·λ·N' at the working f-number of the cone the stop passes, mm. */
 		airyRadiusMm: number;
 		/** max(axial, edge) RMS over the Airy radius (null: not traced). */
 		ratioToAiry: number | null;
@@ -145,19 +157,49 @@ export interface Solution {
 		screenEstimateMm: number;
 	};
 	vignetting: {
-		/** Axial marginal ray clipped by a clear aperture. */
+		/** Part of the requested cone lost on axis (more than the tolerance): the NA asked for is not delivered. */
 		axial: boolean;
-		/** Field-edge rays clipped by a clear aperture. */
+		/** Part of the requested cone lost at the field edge (more than the tolerance). */
 		edge: boolean;
-		/** Largest ray height over clear semi-aperture across all surfaces (> 1: clipped). */
+		/** Largest height of the requested rays (traced through the apertures) over the semi-aperture across all surfaces (> 1: clipped); a ray that misses a sphere altogether is not counted. */
 		worstFill: number;
+		/** Fraction of the requested cone (the question's NA) lost on axis, 0–1 (null: not traced). Absent in older saved setups. */
+		axialLostFraction?: number | null;
+		/** Fraction of the requested cone lost at the field edge, 0–1 (null: not traced; 0 without a field). */
+		edgeLostFraction?: number | null;
+		/** The field edge passes less than half the light the axis passes: it is not imaged (ranked last, no spot band shown). */
+		edgeBlocked?: boolean;
+		/** Object-side NA of the axial cone actually traced: the requested NA, or less where the stop cuts it (null: not traced). */
+		tracedNA?: number | null;
+		/** The aperture stop: the surface that limits the axial cone (part index, surface 1-based in the part's orientation here); null when none does or not traced. */
+		stop?: { partIndex: number; surface: number } | null;
 	};
+	/** Figures over a wavelength band (absent in setups saved before they existed). */
+	colour?: ColourFigures;
 	/** Drawing data: rays traced for real and the paraxial construction rays. */
 	rays: RayPath[];
 	/** Tolerance view: what each part's EFL error does. */
 	tolerance: ToleranceRow[];
 	/** Warnings (a part outside its coating band); absent in setups saved before they existed. */
 	warnings?: SolutionWarning[];
+}
+
+/** Figures of one answer over a wavelength band, at the target plane of the working wavelength. */
+export interface ColourFigures {
+	/** [shortest, centre, longest] wavelength, nm: F–d–C (486.1, 587.6, 656.3) when the working wavelength lies in it, else that band scaled around the working wavelength. */
+	bandNm: [number, number, number];
+	/** Axial colour: paraxial image position at the longest minus at the shortest wavelength, mm (+: the long end focuses farther; null: no index at a band end). */
+	axialColourMm: number | null;
+	/** RMS radius about the common centroid of the axial point, all band wavelengths with equal weight, mm. */
+	axialRmsMm: number | null;
+	/** The same at the field edge (pupil grid of skew rays), mm. */
+	edgeRmsMm: number | null;
+	/** Airy radius at the band's centre wavelength, mm. */
+	airyRadiusMm: number;
+	/** max(axial, edge) band RMS over that Airy radius (null: not traced). */
+	ratioToAiry: number | null;
+	/** Why figures are missing (no index at a band end, a part without surfaces), else null. */
+	note: string | null;
 }
 
 /** Effect of one part's EFL being off by its tolerance. */

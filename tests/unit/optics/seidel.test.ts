@@ -55,7 +55,10 @@ describe('third-order estimate against real rays (thin-lens limit)', () => {
 	const conjugates = [1e6, 3, 2]; // object distance: far, 3f, 2f (in units of f for the last two)
 
 	it.each(shapes)('R1 = %s, R2 = %s', (r1, r2) => {
-		const e = element(singlet(r1, r2, 0.01));
+		// Centre thickness 0.01 mm plus what keeps the surfaces from crossing below 1.3 mm (the
+		// trace stops a ray that meets a surface behind the previous one, as in a real lens).
+		const sag = (r: number | null, y: number) => (r === null ? 0 : r - Math.sign(r) * Math.sqrt(r * r - y * y));
+		const e = element(singlet(r1, r2, 0.01 + Math.max(0, sag(r1, 1.3) - sag(r2, 1.3))));
 		const f = cardinalPoints(e.matrix)!.eflMm;
 		const n = refractiveIndex('517642', LAMBDA);
 		for (const c of conjugates) {

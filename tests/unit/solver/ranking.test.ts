@@ -5,14 +5,16 @@
  * spots; then spot bands, working distance, part count. Rules of this product (common practice, no source).
  */
 import { describe, expect, it } from 'vitest';
-import { compareKeys, decidingStep, rankKey } from '../../../src/lib/solver/ranking';
+import { compareKeys, decidingStep, rankKey, shownSpotBand, vignettingClass } from '../../../src/lib/solver/ranking';
+import { imagingRequestSchema } from '../../../src/lib/solver/request';
 import type { Solution } from '../../../src/lib/solver/types';
 
 type Answer = Omit<Solution, 'rank'>;
-const answer = (o: { ratio: number | null; axial?: boolean; edge?: boolean; wd?: number; parts?: number }): Answer =>
+const answer = (o: { ratio: number | null; axial?: boolean; edge?: boolean; blocked?: boolean; band?: number | null; wd?: number; parts?: number }): Answer =>
 	({
 		spot: { ratioToAiry: o.ratio },
-		vignetting: { axial: o.axial ?? false, edge: o.edge ?? false },
+		vignetting: { axial: o.axial ?? false, edge: o.edge ?? false, edgeBlocked: o.blocked ?? false },
+		colour: o.band === undefined ? undefined : { ratioToAiry: o.band },
 		objectDistanceMm: o.wd ?? 100,
 		backDistanceMm: o.wd ?? 100,
 		elements: Array.from({ length: o.parts ?? 2 }, () => ({}))
@@ -42,5 +44,41 @@ describe('ranking of answers', () => {
 
 	it('puts answers not traced with real rays after every traced one of the same vignetting', () => {
 		expect(order([answer({ ratio: null }), answer({ ratio: 40 })]).map((x) => x.spot.ratioToAiry)).toEqual([40, null]);
+	});
+
+	it('puts a blocked field edge after every answer that images the whole field, even one that cuts the NA on axis, and shows it no spot band', () => {
+		const blocked = answer({ ratio: 0.6, edge: true, blocked: true });
+		const axialCut = answer({ ratio: 4, axial: true, edge: true });
+		const edgeVignetted = answer({ ratio: 3, edge: true });
+		expect(order([blocked, axialCut, edgeVignetted])).toEqual([edgeVignetted, axialCut, blocked]);
+		expect(vignettingClass(blocked)).toBe(3);
+		expect(decidingStep(axialCut, blocked)).toBe('vignetting');
+		expect(shownSpotBand(blocked)).toBeNull();
+		expect(shownSpotBand(edgeVignetted)).toBeGreaterThan(0);
+		expect(shownSpotBand(answer({ ratio: 0.6 }))).toBe(0);
+	});
+
+	it('ranks by the band figures when asked, by the monochromatic ones by default', () => {
+		const sharpMono = answer({ ratio: 0.8, band: 6 });
+		const sharpBand = answer({ ratio: 2, band: 2.1 });
+		expect(order([sharpBand, sharpMono])).toEqual([sharpMono, sharpBand]);
+		const byBand = [sharpMono, sharpBand].sort((a, b) => compareKeys(rankKey(a, 'band'), rankKey(b, 'band')));
+		expect(byBand).toEqual([sharpBand, sharpMono]);
+		expect(decidingStep(sharpBand, sharpMono, 'band')).toBe('spot band');
+		// No band figures (a part without a model at a band end): after every answer that has them.
+		const none = answer({ ratio: 0.5, band: null });
+		expect([none, sharpMono].sort((a, b) => compareKeys(rankKey(a, 'band'), rankKey(b, 'band')))).toEqual([sharpMono, none]);
+	});
+
+	it('the request takes rankBy "monochromatic" (default) or "band", and names the field otherwise', () => {
+		const base = { trackMm: 300, magnification: -1, objectNA: 0.05 };
+		expect(imagingRequestSchema.parse(base).rankBy).toBe('monochromatic');
+		expect(imagingRequestSchema.parse({ ...base, rankBy: 'band' }).rankBy).toBe('band');
+		const bad = imagingRequestSchema.safeParse({ ...base, rankBy: 'colour' });
+		expect(bad.success).toBe(false);
+		if (!bad.success) {
+			expect(bad.error.issues[0].path).toEqual(['rankBy']);
+			expect(bad.error.issues[0].message).toMatch(/rankBy must be/);
+		}
 	});
 });

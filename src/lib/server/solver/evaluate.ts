@@ -1,8 +1,11 @@
 /**
  * The solver's output stage for one placement: the object-to-target matrix and its check,
- * exact real rays (axial spot, field-edge spot, clear-aperture report), the Airy radius,
- * the rays of the drawing, and the tolerance view. Used for the search's best candidates
- * and again, independently, when a setup is saved (the server re-evaluates what it stores).
+ * exact real rays stopped by the real apertures (the aperture stop and the axial cone it passes,
+ * the axial spot, the field-edge spot from a pupil grid of skew rays, the fraction of the
+ * requested cone lost on axis and at the field edge), the Airy radius, the figures over the
+ * colour band (axial colour, band spots), the rays of the drawing, and the tolerance view.
+ * Used for the search's best candidates and again, independently, when a setup is saved (the
+ * server re-evaluates what it stores).
  */
 import {
 	create,
@@ -14,7 +17,7 @@ import {
 	cardinalPoints,
 	traceSystemFromLayout,
 	axialSpot,
-	tangentialSpot,
+	axialCone,
 	apertureReport,
 	airyRadiusMm,
 	workingFNumber,
@@ -22,25 +25,26 @@ import {
 	traceRay,
 	startRay,
 	heightAtPlane,
-	chiefSine,
 	sagMm,
 	RAY_STRIDE,
 	TRACE_OK,
+	TRACE_CLIPPED,
+	TRACE_TIR,
 	firstVertexPositionsMm,
+	type ColourBand,
 	type Layout,
 	type ThickElement,
 	type TraceSystem
 } from '../../optics';
 import type { RayPath, Solution, SolutionElement, ToleranceRow } from '../../solver/types';
 import { orientationText } from '../../solver/orientation';
+import { EDGE_BLOCKED_RATIO, VIGNETTING_TOLERANCE } from '../../solver/ranking';
 import { clearApertureOf, type CandidatePart } from './elements';
+import { FAN_RAYS, colourFigures, edgeTrace, rimOffset, stopOf, type EdgeTrace } from './real-ray-figures';
 
 /** Tolerance of the independent matrix check of a returned solution (|B| in mm, |A − m| relative). */
 export const VERIFY_B_TOL_MM = 1e-6;
 export const VERIFY_A_TOL = 1e-6;
-
-/** Rays per fan of the final trace. */
-const FAN_RAYS = 32;
 
 /** A placement to evaluate: which elements (already oriented) and where. */
 export interface PlacementChoice {
@@ -62,6 +66,8 @@ export interface EvalQuestion {
 	trackMm: number;
 	objectNA: number;
 	objectHeightMm: number;
+	/** Band of the colour figures (default: `defaultColourBand` of the working wavelength). */
+	band?: ColourBand;
 }
 
 /** Evaluated placement with the figures the ranking needs. */
@@ -89,7 +95,9 @@ function rayPolyline(sys: TraceSystem, yObj: number, sinAngle: number): [number,
 	const heights = new Float64Array(sys.count);
 	if (!startRay(ray, yObj, sinAngle)) return null;
 	const status = traceRay(sys, ray, heights);
-	const upTo = status === TRACE_OK ? sys.count : ray[5];
+	// A ray stopped at an aperture (or by total internal reflection) ends where it met that surface;
+	// one that missed a surface or would have met it behind its last point ends at its last surface.
+	const upTo = status === TRACE_OK ? sys.count : status === TRACE_CLIPPED || status === TRACE_TIR ? ray[5] + 1 : ray[5];
 	const pts: [number, number][] = [[0, yObj]];
 	for (let k = 0; k < upTo; k++) {
 		const sag = sagMm(sys.curvaturePerMm[k], heights[k]) ?? 0;
@@ -101,7 +109,11 @@ function rayPolyline(sys: TraceSystem, yObj: number, sinAngle: number): [number,
 	return pts;
 }
 
-/** The paraxial construction of the whole system: parallel ray, focal ray, both via H and H'. */
+/**
+ * The paraxial construction of the whole system: parallel ray, focal ray, both via H and H'.
+ * Drawn only when it runs forwards (object plane ≤ H ≤ H' ≤ target plane): with crossed or
+ * distant principal planes the construction would run backwards, and no drawn path may.
+ */
 function principalRays(layout: Layout, systemLens: Float64Array, imageY: number, h: number, trackMm: number): RayPath[] {
 	const cp = cardinalPoints(systemLens);
 	if (!cp || h === 0) return [];
@@ -109,6 +121,7 @@ function principalRays(layout: Layout, systemLens: Float64Array, imageY: number,
 	const zLast = trackMm - layout.backDistanceMm; // last vertex
 	const zH = z1 + cp.frontPrincipalMm,
 		zH2 = zLast + cp.backPrincipalMm;
+	if (!(0 <= zH && zH <= zH2 && zH2 <= trackMm)) return [];
 	const zF = z1 - cp.fflMm;
 	// Parallel ray: (0, h) → H at h → H' at h → image point.
 	const parallel: RayPath = {
@@ -158,8 +171,21 @@ function perturbed(choice: PlacementChoice, k: number, dev: number): { shiftMm: 
 	return { shiftMm: img.imageDistanceMm - choice.backDistanceMm, magnification: img.magnification };
 }
 
-/** Evaluates a placement (see the module comment). */
-export function evaluatePlacement(choice: PlacementChoice, q: EvalQuestion, symmetricParts: boolean[]): Evaluated {
+/** What `evaluatePlacement` computes beyond the figures that rank (both by default). */
+export interface EvalOptions {
+	/** The figures over the colour band (`solution.colour`); without it `colour` is left out. */
+	colour?: boolean;
+	/** The drawing's rays (`solution.rays`), the tolerance view (`solution.tolerance`) and `vignetting.worstFill`; without it they are empty (0). */
+	details?: boolean;
+}
+
+/**
+ * Evaluates a placement (see the module comment). The search evaluates its candidates without the
+ * drawing and the tolerance view (and without the colour band unless it ranks by it), then evaluates the answers it returns
+ * again in full: the figures that rank are the same either way.
+ */
+export function evaluatePlacement(choice: PlacementChoice, q: EvalQuestion, symmetricParts: boolean[], options: EvalOptions = {}): Evaluated {
+	const drawing = options.details ?? true;
 	const layout: Layout = {
 		objectDistanceMm: choice.objectDistanceMm,
 		elements: choice.elements,
@@ -176,58 +202,67 @@ export function evaluatePlacement(choice: PlacementChoice, q: EvalQuestion, symm
 	const vertices = firstVertexPositionsMm(layout);
 	const lens = matrixBetween(choice.elements, choice.gapsMm);
 
-	const airy = airyRadiusMm(q.wavelengthNm, workingFNumber(imageSideNA(q.objectNA, mag)));
-	const traced = traceSystemFromLayout(layout);
+	const diameters = choice.parts.map((p) => p.diameterMm);
+	const traced = traceSystemFromLayout(layout, diameters);
+	const hEdge = q.objectHeightMm;
 	let axialRms: number | null = null,
 		edgeRms: number | null = null,
 		untracedReason: string | null = null;
-	let vigAxial = false,
-		vigEdge = false,
+	let axialLost: number | null = null,
+		edgeLost: number | null = null,
+		tracedNA: number | null = null,
+		stop: { partIndex: number; surface: number } | null = null,
+		grid: EdgeTrace | null = null,
 		worstFill = 0;
 	const rays: RayPath[] = [];
 	if (traced.ok) {
 		const sys = traced.value;
-		const opts = { na: q.objectNA, rays: FAN_RAYS };
-		const axial = axialSpot(sys, opts);
-		axialRms = axial ? axial.rmsAboutChiefMm : null;
-		if (q.objectHeightMm > 0) {
-			const edge = tangentialSpot(sys, q.objectHeightMm, opts);
-			edgeRms = edge ? edge.rmsAboutChiefMm : null;
-		} else edgeRms = axialRms;
-		const rep = apertureReport(sys, q.objectHeightMm, opts);
-		for (const s of rep.surfaces) {
-			if (Number.isFinite(s.semiApertureMm)) {
-				const m = s.marginalMm ?? Infinity;
-				const e = Math.max(s.chiefMm ?? 0, s.edgeRimMm ?? Infinity);
-				if (m > s.semiApertureMm) vigAxial = true;
-				if (q.objectHeightMm > 0 && e > s.semiApertureMm) vigEdge = true;
-				worstFill = Math.max(worstFill, Math.max(m, q.objectHeightMm > 0 ? e : 0) / s.semiApertureMm);
+		const cone = axialCone(sys, q.objectNA);
+		tracedNA = cone.passedSine;
+		axialLost = cone.lostFraction;
+		stop = cone.stopSurface >= 0 ? stopOf(sys, cone.stopSurface) : null;
+		const axial = cone.passedSine > 0 ? axialSpot(sys, { na: cone.passedSine, rays: FAN_RAYS }) : null;
+		axialRms = axial ? axial.rmsAboutCentroidMm : null;
+		if (hEdge > 0) {
+			grid = edgeTrace(sys, hEdge, q.objectNA, cone.stopSurface);
+			edgeRms = grid.rmsMm;
+			edgeLost = grid.lostFraction;
+		} else {
+			edgeRms = axialRms;
+			edgeLost = 0;
+		}
+		const rep = drawing ? apertureReport(sys, hEdge, { na: q.objectNA }) : { surfaces: [] };
+		for (const sf of rep.surfaces) {
+			if (!Number.isFinite(sf.semiApertureMm)) continue;
+			for (const v of [sf.marginalMm, hEdge > 0 ? sf.chiefMm : null, hEdge > 0 ? sf.edgeRimMm : null]) {
+				if (v !== null && Number.isFinite(v)) worstFill = Math.max(worstFill, v / sf.semiApertureMm);
 			}
 		}
-		if (rep.raysFailed > 0) {
-			vigAxial ||= rep.surfaces.some((s) => s.marginalMm === null);
-			vigEdge ||= q.objectHeightMm > 0;
-		}
-		if (axialRms === null) untracedReason = 'No real ray of the axial fan reaches the target plane.';
-		const na = q.objectNA;
-		for (const sgn of [1, -1]) {
-			const pts = rayPolyline(sys, 0, sgn * na);
+		if (axialRms === null) untracedReason = 'No real ray of the axial cone reaches the target plane.';
+		for (const sgn of drawing ? [1, -1] : []) {
+			const pts = rayPolyline(sys, 0, sgn * cone.passedSine);
 			if (pts) rays.push({ kind: 'marginal', points: pts });
 		}
-		if (q.objectHeightMm > 0) {
-			const sc = chiefSine(sys, q.objectHeightMm);
-			const chief = rayPolyline(sys, q.objectHeightMm, sc);
+		if (drawing && hEdge > 0 && grid) {
+			const sc = grid.sinChief;
+			const chief = rayPolyline(sys, hEdge, sc);
 			if (chief) rays.push({ kind: 'chief', points: chief });
 			for (const sgn of [1, -1]) {
-				const pts = rayPolyline(sys, q.objectHeightMm, sc + sgn * na);
+				const off = rimOffset(sys, hEdge, sc, sgn, q.objectNA);
+				const pts = off === null ? null : rayPolyline(sys, hEdge, sc + sgn * off);
 				if (pts) rays.push({ kind: 'edge-rim', points: pts });
 			}
 		}
 	} else {
 		untracedReason = 'A part without a prescription (black box) cannot be traced with real rays; the answer is paraxial only.';
 	}
-	const h = q.objectHeightMm > 0 ? q.objectHeightMm : Math.max(1, 0.2 * Math.min(...choice.parts.map((p) => clearApertureOf(p) / 2)));
-	rays.push(...principalRays(layout, lens, mag * h, h, q.trackMm));
+	const airy = airyRadiusMm(q.wavelengthNm, workingFNumber(imageSideNA(tracedNA ?? q.objectNA, mag)));
+	const vigAxial = axialLost !== null && axialLost > VIGNETTING_TOLERANCE;
+	const vigEdge = hEdge > 0 && edgeLost !== null && edgeLost > VIGNETTING_TOLERANCE;
+	const blocked = hEdge > 0 && edgeLost !== null && axialLost !== null && 1 - edgeLost < EDGE_BLOCKED_RATIO * (1 - axialLost);
+	const colour = options.colour ?? true ? colourFigures(choice, q, layout, diameters, mag, traced.ok ? { tracedNA, grid, axialRms } : null) : undefined;
+	const h = hEdge > 0 ? hEdge : Math.max(1, 0.2 * Math.min(...choice.parts.map((p) => clearApertureOf(p) / 2)));
+	if (drawing) rays.push(...principalRays(layout, lens, mag * h, h, q.trackMm));
 
 	const used = new Map<number, number>();
 	const elements: SolutionElement[] = choice.elements.map((el, k) => {
@@ -260,7 +295,7 @@ export function evaluatePlacement(choice: PlacementChoice, q: EvalQuestion, symm
 		};
 	});
 
-	const tolerance: ToleranceRow[] = choice.elements.map((_, k) => {
+	const tolerance: ToleranceRow[] = (drawing ? choice.elements : []).map((_, k) => {
 		const { rel, basis } = relUncertainty(choice.parts[k]);
 		const plus = perturbed(choice, k, rel),
 			minus = perturbed(choice, k, -rel);
@@ -293,10 +328,21 @@ export function evaluatePlacement(choice: PlacementChoice, q: EvalQuestion, symm
 				edgeRmsMm: edgeRms,
 				airyRadiusMm: airy,
 				ratioToAiry: ratio,
+				statistic: 'rms-radius-about-centroid',
 				untracedReason,
 				screenEstimateMm: choice.screenEstimateMm
 			},
-			vignetting: { axial: vigAxial, edge: vigEdge, worstFill },
+			vignetting: {
+				axial: vigAxial,
+				edge: vigEdge,
+				worstFill,
+				axialLostFraction: axialLost,
+				edgeLostFraction: edgeLost,
+				edgeBlocked: blocked,
+				tracedNA,
+				stop
+			},
+			colour,
 			rays,
 			tolerance
 		}

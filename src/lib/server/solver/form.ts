@@ -143,7 +143,8 @@ export function readForm(
 		minWorkingDistanceMm,
 		availableOnly: values.available !== 'false',
 		inCoatingBandOnly: values.coating === 'band',
-		maxElements: values.maxParts === '1' ? 1 : 2
+		maxElements: values.maxParts === '1' ? 1 : 2,
+		rankBy: values.rankBy === 'band' ? 'band' : 'monochromatic'
 	});
 	if (checked.success && !Object.keys(errors).length) return { values, submitted, errors, request: checked.data };
 	if (!checked.success) {

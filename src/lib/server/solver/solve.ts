@@ -201,33 +201,35 @@ export async function solveWithStock(stock: StockView, req: ParsedImagingRequest
 	all.sort((a, b) => a.score - b.score);
 	const toTrace = options.keepAll ? all : all.slice(0, TRACE_COUNT);
 
-	const evaluated: Omit<Solution, 'rank'>[] = [];
+	// Every candidate with the figures that rank (the colour band only when it ranks); the answers
+	// returned are evaluated again in full (drawing rays, tolerance view, colour band): the same figures, so the same order.
+	const evaluated: { s: Omit<Solution, 'rank'>; again: () => Omit<Solution, 'rank'> }[] = [];
+	const rankOnly = { colour: req.rankBy === 'band', details: false };
 	for (const { rec } of toTrace) {
 		const i = rec[REC_I],
 			j = rec[REC_J];
 		const idx = j < 0 ? [i] : [i, j];
 		const flags = rec[REC_FLAGS];
-		const ev = evaluatePlacement(
-			{
-				parts: idx.map((e) => snap.parts[snap.partIndex[e]]),
-				elements: idx.map((e) => snap.elements[e]),
-				objectDistanceMm: rec[REC_S],
-				gapsMm: j < 0 ? [] : [rec[REC_G]],
-				backDistanceMm: rec[REC_D],
-				targetMagnification: req.magnification,
-				afocalFamily: (flags & ROOT_FAMILY) !== 0,
-				doubleRoot: (flags & ROOT_DOUBLE) !== 0,
-				screenEstimateMm: rec[REC_SA_MM]
-			},
-			req,
-			idx.map((e) => snap.symmetricPart[snap.partIndex[e]])
-		);
-		if (ev.verified) evaluated.push(withCoatingWarnings(ev.solution, idx.map((e) => snap.parts[snap.partIndex[e]]), req.wavelengthNm));
+		const choice = {
+			parts: idx.map((e) => snap.parts[snap.partIndex[e]]),
+			elements: idx.map((e) => snap.elements[e]),
+			objectDistanceMm: rec[REC_S],
+			gapsMm: j < 0 ? [] : [rec[REC_G]],
+			backDistanceMm: rec[REC_D],
+			targetMagnification: req.magnification,
+			afocalFamily: (flags & ROOT_FAMILY) !== 0,
+			doubleRoot: (flags & ROOT_DOUBLE) !== 0,
+			screenEstimateMm: rec[REC_SA_MM]
+		};
+		const symmetric = idx.map((e) => snap.symmetricPart[snap.partIndex[e]]);
+		const ev = evaluatePlacement(choice, req, symmetric, rankOnly);
+		const warn = (sol: Omit<Solution, 'rank'>) => withCoatingWarnings(sol, choice.parts, req.wavelengthNm);
+		if (ev.verified) evaluated.push({ s: warn(ev.solution), again: () => warn(evaluatePlacement(choice, req, symmetric).solution) });
 	}
-	const keyed = evaluated.map((s) => ({ s, k: rankKey(s) }));
+	const keyed = evaluated.map((e) => ({ e, k: rankKey(e.s, req.rankBy) }));
 	keyed.sort((a, b) => compareKeys(a.k, b.k));
 	const limit = options.keepAll ? keyed.length : req.limit;
-	const solutions: Solution[] = keyed.slice(0, limit).map(({ s }, n) => ({ rank: n + 1, ...s }));
+	const solutions: Solution[] = keyed.slice(0, limit).map(({ e }, n) => ({ rank: n + 1, ...e.again() }));
 
 	const sum = (f: (s: (typeof shards)[number]) => number) => shards.reduce((a, s) => a + f(s), 0);
 	return {

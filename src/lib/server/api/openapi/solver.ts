@@ -35,6 +35,12 @@ const imagingRequest = {
 		partIds: { type: 'array', items: int, description: 'restrict to a kit' },
 		locationIds: { type: 'array', items: int, description: 'restrict to parts with usable stock in these locations' },
 		limit: { ...int, minimum: 1, maximum: 50, default: 10 },
+		rankBy: {
+			type: 'string',
+			enum: ['monochromatic', 'band'],
+			default: 'monochromatic',
+			description: 'rank by the spot figures at wavelengthNm, or by those over the colour band (solution.colour)'
+		},
 		timeBudgetMs: { ...int, minimum: 100, maximum: 10000, default: 5000 }
 	}
 };
@@ -136,7 +142,14 @@ const solution = {
 	description:
 		'elements [{partId, sku, reversed, symmetric, orientation ("as catalogued (surface 1 faces the object)" or "reversed (surface N faces the object)", plus flat/curved side for a plano lens), firstVertexMm (from the object plane), eflMm, eflSource, toBuy, available, locations}], ' +
 		'objectDistanceMm, gapsMm, backDistanceMm, magnification, systemMatrix {A,B,C,D}, pointTransferMatrix (3x3 row-major), ' +
-		'afocalFamily, doubleRoot, spot {axialRmsMm, edgeRmsMm, airyRadiusMm, ratioToAiry, untracedReason}, vignetting {axial, edge, worstFill}, rays, tolerance, ' +
+		'afocalFamily, doubleRoot, ' +
+		'spot {axialRmsMm, edgeRmsMm, statistic, airyRadiusMm, ratioToAiry, untracedReason}: real rays stopped at every clear aperture and glass edge (a ray that misses a surface or meets it behind the previous one is lost); ' +
+		'both spots are the RMS radius about the centroid in two dimensions (statistic "rms-radius-about-centroid"): on axis over the cone the aperture stop passes, at the field edge (objectHeightMm) over a pupil grid of skew rays; ' +
+		'the Airy radius is that of the cone traced; ratioToAiry = max(axial, edge)/Airy. ' +
+		'vignetting {axial, edge (more than 2 % of the requested cone lost), worstFill, axialLostFraction, edgeLostFraction (fraction of the requested cone, NA objectNA, lost on axis and at the field edge, 0–1), ' +
+		'edgeBlocked (the field edge passes less than half the light the axis passes: ranked after every other answer, no spot band), tracedNA (object-side NA of the axial cone traced), stop {partIndex, surface} (the aperture stop, surface 1-based in the part as placed) or null}, ' +
+		'colour {bandNm [short, centre, long] (F–d–C 486.1/587.6/656.3 nm when wavelengthNm lies in it, else that band scaled by wavelengthNm/587.6), axialColourMm (paraxial image position at the long end minus at the short end), ' +
+		'axialRmsMm, edgeRmsMm (RMS radius about the common centroid, the band wavelengths weighted equally), airyRadiusMm (at the centre wavelength), ratioToAiry, note}, rays (never running backwards; a ray stopped at an aperture ends there), tolerance, ' +
 		'warnings [{code: "coating-out-of-band", partId, sku, message}] (a part used outside its coating band; such answers rank after in-band ones)'
 };
 

@@ -1,0 +1,277 @@
+/**
+ * The spot of a field point in two dimensions, from skew rays: the part of its requested cone
+ * that the apertures pass (`edgePupil`), sampled over that part (`pupilSpot`), or a square grid
+ * over the whole cone (`fieldGridSpot`); and the RMS radius over several wavelengths
+ * (`combinedRmsMm`). The statistic is the RMS radius about the centroid of the rays that arrive.
+ */
+import { type TraceSystem, SKEW_STRIDE, TRACE_OK, traceSkewRay } from './raytrace';
+import { landingHeight } from './spot';
+
+/** The field point's spot from a pupil grid of skew rays. */
+export interface GridSpot {
+	/** 'skew-grid': RMS radius in two dimensions over a grid of skew rays. */
+	readonly kind: 'skew-grid';
+	/** RMS radius about the centroid of the rays that arrive, mm (the figure ranked by). */
+	readonly rmsAboutCentroidMm: number;
+	/** RMS radius about the landing point of the chief ray, mm (null when the chief ray is lost). */
+	readonly rmsAboutChiefMm: number | null;
+	/** Centroid height in the evaluation plane, mm (x = 0 by symmetry). */
+	readonly centroidMm: number;
+	/** Grid rays that arrive (each counts twice: the grid is mirrored about the meridional plane). */
+	readonly raysTraced: number;
+	/** Grid rays lost at an aperture, by a miss, behind a surface or by total internal reflection. */
+	readonly raysFailed: number;
+	/** Fraction of the grid's disc of directions that arrives (raysTraced over all grid rays). */
+	readonly passedFraction: number;
+}
+
+/** Options of `fieldGridSpot`. */
+export interface GridOptions {
+	/** Direction sine of the chief ray (the centre of the cone), in the meridional plane. */
+	readonly sinChief: number;
+	/** Radius of the cone in direction sines (the disc of (L, M − sin θc) sampled). */
+	readonly radiusSine: number;
+	/** Grid cells across the disc's diameter (even; default 16: about 200 rays, 100 traced). */
+	readonly grid?: number;
+	/** Evaluation plane (default: the system's image plane). */
+	readonly imageZMm?: number;
+}
+
+const skew = new Float64Array(SKEW_STRIDE);
+
+/**
+ * RMS spot of the object point (0, `objectHeightMm`) from a square grid of skew rays over a
+ * disc of directions: direction cosines L = r·pₓ, M = sin θc + r·p_y with (pₓ, p_y) the
+ * centres of the cells of an n × n grid over [−1, 1]² that lie in the unit disc, r the
+ * cone's radius in direction sines. Equal power per cell (a Lambertian object radiates
+ * equal power per unit of direction-cosine area). The system is symmetric about the
+ * meridional plane, so only pₓ > 0 is traced and each ray stands for its mirror image too
+ * (the centroid lies in the meridional plane). Rays lost anywhere are left out of the spot
+ * and counted. Null-free: when no ray arrives the figures are NaN and `raysTraced` 0.
+ */
+export function fieldGridSpot(sys: TraceSystem, objectHeightMm: number, options: GridOptions): GridSpot {
+	const n = Math.max(2, 2 * Math.round((options.grid ?? 16) / 2));
+	const zImg = options.imageZMm ?? sys.imageZMm;
+	const step = 2 / n;
+	let all = 0,
+		traced = 0,
+		sx2 = 0,
+		sy = 0,
+		sy2 = 0;
+	for (let i = 0; i < n / 2; i++) {
+		const px = (i + 0.5) * step;
+		for (let j = 0; j < n; j++) {
+			const py = -1 + (j + 0.5) * step;
+			if (px * px + py * py > 1) continue;
+			all++;
+			const L = options.radiusSine * px,
+				M = options.sinChief + options.radiusSine * py;
+			const N2 = 1 - L * L - M * M;
+			if (!(N2 > 0)) continue;
+			skew[0] = 0;
+			skew[1] = objectHeightMm;
+			skew[2] = 0;
+			skew[3] = L;
+			skew[4] = M;
+			skew[5] = Math.sqrt(N2);
+			if (traceSkewRay(sys, skew) !== TRACE_OK) continue;
+			const dz = skew[5];
+			if (!(Math.abs(dz) > 1e-15)) continue;
+			const t = (zImg - skew[2]) / dz;
+			const x = skew[0] + t * skew[3],
+				y = skew[1] + t * skew[4];
+			traced++;
+			sx2 += x * x;
+			sy += y;
+			sy2 += y * y;
+		}
+	}
+	const mean = traced > 0 ? sy / traced : NaN;
+	const meanR2 = traced > 0 ? (sx2 + sy2) / traced : NaN;
+	const chief = landingHeight(sys, objectHeightMm, options.sinChief, zImg);
+	const aboutChief = chief === null || traced === 0 ? null : Math.sqrt(Math.max(0, (sx2 + sy2 - 2 * chief * sy) / traced + chief * chief));
+	return {
+		kind: 'skew-grid',
+		rmsAboutCentroidMm: Math.sqrt(Math.max(0, meanR2 - mean * mean)),
+		rmsAboutChiefMm: aboutChief,
+		centroidMm: mean,
+		raysTraced: traced,
+		raysFailed: all - traced,
+		passedFraction: all > 0 ? traced / all : 0
+	};
+}
+
+/**
+ * Combines spots of one field point at several wavelengths, equal weight each, into the RMS
+ * radius about the common centroid: the mean over the wavelengths of the mean square radius
+ * about the origin, less the square of the mean centroid (x centroids are 0 by symmetry).
+ * `spots` gives each wavelength's RMS about its own centroid and that centroid's height;
+ * null when a wavelength has no ray.
+ */
+export function combinedRmsMm(spots: readonly { rmsAboutCentroidMm: number; centroidMm: number }[]): number | null {
+	if (spots.length === 0) return null;
+	let m = 0,
+		r2 = 0;
+	for (const s of spots) {
+		if (!Number.isFinite(s.rmsAboutCentroidMm) || !Number.isFinite(s.centroidMm)) return null;
+		m += s.centroidMm;
+		r2 += s.rmsAboutCentroidMm * s.rmsAboutCentroidMm + s.centroidMm * s.centroidMm;
+	}
+	m /= spots.length;
+	r2 /= spots.length;
+	return Math.sqrt(Math.max(0, r2 - m * m));
+}
+
+/**
+ * The part of a field point's requested cone that the apertures pass, as an ellipse in direction
+ * sines (L, M): centre (0, centreSine), half-width along L, half-height along M. The requested
+ * cone is the disc of radius `requestedSine` around the chief ray's direction sine.
+ */
+export interface PupilEllipse {
+	readonly chiefSine: number;
+	readonly requestedSine: number;
+	readonly centreSine: number;
+	readonly halfWidthSine: number;
+	readonly halfHeightSine: number;
+}
+
+const probe = new Float64Array(SKEW_STRIDE);
+
+/** True when the skew ray from (0, h, 0) with direction sines (L, M) passes every surface. */
+function passesDirection(sys: TraceSystem, h: number, L: number, M: number): boolean {
+	const n2 = 1 - L * L - M * M;
+	if (!(n2 > 0)) return false;
+	probe[0] = 0;
+	probe[1] = h;
+	probe[2] = 0;
+	probe[3] = L;
+	probe[4] = M;
+	probe[5] = Math.sqrt(n2);
+	return traceSkewRay(sys, probe) === TRACE_OK;
+}
+
+/** Largest d in [0, max] with pass(d), by bisection from a passing d = 0 (the region is taken to be connected). */
+function extent(pass: (d: number) => boolean, max: number): number {
+	if (!(max > 0)) return 0;
+	if (pass(max)) return max;
+	let lo = 0,
+		hi = max;
+	for (let i = 0; i < 22; i++) {
+		const mid = 0.5 * (lo + hi);
+		if (pass(mid)) lo = mid;
+		else hi = mid;
+	}
+	return lo;
+}
+
+/**
+ * Finds the passed part of the requested cone of the object point at `objectHeightMm`: from the
+ * chief ray (or, when the chief ray is lost, from the mean direction of the rays of a coarse grid
+ * that pass), the extents along M up and down and along L (the widest of three chords), each
+ * by bisection and never beyond the requested cone. Null when nothing of the cone passes (the
+ * field point is blocked) or the passed rays do not surround a passing centre.
+ */
+export function edgePupil(sys: TraceSystem, objectHeightMm: number, sinChief: number, requestedSine: number): PupilEllipse | null {
+	const h = objectHeightMm,
+		na = requestedSine;
+	let centre = sinChief;
+	if (!passesDirection(sys, h, 0, centre)) {
+		const n = 16,
+			step = 2 / n;
+		let sum = 0,
+			count = 0;
+		for (let i = 0; i < n / 2; i++) {
+			for (let j = 0; j < n; j++) {
+				const px = (i + 0.5) * step,
+					py = -1 + (j + 0.5) * step;
+				if (px * px + py * py > 1) continue;
+				if (passesDirection(sys, h, na * px, sinChief + na * py)) {
+					sum += sinChief + na * py;
+					count++;
+				}
+			}
+		}
+		if (count === 0) return null;
+		centre = sum / count;
+		if (!passesDirection(sys, h, 0, centre)) return null;
+	}
+	const up = extent((d) => passesDirection(sys, h, 0, centre + d), sinChief + na - centre);
+	const down = extent((d) => passesDirection(sys, h, 0, centre - d), centre - (sinChief - na));
+	const mid = centre + (up - down) / 2,
+		halfHeight = (up + down) / 2;
+	let halfWidth = 0;
+	for (const m of [mid - halfHeight / 2, mid, mid + halfHeight / 2]) {
+		const room = Math.sqrt(Math.max(0, na * na - (m - sinChief) ** 2));
+		if (passesDirection(sys, h, 0, m)) halfWidth = Math.max(halfWidth, extent((d) => passesDirection(sys, h, d, m), room));
+	}
+	return { chiefSine: sinChief, requestedSine: na, centreSine: mid, halfWidthSine: halfWidth, halfHeightSine: halfHeight };
+}
+
+/** A field point's spot over its passed cone (`pupilSpot`). */
+export interface PupilSpot {
+	/** RMS radius about the centroid, in two dimensions, mm (NaN when no ray arrives). */
+	readonly rmsAboutCentroidMm: number;
+	/** Centroid height in the evaluation plane, mm (x = 0 by symmetry). */
+	readonly centroidMm: number;
+	/** Sample rays that arrive (each stands for itself and its mirror image). */
+	readonly raysTraced: number;
+	/** Sample rays inside the requested cone that are lost. */
+	readonly raysFailed: number;
+	/** Share of the requested cone (disc of radius requestedSine) that passes, 0–1. */
+	readonly passedShare: number;
+}
+
+/** Size of the sampled ellipse over the extents found (1: the outer ring sits at the midpoint, in area, of the last band inside the rim). */
+const PUPIL_MARGIN = 1;
+
+/**
+ * RMS spot of the object point at `objectHeightMm` over the ellipse `pupil` of direction sines:
+ * `rings` rings of equal area (ρₖ = √((k − ½)/K)) times `spokes` equal angles over the half
+ * plane L > 0 (each sample mirrored about the meridional plane), mapped onto the ellipse
+ * (an affine map keeps equal areas equal: equal power per sample for a Lambertian object).
+ * Samples outside the requested cone are not part of the question and are skipped; those inside
+ * that are lost count against the passed share. Sampling the passed region itself, rather than
+ * a square grid over the whole cone, keeps the rim of the stop on the rim of the samples.
+ */
+export function pupilSpot(sys: TraceSystem, objectHeightMm: number, pupil: PupilEllipse, options: { rings?: number; spokes?: number; imageZMm?: number } = {}): PupilSpot {
+	const K = options.rings ?? 12,
+		J = options.spokes ?? 8;
+	const zImg = options.imageZMm ?? sys.imageZMm;
+	const ax = pupil.halfWidthSine * PUPIL_MARGIN,
+		ay = pupil.halfHeightSine * PUPIL_MARGIN;
+	const na2 = pupil.requestedSine * pupil.requestedSine;
+	let traced = 0,
+		failed = 0,
+		sx2 = 0,
+		sy = 0,
+		sy2 = 0;
+	for (let k = 1; k <= K; k++) {
+		const rho = Math.sqrt((k - 0.5) / K);
+		for (let j = 0; j < J; j++) {
+			const th = ((j + 0.5) * Math.PI) / J;
+			const L = ax * rho * Math.sin(th),
+				M = pupil.centreSine + ay * rho * Math.cos(th);
+			if (L * L + (M - pupil.chiefSine) ** 2 > na2) continue;
+			if (!passesDirection(sys, objectHeightMm, L, M)) {
+				failed++;
+				continue;
+			}
+			const dz = probe[5];
+			if (!(Math.abs(dz) > 1e-15)) {
+				failed++;
+				continue;
+			}
+			const t = (zImg - probe[2]) / dz;
+			const x = probe[0] + t * probe[3],
+				y = probe[1] + t * probe[4];
+			traced++;
+			sx2 += x * x;
+			sy += y;
+			sy2 += y * y;
+		}
+	}
+	const mean = traced > 0 ? sy / traced : NaN;
+	const meanR2 = traced > 0 ? (sx2 + sy2) / traced : NaN;
+	const passedShare = na2 > 0 ? Math.min(1, (traced * ax * ay) / (K * J * na2)) : 0;
+	return { rmsAboutCentroidMm: Math.sqrt(Math.max(0, meanR2 - mean * mean)), centroidMm: mean, raysTraced: traced, raysFailed: failed, passedShare };
+}
