@@ -167,8 +167,11 @@ async function evaluateImagingChoice(db: DbOrTx, query: ParsedImagingRequest, ch
 	});
 	const track =
 		choice.objectDistanceMm + choice.backDistanceMm + choice.gapsMm.reduce((a, g) => a + g, 0) + picked.reduce((a, p) => a + p.element.thicknessMm, 0);
-	if (Math.abs(track - query.trackMm) > 1e-6 * Math.max(1, query.trackMm)) {
-		throw new DomainError(400, 'invalid-input', 'The positions do not add up to the track.', { choice: 'Positions and thicknesses must add up to the track.' });
+	// Any track within the question's tolerance (0: the track asked).
+	const tolerance = query.trackToleranceMm ?? 0;
+	if (Math.abs(track - query.trackMm) > tolerance + 1e-6 * Math.max(1, query.trackMm)) {
+		const message = tolerance > 0 ? `Positions and thicknesses must add up to the track within ±${tolerance} mm.` : 'Positions and thicknesses must add up to the track.';
+		throw new DomainError(400, 'invalid-input', 'The positions do not add up to the track.', { choice: message });
 	}
 	if (choice.gapsMm.some((g) => g < query.minGapMm - 1e-9)) throw notAnswer(`The gap must be at least ${query.minGapMm} mm.`);
 	if (Math.min(choice.objectDistanceMm, choice.backDistanceMm) < query.minWorkingDistanceMm - 1e-9) {
@@ -187,7 +190,7 @@ async function evaluateImagingChoice(db: DbOrTx, query: ParsedImagingRequest, ch
 			doubleRoot: false,
 			screenEstimateMm: NaN
 		},
-		query,
+		{ ...query, trackMm: track },
 		picked.map((p) => p.symmetric)
 	);
 	const magOk = Math.abs(ev.solution.magnification / query.magnification - 1) <= Math.max(query.magnificationTolerance, 1e-6);
@@ -196,8 +199,8 @@ async function evaluateImagingChoice(db: DbOrTx, query: ParsedImagingRequest, ch
 			choice: 'Not an imaging placement for this question.'
 		});
 	}
-	const family = picked.length === 2 && Math.abs(ev.solution.systemMatrix.C) * query.trackMm < 1e-9;
-	return { rank: 1, ...ev.solution, afocalFamily: family, spot: { ...ev.solution.spot, screenEstimateMm: 0 } };
+	const family = picked.length === 2 && Math.abs(ev.solution.systemMatrix.C) * track < 1e-9;
+	return { rank: 1, ...ev.solution, trackOffsetMm: track - query.trackMm, afocalFamily: family, spot: { ...ev.solution.spot, screenEstimateMm: 0 } };
 }
 
 /** Saves a setup; returns its id. */

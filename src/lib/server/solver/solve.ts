@@ -8,6 +8,7 @@ import { DomainError } from '../api/http';
 import { ROOT_DOUBLE, ROOT_FAMILY } from '../../optics/imaging';
 import type { ParsedImagingRequest } from '../../solver/request';
 import type { Solution, SolveResponse } from '../../solver/types';
+import { imagingNoAnswer } from './near-track';
 import { buildElementSnapshot, wavelengthCoveredByAnyMaterial, type CandidatePart, type ElementSnapshot } from './elements';
 import {
 	searchShard,
@@ -20,6 +21,7 @@ import {
 	REC_FLAGS,
 	REC_SCORE,
 	REC_SA_MM,
+	REC_TRACK,
 	type SearchParams
 } from './search-kernel';
 import { searchOnPool, workerCount } from './pool';
@@ -86,6 +88,7 @@ export async function solveWithStock(stock: StockView, req: ParsedImagingRequest
 	const { candidates, partUnits, parts } = candidateFilter(snap, req);
 	const params: SearchParams = {
 		trackMm: req.trackMm,
+		trackToleranceMm: req.trackToleranceMm,
 		magnification: req.magnification,
 		magnificationTolerance: req.magnificationTolerance,
 		objectNA: req.objectNA,
@@ -142,6 +145,7 @@ export async function solveWithStock(stock: StockView, req: ParsedImagingRequest
 			j = rec[REC_J];
 		const idx = j < 0 ? [i] : [i, j];
 		const flags = rec[REC_FLAGS];
+		const trackMm = rec[REC_TRACK];
 		const ev = evaluatePlacement(
 			{
 				parts: idx.map((e) => snap.parts[snap.partIndex[e]]),
@@ -154,10 +158,10 @@ export async function solveWithStock(stock: StockView, req: ParsedImagingRequest
 				doubleRoot: (flags & ROOT_DOUBLE) !== 0,
 				screenEstimateMm: rec[REC_SA_MM]
 			},
-			req,
+			trackMm === req.trackMm ? req : { ...req, trackMm },
 			idx.map((e) => snap.symmetricPart[snap.partIndex[e]])
 		);
-		if (ev.verified) evaluated.push(ev.solution);
+		if (ev.verified) evaluated.push({ ...ev.solution, trackOffsetMm: trackMm - req.trackMm });
 	}
 	const keyed = evaluated.map((s) => ({ s, k: rankKey(s) }));
 	keyed.sort((a, b) => compareKeys(a.k, b.k));
@@ -168,6 +172,7 @@ export async function solveWithStock(stock: StockView, req: ParsedImagingRequest
 	return {
 		request: req,
 		solutions,
+		noAnswer: solutions.length === 0 ? imagingNoAnswer(snap, candidates, req) : null,
 		stats: {
 			partsConsidered: parts,
 			elementsConsidered: candidates.length,

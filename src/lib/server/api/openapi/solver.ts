@@ -22,6 +22,7 @@ const imagingRequest = {
 		mode: { type: 'string', enum: ['imaging'], default: 'imaging', description: 'may be left out (imaging)' },
 		wavelengthNm: { ...num, minimum: 200, maximum: 12000, default: 587.6 },
 		trackMm: { ...num, exclusiveMinimum: 0, description: 'object plane to target plane, mm' },
+		trackToleranceMm: { ...num, minimum: 0, maximum: 1000, default: 0, description: 'an answer may use any track within trackMm ± this, mm (below trackMm); each solution says which (trackMm, trackOffsetMm)' },
 		magnification: { ...num, description: 'signed; negative = inverted real image; 0.001 ≤ |m| ≤ 1000' },
 		magnificationTolerance: { ...num, minimum: 0, maximum: 0.5, default: 0.02, description: 'relative, for single parts' },
 		objectHeightMm: { ...num, minimum: 0, default: 0, description: 'half the field' },
@@ -126,14 +127,16 @@ const afocalSolution = {
 
 const noAnswer = {
 	type: ['object', 'null'],
-	description: 'modes beam and afocal, when no answer qualifies: {reason, hint, nearMiss (the nearest answer with its figures, or null)}'
+	description:
+		'when no answer qualifies: {reason, hint, nearMiss (modes beam and afocal: the nearest answer with its figures, or null)}; ' +
+		'mode imaging: {reason, hint, nearTracks [{skus, label, trackMm, trackOffsetMm, objectDistanceMm, backDistanceMm, magnification}] (single parts that image at the magnification asked on another track, nearest first)}'
 };
 
 const solution = {
 	type: 'object',
 	description:
 		'elements [{partId, sku, reversed, symmetric, orientation ("as catalogued (surface 1 faces the object)" or "reversed (surface N faces the object)", plus flat/curved side for a plano lens), firstVertexMm (from the object plane), eflMm, eflSource, toBuy, available, locations}], ' +
-		'objectDistanceMm, gapsMm, backDistanceMm, magnification, systemMatrix {A,B,C,D}, pointTransferMatrix (3x3 row-major), ' +
+		'objectDistanceMm, gapsMm, backDistanceMm, trackMm (the track this answer uses), trackOffsetMm (that track minus the one asked, within ± trackToleranceMm), magnification, systemMatrix {A,B,C,D}, pointTransferMatrix (3x3 row-major), ' +
 		'afocalFamily, doubleRoot, spot {axialRmsMm, edgeRmsMm, airyRadiusMm, ratioToAiry, untracedReason}, vignetting {axial, edge, worstFill}, rays, tolerance'
 };
 
