@@ -13,7 +13,7 @@ import { testDb } from '../../support/env';
 import { setups } from '../../../src/lib/server/db/schema';
 
 const QUESTION = '/build?objectHeight=2+mm&track=300+mm&magnification=-0.5&na=0.03';
-const ORIENTATION = /^\d: (as catalogued \(surface 1 faces the object\)|reversed \(surface \d faces the object\)|either way round \(symmetric part: both faces alike\)|as catalogued \(datasheet front faces the object\)|reversed \(datasheet back faces the object\))/;
+const ORIENTATION = /^\d: ((curved \((convex|concave)\) |flat |convex |concave |more strongly curved |flatter )face toward the object|both outer faces|either way round \(symmetric part: both faces alike\)|datasheet's (front|back) face \(as marked\) toward the object)/;
 
 /** Height in lines of each cell part that must stay on one line (codes, drawers, positions). */
 const nowrapLines = (page: Page) =>

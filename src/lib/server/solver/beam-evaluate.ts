@@ -83,7 +83,7 @@ export function solutionElements(parts: CandidatePart[], elements: ThickElement[
 			kind: part.kind,
 			reversed: el.reversed,
 			symmetric: symmetric[k],
-			orientation: orientationText({ reversed: el.reversed, symmetric: symmetric[k], surfaces: el.surfaces }),
+			orientation: orientationText({ reversed: el.reversed, symmetric: symmetric[k], surfaces: el.surfaces }, 'beam'),
 			firstVertexMm: firstVertices[k],
 			thicknessMm: el.thicknessMm,
 			eflMm: cp ? cp.eflMm : Infinity,

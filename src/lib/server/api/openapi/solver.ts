@@ -135,7 +135,7 @@ const noAnswer = {
 const solution = {
 	type: 'object',
 	description:
-		'elements [{partId, sku, reversed, symmetric, orientation ("as catalogued (surface 1 faces the object)" or "reversed (surface N faces the object)", plus flat/curved side for a plano lens), firstVertexMm (from the object plane), eflMm, eflSource, toBuy, available, locations}], ' +
+		'elements [{partId, sku, reversed, symmetric, orientation (bench words a technician can check by eye: which outer face is flat, convex or concave, or the more strongly curved, toward the object; then how that stands to the catalogue listing with the radii of the outer faces, e.g. "more strongly curved face toward the object, flatter face toward the image (both convex); as in the catalogue listing; R 61.5 mm face toward the object, R 129 mm face toward the image"; modes beam and afocal say "toward the incoming beam"), firstVertexMm (from the object plane), eflMm, eflSource, toBuy, available, locations}], ' +
 		'objectDistanceMm, gapsMm, backDistanceMm, trackMm (the track this answer uses), trackOffsetMm (that track minus the one asked, within ± trackToleranceMm), magnification, systemMatrix {A,B,C,D}, pointTransferMatrix (3x3 row-major), ' +
 		'afocalFamily, doubleRoot, spot {axialRmsMm, edgeRmsMm, airyRadiusMm, ratioToAiry, untracedReason}, vignetting {axial, edge, worstFill}, rays, tolerance'
 };
