@@ -389,6 +389,53 @@ function toSoa(packed: Float64Array): Soa {
 	return soa;
 }
 
+/**
+ * The track nearest to `trackMm`, within ± tol, at which a pair's gap quadratic (coefficients C₁,
+ * qb, discriminant disc < 0 at trackMm) has a real root; NaN when none. Moving the track by δ
+ * moves qb by −C₁δ and qc by −C₀δ, so the discriminant is the quadratic
+ * C₁²δ² + (4C₁C₀ − 2·qb·C₁)δ + disc in δ, negative between its two zeros. The track returned
+ * lies a hair past the nearer zero, so that the kernel sees two close real roots. (Kept out of
+ * `pairRow`: a cold path that would make the hot loop too large to optimise.)
+ */
+function toleranceTrack(qb: number, C0: number, C1: number, disc: number, tol: number, trackMm: number): number {
+	const beta = 4 * C1 * C0 - 2 * qb * C1,
+		alpha = C1 * C1;
+	const sq = Math.sqrt(beta * beta - 4 * alpha * disc);
+	const up = (-beta + sq) / (2 * alpha),
+		down = (-beta - sq) / (2 * alpha);
+	let delta = Math.abs(up) <= Math.abs(down) ? up : down;
+	if (!(Math.abs(delta) <= tol)) return NaN;
+	const nudge = Math.min(tol - Math.abs(delta), 1e-6 * (Math.abs(trackMm) + 1));
+	delta += delta >= 0 ? nudge : -nudge;
+	return trackMm + delta;
+}
+
+/** Scratch of `settlePairTrack`: [the track settled on]. */
+const settled = new Float64Array(1);
+
+/**
+ * The pair's roots at `track` (k of them in `roots`) when one is physical; else, when the window's
+ * edge on that side has a physical root, the roots at the nearest track to `track` that has one
+ * (bisection between the two: the double root broke a limit, a working distance or the gap).
+ * Returns the root count (0: none) and leaves the track in settled[0].
+ */
+function settlePairTrack(packed: Float64Array, i: number, j: number, p: SearchParams, track: number, k: number): number {
+	settled[0] = track;
+	if (anyPhysicalPair(packed, i, j, p, k)) return k;
+	const m = p.magnification;
+	const edge = track > p.trackMm ? p.trackMm + p.trackToleranceMm : p.trackMm - p.trackToleranceMm;
+	if (!anyPhysicalPair(packed, i, j, p, solvePairKernel(packed, i, j, edge, m, roots, 0))) return 0;
+	let near = track,
+		far = edge;
+	for (let it = 0; it < 60 && Math.abs(far - near) > 1e-9 * (Math.abs(p.trackMm) + 1); it++) {
+		const mid = 0.5 * (near + far);
+		if (anyPhysicalPair(packed, i, j, p, solvePairKernel(packed, i, j, mid, m, roots, 0))) far = mid;
+		else near = mid;
+	}
+	settled[0] = far;
+	return solvePairKernel(packed, i, j, far, m, roots, 0);
+}
+
 /** True when one of the k pair roots in `roots` passes the physical filter. */
 function anyPhysicalPair(packed: Float64Array, i: number, j: number, p: SearchParams, k: number): boolean {
 	for (let r = 0; r < k; r++) {
@@ -466,22 +513,10 @@ function pairRow(
 			const disc = qb * qb - 4 * C1 * qc;
 			const scale = qb * qb + 4 * Math.abs(C1 * qc);
 			if (disc < -1e-6 * scale) {
-				// No real root at the track asked. With a track tolerance: the track nearest to it
-				// at which the gap quadratic has a (double) root, if within the tolerance. Moving the
-				// track by δ moves qb by −C₁δ and qc by −C₀δ, so the discriminant is the quadratic
-				// C₁²δ² + (4C₁C₀ − 2·qb·C₁)δ + disc in δ, negative between its two zeros.
+				// No real root at the track asked: with a track tolerance, the nearest track that has one.
 				if (!(tol > 0)) continue;
-				const beta = 4 * C1 * C0 - 2 * qb * C1,
-					alpha = C1 * C1;
-				const sq = Math.sqrt(beta * beta - 4 * alpha * disc);
-				const up = (-beta + sq) / (2 * alpha),
-					down = (-beta - sq) / (2 * alpha);
-				let delta = Math.abs(up) <= Math.abs(down) ? up : down;
-				if (!(Math.abs(delta) <= tol)) continue;
-				// A hair inside the side with roots, so that the kernel sees two close real roots.
-				const nudge = Math.min(tol - Math.abs(delta), 1e-6 * (Math.abs(p.trackMm) + 1));
-				delta += delta >= 0 ? nudge : -nudge;
-				track = p.trackMm + delta;
+				track = toleranceTrack(qb, C0, C1, disc, tol, p.trackMm);
+				if (track !== track) continue; // NaN: none within the tolerance
 			} else if (disc > 1e-6 * scale) {
 				const sq = Math.sqrt(disc);
 				const qq = -0.5 * (qb + (qb >= 0 ? sq : -sq));
@@ -510,23 +545,9 @@ function pairRow(
 			}
 		}
 		let k = solvePairKernel(packed, i, j, track, m, roots, 0);
-		if (track !== p.trackMm && !anyPhysicalPair(packed, i, j, p, k)) {
-			// The double root lies outside the limits (a working distance or the gap too short):
-			// if the window's edge on that side has a physical root, the nearest track that has
-			// one lies between the two (bisection).
-			const edge = track > p.trackMm ? p.trackMm + tol : p.trackMm - tol;
-			k = 0;
-			if (anyPhysicalPair(packed, i, j, p, solvePairKernel(packed, i, j, edge, m, roots, 0))) {
-				let near = track,
-					far = edge;
-				for (let it = 0; it < 60 && Math.abs(far - near) > 1e-9 * (Math.abs(p.trackMm) + 1); it++) {
-					const mid = 0.5 * (near + far);
-					if (anyPhysicalPair(packed, i, j, p, solvePairKernel(packed, i, j, mid, m, roots, 0))) far = mid;
-					else near = mid;
-				}
-				track = far;
-				k = solvePairKernel(packed, i, j, track, m, roots, 0);
-			}
+		if (track !== p.trackMm) {
+			k = settlePairTrack(packed, i, j, p, track, k);
+			track = settled[0];
 		}
 		for (let r = 0; r < k; r++) {
 			const base = r * ROOT_STRIDE;
