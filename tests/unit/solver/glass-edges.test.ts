@@ -10,7 +10,8 @@
  */
 import { describe, expect, it } from 'vitest';
 import { solveWithStock, type StockView } from '../../../src/lib/server/solver/solve';
-import { imagingRequestSchema } from '../../../src/lib/solver/request';
+import { solveAfocalWithStock } from '../../../src/lib/server/solver/beam-solve';
+import { imagingRequestSchema, solveRequestSchema, type ParsedAfocalRequest } from '../../../src/lib/solver/request';
 import type { CandidatePart } from '../../../src/lib/server/solver/elements';
 import { buildElementSnapshot } from '../../../src/lib/server/solver/elements';
 import { checkPairPhysical, EL_EDGE_SEMI_DIAMETER, ELEMENT_STRIDE, PHYS_SURFACES_TOUCH } from '../../../src/lib/optics';
@@ -151,5 +152,35 @@ describe('glass edges never overlap', () => {
 		const touchSmall = 2 * sag(50, 6.35);
 		expect(checkPairPhysical(snap2.packed, 0, k, 10, touchSmall - 1e-3, 10, 2, 0) & PHYS_SURFACES_TOUCH).toBe(PHYS_SURFACES_TOUCH);
 		expect(checkPairPhysical(snap2.packed, 0, k, 10, touchSmall + 1e-3, 10, 2, 0)).toBe(0);
+	});
+
+	it('expanders: a Galilean pair keeps its glass apart to the edges, and a strongly concave first face is no reason to refuse it', async () => {
+		// A plano-concave part R −10 mm, Ø 12.7 (its concave face dips 2.3 mm at the edge) before a
+		// plano-convex R 51.7 mm part: a 5× expander without a focus. An expander has no object
+		// plane, so the dip of its first face must not count against it.
+		const neg = lens(-10, null, 2, 12.7, 1);
+		neg.kind = 'plano-concave';
+		const pos = lens(51.7, null, 4, 25.4, 1);
+		const parts = [neg, pos];
+		const q = solveRequestSchema.parse({ mode: 'afocal', wavelengthNm: 632.8, expansion: 5, expansionTolerance: 0.1, inputBeamDiameterMm: 1, maxLengthMm: 200, minGapMm: 0, limit: 50 }) as ParsedAfocalRequest;
+		const r = await solveAfocalWithStock(stockOf(parts), q, { inline: true });
+		const galilean = r.solutions.filter((s) => s.afocal.intermediateFocusMm === null);
+		expect(galilean.length).toBeGreaterThan(0);
+		// Concave face first (as catalogued) is one of the answers, not only the part turned round.
+		expect(galilean.some((s) => s.elements[0].partId === neg.partId && !s.elements[0].reversed)).toBe(true);
+		for (const s of r.solutions) {
+			const [e1, e2] = s.elements;
+			const p1 = parts.find((p) => p.partId === e1.partId)!;
+			const p2 = parts.find((p) => p.partId === e2.partId)!;
+			const back1 = outerRadii(p1, e1.reversed).back;
+			const front2 = outerRadii(p2, e2.reversed).front;
+			const yMax = Math.min(p1.diameterMm, p2.diameterMm) / 2;
+			let least = Infinity;
+			for (let k = 0; k <= 1000; k++) {
+				const y = (yMax * k) / 1000;
+				least = Math.min(least, s.gapsMm[0] + sag(front2, y) - sag(back1, y));
+			}
+			expect(least).toBeGreaterThan(0);
+		}
 	});
 });
