@@ -76,5 +76,8 @@ describe('answer figures', () => {
 		expect(fieldValue('divergenceMrad', 0.5)).toBe('0.500 mrad');
 		expect(fieldValue('anything', { a: 1 })).toBeNull();
 		expect(extraLines('x', null)).toEqual([]);
+		// Sample lists are drawing data, not figures.
+		expect(fieldValue('samplesMm', [1, 2, 3, 4, 5])).toBeNull();
+		expect(extraLines('x', { samplesMm: [1, 2, 3, 4, 5], shiftMm: 0.5 }).map((l) => l.key)).toEqual(['x.shiftMm']);
 	});
 });

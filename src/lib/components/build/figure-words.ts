@@ -47,7 +47,8 @@ export function fieldValue(key: string, v: unknown): string | null {
 		if (/(Ratio|ratio|Airy)/.test(key)) return `${num(v, 2)}×`;
 		return Number.isFinite(v) ? String(Number(v.toPrecision(4))) : '–';
 	}
-	if (Array.isArray(v) && v.every((x) => typeof x === 'number')) {
+	// A band or a pair of figures ([from, to]); longer lists (samples, ray data) are not figures.
+	if (Array.isArray(v) && v.length >= 1 && v.length <= 3 && v.every((x) => typeof x === 'number')) {
 		const unit = /Nm$/.test(key) ? ' nm' : /Mm$/.test(key) ? ' mm' : '';
 		return v.map((x) => String(Number((x as number).toPrecision(5)))).join('–') + unit;
 	}
