@@ -328,8 +328,7 @@ function singles(input: ShardInput, top: TopK): void {
 		// The track asked first; with a tolerance and nothing there, the track within it nearest
 		// to the one that gives exactly m (|m| is monotone in the track on each branch, so that
 		// is where the magnification comes closest to m).
-		let found = singlesAt(packed, seidel, untraceable, p, top, i, p.trackMm);
-		if (found || !(tol > 0)) continue;
+		if (singlesAt(packed, seidel, untraceable, p, top, i, p.trackMm) || !(tol > 0)) continue;
 		const exactTrack = singleAtMagnification(packed, i, m, roots, 0);
 		if (!Number.isFinite(exactTrack)) continue;
 		if (Math.abs(exactTrack - p.trackMm) <= tol) {
@@ -339,7 +338,6 @@ function singles(input: ShardInput, top: TopK): void {
 			if (checkSinglePhysical(packed, i, roots[ROOT_OBJECT_DISTANCE], roots[ROOT_BACK_DISTANCE], p.minWorkingDistanceMm) !== 0) continue;
 			counters[2]++;
 			consider(top, packed, seidel, p, i, -1, 0, untraceable[i] === 1, exactTrack);
-			found = true;
 		} else {
 			singlesAt(packed, seidel, untraceable, p, top, i, exactTrack > p.trackMm ? p.trackMm + tol : p.trackMm - tol);
 		}
