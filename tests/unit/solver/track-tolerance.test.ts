@@ -146,6 +146,26 @@ describe('track tolerance', () => {
 		}
 	});
 
+	it('an empty two-part answer also names the nearest pair with the track it works at', async () => {
+		// The f ≈ 100 mm + f ≈ 50 mm pair of the test above, asked 3 mm past its edge without tolerance.
+		const a = lens(R, -R, T, 25.4, 1);
+		const b = lens(51.2, -51.2, 5, 25.4, 1);
+		const base = { magnification: -1, objectNA: 0.02, maxElements: 2, minWorkingDistanceMm: 5, minGapMm: 0.5, limit: 50 } as const;
+		const res = await solveWithStock(stockOf([a, b]), imagingRequestSchema.parse({ ...base, trackMm: 207.5 }), { inline: true });
+		expect(res.solutions).toHaveLength(0);
+		const pairs = res.noAnswer!.nearTracks.filter((n) => n.skus.length === 2);
+		expect(pairs.length).toBeGreaterThan(0);
+		const p = pairs[0];
+		expect(p.label).toMatch(/^the pair f = \d+ mm \+ f = \d+ mm \(TT-\d+ \+ TT-\d+\)$/);
+		expect(p.trackOffsetMm).toBeLessThan(0);
+		expect(p.trackOffsetMm).toBeGreaterThan(-5);
+		expect(p.magnification).toBeCloseTo(-1, 6);
+		// Asking at that track gives the pair as an answer there.
+		const there = await solveWithStock(stockOf([a, b]), imagingRequestSchema.parse({ ...base, trackMm: p.trackMm }), { inline: true });
+		expect(there.solutions.some((s) => s.elements.length === 2 && s.elements.map((e) => e.sku).join('+') === p.skus.join('+'))).toBe(true);
+		expect(res.noAnswer!.hint).toContain(`${p.label} works at`);
+	});
+
 	it('validates the tolerance at the edge', () => {
 		const bad = imagingRequestSchema.safeParse({ trackMm: 100, trackToleranceMm: -1, magnification: -1, objectNA: 0.02 });
 		expect(bad.success).toBe(false);

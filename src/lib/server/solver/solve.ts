@@ -172,7 +172,7 @@ export async function solveWithStock(stock: StockView, req: ParsedImagingRequest
 	return {
 		request: req,
 		solutions,
-		noAnswer: solutions.length === 0 ? imagingNoAnswer(snap, candidates, req) : null,
+		noAnswer: solutions.length === 0 ? imagingNoAnswer(snap, candidates, partUnits, req) : null,
 		stats: {
 			partsConsidered: parts,
 			elementsConsidered: candidates.length,
