@@ -54,6 +54,11 @@ export interface ThickElement {
 	readonly prescription: readonly SurfaceSpec[] | null;
 	/** Clear aperture diameter, mm, or null when unknown. */
 	readonly clearApertureMm: number | null;
+	/**
+	 * Outer (glass) diameter, mm, when known: where the glass ends. The solver keeps the
+	 * glass of neighbouring parts apart up to it; absent or null: the clear aperture stands for it.
+	 */
+	readonly outerDiameterMm?: number | null;
 	/** True when this is the catalogue part turned round. */
 	readonly reversed: boolean;
 	/** Factor applied to all curvatures to match a measured EFL (1 when none). */
@@ -64,6 +69,8 @@ export interface ThickElement {
 export interface BuildElementOptions {
 	/** Clear aperture diameter in mm; checked against every surface's sphere. */
 	readonly clearApertureMm?: number | null;
+	/** Outer diameter in mm (the glass edge), carried for the solver's touching check. */
+	readonly outerDiameterMm?: number | null;
 	/** Build the reversed orientation (see `reverseSurfaces`). */
 	readonly reversed?: boolean;
 	/** A measured EFL at its own wavelength: the element is rescaled to it (`measuredCurvatureScale`). */
@@ -170,6 +177,7 @@ export function buildElement(
 			surfaces: resolved,
 			prescription: specs,
 			clearApertureMm,
+			outerDiameterMm: options.outerDiameterMm ?? null,
 			reversed,
 			curvatureScale
 		});

@@ -65,6 +65,27 @@ export function solveSingleKernel(
 	return n;
 }
 
+/**
+ * Single element i of `snapshot` placed for exactly the magnification m (≠ 0): the track
+ * follows. With M = T(d)·E·T(s), the magnification 1/(c·s + D) = m gives s = (1/m − D)/c and
+ * B = 0 gives d = −m·(a·s + b); the track is s + t + d. Writes one root (flags as
+ * `solveSingleKernel`; the verified magnification from the full matrix) and returns the track,
+ * or NaN when the element is afocal (c = 0: one magnification 1/D at every track).
+ */
+export function singleAtMagnification(snapshot: Float64Array, i: number, magnification: number, out: Float64Array, offset: number): number {
+	const o = i * ELEMENT_STRIDE;
+	const a = snapshot[o + EL_A],
+		b = snapshot[o + EL_B],
+		c = snapshot[o + EL_C],
+		dd = snapshot[o + EL_D];
+	if (c === 0 || !(magnification !== 0) || !Number.isFinite(magnification)) return NaN;
+	const s = (1 / magnification - dd) / c;
+	const d = -magnification * (a * s + b);
+	const lam = s + d;
+	if (writeSingle(out, offset, a, b, c, dd, lam, s, 0) === 0) return NaN;
+	return lam + snapshot[o + EL_THICKNESS];
+}
+
 function writeSingle(
 	out: Float64Array,
 	offset: number,

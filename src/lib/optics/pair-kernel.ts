@@ -53,10 +53,10 @@ export function solvePairKernel(
 	out: Float64Array,
 	offset: number
 ): number {
-	// Literal offsets (ELEMENT_STRIDE = 10, A B C D thickness first; asserted at load
+	// Literal offsets (ELEMENT_STRIDE = 13, A B C D thickness first; asserted at load
 	// below): imported bindings are not constant-folded in the hot loop.
-	const o1 = i * 10,
-		o2 = j * 10;
+	const o1 = i * 13,
+		o2 = j * 13;
 	const a1 = snapshot[o1],
 		b1 = snapshot[o1 + 1],
 		c1 = snapshot[o1 + 2],
@@ -248,7 +248,7 @@ function writeVerified(
 
 
 // The pair kernel reads the snapshot with literal offsets; keep it in step with snapshot.ts.
-if (ELEMENT_STRIDE !== 10 || EL_A !== 0 || EL_B !== 1 || EL_C !== 2 || EL_D !== 3 || EL_THICKNESS !== 4 || ROOT_STRIDE !== 6) {
+if (ELEMENT_STRIDE !== 13 || EL_A !== 0 || EL_B !== 1 || EL_C !== 2 || EL_D !== 3 || EL_THICKNESS !== 4 || ROOT_STRIDE !== 6) {
 	throw new Error('optics: snapshot or root layout changed; update the literal offsets in imaging.ts');
 }
 

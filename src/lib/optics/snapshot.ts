@@ -9,13 +9,17 @@
  *   backCurvature     1/R of the last surface, 1/mm
  *   semiAperture      half the clear aperture, mm (0 when unknown: only vertices are checked)
  *   frontSag, backSag sag of the first / last surface at semiAperture, mm
+ *   edgeSemiDiameter  half the outer (glass) diameter, mm: where the glass ends (the
+ *                     clear semi-aperture when the outer diameter is unknown; never
+ *                     beyond the outer spheres: a hemisphere's rim at most)
+ *   edgeFrontSag, edgeBackSag  sag of the first / last surface at edgeSemiDiameter, mm
  */
 import { InvalidArgumentError } from './errors';
 import type { ThickElement } from './element';
 import { sagMm } from './sag';
 
 /** Numbers per element in a snapshot. */
-export const ELEMENT_STRIDE = 10;
+export const ELEMENT_STRIDE = 13;
 /** Offset of matrix entry A. */
 export const EL_A = 0;
 /** Offset of matrix entry B (mm). */
@@ -36,6 +40,31 @@ export const EL_SEMI_APERTURE = 7;
 export const EL_FRONT_SAG = 8;
 /** Offset of the last surface's sag at the semi-aperture (mm). */
 export const EL_BACK_SAG = 9;
+/** Offset of half the outer (glass) diameter (mm). */
+export const EL_EDGE_SEMI_DIAMETER = 10;
+/** Offset of the first surface's sag at the glass edge (mm). */
+export const EL_EDGE_FRONT_SAG = 11;
+/** Offset of the last surface's sag at the glass edge (mm). */
+export const EL_EDGE_BACK_SAG = 12;
+
+/**
+ * Half the outer diameter at which the element's glass ends, mm: the outer diameter's half
+ * when known, else the clear semi-aperture; never less than the clear semi-aperture and never
+ * beyond the outer surfaces' spheres (a sphere reaches at most |R|; the catalogue refuses parts
+ * whose diameter does not fit, but a measured EFL may shrink the radii).
+ */
+export function edgeSemiDiameterMm(element: ThickElement): number {
+	const clear = element.clearApertureMm === null ? 0 : element.clearApertureMm / 2;
+	const outer = element.outerDiameterMm == null ? clear : element.outerDiameterMm / 2;
+	let h = outer > clear ? outer : clear;
+	const s = element.surfaces;
+	if (s !== null) {
+		for (const surface of [s[0], s[s.length - 1]]) {
+			if (surface.radiusMm !== null && Math.abs(surface.radiusMm) < h) h = Math.max(clear, Math.abs(surface.radiusMm));
+		}
+	}
+	return h;
+}
 
 /**
  * Writes `element` as entry `index` of `snapshot`. Throws InvalidArgumentError when the
@@ -64,6 +93,11 @@ export function packElement(snapshot: Float64Array, index: number, element: Thic
 	snapshot[o + EL_SEMI_APERTURE] = h;
 	snapshot[o + EL_FRONT_SAG] = sagFront;
 	snapshot[o + EL_BACK_SAG] = sagBack;
+	const edge = edgeSemiDiameterMm(element);
+	snapshot[o + EL_EDGE_SEMI_DIAMETER] = edge;
+	// A hemisphere's rim (h = |R| up to rounding): the sag is R itself.
+	snapshot[o + EL_EDGE_FRONT_SAG] = sagMm(cFront, edge) ?? 1 / cFront;
+	snapshot[o + EL_EDGE_BACK_SAG] = sagMm(cBack, edge) ?? 1 / cBack;
 }
 
 /** A new snapshot holding `elements` in order (entry k = elements[k]). */

@@ -28,6 +28,7 @@ export const isBeamPreset = (p: string | null): p is BeamPreset => p === 'focus'
 export const IMAGING_DEFAULTS = {
 	objectHeight: '2 mm',
 	track: '300 mm',
+	trackTolerance: '0 mm',
 	magnification: '-0.5',
 	objectSize: '',
 	imageSize: '',
@@ -105,6 +106,7 @@ export const PRESET_KEY = 'preset';
 export const IMAGING_FIELD_OF_API: Record<string, keyof ImagingValues> = {
 	wavelengthNm: 'wavelength',
 	trackMm: 'track',
+	trackToleranceMm: 'trackTolerance',
 	magnification: 'magnification',
 	objectNA: 'na',
 	objectHeightMm: 'objectHeight',

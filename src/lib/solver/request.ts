@@ -25,6 +25,9 @@ export const imagingRequestSchema = z
 		trackMm: num('The track').pipe(
 			z.number().gt(0, 'The track (object plane to target plane) must be longer than 0 mm.').max(20_000, 'The track must be at most 20000 mm.')
 		),
+		trackToleranceMm: num('The track tolerance')
+			.pipe(z.number().min(0, 'The track tolerance cannot be negative.').max(1000, 'The track tolerance must be at most 1000 mm.'))
+			.default(0),
 		magnification: num('The magnification')
 			.refine((m) => m !== 0, 'The magnification cannot be 0: an image needs a size.')
 			.refine((m) => Math.abs(m) >= 0.001 && Math.abs(m) <= 1000, 'The magnification must lie between 0.001 and 1000 in size.'),
@@ -68,7 +71,12 @@ export const imagingRequestSchema = z
 			.max(MAX_TIME_BUDGET_MS, `The time budget must be at most ${MAX_TIME_BUDGET_MS} ms.`)
 			.default(DEFAULT_TIME_BUDGET_MS)
 	})
-	.strict();
+	.strict()
+	.superRefine((q, ctx) => {
+		if (typeof q.trackMm === 'number' && typeof q.trackToleranceMm === 'number' && q.trackToleranceMm > 0 && q.trackToleranceMm >= q.trackMm) {
+			ctx.addIssue({ code: 'custom', path: ['trackToleranceMm'], message: 'The track tolerance must be shorter than the track.' });
+		}
+	});
 
 export type ImagingRequestInput = z.input<typeof imagingRequestSchema>;
 export type ParsedImagingRequest = z.output<typeof imagingRequestSchema>;

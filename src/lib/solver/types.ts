@@ -13,6 +13,8 @@ export interface SolveRequest {
 	wavelengthNm: number;
 	/** Object plane to target plane, mm. */
 	trackMm: number;
+	/** An answer may use any track within trackMm ± this, mm (0: exactly trackMm). */
+	trackToleranceMm: number;
 	/** Signed lateral magnification (negative: inverted real image). */
 	magnification: number;
 	/** Relative tolerance on the magnification of single parts (0.02 = ±2 %). */
@@ -121,7 +123,10 @@ export interface Solution {
 	gapsMm: number[];
 	/** Last vertex to the target plane, mm (back working distance). */
 	backDistanceMm: number;
+	/** Object plane to target plane of this answer, mm: the track asked, or one within its tolerance. */
 	trackMm: number;
+	/** This answer's track minus the track asked, mm (within ± the track tolerance; absent in setups saved before it existed). */
+	trackOffsetMm?: number;
 	/** Magnification achieved (from the full matrix). */
 	magnification: number;
 	/** Object-to-target ray transfer matrix. */
@@ -255,10 +260,29 @@ export interface PartsExcluded {
 	skus: string[];
 }
 
+/** A part (or pair) that would answer an imaging question at another track, for an empty answer. */
+export interface NearTrack {
+	/** The parts, in the order light meets them. */
+	skus: string[];
+	/** Plain words for them: "the f = 100 mm part TW-A1-03". */
+	label: string;
+	/** The track at which they image at the magnification asked, mm. */
+	trackMm: number;
+	/** That track minus the track asked, mm. */
+	trackOffsetMm: number;
+	/** Object plane to first vertex and last vertex to target plane there, mm. */
+	objectDistanceMm: number;
+	backDistanceMm: number;
+	/** Magnification there (the one asked, from the full matrix). */
+	magnification: number;
+}
+
 /** The answer to an imaging question. */
 export interface SolveResponse {
 	request: SolveRequest;
 	solutions: Solution[];
+	/** Set when `solutions` is empty: why, and the nearest answers at other tracks with their figures. */
+	noAnswer?: (NoAnswer & { nearTracks: NearTrack[] }) | null;
 	stats: SolveStats;
 }
 

@@ -13,7 +13,7 @@ import { testDb } from '../../support/env';
 import { setups } from '../../../src/lib/server/db/schema';
 
 const QUESTION = '/build?objectHeight=2+mm&track=300+mm&magnification=-0.5&na=0.03';
-const ORIENTATION = /^\d: (as catalogued \(surface 1 faces the object\)|reversed \(surface \d faces the object\)|either way round \(symmetric part: both faces alike\)|as catalogued \(datasheet front faces the object\)|reversed \(datasheet back faces the object\))/;
+const ORIENTATION = /^\d: ((curved \((convex|concave)\) |flat |convex |concave |more strongly curved |flatter )face toward the object|both outer faces|either way round \(symmetric part: both faces alike\)|datasheet's (front|back) face \(as marked\) toward the object)/;
 
 /** Height in lines of each cell part that must stay on one line (codes, drawers, positions). */
 const nowrapLines = (page: Page) =>
@@ -141,10 +141,29 @@ describe('Build pages in the browser', () => {
 		expect(await page.locator('main').innerText()).not.toMatch(/Searched 0|Compared the best 0/);
 	});
 
+	it('a single-part question with no exact track names the nearest parts; a track tolerance from the form lets one answer and says which track', async () => {
+		const ask = '/build?objectHeight=0.1+mm&magnification=-1&na=0.01&maxParts=1&track=450+mm';
+		await page.goto(appUrl(ask + '&trackTolerance=0+mm'));
+		await page.waitForSelector('[data-testid=no-answer]', { timeout: 30_000 });
+		const hint = await page.locator('[data-testid=near-tracks]').innerText();
+		expect(hint).toMatch(/the f = -?\d+(\.\d)? mm part \S+ works at \d+(\.\d)? mm/);
+		const need = /track tolerance of (\d+(?:\.\d)?) mm/.exec(hint);
+		expect(need).not.toBeNull();
+		await page.fill('input[name=trackTolerance]', `${need![1]} mm`);
+		await page.click('[data-testid=solve-button]');
+		await page.waitForSelector('[data-testid=solution-row]', { timeout: 30_000 });
+		expect(new URL(page.url()).searchParams.get('trackTolerance')).toBe(`${need![1]} mm`);
+		await expect(page.locator('[data-testid=track-used]').first().innerText()).resolves.toMatch(/^track \d+\.\d\d mm \([+−]\d+\.\d\d mm\)$/);
+		await screenshot(page, 'build-track-tolerance');
+	});
+
 	it('lists a saved setup on /build and links it; the setup page and the build sheet use the same words', async () => {
 		await page.goto(appUrl(QUESTION));
 		await page.waitForSelector('[data-testid=save-form]', { timeout: 30_000 });
 		const tableWords = await page.locator('[data-testid=solution-row]').first().locator('[data-testid=orientation] > div').allInnerTexts();
+		const cells = await page.locator('[data-testid=solution-row]').first().locator('td').allInnerTexts();
+		const tableSpot = cells[5].trim().split(/\s*\/\s*/);
+		const tableRatio = cells[6].trim().split(/\s/)[0];
 		const name = `E2E findable setup ${Date.now().toString(36)}`;
 		await page.fill('input[name=name]', name);
 		await Promise.all([page.waitForURL(/\/build\/\d+$/), page.click('[data-testid=save-button]')]);
@@ -152,6 +171,12 @@ describe('Build pages in the browser', () => {
 		created.push(id);
 		// the setup page: back link with the arrow, the same orientation words as the table row
 		await expect(page.locator('main a[href="/build"]').first().innerText()).resolves.toBe('← Build from stock');
+		// the answer's figures: spot on axis and at the edge as in the table, the ratio to Airy, vignetting
+		const figures = page.locator('[data-testid=answer-figures]');
+		await expect(figures.locator('[data-figure="spot.axialRmsMm"]').innerText()).resolves.toBe(`${tableSpot[0]} µm`);
+		await expect(figures.locator('[data-figure="spot.edgeRmsMm"]').innerText()).resolves.toBe(`${tableSpot[1]} µm`);
+		await expect(figures.locator('[data-figure="spot.ratioToAiry"]').innerText()).resolves.toBe(tableRatio);
+		await expect(figures.locator('[data-figure="vignetting.edge"]').innerText()).resolves.toMatch(/^(yes|no)$/);
 		const setupWords = await page.locator('td[data-testid=orientation]').allInnerTexts();
 		expect(setupWords.map((w, k) => `${k + 1}: ${w}`.replace(/\s+/g, ' ').trim())).toEqual(tableWords.map((w) => w.replace(/\s+/g, ' ').trim()));
 		// the build sheet: the same words, and a scale bar instead of pixels
@@ -159,6 +184,7 @@ describe('Build pages in the browser', () => {
 		const sheetWords = await page.locator('td[data-testid=orientation]').allInnerTexts();
 		expect(sheetWords.map((w) => w.replace(/\s+/g, ' ').trim())).toEqual(setupWords.map((w) => w.replace(/\s+/g, ' ').trim()));
 		expect(Number(await page.locator('[data-testid=scale-bar]').getAttribute('data-mm'))).toBeGreaterThan(0);
+		await expect(page.locator('[data-testid=answer-figures] [data-figure="spot.axialRmsMm"]').innerText()).resolves.toBe(`${tableSpot[0]} µm`);
 		expect(await page.locator('[data-testid=build-sheet]').innerText()).not.toMatch(/\d px/);
 		await expect(page.locator('[data-testid=sheet-tolerance]').first().innerText()).resolves.toMatch(/longer, the sharp image moves \d+\.\d\d mm away from the lens/);
 		await page.emulateMedia({ media: 'print' });

@@ -222,6 +222,11 @@ describe('Shape and expand a laser beam in the browser', () => {
 		expect(sheet).toMatch(/TW-/);
 		expect(sheet).toMatch(/A\d-D\d|B\d-D\d/);
 		expect(sheet).toMatch(/Target waist/);
+		// bench words for a beam: the incoming beam, never an object
+		for (const w of await page.locator('td[data-testid=orientation]').allInnerTexts()) {
+			expect(w).toMatch(/toward the incoming beam|either way round/);
+			expect(w).not.toMatch(/object|surface \d/);
+		}
 		expect(sheet).toMatch(/efficiency \d+\.\d %/);
 		await expectBeamCaution(page);
 		await page.emulateMedia({ media: 'print' });

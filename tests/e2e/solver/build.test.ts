@@ -92,7 +92,8 @@ describe('Build from stock in the browser', () => {
 		await Promise.all([page.waitForURL(/\/sheet$/), page.click('[data-testid=sheet-link]')]);
 		const sheet = await page.locator('[data-testid=build-sheet]').innerText();
 		expect(sheet).toMatch(/TW-/);
-		expect(sheet).toMatch(/as catalogued \(surface 1 faces the object\)|reversed \(surface \d faces the object\)|either way round/);
+		expect(sheet).toMatch(/face toward the object|either way round/);
+		expect(sheet).not.toMatch(/surface \d faces/);
 		expect(sheet).toMatch(/Never look into the beam/);
 		expect(sheet).toMatch(/A\d-D\d|B\d-D\d/);
 		await page.emulateMedia({ media: 'print' });

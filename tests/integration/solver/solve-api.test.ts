@@ -100,6 +100,56 @@ describe('POST /api/v1/solve', () => {
 	});
 });
 
+describe('track tolerance', () => {
+	const single = { ...question, maxElements: 1, magnification: -1, magnificationTolerance: 0, objectNA: 0.01, trackMm: 450, limit: 10 };
+
+	it('a single-part question with no exact track says where the nearest parts work, with their figures', async () => {
+		const res = await api('POST', '/api/v1/solve', { cookie: engineer }, single);
+		expect(res.status).toBe(200);
+		const body = await res.json();
+		expect(body.solutions).toEqual([]);
+		expect(body.noAnswer.nearTracks.length).toBeGreaterThan(0);
+		const near = body.noAnswer.nearTracks[0];
+		expect(body.noAnswer.hint).toContain(`works at ${Math.round(near.trackMm * 10) / 10} mm`);
+		expect(near.magnification).toBeCloseTo(-1, 6);
+		expect(Math.abs(near.trackOffsetMm)).toBeGreaterThan(0);
+	});
+
+	it('with a tolerance that reaches it, that part answers at its own track; the setup saves within the tolerance and not beyond', async () => {
+		const first = await (await api('POST', '/api/v1/solve', { cookie: engineer }, single)).json();
+		const near = first.noAnswer.nearTracks[0];
+		const tol = Math.ceil(Math.abs(near.trackOffsetMm)) + 1;
+		const res = await api('POST', '/api/v1/solve', { cookie: engineer }, { ...single, trackToleranceMm: tol });
+		const body = await res.json();
+		expect(res.status).toBe(200);
+		expect(body.solutions.length).toBeGreaterThan(0);
+		for (const s of body.solutions) {
+			expect(Math.abs(s.trackOffsetMm)).toBeLessThanOrEqual(tol + 1e-9);
+			expect(s.trackMm).toBeCloseTo(450 + s.trackOffsetMm, 9);
+			expect(s.objectDistanceMm + s.elements[0].thicknessMm + s.backDistanceMm).toBeCloseTo(s.trackMm, 6);
+			expect(s.magnification).toBeCloseTo(-1, 6);
+		}
+		const s = body.solutions.find((x: { elements: { sku: string }[] }) => x.elements[0].sku === near.skus[0]);
+		expect(s).toBeDefined();
+		expect(s.trackMm).toBeCloseTo(near.trackMm, 6);
+		const choice = { elements: [{ partId: s.elements[0].partId, reversed: s.elements[0].reversed }], objectDistanceMm: s.objectDistanceMm, gapsMm: [], backDistanceMm: s.backDistanceMm };
+		const saved = await api('POST', '/api/v1/setups', { cookie: engineer }, { name: 'Track tolerance check', query: body.request, choice });
+		expect(saved.status).toBe(201);
+		expect((await saved.json()).solution.trackOffsetMm).toBeCloseTo(s.trackOffsetMm, 6);
+		const strict = await api('POST', '/api/v1/setups', { cookie: engineer }, { name: 'Track tolerance check', query: { ...body.request, trackToleranceMm: 0 }, choice });
+		expect(strict.status).toBe(400);
+		expect((await strict.json()).error.fields.choice).toMatch(/add up to the track/);
+	});
+
+	it('400 naming trackToleranceMm for a negative tolerance or one as long as the track', async () => {
+		for (const trackToleranceMm of [-1, 450]) {
+			const res = await api('POST', '/api/v1/solve', { cookie: engineer }, { ...single, trackToleranceMm });
+			expect(res.status).toBe(400);
+			expect(Object.keys((await res.json()).error.fields)).toContain('trackToleranceMm');
+		}
+	});
+});
+
 async function firstSolution(cookie: string, extra: Record<string, unknown> = {}) {
 	const res = await api('POST', '/api/v1/solve', { cookie }, { ...question, ...extra });
 	const body = await res.json();

@@ -23,7 +23,7 @@ const view = (p: CandidatePart[]): StockView => ({ key: `limits-${p.length}-${Ma
 
 function shardInput(extra: { deadline: number; cancel?: Int32Array | null }) {
 	const snap = buildElementSnapshot(parts, 587.6);
-	const params: SearchParams = { ...question, magnificationTolerance: 0.01, maxElements: 2 };
+	const params: SearchParams = { ...question, trackToleranceMm: 0, magnificationTolerance: 0.01, maxElements: 2 };
 	return {
 		packed: snap.packed,
 		seidel: snap.seidel,

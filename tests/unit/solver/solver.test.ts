@@ -243,9 +243,9 @@ describe('classic configurations', () => {
 		const pairs = r.solutions.filter((s) => s.elements.length === 2);
 		expect(pairs.length).toBeGreaterThanOrEqual(3);
 		const best = pairs[0];
-		// Catalogue orientation: curved side first. Facing convex sides: first lens turned round (flat side to the object), second as catalogued.
+		// Catalogue orientation: curved face first. Facing convex faces: first lens turned round (flat face to the object), second as catalogued.
 		expect(best.elements.map((x) => x.reversed)).toEqual([true, false]);
-		expect(best.elements[0].orientation).toContain('flat side toward the object');
+		expect(best.elements[0].orientation).toMatch(/^flat face toward the object, curved \(convex\) face toward the image/);
 		for (const other of pairs.slice(1)) expect(other.spot.ratioToAiry!).toBeGreaterThan(best.spot.ratioToAiry!);
 	});
 

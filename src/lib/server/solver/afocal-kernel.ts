@@ -11,7 +11,7 @@
  */
 import { ELEMENT_STRIDE, EL_A, EL_B, EL_C, EL_D, EL_THICKNESS, EL_SEMI_APERTURE } from '../../optics/snapshot';
 import { afocalGapMm, focusAfterMm } from '../../optics/afocal';
-import { checkPairPhysical } from '../../optics/physical';
+import { checkPairPhysical, PHYS_GAP, PHYS_SURFACES_TOUCH, PHYS_APERTURE } from '../../optics/physical';
 
 export const AREC_STRIDE = 7;
 export const AREC_I = 0;
@@ -110,7 +110,8 @@ export function afocalShard(input: AfocalShardInput): AfocalShardResult {
 			const hasFocus = fa !== null && fa > 0 && fa < g;
 			if (p.intermediateFocus === 1 && !hasFocus) continue;
 			if (p.intermediateFocus === 0 && hasFocus) continue;
-			if (checkPairPhysical(packed, i, j, 1, g, 1, 0, p.minGapMm) !== 0) continue;
+			// Only the gap and the glass between the parts: an expander has no object or target plane.
+			if ((checkPairPhysical(packed, i, j, 1, g, 1, 0, p.minGapMm) & (PHYS_GAP | PHYS_SURFACES_TOUCH | PHYS_APERTURE)) !== 0) continue;
 			const h2 = packed[o2 + EL_SEMI_APERTURE];
 			let clearance = Infinity;
 			if (h1 > 0) clearance = Math.min(clearance, (2 * h1) / dIn, (2 * h1) / (Math.abs(a1) * dIn));

@@ -83,7 +83,7 @@ export function solutionElements(parts: CandidatePart[], elements: ThickElement[
 			kind: part.kind,
 			reversed: el.reversed,
 			symmetric: symmetric[k],
-			orientation: orientationText({ reversed: el.reversed, symmetric: symmetric[k], surfaces: el.surfaces }),
+			orientation: orientationText({ reversed: el.reversed, symmetric: symmetric[k], surfaces: el.surfaces }, 'beam'),
 			firstVertexMm: firstVertices[k],
 			thicknessMm: el.thicknessMm,
 			eflMm: cp ? cp.eflMm : Infinity,
@@ -272,6 +272,8 @@ export function evaluateAfocal(
 		const ray = new Float64Array(RAY_STRIDE);
 		const heights = new Float64Array(sys.value.count);
 		startRay(ray, dIn / 2, 0);
+		// The collimated input ray starts well before the first vertex: a concave first face lies in front of it.
+		ray[0] = -Math.max(10, e1.thicknessMm + gapMm);
 		const status = traceRay(sys.value, ray, heights);
 		if (status !== TRACE_OK) clipped = true;
 		else {

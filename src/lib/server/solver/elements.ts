@@ -80,7 +80,7 @@ export function partElement(part: CandidatePart, wavelengthNm: number): { ok: tr
 	const clearApertureMm = clearApertureOf(part);
 	const measured = part.measured ? { eflMm: part.measured.eflMm, wavelengthNm: part.measured.wavelengthNm } : null;
 	if (part.surfaces.length >= 2) {
-		const r = buildElement(part.surfaces, wavelengthNm, { clearApertureMm, measured });
+		const r = buildElement(part.surfaces, wavelengthNm, { clearApertureMm, outerDiameterMm: part.diameterMm, measured });
 		return r.ok ? { ok: true, element: r.value } : { ok: false, reason: exclusionReason(r.error, wavelengthNm) };
 	}
 	if (wavelengthNm < GLASS_CODE_RANGE_NM[0] || wavelengthNm > GLASS_CODE_RANGE_NM[1]) {

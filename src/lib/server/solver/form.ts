@@ -101,6 +101,8 @@ export function readForm(
 	};
 	const objectHeightMm = length('objectHeight', 'Object height');
 	const trackMm = length('track', 'Track');
+	// Blank means none (0), as the default.
+	const trackToleranceMm = values.trackTolerance.trim() === '' ? 0 : length('trackTolerance', 'Track tolerance');
 	const minGapMm = length('minGap', 'Minimum gap');
 	const minWorkingDistanceMm = length('minWd', 'Minimum working distance');
 	let magnification: number | undefined;
@@ -136,6 +138,7 @@ export function readForm(
 		mode: 'imaging',
 		wavelengthNm: wavelengthNm ?? undefined,
 		trackMm,
+		trackToleranceMm,
 		magnification,
 		objectHeightMm,
 		objectNA,

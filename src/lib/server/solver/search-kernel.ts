@@ -18,6 +18,7 @@ import {
 } from '../../optics/snapshot';
 import {
 	solveSingleKernel,
+	singleAtMagnification,
 	solvePairKernel,
 	ROOT_STRIDE,
 	ROOT_OBJECT_DISTANCE,
@@ -32,7 +33,7 @@ import { evalSeidel } from './seidel-poly';
 import { offerBest, PG_FRACTION } from './progress';
 
 /** Numbers per candidate record. */
-export const REC_STRIDE = 12;
+export const REC_STRIDE = 13;
 export const REC_I = 0;
 /** Second element, −1 for a single part. */
 export const REC_J = 1;
@@ -51,6 +52,8 @@ export const REC_FILL_EDGE = 9;
 export const REC_SA_MM = 10;
 /** 1 when an element of the configuration is a black box (no surfaces). */
 export const REC_UNTRACEABLE = 11;
+/** Object plane to target plane of this placement, mm (the track asked, or one within its tolerance). */
+export const REC_TRACK = 12;
 
 /** Score offset that puts configurations with a black-box part behind every traceable one. */
 export const UNTRACEABLE_OFFSET = 1e6;
@@ -58,6 +61,8 @@ export const UNTRACEABLE_OFFSET = 1e6;
 /** The question as the kernel needs it (plain numbers). */
 export interface SearchParams {
 	trackMm: number;
+	/** A placement may use any track within trackMm ± this, mm (0: exactly trackMm). */
+	trackToleranceMm: number;
 	magnification: number;
 	magnificationTolerance: number;
 	objectNA: number;
@@ -294,7 +299,7 @@ const counters = new Float64Array(3);
 const rec = new Float64Array(REC_STRIDE);
 
 /** Screens one physical root (in `roots` at `base`) and offers it to the top-K. */
-function consider(top: TopK, packed: Float64Array, seidel: Float64Array, p: SearchParams, i: number, j: number, base: number, untr: boolean): void {
+function consider(top: TopK, packed: Float64Array, seidel: Float64Array, p: SearchParams, i: number, j: number, base: number, untr: boolean, trackMm: number): void {
 	const s = roots[base + ROOT_OBJECT_DISTANCE],
 		g = roots[base + ROOT_GAP],
 		mAch = roots[base + ROOT_MAGNIFICATION];
@@ -314,6 +319,7 @@ function consider(top: TopK, packed: Float64Array, seidel: Float64Array, p: Sear
 	rec[REC_FILL_EDGE] = screenOut[1];
 	rec[REC_SA_MM] = screenOut[2];
 	rec[REC_UNTRACEABLE] = untr ? 1 : 0;
+	rec[REC_TRACK] = trackMm;
 	top.push(rec);
 	offerBest(progressOut, i, j, score);
 }
@@ -322,21 +328,45 @@ function consider(top: TopK, packed: Float64Array, seidel: Float64Array, p: Sear
 function singles(input: ShardInput, top: TopK): void {
 	const { packed, seidel, untraceable, candidates, params: p } = input;
 	const m = p.magnification;
+	const tol = p.trackToleranceMm;
 	for (let q = 0; q < candidates.length; q++) {
 		const i = candidates[q];
 		counters[0]++;
-		const k = solveSingleKernel(packed, i, p.trackMm, roots, 0);
-		for (let r = 0; r < k; r++) {
-			const base = r * ROOT_STRIDE;
+		// The track asked first; with a tolerance and nothing there, the track within it nearest
+		// to the one that gives exactly m (|m| is monotone in the track on each branch, so that
+		// is where the magnification comes closest to m).
+		if (singlesAt(packed, seidel, untraceable, p, top, i, p.trackMm) || !(tol > 0)) continue;
+		const exactTrack = singleAtMagnification(packed, i, m, roots, 0);
+		if (!Number.isFinite(exactTrack)) continue;
+		if (Math.abs(exactTrack - p.trackMm) <= tol) {
+			// Exactly m at its own track: the root is already written.
 			counters[1]++;
-			if ((roots[base + ROOT_FLAGS] & ROOT_NON_PHYSICAL) !== 0) continue;
-			const mAch = roots[base + ROOT_MAGNIFICATION];
-			if (!(Math.abs(mAch / m - 1) <= p.magnificationTolerance)) continue;
-			if (checkSinglePhysical(packed, i, roots[base + ROOT_OBJECT_DISTANCE], roots[base + ROOT_BACK_DISTANCE], p.minWorkingDistanceMm) !== 0) continue;
+			if ((roots[ROOT_FLAGS] & ROOT_NON_PHYSICAL) !== 0) continue;
+			if (checkSinglePhysical(packed, i, roots[ROOT_OBJECT_DISTANCE], roots[ROOT_BACK_DISTANCE], p.minWorkingDistanceMm) !== 0) continue;
 			counters[2]++;
-			consider(top, packed, seidel, p, i, -1, base, untraceable[i] === 1);
+			consider(top, packed, seidel, p, i, -1, 0, untraceable[i] === 1, exactTrack);
+		} else {
+			singlesAt(packed, seidel, untraceable, p, top, i, exactTrack > p.trackMm ? p.trackMm + tol : p.trackMm - tol);
 		}
 	}
+}
+
+/** The placements of single element i at one track that meet the magnification tolerance and the limits; true when one was offered. */
+function singlesAt(packed: Float64Array, seidel: Float64Array, untraceable: Uint8Array, p: SearchParams, top: TopK, i: number, trackMm: number): boolean {
+	const k = solveSingleKernel(packed, i, trackMm, roots, 0);
+	let found = false;
+	for (let r = 0; r < k; r++) {
+		const base = r * ROOT_STRIDE;
+		counters[1]++;
+		if ((roots[base + ROOT_FLAGS] & ROOT_NON_PHYSICAL) !== 0) continue;
+		const mAch = roots[base + ROOT_MAGNIFICATION];
+		if (!(Math.abs(mAch / p.magnification - 1) <= p.magnificationTolerance)) continue;
+		if (checkSinglePhysical(packed, i, roots[base + ROOT_OBJECT_DISTANCE], roots[base + ROOT_BACK_DISTANCE], p.minWorkingDistanceMm) !== 0) continue;
+		counters[2]++;
+		consider(top, packed, seidel, p, i, -1, base, untraceable[i] === 1, trackMm);
+		found = true;
+	}
+	return found;
 }
 
 /** The element matrices as separate arrays, with 1/C (0 for afocal elements), for the prefilter. */
@@ -364,6 +394,63 @@ function toSoa(packed: Float64Array): Soa {
 	return soa;
 }
 
+/**
+ * The track nearest to `trackMm`, within ± tol, at which a pair's gap quadratic (coefficients C₁,
+ * qb, discriminant disc < 0 at trackMm) has a real root; NaN when none. Moving the track by δ
+ * moves qb by −C₁δ and qc by −C₀δ, so the discriminant is the quadratic
+ * C₁²δ² + (4C₁C₀ − 2·qb·C₁)δ + disc in δ, negative between its two zeros. The track returned
+ * lies a hair past the nearer zero, so that the kernel sees two close real roots. (Kept out of
+ * `pairRow`: a cold path that would make the hot loop too large to optimise.)
+ */
+function toleranceTrack(qb: number, C0: number, C1: number, disc: number, tol: number, trackMm: number): number {
+	const beta = 4 * C1 * C0 - 2 * qb * C1,
+		alpha = C1 * C1;
+	const sq = Math.sqrt(beta * beta - 4 * alpha * disc);
+	const up = (-beta + sq) / (2 * alpha),
+		down = (-beta - sq) / (2 * alpha);
+	let delta = Math.abs(up) <= Math.abs(down) ? up : down;
+	if (!(Math.abs(delta) <= tol)) return NaN;
+	const nudge = Math.min(tol - Math.abs(delta), 1e-6 * (Math.abs(trackMm) + 1));
+	delta += delta >= 0 ? nudge : -nudge;
+	return trackMm + delta;
+}
+
+/** Scratch of `settlePairTrack`: [the track settled on]. */
+const settled = new Float64Array(1);
+
+/**
+ * The pair's roots at `track` (k of them in `roots`) when one is physical; else, when the window's
+ * edge on that side has a physical root, the roots at the nearest track to `track` that has one
+ * (bisection between the two: the double root broke a limit, a working distance or the gap).
+ * Returns the root count (0: none) and leaves the track in settled[0].
+ */
+function settlePairTrack(packed: Float64Array, i: number, j: number, p: SearchParams, track: number, k: number): number {
+	settled[0] = track;
+	if (anyPhysicalPair(packed, i, j, p, k)) return k;
+	const m = p.magnification;
+	const edge = track > p.trackMm ? p.trackMm + p.trackToleranceMm : p.trackMm - p.trackToleranceMm;
+	if (!anyPhysicalPair(packed, i, j, p, solvePairKernel(packed, i, j, edge, m, roots, 0))) return 0;
+	let near = track,
+		far = edge;
+	for (let it = 0; it < 60 && Math.abs(far - near) > 1e-9 * (Math.abs(p.trackMm) + 1); it++) {
+		const mid = 0.5 * (near + far);
+		if (anyPhysicalPair(packed, i, j, p, solvePairKernel(packed, i, j, mid, m, roots, 0))) far = mid;
+		else near = mid;
+	}
+	settled[0] = far;
+	return solvePairKernel(packed, i, j, far, m, roots, 0);
+}
+
+/** True when one of the k pair roots in `roots` passes the physical filter. */
+function anyPhysicalPair(packed: Float64Array, i: number, j: number, p: SearchParams, k: number): boolean {
+	for (let r = 0; r < k; r++) {
+		const base = r * ROOT_STRIDE;
+		if ((roots[base + ROOT_FLAGS] & ROOT_NON_PHYSICAL) !== 0) continue;
+		if (checkPairPhysical(packed, i, j, roots[base + ROOT_OBJECT_DISTANCE], roots[base + ROOT_GAP], roots[base + ROOT_BACK_DISTANCE], p.minWorkingDistanceMm, p.minGapMm) === 0) return true;
+	}
+	return false;
+}
+
 /** Every ordered pair with element i first. */
 function pairRow(
 	packed: Float64Array,
@@ -385,6 +472,7 @@ function pairRow(
 	const minS = p.minWorkingDistanceMm - slack,
 		minG = p.minGapMm - slack;
 	const pi = partIndex[i];
+	const tol = p.trackToleranceMm;
 	const ui = untraceable[i] === 1;
 	const untr1 = ui;
 	const airyPair = airyForMagnification(p.wavelengthNm, p.objectNA, m);
@@ -425,11 +513,16 @@ function pairRow(
 			D1 = c2 * d1;
 		const qb = C0 - A1 - D1 - C1 * lam;
 		const qc = mu - A0 - D0 - C0 * lam;
+		let track = p.trackMm;
 		if (C1 !== 0) {
 			const disc = qb * qb - 4 * C1 * qc;
 			const scale = qb * qb + 4 * Math.abs(C1 * qc);
-			if (disc < -1e-6 * scale) continue;
-			if (disc > 1e-6 * scale) {
+			if (disc < -1e-6 * scale) {
+				// No real root at the track asked: with a track tolerance, the nearest track that has one.
+				if (!(tol > 0)) continue;
+				track = toleranceTrack(qb, C0, C1, disc, tol, p.trackMm);
+				if (track !== track) continue; // NaN: none within the tolerance
+			} else if (disc > 1e-6 * scale) {
 				const sq = Math.sqrt(disc);
 				const qq = -0.5 * (qb + (qb >= 0 ? sq : -sq));
 				// Roots g₀ = qq/C₁ = qq·(1/c₁)(1/c₂) and g₁ = qc/qq. A root that may be
@@ -456,7 +549,11 @@ function pairRow(
 				if (!need) continue;
 			}
 		}
-		const k = solvePairKernel(packed, i, j, p.trackMm, m, roots, 0);
+		let k = solvePairKernel(packed, i, j, track, m, roots, 0);
+		if (track !== p.trackMm) {
+			k = settlePairTrack(packed, i, j, p, track, k);
+			track = settled[0];
+		}
 		for (let r = 0; r < k; r++) {
 			const base = r * ROOT_STRIDE;
 			counters[1]++;
@@ -473,7 +570,7 @@ function pairRow(
 			);
 			if (bad !== 0) continue;
 			counters[2]++;
-			consider(top, packed, seidel, p, i, j, base, ui || untraceable[j] === 1);
+			consider(top, packed, seidel, p, i, j, base, ui || untraceable[j] === 1, track);
 		}
 	}
 	counters[0] += evaluated;

@@ -14,7 +14,7 @@ import { DomainError } from '$lib/server/api/http';
 import { reserve, reservationRows } from '$lib/server/stock/reservations';
 import { solveRequestSchema, type ParsedAfocalRequest, type ParsedBeamRequest, type ParsedImagingRequest, type ParsedSolveRequest } from '$lib/solver/request';
 import type { AfocalSolution, AnySolution, BeamSolution, Solution } from '$lib/solver/types';
-import { afocalGapMm } from '$lib/optics';
+import { afocalGapMm, packElements, checkPairPhysical, checkSinglePhysical, PHYS_SURFACES_TOUCH, PHYS_APERTURE, PHYS_OBJECT_PLANE, PHYS_TARGET_PLANE, type ThickElement } from '$lib/optics';
 import { evaluateBeam, evaluateAfocal } from './beam-evaluate';
 import { buildElementSnapshot } from './elements';
 import { evaluatePlacement } from './evaluate';
@@ -67,6 +67,23 @@ export function choiceOf(s: AnySolution): Choice {
 
 const notAnswer = (message: string, field = 'choice') => new DomainError(400, 'invalid-input', message, { [field]: message });
 
+/**
+ * The glass of a chosen placement, as the solver's physical filter sees it (optics core's
+ * `checkPairPhysical`): neighbouring parts keep air between them out to the smaller glass edge
+ * (outer diameter), and with `planes` the outer surfaces' edges stay off the object and
+ * target planes. Working distances and gaps are checked by the callers with their own words.
+ */
+function assertGlassApart(elements: readonly ThickElement[], objectDistanceMm: number, gapsMm: readonly number[], backDistanceMm: number, planes: boolean): void {
+	const packed = packElements(elements);
+	const bad =
+		elements.length === 2
+			? checkPairPhysical(packed, 0, 1, objectDistanceMm, gapsMm[0], backDistanceMm, -Infinity, -Infinity)
+			: checkSinglePhysical(packed, 0, objectDistanceMm, backDistanceMm, -Infinity);
+	if (bad & (PHYS_SURFACES_TOUCH | PHYS_APERTURE)) throw notAnswer('The two parts would touch or overlap at their glass edges (outer diameter) at this gap.');
+	if (planes && bad & PHYS_OBJECT_PLANE) throw notAnswer("The first part's glass edge would reach the object plane.");
+	if (planes && bad & PHYS_TARGET_PLANE) throw notAnswer("The last part's glass edge would reach the target plane.");
+}
+
 /** The chosen parts as oriented elements at the question's wavelength; 400 when a part is unknown or cannot be built. */
 async function pickElements(db: DbOrTx, wavelengthNm: number, choice: Choice) {
 	const byId = await candidatePartsById(db, choice.elements.map((e) => e.partId));
@@ -95,6 +112,7 @@ async function evaluateBeamChoice(db: DbOrTx, query: ParsedBeamRequest, choice: 
 	if (choice.objectDistanceMm < -1e-9) throw notAnswer('Every part lies at z ≥ 0.');
 	if (choice.gapsMm.some((g) => g < query.minGapMm - 1e-9)) throw notAnswer(`The gap must be at least ${query.minGapMm} mm.`);
 	if (choice.backDistanceMm < query.minWorkingDistanceMm - 1e-9) throw notAnswer(`The last part must end at least ${query.minWorkingDistanceMm} mm before the target waist.`);
+	assertGlassApart(picked.map((p) => p.element), choice.objectDistanceMm, choice.gapsMm, choice.backDistanceMm, false);
 	const s = evaluateBeam(query, picked.map((p) => p.part), picked.map((p) => p.element), choice.objectDistanceMm, choice.gapsMm, picked.map((p) => p.symmetric));
 	if (s.beam.minClearance < query.minClearance * (1 - 1e-9)) throw notAnswer(`A clear aperture is only ${s.beam.minClearance.toFixed(2)}× the beam there (asked: ${query.minClearance}×).`);
 	if (s.beam.efficiency < query.minEfficiency) throw notAnswer(`This placement reaches ${(100 * s.beam.efficiency).toFixed(1)} % efficiency (asked: ${(100 * query.minEfficiency).toFixed(0)} %).`);
@@ -109,6 +127,7 @@ async function evaluateAfocalChoice(db: DbOrTx, query: ParsedAfocalRequest, choi
 	const g = afocalGapMm(m1[0], m1[1], m1[2], m1[3], m2[0], m2[1], m2[2], m2[3]);
 	if (g === null || Math.abs(g - choice.gapsMm[0]) > 1e-6 * Math.max(1, Math.abs(g))) throw notAnswer('The gap is not the afocal spacing of these parts at this wavelength.');
 	if (g < query.minGapMm - 1e-9) throw notAnswer(`The gap must be at least ${query.minGapMm} mm.`);
+	assertGlassApart(picked.map((p) => p.element), 1, [g], 1, false);
 	const ev = evaluateAfocal(query, picked.map((p) => p.part), picked.map((p) => p.element), g, picked.map((p) => p.symmetric));
 	const a = ev.solution.afocal;
 	if (ev.clipped) throw notAnswer('The input beam is clipped by a clear aperture of this pair.');
@@ -149,9 +168,17 @@ async function evaluateImagingChoice(db: DbOrTx, query: ParsedImagingRequest, ch
 	});
 	const track =
 		choice.objectDistanceMm + choice.backDistanceMm + choice.gapsMm.reduce((a, g) => a + g, 0) + picked.reduce((a, p) => a + p.element.thicknessMm, 0);
-	if (Math.abs(track - query.trackMm) > 1e-6 * Math.max(1, query.trackMm)) {
-		throw new DomainError(400, 'invalid-input', 'The positions do not add up to the track.', { choice: 'Positions and thicknesses must add up to the track.' });
+	// Any track within the question's tolerance (0: the track asked).
+	const tolerance = query.trackToleranceMm ?? 0;
+	if (Math.abs(track - query.trackMm) > tolerance + 1e-6 * Math.max(1, query.trackMm)) {
+		const message = tolerance > 0 ? `Positions and thicknesses must add up to the track within ±${tolerance} mm.` : 'Positions and thicknesses must add up to the track.';
+		throw new DomainError(400, 'invalid-input', 'The positions do not add up to the track.', { choice: message });
 	}
+	if (choice.gapsMm.some((g) => g < query.minGapMm - 1e-9)) throw notAnswer(`The gap must be at least ${query.minGapMm} mm.`);
+	if (Math.min(choice.objectDistanceMm, choice.backDistanceMm) < query.minWorkingDistanceMm - 1e-9) {
+		throw notAnswer(`The working distances must be at least ${query.minWorkingDistanceMm} mm.`);
+	}
+	assertGlassApart(picked.map((p) => p.element), choice.objectDistanceMm, choice.gapsMm, choice.backDistanceMm, true);
 	const ev = evaluatePlacement(
 		{
 			parts: picked.map((p) => p.part),
@@ -164,7 +191,7 @@ async function evaluateImagingChoice(db: DbOrTx, query: ParsedImagingRequest, ch
 			doubleRoot: false,
 			screenEstimateMm: NaN
 		},
-		query,
+		{ ...query, trackMm: track },
 		picked.map((p) => p.symmetric)
 	);
 	const magOk = Math.abs(ev.solution.magnification / query.magnification - 1) <= Math.max(query.magnificationTolerance, 1e-6);
@@ -173,8 +200,8 @@ async function evaluateImagingChoice(db: DbOrTx, query: ParsedImagingRequest, ch
 			choice: 'Not an imaging placement for this question.'
 		});
 	}
-	const family = picked.length === 2 && Math.abs(ev.solution.systemMatrix.C) * query.trackMm < 1e-9;
-	return { rank: 1, ...withCoatingWarnings(ev.solution, picked.map((p) => p.part), query.wavelengthNm), afocalFamily: family, spot: { ...ev.solution.spot, screenEstimateMm: 0 } };
+	const family = picked.length === 2 && Math.abs(ev.solution.systemMatrix.C) * track < 1e-9;
+	return { rank: 1, ...withCoatingWarnings(ev.solution, picked.map((p) => p.part), query.wavelengthNm), trackOffsetMm: track - query.trackMm, afocalFamily: family, spot: { ...ev.solution.spot, screenEstimateMm: 0 } };
 }
 
 /** Saves a setup; returns its id. */

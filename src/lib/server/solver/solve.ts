@@ -9,6 +9,7 @@ import { ROOT_DOUBLE, ROOT_FAMILY } from '../../optics/imaging';
 import type { ParsedImagingRequest } from '../../solver/request';
 import type { PartsExcluded, Solution, SolveProgress, SolveResponse } from '../../solver/types';
 import { progressBuffer, readProgress } from './progress';
+import { imagingNoAnswer } from './near-track';
 import { buildElementSnapshot, wavelengthCoveredByAnyMaterial, type CandidatePart, type ElementSnapshot } from './elements';
 import {
 	searchShard,
@@ -21,6 +22,7 @@ import {
 	REC_FLAGS,
 	REC_SCORE,
 	REC_SA_MM,
+	REC_TRACK,
 	type SearchParams
 } from './search-kernel';
 import { searchOnPool, workerCount } from './pool';
@@ -146,6 +148,7 @@ export async function solveWithStock(stock: StockView, req: ParsedImagingRequest
 	const { candidates, partUnits, parts, excluded } = candidateFilter(snap, req);
 	const params: SearchParams = {
 		trackMm: req.trackMm,
+		trackToleranceMm: req.trackToleranceMm,
 		magnification: req.magnification,
 		magnificationTolerance: req.magnificationTolerance,
 		objectNA: req.objectNA,
@@ -210,6 +213,7 @@ export async function solveWithStock(stock: StockView, req: ParsedImagingRequest
 			j = rec[REC_J];
 		const idx = j < 0 ? [i] : [i, j];
 		const flags = rec[REC_FLAGS];
+		const trackMm = rec[REC_TRACK];
 		const choice = {
 			parts: idx.map((e) => snap.parts[snap.partIndex[e]]),
 			elements: idx.map((e) => snap.elements[e]),
@@ -222,9 +226,11 @@ export async function solveWithStock(stock: StockView, req: ParsedImagingRequest
 			screenEstimateMm: rec[REC_SA_MM]
 		};
 		const symmetric = idx.map((e) => snap.symmetricPart[snap.partIndex[e]]);
-		const ev = evaluatePlacement(choice, req, symmetric, rankOnly);
-		const warn = (sol: Omit<Solution, 'rank'>) => withCoatingWarnings(sol, choice.parts, req.wavelengthNm);
-		if (ev.verified) evaluated.push({ s: warn(ev.solution), again: () => warn(evaluatePlacement(choice, req, symmetric).solution) });
+		const asked = trackMm === req.trackMm ? req : { ...req, trackMm };
+		const ev = evaluatePlacement(choice, asked, symmetric, rankOnly);
+		// The answer with the track it uses and its coating warnings.
+		const finish = (sol: Omit<Solution, 'rank'>) => ({ ...withCoatingWarnings(sol, choice.parts, req.wavelengthNm), trackOffsetMm: trackMm - req.trackMm });
+		if (ev.verified) evaluated.push({ s: finish(ev.solution), again: () => finish(evaluatePlacement(choice, asked, symmetric).solution) });
 	}
 	const keyed = evaluated.map((e) => ({ e, k: rankKey(e.s, req.rankBy) }));
 	keyed.sort((a, b) => compareKeys(a.k, b.k));
@@ -235,6 +241,7 @@ export async function solveWithStock(stock: StockView, req: ParsedImagingRequest
 	return {
 		request: req,
 		solutions,
+		noAnswer: solutions.length === 0 ? imagingNoAnswer(snap, candidates, partUnits, req) : null,
 		stats: {
 			partsConsidered: parts,
 			elementsConsidered: candidates.length,

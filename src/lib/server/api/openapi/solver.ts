@@ -23,6 +23,7 @@ const imagingRequest = {
 		mode: { type: 'string', enum: ['imaging'], default: 'imaging', description: 'may be left out (imaging)' },
 		wavelengthNm: { ...num, minimum: 200, maximum: 12000, default: 587.6 },
 		trackMm: { ...num, exclusiveMinimum: 0, description: 'object plane to target plane, mm' },
+		trackToleranceMm: { ...num, minimum: 0, maximum: 1000, default: 0, description: 'an answer may use any track within trackMm ± this, mm (below trackMm); each solution says which (trackMm, trackOffsetMm)' },
 		magnification: { ...num, description: 'signed; negative = inverted real image; 0.001 ≤ |m| ≤ 1000' },
 		magnificationTolerance: { ...num, minimum: 0, maximum: 0.5, default: 0.02, description: 'relative, for single parts' },
 		objectHeightMm: { ...num, minimum: 0, default: 0, description: 'half the field' },
@@ -134,14 +135,16 @@ const afocalSolution = {
 
 const noAnswer = {
 	type: ['object', 'null'],
-	description: 'modes beam and afocal, when no answer qualifies: {reason, hint, nearMiss (the nearest answer with its figures, or null)}'
+	description:
+		'when no answer qualifies: {reason, hint, nearMiss (modes beam and afocal: the nearest answer with its figures, or null)}; ' +
+		'mode imaging: {reason, hint, nearTracks [{skus, label, trackMm, trackOffsetMm, objectDistanceMm, backDistanceMm, magnification}] (single parts that image at the magnification asked on another track, nearest first)}'
 };
 
 const solution = {
 	type: 'object',
 	description:
-		'elements [{partId, sku, reversed, symmetric, orientation ("as catalogued (surface 1 faces the object)" or "reversed (surface N faces the object)", plus flat/curved side for a plano lens), firstVertexMm (from the object plane), eflMm, eflSource, toBuy, available, locations}], ' +
-		'objectDistanceMm, gapsMm, backDistanceMm, magnification, systemMatrix {A,B,C,D}, pointTransferMatrix (3x3 row-major), ' +
+		'elements [{partId, sku, reversed, symmetric, orientation (bench words a technician can check by eye: which outer face is flat, convex or concave, or the more strongly curved, toward the object; then how that stands to the catalogue listing with the radii of the outer faces, e.g. "more strongly curved face toward the object, flatter face toward the image (both convex); as in the catalogue listing; R 61.5 mm face toward the object, R 129 mm face toward the image"; modes beam and afocal say "toward the incoming beam"), firstVertexMm (from the object plane), eflMm, eflSource, toBuy, available, locations}], ' +
+		'objectDistanceMm, gapsMm, backDistanceMm, trackMm (the track this answer uses), trackOffsetMm (that track minus the one asked, within ± trackToleranceMm), magnification, systemMatrix {A,B,C,D}, pointTransferMatrix (3x3 row-major), ' +
 		'afocalFamily, doubleRoot, ' +
 		'spot {axialRmsMm, edgeRmsMm, statistic, airyRadiusMm, ratioToAiry, untracedReason}: real rays stopped at every clear aperture and glass edge (a ray that misses a surface or meets it behind the previous one is lost); ' +
 		'both spots are the RMS radius about the centroid in two dimensions (statistic "rms-radius-about-centroid"): on axis over the cone the aperture stop passes, at the field edge (objectHeightMm) over a pupil grid of skew rays; ' +
