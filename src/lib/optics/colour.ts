@@ -23,3 +23,22 @@ export function defaultColourBand(wavelengthNm: number): ColourBand {
 	const k = wavelengthNm / d;
 	return [Math.round(f * k * 10) / 10, wavelengthNm, Math.round(c * k * 10) / 10];
 }
+
+/**
+ * The band of the colour figures for parts with coating bands: F–d–C in the visible (as `defaultColourBand`); outside it
+ * the band every part's coating covers (their common range) when it holds the working wavelength and is wider than
+ * 1 % of it, else `defaultColourBand`. A part without a band, or bands without a common range, leave the default.
+ */
+export function colourBandFor(wavelengthNm: number, coatingBandsNm: readonly ({ minNm: number; maxNm: number } | null | undefined)[]): ColourBand {
+	const fallback = defaultColourBand(wavelengthNm);
+	if (fallback === FDC_BAND_NM || !coatingBandsNm.length) return fallback;
+	let lo = -Infinity,
+		hi = Infinity;
+	for (const b of coatingBandsNm) {
+		if (!b) return fallback;
+		lo = Math.max(lo, b.minNm);
+		hi = Math.min(hi, b.maxNm);
+	}
+	if (!(lo <= wavelengthNm && wavelengthNm <= hi) || hi - lo < 0.01 * wavelengthNm) return fallback;
+	return [lo, wavelengthNm, hi];
+}

@@ -41,6 +41,7 @@ import { orientationText } from '../../solver/orientation';
 import { EDGE_BLOCKED_RATIO, VIGNETTING_TOLERANCE } from '../../solver/ranking';
 import { clearApertureOf, type CandidatePart } from './elements';
 import { FAN_RAYS, colourFigures, edgeTrace, rimOffset, stopOf, type EdgeTrace } from './real-ray-figures';
+import { colourBandFor } from '../../optics/colour';
 
 /** Tolerance of the independent matrix check of a returned solution (|B| in mm, |A − m| relative). */
 export const VERIFY_B_TOL_MM = 1e-6;
@@ -184,7 +185,9 @@ export interface EvalOptions {
  * drawing and the tolerance view (and without the colour band unless it ranks by it), then evaluates the answers it returns
  * again in full: the figures that rank are the same either way.
  */
-export function evaluatePlacement(choice: PlacementChoice, q: EvalQuestion, symmetricParts: boolean[], options: EvalOptions = {}): Evaluated {
+export function evaluatePlacement(choice: PlacementChoice, asked: EvalQuestion, symmetricParts: boolean[], options: EvalOptions = {}): Evaluated {
+	// The colour band: the question's, else F–d–C in the visible or the parts' common coating band (colourBandFor).
+	const q: EvalQuestion = asked.band ? asked : { ...asked, band: colourBandFor(asked.wavelengthNm, choice.parts.map((p) => p.coatingBandNm)) };
 	const drawing = options.details ?? true;
 	const layout: Layout = {
 		objectDistanceMm: choice.objectDistanceMm,
