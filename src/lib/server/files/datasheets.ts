@@ -9,6 +9,7 @@
 import { createHash, randomUUID } from 'node:crypto';
 import fs from 'node:fs';
 import { and, desc, eq, inArray, isNull } from 'drizzle-orm';
+import { z } from 'zod';
 import type { DbOrTx } from '$lib/server/db';
 import { datasheets, parts, users, type Datasheet, type DatasheetType } from '$lib/server/db/schema';
 import { ApiError, DomainError } from '$lib/server/api/http';
@@ -19,6 +20,9 @@ import { imageSize, MAX_IMAGE_MEGAPIXELS, MAX_IMAGE_PIXELS } from './image-size'
 import { spoolToTempFile, type SpooledFile } from './spool';
 import type { ObjectStore, StoredObject } from './s3';
 import { inTransaction } from '$lib/server/db/transaction';
+
+/** `POST /datasheets/match`: the dropped files' names. */
+export const matchInputSchema = z.object({ filenames: z.array(z.string().max(255)).min(1).max(500) }).strict();
 
 export interface DatasheetJson {
 	id: number;

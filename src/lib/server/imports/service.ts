@@ -49,6 +49,14 @@ export class ImportNotFound extends DomainError {
 	}
 }
 
+/** `GET /imports`: the history's paging. */
+export const listQuerySchema = z
+	.object({ page: z.coerce.number().int().min(1).default(1), pageSize: z.coerce.number().int().min(1).max(200).default(50) })
+	.strict();
+
+/** `GET /imports/:id`: how many row errors to include. */
+export const reportQuerySchema = z.object({ errors: z.coerce.number().int().min(0).max(5000).default(200) }).strict();
+
 /**
  * Checks a CSV, stores it in S3 and records the import with a suggested mapping. Nothing is stored
  * when the file is refused. `file` is the bytes, a stream of them, or an upload already taken by

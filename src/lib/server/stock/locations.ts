@@ -24,6 +24,16 @@ export const locationInputSchema = z
 	})
 	.strict();
 
+/** `PATCH /locations/:id`: rename (`code`, `name`, checked by `locationInputSchema`) or archive/restore. */
+export const locationPatchSchema = z
+	.object({ code: z.string().optional(), name: z.string().optional(), archived: z.boolean().optional() })
+	.strict();
+
+/** `GET /stock` filters. */
+export const stockQuerySchema = z
+	.object({ locationId: z.coerce.number().int().positive().optional(), partId: z.coerce.number().int().positive().optional() })
+	.strict();
+
 async function assertCodeFree(db: DbOrTx, code: string, exceptId: number | null) {
 	const [other] = await db.select({ id: locations.id }).from(locations).where(eq(locations.code, code));
 	if (other && other.id !== exceptId) throw new DomainError(409, 'duplicate-code', `Location ${code} exists already.`, { code: 'This code is in use.' });

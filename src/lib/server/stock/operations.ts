@@ -46,6 +46,11 @@ const quantity = z.number({ error: 'Enter a number of units.' }).int('Whole unit
 const note = text().trim().max(2000, 'At most 2000 characters.').nullable().optional();
 const condition = z.enum(CONDITIONS, { error: 'Choose usable, quarantine or damaged.' });
 
+/** `GET /parts/:id/movements` paging. */
+export const movementQuerySchema = z
+	.object({ limit: z.coerce.number().int().min(1).max(500).default(100), offset: z.coerce.number().int().min(0).default(0) })
+	.strict();
+
 export const receiveSchema = z.object({ partId: id, quantity, locationId: id, condition: condition.default('usable'), note }).strict();
 export const moveSchema = z
 	.object({ partId: id, quantity, fromLocationId: id, toLocationId: id, condition: condition.default('usable'), note })

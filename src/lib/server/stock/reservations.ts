@@ -16,6 +16,15 @@ import { totalsOf } from './availability';
 
 const MAX_DAYS = 366;
 
+/** `GET /reservations` filters: `?partId=`, `?mine=true`, `?active=true`. */
+export const reservationQuerySchema = z
+	.object({
+		partId: z.coerce.number().int().positive().optional(),
+		mine: z.enum(['true', 'false']).optional(),
+		active: z.enum(['true', 'false']).optional()
+	})
+	.strict();
+
 export const reservationInputSchema = z
 	.object({
 		partId: z.number({ error: 'Choose a part.' }).int().positive(),

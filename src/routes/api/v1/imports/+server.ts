@@ -1,6 +1,5 @@
 import { json } from '@sveltejs/kit';
 import { eq } from 'drizzle-orm';
-import { z } from 'zod';
 import type { RequestHandler } from './$types';
 import { db } from '$lib/server/db';
 import { suppliers } from '$lib/server/db/schema';
@@ -10,14 +9,10 @@ import { STOCK_EDITORS } from '$lib/server/auth/roles';
 import { appStore } from '$lib/server/files/store';
 import * as importsService from '$lib/server/imports/service';
 
-const listQuery = z
-	.object({ page: z.coerce.number().int().min(1).default(1), pageSize: z.coerce.number().int().min(1).max(200).default(50) })
-	.strict();
-
 /** The import history, newest first. */
 export const GET = endpoint(async (event) => {
 	requireRole(event, STOCK_EDITORS);
-	const q = listQuery.parse(Object.fromEntries(event.url.searchParams));
+	const q = importsService.listQuerySchema.parse(Object.fromEntries(event.url.searchParams));
 	return json(await importsService.listImports(db, q));
 }) satisfies RequestHandler;
 
