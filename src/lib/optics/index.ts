@@ -45,7 +45,6 @@ export * from './physical';
 export * from './placement';
 export * from './raytrace';
 export * from './spot';
-export * from './seidel';
 export * from './gaussian';
 export * from './coupling';
 export * from './fibre';

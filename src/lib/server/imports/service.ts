@@ -13,7 +13,7 @@ import { recordAudit } from '$lib/server/audit';
 import type { ObjectStore } from '$lib/server/files/s3';
 import { CSV_MAX_BYTES, csvLine, csvRecords, escapeFormula, spoolCsv, type CheckedCsv, type Delimiter, type SpooledCsv } from './csv';
 import { readMultipartStream } from '$lib/server/files/multipart';
-import { fieldLabel, hasDecimals, IMPORT_FIELDS, isImportField, isLengthField, LENGTH_UNITS, PRICE_UNITS, priceUnitUnknown, suggestMapping, type PriceUnit, type Suggestion } from './fields';
+import { fieldLabel, hasDecimals, isImportField, isLengthField, LENGTH_UNITS, PRICE_UNITS, priceUnitUnknown, suggestMapping, type PriceUnit, type Suggestion } from './fields';
 import fs from 'node:fs';
 import type { Readable } from 'node:stream';
 import { isStale, runImport, STALE_AFTER_MS, type RunHooks } from './run';
@@ -376,9 +376,6 @@ export async function* errorReportCsv(db: DbOrTx, id: number): AsyncGenerator<st
 		yield rows.map((r) => csvLine([r.row, escapeFormula(r.column), escapeFormula(r.value ?? ''), escapeFormula(r.message)])).join('');
 	}
 }
-
-/** The fields the mapping screen offers, in order. */
-export const MAPPABLE_FIELDS = IMPORT_FIELDS;
 
 /** The first `n` data rows of the stored file (for the mapping screen). */
 export async function previewRows(db: DbOrTx, store: ObjectStore, id: number, n = 5): Promise<string[][]> {

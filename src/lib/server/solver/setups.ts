@@ -50,20 +50,6 @@ export const reserveInputSchema = z
 	})
 	.strict();
 
-/**
- * The choice of a solution (what a client sends back to save it). Mode beam: objectDistanceMm is
- * the first vertex from z = 0 and backDistanceMm the last vertex to the target waist; mode afocal:
- * both 0 and the one gap.
- */
-export function choiceOf(s: AnySolution): Choice {
-	return {
-		elements: s.elements.map((e) => ({ partId: e.partId, reversed: e.reversed })),
-		objectDistanceMm: s.objectDistanceMm,
-		gapsMm: s.gapsMm,
-		backDistanceMm: s.backDistanceMm
-	};
-}
-
 const notAnswer = (message: string, field = 'choice') => new DomainError(400, 'invalid-input', message, { [field]: message });
 
 /** The chosen parts as oriented elements at the question's wavelength; 400 when a part is unknown or cannot be built. */
