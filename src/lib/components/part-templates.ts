@@ -8,7 +8,7 @@
  * achromat condition φ1/V1 + φ2/V2 = 0 (Hecht §6.3.2, from memory). Centre thicknesses
  * leave about 1.5 mm of edge for positive lenses and 1.5 mm of centre for negative ones.
  */
-import { buildElement, cardinalPoints, refractiveIndex, sagFromRadiusMm } from '$lib/optics';
+import { buildElement, cardinalPoints, refractiveIndex, sagFromRadiusMm, WAVELENGTH_D_NM } from '$lib/optics';
 
 export interface TemplateSurface {
 	radiusMm: number | null;
@@ -20,7 +20,7 @@ const round = (x: number, digits = 2) => Math.round(x * 10 ** digits) / 10 ** di
 
 function nOf(material: string): number {
 	try {
-		return refractiveIndex(material, 587.5618);
+		return refractiveIndex(material, WAVELENGTH_D_NM);
 	} catch {
 		return 1.517;
 	}
@@ -44,7 +44,7 @@ function matchEfl(surfaces: TemplateSurface[], targetMm: number): TemplateSurfac
 	for (let pass = 0; pass < 4; pass++) {
 		const built = buildElement(
 			out.map((s, i) => (i === out.length - 1 ? { radiusMm: s.radiusMm } : { radiusMm: s.radiusMm, thicknessMm: s.thicknessMm ?? 0, material: s.material })),
-			587.5618
+			WAVELENGTH_D_NM
 		);
 		const cp = built.ok ? cardinalPoints(built.value.matrix) : null;
 		if (!cp || !(cp.eflMm / targetMm > 0)) return out;
