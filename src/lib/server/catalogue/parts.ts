@@ -13,7 +13,7 @@
  *   const { id } = await parts.createPart(db, body, { id: user.id });
  *   const json = await parts.getPartJson(db, id);
  */
-import { and, desc, eq, inArray } from 'drizzle-orm';
+import { and, desc, eq } from 'drizzle-orm';
 import { ZodError } from 'zod';
 import type { DbOrTx } from '$lib/server/db';
 import { inTransaction } from '$lib/server/db/transaction';
@@ -22,16 +22,15 @@ import type { Role } from '$lib/server/db/schema';
 import { DomainError } from '$lib/server/api/http';
 import { recordAudit } from '$lib/server/audit';
 import { bumpStockVersion } from '$lib/server/stock/version';
-import { totalsFor } from '$lib/server/stock/availability';
 import { opticsPartOf, paraxialColumns, type MeasuredEfl } from './derived';
 import { partInputSchema, partPatchSchema, PURCHASING_FIELDS, toSurfaceSpecs, type PartInput, type PartPatch } from './part-input';
-import { toPartJson, type PartJson } from './part-json';
+import { partsJson, type PartJson } from './part-json';
 import { getDefaultWavelengthNm } from './settings';
 import { toMajor, toMinor } from '$lib/money';
 
 export { partInputSchema, partPatchSchema, partFieldsSchema, PURCHASING_FIELDS } from './part-input';
 export type { PartInput, PartPatch } from './part-input';
-export { toPartJson, type PartJson } from './part-json';
+export { partsJson, toPartJson, type PartJson } from './part-json';
 export { computeDerived, paraxialColumns } from './derived';
 export { listParts, listQuerySchema, type ListQuery } from './list';
 
@@ -299,31 +298,6 @@ export async function getPart(db: DbOrTx, id: number, opts: { forUpdate?: boolea
 export async function findPartIdBySku(db: DbOrTx, sku: string): Promise<number | null> {
 	const [row] = await db.select({ id: parts.id }).from(parts).where(eq(parts.sku, sku)).limit(1);
 	return row?.id ?? null;
-}
-
-/** Part JSON of many parts at once (one query per table), in the order of `rows`. */
-export async function partsJson(db: DbOrTx, rows: readonly Part[]): Promise<PartJson[]> {
-	if (!rows.length) return [];
-	const ids = rows.map((r) => r.id);
-	const [surfaceRows, supplierRows, measurementRows, totals, wl] = await Promise.all([
-		db.select().from(partSurfaces).where(inArray(partSurfaces.partId, ids)),
-		db.select({ id: suppliers.id, name: suppliers.name }).from(suppliers),
-		db.select().from(measurements).where(inArray(measurements.partId, ids)).orderBy(desc(measurements.measuredAt), desc(measurements.id)),
-		totalsFor(db, ids),
-		getDefaultWavelengthNm(db)
-	]);
-	const supplierName = new Map(supplierRows.map((s) => [s.id, s.name]));
-	const latest = new Map<number, (typeof measurementRows)[number]>();
-	for (const m of measurementRows) if (!latest.has(m.partId)) latest.set(m.partId, m);
-	return rows.map((p) =>
-		toPartJson(p, {
-			surfaces: surfaceRows.filter((s) => s.partId === p.id),
-			supplierName: p.supplierId ? (supplierName.get(p.supplierId) ?? null) : null,
-			totals: totals.get(p.id)!,
-			measured: latest.get(p.id) ?? null,
-			defaultWavelengthNm: wl
-		})
-	);
 }
 
 /** Part JSON of one part; throws 404 when it does not exist. */
