@@ -6,7 +6,7 @@ import { ANY_ROLE, STOCK_EDITORS } from '$lib/server/auth/roles';
 import * as parts from '$lib/server/catalogue/parts';
 import { filterOptions, listQuerySchema } from '$lib/server/catalogue/list';
 import { getDefaultWavelengthNm } from '$lib/server/catalogue/settings';
-import { zodFields } from '$lib/server/api/http';
+import { zodFields } from '$lib/server/errors';
 
 /** The catalogue page renders its first page on the server from the URL; the client then pages through the API. */
 export const load = (async (event) => {

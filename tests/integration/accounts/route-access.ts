@@ -110,7 +110,7 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	'/labels': { GET: STOCK_EDITORS },
 	'/scan': { GET: STOCK_HANDLERS },
 	'/stock-take': { GET: STOCK_EDITORS, actions: { check: STOCK_EDITORS, commit: STOCK_EDITORS } },
-	'/stock-take/[location]': { url: '/stock-take/99999999', GET: STOCK_EDITORS, actions: { check: STOCK_EDITORS, commit: STOCK_EDITORS } },
+	'/stock-take/[location=id]': { url: '/stock-take/99999999', GET: STOCK_EDITORS, actions: { check: STOCK_EDITORS, commit: STOCK_EDITORS } },
 	'/api/v1/stock/scrap': { POST: STOCK_EDITORS },
 	'/api/v1/stock/condition': { POST: STOCK_EDITORS },
 	'/api/v1/stock/issue': { POST: STOCK_HANDLERS },

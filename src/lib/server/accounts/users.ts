@@ -6,7 +6,7 @@ import { and, asc, count, eq, isNull } from 'drizzle-orm';
 import { z } from 'zod';
 import type { Db, Tx } from '$lib/server/db';
 import { apiTokens, ROLES, sessions, users, type Role } from '$lib/server/db/schema';
-import { DomainError } from '$lib/server/api/http';
+import { Conflict, DomainError, NotFound } from '$lib/server/errors';
 import { recordAudit } from '$lib/server/audit';
 import { createLink, LINK_LIFETIME_MS } from './links';
 import * as notify from './notify';
@@ -23,14 +23,14 @@ export const inviteSchema = z
 export const roleChangeSchema = z.object({ userId: z.coerce.number().int().positive(), role: z.enum(ROLES, { message: 'Choose a role.' }) }).strict();
 export const userIdSchema = z.object({ userId: z.coerce.number().int().positive() }).strict();
 
-export class UserNotFound extends DomainError {
+export class UserNotFound extends NotFound {
 	constructor() {
-		super(404, 'not-found', 'No such user.');
+		super('No such user.');
 	}
 }
-export class LastAdmin extends DomainError {
+export class LastAdmin extends Conflict {
 	constructor() {
-		super(409, 'last-admin', 'This is the last active administrator: make someone else an administrator first.');
+		super('last-admin', 'This is the last active administrator: make someone else an administrator first.');
 	}
 }
 

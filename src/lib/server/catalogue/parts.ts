@@ -19,7 +19,7 @@ import type { DbOrTx } from '$lib/server/db';
 import { inTransaction } from '$lib/server/db/transaction';
 import { measurements, movements, partSurfaces, parts, reservations, stock, suppliers, type Part } from '$lib/server/db/schema';
 import type { Role } from '$lib/server/db/schema';
-import { DomainError } from '$lib/server/api/http';
+import { DomainError, NotFound } from '$lib/server/errors';
 import { recordAudit } from '$lib/server/audit';
 import { bumpStockVersion } from '$lib/server/stock/version';
 import { opticsPartOf, paraxialColumns, type MeasuredEfl } from './derived';
@@ -39,9 +39,9 @@ export interface Actor {
 	role?: Role;
 }
 
-export class PartNotFound extends DomainError {
+export class PartNotFound extends NotFound {
 	constructor(id: number | string) {
-		super(404, 'not-found', `There is no part ${id}.`);
+		super(`There is no part ${id}.`);
 	}
 }
 

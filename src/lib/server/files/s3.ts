@@ -14,7 +14,7 @@ import {
 	S3Client,
 	S3ServiceException
 } from '@aws-sdk/client-s3';
-import { DomainError } from '$lib/server/api/http';
+import { DomainError, NotFound } from '$lib/server/errors';
 
 export interface ObjectStoreConfig {
 	endpoint?: string;
@@ -47,9 +47,9 @@ export class StorageUnavailable extends DomainError {
 }
 
 /** The object does not exist (deleted behind our back, or a wrong key). */
-export class ObjectMissing extends DomainError {
+export class ObjectMissing extends NotFound {
 	constructor(key: string) {
-		super(404, 'object-missing', `The stored file ${key} is missing from the file store.`);
+		super(`The stored file ${key} is missing from the file store.`, 'object-missing');
 	}
 }
 

@@ -8,7 +8,7 @@ import { and, asc, count, desc, eq, gt, inArray, isNull, lt, notInArray, or } fr
 import { z } from 'zod';
 import type { Db, DbOrTx } from '$lib/server/db';
 import { importRowErrors, imports, suppliers, users, type ImportRecord, type ImportStatus } from '$lib/server/db/schema';
-import { ApiError, DomainError } from '$lib/server/api/http';
+import { DomainError, NotFound } from '$lib/server/errors';
 import { recordAudit } from '$lib/server/audit';
 import type { ObjectStore } from '$lib/server/files/s3';
 import { CSV_MAX_BYTES, csvLine, csvRecords, escapeFormula, spoolCsv, type CheckedCsv, type Delimiter, type SpooledCsv } from './csv';
@@ -43,9 +43,9 @@ export interface ImportReport {
 	message: string | null;
 }
 
-export class ImportNotFound extends DomainError {
+export class ImportNotFound extends NotFound {
 	constructor(id: number) {
-		super(404, 'not-found', `There is no import ${id}.`);
+		super(`There is no import ${id}.`);
 	}
 }
 
@@ -74,7 +74,7 @@ export async function createImport(
 		let saved: Suggestion | null = null;
 		if (input.supplierId !== null) {
 			const [s] = await db.select().from(suppliers).where(eq(suppliers.id, input.supplierId));
-			if (!s) throw new ApiError(400, 'invalid-input', 'That supplier does not exist.', { supplier: 'Choose a supplier from the list.' });
+			if (!s) throw new DomainError(400, 'invalid-input', 'That supplier does not exist.', { supplier: 'Choose a supplier from the list.' });
 			saved = (s.importMapping as Suggestion | null) ?? null;
 		}
 		const suggestion = suggestMapping(csv.header, saved);

@@ -22,7 +22,7 @@ import {
 	type RequestStatus,
 	type Role
 } from '$lib/server/db/schema';
-import { DomainError } from '$lib/server/api/http';
+import { Conflict, DomainError } from '$lib/server/errors';
 import { receive as receiveStock } from '$lib/server/stock/operations';
 import { totalsOf } from '$lib/server/stock/availability';
 import { EDITABLE, NAMED_STEPS, RECEIVABLE, STATUS_LABELS, canStep, statusAfterReceipt } from './states';
@@ -85,11 +85,10 @@ export const patchRequestSchema = z
 	});
 export type PatchRequestInput = z.input<typeof patchRequestSchema>;
 
-export class IllegalTransition extends DomainError {
+export class IllegalTransition extends Conflict {
 	constructor(from: RequestStatus, to: RequestStatus) {
 		const allowed = NAMED_STEPS[from];
 		super(
-			409,
 			'illegal-transition',
 			`A request that is ${STATUS_LABELS[from].toLowerCase()} cannot become ${STATUS_LABELS[to].toLowerCase()}` +
 				(to === 'received' || to === 'partly-received' ? ': receive the goods instead.' : allowed.length ? ` (allowed: ${allowed.join(', ')}).` : ' (no further steps).'),

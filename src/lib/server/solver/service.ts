@@ -8,7 +8,7 @@
  * MariaDB).
  */
 import type { DbOrTx } from '$lib/server/db';
-import { DomainError } from '$lib/server/api/http';
+import { DomainError } from '$lib/server/errors';
 import { solveRequestSchema } from '$lib/solver/request';
 import type { AnySolveResponse } from '$lib/solver/types';
 import { stockView } from './load-stock';

@@ -10,7 +10,7 @@ import { dateInput, text } from '$lib/input';
 import type { DbOrTx } from '$lib/server/db';
 import { inTransaction } from '$lib/server/db/transaction';
 import { setups, projects, users, reservations } from '$lib/server/db/schema';
-import { DomainError } from '$lib/server/api/http';
+import { DomainError } from '$lib/server/errors';
 import { reserve, reservationRows } from '$lib/server/stock/reservations';
 import { solveRequestSchema, type ParsedAfocalRequest, type ParsedBeamRequest, type ParsedImagingRequest, type ParsedSolveRequest } from '$lib/solver/request';
 import type { AfocalSolution, AnySolution, BeamSolution, Solution } from '$lib/solver/types';

@@ -9,7 +9,7 @@ import { text } from '$lib/input';
 import type { DbOrTx } from '$lib/server/db';
 import { inTransaction } from '$lib/server/db/transaction';
 import { locations, movements, parts, stock } from '$lib/server/db/schema';
-import { DomainError } from '$lib/server/api/http';
+import { DomainError } from '$lib/server/errors';
 import { recordAudit } from '$lib/server/audit';
 
 export const locationInputSchema = z

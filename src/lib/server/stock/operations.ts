@@ -32,12 +32,12 @@ import {
 	type Condition,
 	type MovementKind
 } from '$lib/server/db/schema';
-import { DomainError } from '$lib/server/api/http';
+import { Conflict, DomainError } from '$lib/server/errors';
 import { bumpStockVersion } from './version';
 
-export class InsufficientStock extends DomainError {
+export class InsufficientStock extends Conflict {
 	constructor(message: string) {
-		super(409, 'insufficient-stock', message, { quantity: message });
+		super('insufficient-stock', message, { quantity: message });
 	}
 }
 

@@ -10,7 +10,7 @@ import type { DbOrTx, Tx } from '$lib/server/db';
 import { inTransaction } from '$lib/server/db/transaction';
 import { parts, projects, reservations, users } from '$lib/server/db/schema';
 import type { Role } from '$lib/server/db/schema';
-import { DomainError } from '$lib/server/api/http';
+import { DomainError } from '$lib/server/errors';
 import { bumpStockVersion } from './version';
 import { totalsOf } from './availability';
 

@@ -1,4 +1,4 @@
-import { error, fail, redirect } from '@sveltejs/kit';
+import { error, redirect } from '@sveltejs/kit';
 import type { Actions, PageServerLoad, RequestEvent } from './$types';
 import { db } from '$lib/server/db';
 import { hasRole, requireRole } from '$lib/server/auth/guard';
@@ -14,11 +14,10 @@ import { movementRows } from '$lib/server/stock/operations';
 import * as reservations from '$lib/server/stock/reservations';
 import { listProjects } from '$lib/server/stock/projects';
 import { guarded, stockFormAction } from '$lib/server/stock/form-actions';
+import { formFailure } from '$lib/server/form-failure';
 
-function idOf(event: Pick<RequestEvent, 'params'>) {
-	if (!/^[1-9]\d{0,15}$/.test(event.params.id)) error(404, { message: 'There is no such part.' });
-	return Number(event.params.id);
-}
+/** The part's id (the `id` matcher has checked it). */
+const idOf = (event: Pick<RequestEvent, 'params'>) => Number(event.params.id);
 
 export const load = (async (event) => {
 	const user = requireRole(event, ANY_ROLE);
@@ -126,7 +125,7 @@ export const actions = {
 		const user = requireRole(event, RESERVERS);
 		const form = await event.request.formData();
 		const rid = Number(form.get('reservationId'));
-		if (!Number.isInteger(rid) || rid <= 0) return fail(404, { op: 'release', errors: { _: 'There is no such reservation.' }, values: {} });
+		if (!Number.isInteger(rid) || rid <= 0) return formFailure(404, { form: 'release', message: 'There is no such reservation.' });
 		return guarded('release', form, () => reservations.releaseReservation(db, rid, user));
 	},
 	archive: async (event) => {

@@ -1,7 +1,8 @@
 import { json } from '@sveltejs/kit';
 import type { RequestHandler } from './$types';
 import { db } from '$lib/server/db';
-import { ApiError, endpoint, readJson } from '$lib/server/api/http';
+import { endpoint, readJson } from '$lib/server/api/http';
+import { DomainError } from '$lib/server/errors';
 import { requireRole } from '$lib/server/auth/guard';
 import { ANY_ROLE, STOCK_EDITORS } from '$lib/server/auth/roles';
 import * as locations from '$lib/server/stock/locations';
@@ -12,7 +13,7 @@ export const GET = endpoint(async (event) => {
 	requireRole(event, ANY_ROLE);
 	const id = idParam(event.params.id, 'location');
 	const l = await locations.getLocation(db, id);
-	if (!l) throw new ApiError(404, 'not-found', `There is no location ${id}.`);
+	if (!l) throw new DomainError(404, 'not-found', `There is no location ${id}.`);
 	return json({ ...locations.toLocationJson(l), stock: await locations.stockRows(db, { locationId: id }) });
 }) satisfies RequestHandler;
 
@@ -22,7 +23,7 @@ export const PATCH = endpoint(async (event) => {
 	const id = idParam(event.params.id, 'location');
 	const body = locations.locationPatchSchema.parse(await readJson(event.request));
 	const current = await locations.getLocation(db, id);
-	if (!current) throw new ApiError(404, 'not-found', `There is no location ${id}.`);
+	if (!current) throw new DomainError(404, 'not-found', `There is no location ${id}.`);
 	let out = locations.toLocationJson(current);
 	if (body.code !== undefined || body.name !== undefined) {
 		out = await locations.updateLocation(db, id, { code: body.code ?? current.code, name: body.name ?? current.name }, { id: user.id });
