@@ -3,7 +3,7 @@ import { z } from 'zod';
 import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { requireRole } from '$lib/server/auth/guard';
-import { ANY_ROLE, ROLE_LABELS } from '$lib/server/auth/roles';
+import { ADMINS, ANY_ROLE, inSet, ROLE_LABELS } from '$lib/roles';
 import { endOtherSessions, endSessionByHandle, listSessions } from '$lib/server/auth/sessions';
 import { failFrom, formFailure } from '$lib/server/form-failure';
 import * as twoStep from '$lib/server/accounts/two-step';
@@ -20,7 +20,7 @@ export const load = (async (event) => {
 		twoStep: {
 			...(await twoStep.status(db, user.id)),
 			setup: await twoStep.setupView(db, user, env.AUTH_PEPPER),
-			isAdmin: user.role === 'admin'
+			isAdmin: inSet(user.role, ADMINS)
 		}
 	};
 }) satisfies PageServerLoad;

@@ -3,7 +3,7 @@ import { ZodError } from 'zod';
 import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { hasRole, requireRole } from '$lib/server/auth/guard';
-import { PURCHASERS, SOLVER_USERS } from '$lib/server/auth/roles';
+import { PURCHASERS, SOLVER_USERS } from '$lib/roles';
 import { DomainError, zodFields } from '$lib/server/errors';
 import { failFrom, formFailure } from '$lib/server/form-failure';
 import { unlockForQuestion } from '$lib/server/purchasing/unlock-search';

@@ -1,7 +1,7 @@
 import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { hasRole, requireRole } from '$lib/server/auth/guard';
-import { ANY_ROLE, STOCK_EDITORS } from '$lib/server/auth/roles';
+import { ANY_ROLE, STOCK_EDITORS } from '$lib/roles';
 import * as locations from '$lib/server/stock/locations';
 import { guarded } from '$lib/server/stock/form-actions';
 import { readForm } from '$lib/server/catalogue/forms';

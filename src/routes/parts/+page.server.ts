@@ -2,7 +2,7 @@ import { error } from '@sveltejs/kit';
 import type { PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { requireRole, hasRole } from '$lib/server/auth/guard';
-import { ANY_ROLE, STOCK_EDITORS } from '$lib/server/auth/roles';
+import { ANY_ROLE, STOCK_EDITORS } from '$lib/roles';
 import * as parts from '$lib/server/catalogue/parts';
 import { filterOptions, listQuerySchema } from '$lib/server/catalogue/list';
 import { getDefaultWavelengthNm } from '$lib/server/catalogue/settings';

@@ -2,7 +2,7 @@ import { redirect } from '@sveltejs/kit';
 import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { requireRole } from '$lib/server/auth/guard';
-import { PURCHASERS } from '$lib/server/auth/roles';
+import { PURCHASERS } from '$lib/roles';
 import { failFrom, formFailure } from '$lib/server/form-failure';
 import * as board from '$lib/server/purchasing/board';
 import * as requests from '$lib/server/purchasing/requests';

@@ -3,10 +3,9 @@ import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { REQUEST_STATUSES, type RequestStatus } from '$lib/server/db/schema';
 import { requireRole } from '$lib/server/auth/guard';
-import { PURCHASERS } from '$lib/server/auth/roles';
+import { PURCHASERS, REQUEST_VIEWERS } from '$lib/roles';
 import { failFrom, formFailure } from '$lib/server/form-failure';
 import * as requests from '$lib/server/purchasing/requests';
-import { REQUEST_VIEWERS } from '$lib/server/purchasing/roles';
 import { STATUS_LABELS } from '$lib/server/purchasing/states';
 import { findPartIdBySku } from '$lib/server/catalogue/parts';
 

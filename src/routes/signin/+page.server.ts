@@ -5,7 +5,7 @@ import { db } from '$lib/server/db';
 import { attemptSignin, INVALID_CREDENTIALS, safeRedirect, signinSchema, throttledMessage } from '$lib/server/accounts/signin';
 import { startSession } from '$lib/server/auth/sessions';
 import { requireRole } from '$lib/server/auth/guard';
-import { PUBLIC } from '$lib/server/auth/roles';
+import { PUBLIC } from '$lib/roles';
 import { SECOND_FACTOR_PAGE } from '$lib/server/auth/public-paths';
 import { formFailure } from '$lib/server/form-failure';
 

@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { requireRole } from '$lib/server/auth/guard';
-import { STOCK_EDITORS } from '$lib/server/auth/roles';
+import { STOCK_EDITORS } from '$lib/roles';
 import { readCsvUpload } from '$lib/server/imports/service';
 import { csvRecords, type Delimiter } from '$lib/server/imports/csv';
 import { listLocations } from '$lib/server/stock/locations';

@@ -1,7 +1,7 @@
 import type { PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { requireRole } from '$lib/server/auth/guard';
-import { ANY_ROLE, STOCK_EDITORS, STOCK_HANDLERS } from '$lib/server/auth/roles';
+import { ANY_ROLE, STOCK_EDITORS, STOCK_HANDLERS } from '$lib/roles';
 import { listLocations, stockRows } from '$lib/server/stock/locations';
 import { idOf } from '$lib/id';
 

@@ -17,7 +17,7 @@
  *   role-matrix.test.ts's HALF_SIGNED_IN list.
  */
 import type { Role } from '../../../src/lib/server/db/schema';
-import { ADMINS, ANY_ROLE, PUBLIC, PURCHASERS, RESERVERS, SOLVER_USERS, STOCK_EDITORS, STOCK_HANDLERS } from '../../../src/lib/server/auth/roles';
+import { ADMINS, ANY_ROLE, PUBLIC, PURCHASERS, RESERVERS, SOLVER_USERS, STOCK_EDITORS, STOCK_HANDLERS } from '../../../src/lib/roles';
 
 export type Access = typeof PUBLIC | readonly Role[];
 export type Method = 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE';

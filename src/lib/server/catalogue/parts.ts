@@ -27,6 +27,7 @@ import { partInputSchema, partPatchSchema, PURCHASING_FIELDS, toSurfaceSpecs, ty
 import { partsJson, type PartJson } from './part-json';
 import { getDefaultWavelengthNm } from './settings';
 import { toMajor, toMinor } from '$lib/money';
+import { inSet, PURCHASING_FIELDS_ONLY, STOCK_EDITORS } from '$lib/roles';
 
 export { partInputSchema, partPatchSchema, partFieldsSchema, PURCHASING_FIELDS } from './part-input';
 export type { PartInput, PartPatch } from './part-input';
@@ -203,8 +204,8 @@ export function toInput(record: PartRecord): PartInput {
  * lead time, reorder point and quantity). Anything else is 403.
  */
 export function assertPatchAllowed(role: Role | undefined, patch: PartPatch) {
-	if (role === 'admin' || role === 'stockroom') return;
-	if (role === 'purchaser') {
+	if (inSet(role, STOCK_EDITORS)) return;
+	if (inSet(role, PURCHASING_FIELDS_ONLY)) {
 		const other = Object.keys(patch).filter((k) => !(PURCHASING_FIELDS as readonly string[]).includes(k));
 		if (other.length) {
 			throw new DomainError(403, 'forbidden', `A purchaser may change only the purchasing fields, not: ${other.join(', ')}.`);

@@ -1,7 +1,7 @@
 import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { requireRole } from '$lib/server/auth/guard';
-import { ADMINS } from '$lib/server/auth/roles';
+import { ADMINS } from '$lib/roles';
 import { failFrom } from '$lib/server/form-failure';
 import { COMMON_WAVELENGTHS_NM, LAB_WAVELENGTH_RANGE_NM, labSettingsSchema, setDefaultWavelength, wavelengthSetting } from '$lib/server/catalogue/lab-settings';
 

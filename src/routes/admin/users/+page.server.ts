@@ -2,7 +2,7 @@ import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { ROLES } from '$lib/server/db/schema';
 import { requireRole } from '$lib/server/auth/guard';
-import { ADMINS, ROLE_LABELS } from '$lib/server/auth/roles';
+import { ADMINS, ROLE_LABELS } from '$lib/roles';
 import { attempt, failFrom, formFailure } from '$lib/server/form-failure';
 import * as accounts from '$lib/server/accounts/users';
 import * as twoStep from '$lib/server/accounts/two-step';

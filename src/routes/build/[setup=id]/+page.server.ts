@@ -3,7 +3,7 @@ import { z, ZodError } from 'zod';
 import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { requireRole, hasRole } from '$lib/server/auth/guard';
-import { SOLVER_USERS, RESERVERS, PURCHASERS } from '$lib/server/auth/roles';
+import { SOLVER_USERS, RESERVERS, PURCHASERS } from '$lib/roles';
 import { DomainError } from '$lib/server/errors';
 import { failFrom, formFailure } from '$lib/server/form-failure';
 import { setupShortfall, unlockForSetup } from '$lib/server/purchasing/unlock-search';

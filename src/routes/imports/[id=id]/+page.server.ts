@@ -7,7 +7,7 @@ import { DomainError } from '$lib/server/errors';
 import { failFrom } from '$lib/server/form-failure';
 import { formStrings } from '$lib/server/catalogue/forms';
 import { requireRole } from '$lib/server/auth/guard';
-import { STOCK_EDITORS } from '$lib/server/auth/roles';
+import { STOCK_EDITORS } from '$lib/roles';
 import { appStore } from '$lib/server/files/store';
 import { fieldLabel, isLengthField, MAX_SURFACES, SCALAR_FIELDS, surfaceFields } from '$lib/server/imports/fields';
 import * as importsService from '$lib/server/imports/service';

@@ -3,7 +3,7 @@ import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { failFrom, formFailure } from '$lib/server/form-failure';
 import { requireRole } from '$lib/server/auth/guard';
-import { STOCK_EDITORS } from '$lib/server/auth/roles';
+import { STOCK_EDITORS } from '$lib/roles';
 import { listSuppliers } from '$lib/server/catalogue/materials';
 import { appStore } from '$lib/server/files/store';
 import { CSV_MAX_BYTES } from '$lib/server/imports/csv';

@@ -2,7 +2,7 @@ import { error, redirect } from '@sveltejs/kit';
 import type { Actions, PageServerLoad, RequestEvent } from './$types';
 import { db } from '$lib/server/db';
 import { hasRole, requireRole } from '$lib/server/auth/guard';
-import { RESERVERS, STOCK_EDITORS, STOCK_HANDLERS, ANY_ROLE } from '$lib/server/auth/roles';
+import { ANY_ROLE, RESERVERS, STOCK_EDITORS, STOCK_OPERATION_ROLES, stockOperationsFor } from '$lib/roles';
 import * as parts from '$lib/server/catalogue/parts';
 import * as measurements from '$lib/server/catalogue/measurements';
 import { computeDerived } from '$lib/server/catalogue/derived';
@@ -70,39 +70,40 @@ export const load = (async (event) => {
 		userId: user.id,
 		can: {
 			edit: hasRole(user, STOCK_EDITORS),
-			handle: hasRole(user, STOCK_HANDLERS),
 			reserve: hasRole(user, RESERVERS)
-		}
+		},
+		/** The stock operations this role may run here (the table in `$lib/roles`). */
+		ops: stockOperationsFor(user.role)
 	};
 }) satisfies PageServerLoad;
 
 export const actions = {
 	receive: async (event) => {
-		const user = requireRole(event, STOCK_EDITORS);
+		const user = requireRole(event, STOCK_OPERATION_ROLES.receive);
 		return stockFormAction(event, 'receive', idOf(event), user);
 	},
 	move: async (event) => {
-		const user = requireRole(event, STOCK_EDITORS);
+		const user = requireRole(event, STOCK_OPERATION_ROLES.move);
 		return stockFormAction(event, 'move', idOf(event), user);
 	},
 	issue: async (event) => {
-		const user = requireRole(event, STOCK_HANDLERS);
+		const user = requireRole(event, STOCK_OPERATION_ROLES.issue);
 		return stockFormAction(event, 'issue', idOf(event), user);
 	},
 	return: async (event) => {
-		const user = requireRole(event, STOCK_HANDLERS);
+		const user = requireRole(event, STOCK_OPERATION_ROLES.return);
 		return stockFormAction(event, 'return', idOf(event), user);
 	},
 	adjust: async (event) => {
-		const user = requireRole(event, STOCK_EDITORS);
+		const user = requireRole(event, STOCK_OPERATION_ROLES.adjust);
 		return stockFormAction(event, 'adjust', idOf(event), user);
 	},
 	scrap: async (event) => {
-		const user = requireRole(event, STOCK_EDITORS);
+		const user = requireRole(event, STOCK_OPERATION_ROLES.scrap);
 		return stockFormAction(event, 'scrap', idOf(event), user);
 	},
 	condition: async (event) => {
-		const user = requireRole(event, STOCK_EDITORS);
+		const user = requireRole(event, STOCK_OPERATION_ROLES.condition);
 		return stockFormAction(event, 'condition', idOf(event), user);
 	},
 	measure: async (event) => {

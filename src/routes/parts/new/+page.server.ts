@@ -2,7 +2,7 @@ import { redirect } from '@sveltejs/kit';
 import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { requireRole } from '$lib/server/auth/guard';
-import { STOCK_EDITORS } from '$lib/server/auth/roles';
+import { STOCK_EDITORS } from '$lib/roles';
 import { failFrom } from '$lib/server/form-failure';
 import { PART_KINDS } from '$lib/server/db/schema';
 import * as parts from '$lib/server/catalogue/parts';

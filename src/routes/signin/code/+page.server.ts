@@ -3,7 +3,7 @@ import { env } from '$env/dynamic/private';
 import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { requireRole } from '$lib/server/auth/guard';
-import { ANY_ROLE } from '$lib/server/auth/roles';
+import { ANY_ROLE } from '$lib/roles';
 import { completeSecondFactor } from '$lib/server/auth/sessions';
 import { safeRedirect } from '$lib/server/accounts/signin';
 import * as twoStep from '$lib/server/accounts/two-step';

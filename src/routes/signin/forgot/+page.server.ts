@@ -1,7 +1,7 @@
 import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { requireRole } from '$lib/server/auth/guard';
-import { PUBLIC } from '$lib/server/auth/roles';
+import { PUBLIC } from '$lib/roles';
 import { requestReset, resetRequestSchema } from '$lib/server/accounts/passwords';
 import { waitText } from '$lib/server/auth/throttle';
 import { formFailure } from '$lib/server/form-failure';

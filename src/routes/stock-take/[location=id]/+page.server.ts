@@ -2,7 +2,7 @@ import { error } from '@sveltejs/kit';
 import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { requireRole } from '$lib/server/auth/guard';
-import { STOCK_EDITORS } from '$lib/server/auth/roles';
+import { STOCK_EDITORS } from '$lib/roles';
 import * as take from '$lib/server/stock/stock-take';
 import { countFailure, linesFromForm } from '$lib/server/stock/stock-take-forms';
 import { formFailure } from '$lib/server/form-failure';

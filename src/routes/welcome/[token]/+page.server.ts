@@ -3,7 +3,7 @@ import { env } from '$env/dynamic/private';
 import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { requireRole } from '$lib/server/auth/guard';
-import { PUBLIC } from '$lib/server/auth/roles';
+import { PUBLIC } from '$lib/roles';
 import { newPasswordPairSchema } from '$lib/server/auth/password-policy';
 import { startSession } from '$lib/server/auth/sessions';
 import { checkLink, LINK_REFUSALS } from '$lib/server/accounts/links';

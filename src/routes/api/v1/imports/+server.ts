@@ -6,7 +6,7 @@ import { suppliers } from '$lib/server/db/schema';
 import { endpoint } from '$lib/server/api/http';
 import { DomainError } from '$lib/server/errors';
 import { requireRole } from '$lib/server/auth/guard';
-import { STOCK_EDITORS } from '$lib/server/auth/roles';
+import { STOCK_EDITORS } from '$lib/roles';
 import { appStore } from '$lib/server/files/store';
 import * as importsService from '$lib/server/imports/service';
 

@@ -5,7 +5,7 @@ import { db } from '$lib/server/db';
 import { endpoint, errorResponse, readJson } from '$lib/server/api/http';
 import { DomainError } from '$lib/server/errors';
 import { requireRole } from '$lib/server/auth/guard';
-import { ANY_ROLE, PUBLIC } from '$lib/server/auth/roles';
+import { ANY_ROLE, PUBLIC } from '$lib/roles';
 import { endSession, startSession } from '$lib/server/auth/sessions';
 import { attemptSignin, INVALID_CREDENTIALS, signinSchema, throttledMessage } from '$lib/server/accounts/signin';
 

@@ -5,7 +5,7 @@ import { db } from '$lib/server/db';
 import { endpoint } from '$lib/server/api/http';
 import { DomainError } from '$lib/server/errors';
 import { requireRole } from '$lib/server/auth/guard';
-import { STOCK_EDITORS } from '$lib/server/auth/roles';
+import { STOCK_EDITORS } from '$lib/roles';
 import { readCsvUpload } from '$lib/server/imports/service';
 import { csvRecords, type Delimiter } from '$lib/server/imports/csv';
 import { linesFromCsv, stockTake, StockTakeRefused } from '$lib/server/stock/stock-take';

@@ -2,7 +2,7 @@ import { error } from '@sveltejs/kit';
 import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { requireRole } from '$lib/server/auth/guard';
-import { PURCHASERS } from '$lib/server/auth/roles';
+import { PURCHASERS } from '$lib/roles';
 import { DomainError } from '$lib/server/errors';
 import { failFrom } from '$lib/server/form-failure';
 import * as parts from '$lib/server/catalogue/parts';

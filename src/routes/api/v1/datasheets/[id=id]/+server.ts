@@ -5,7 +5,7 @@ import { db } from '$lib/server/db';
 import { endpoint } from '$lib/server/api/http';
 import { DomainError } from '$lib/server/errors';
 import { requireRole } from '$lib/server/auth/guard';
-import { ANY_ROLE, STOCK_EDITORS } from '$lib/server/auth/roles';
+import { ANY_ROLE, STOCK_EDITORS } from '$lib/roles';
 import * as datasheets from '$lib/server/files/datasheets';
 import { appStore } from '$lib/server/files/store';
 

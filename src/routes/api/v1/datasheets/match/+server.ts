@@ -3,7 +3,7 @@ import type { RequestHandler } from './$types';
 import { db } from '$lib/server/db';
 import { endpoint, readJson } from '$lib/server/api/http';
 import { requireRole } from '$lib/server/auth/guard';
-import { STOCK_EDITORS } from '$lib/server/auth/roles';
+import { STOCK_EDITORS } from '$lib/roles';
 import * as datasheets from '$lib/server/files/datasheets';
 
 /** Bulk attach, step 1: which dropped files are named after a SKU (the rest are for manual matching). */

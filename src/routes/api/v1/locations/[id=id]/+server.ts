@@ -4,7 +4,7 @@ import { db } from '$lib/server/db';
 import { endpoint, readJson } from '$lib/server/api/http';
 import { DomainError } from '$lib/server/errors';
 import { requireRole } from '$lib/server/auth/guard';
-import { ANY_ROLE, STOCK_EDITORS } from '$lib/server/auth/roles';
+import { ANY_ROLE, STOCK_EDITORS } from '$lib/roles';
 import * as locations from '$lib/server/stock/locations';
 import { idParam } from '$lib/server/catalogue/params';
 

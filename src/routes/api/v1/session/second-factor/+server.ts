@@ -5,7 +5,7 @@ import { db } from '$lib/server/db';
 import { endpoint, errorResponse, readJson } from '$lib/server/api/http';
 import { DomainError } from '$lib/server/errors';
 import { requireRole } from '$lib/server/auth/guard';
-import { ANY_ROLE } from '$lib/server/auth/roles';
+import { ANY_ROLE } from '$lib/roles';
 import { completeSecondFactor } from '$lib/server/auth/sessions';
 import * as twoStep from '$lib/server/accounts/two-step';
 

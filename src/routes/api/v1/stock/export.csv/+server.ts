@@ -2,7 +2,7 @@ import type { RequestHandler } from './$types';
 import { db } from '$lib/server/db';
 import { endpoint } from '$lib/server/api/http';
 import { requireRole } from '$lib/server/auth/guard';
-import { ANY_ROLE } from '$lib/server/auth/roles';
+import { ANY_ROLE } from '$lib/roles';
 import { csvStream, stockCsv, stockExportQuerySchema } from '$lib/server/imports/export';
 
 /** Stock by location as CSV (location, part, condition, quantity); `locationId` limits it to one location. */

@@ -3,7 +3,7 @@ import type { RequestHandler } from './$types';
 import { db } from '$lib/server/db';
 import { endpoint } from '$lib/server/api/http';
 import { requireRole } from '$lib/server/auth/guard';
-import { ANY_ROLE } from '$lib/server/auth/roles';
+import { ANY_ROLE } from '$lib/roles';
 import * as parts from '$lib/server/catalogue/parts';
 import { movementQuerySchema, movementRows } from '$lib/server/stock/operations';
 import { idParam } from '$lib/server/catalogue/params';
