@@ -7,7 +7,7 @@ import { readCsvUpload } from '$lib/server/imports/service';
 import { csvRecords, type Delimiter } from '$lib/server/imports/csv';
 import { listLocations } from '$lib/server/stock/locations';
 import * as take from '$lib/server/stock/stock-take';
-import { countFailure, linesFromForm } from '$lib/server/stock/stock-take-forms';
+import { commitCount, countFailure } from '$lib/server/stock/stock-take-forms';
 import { failFrom, formFailure } from '$lib/server/form-failure';
 
 export const load = (async (event) => {
@@ -39,11 +39,6 @@ export const actions = {
 	/** Commit of the lines the dry run showed (sent back as JSON; checked again under the part locks). */
 	commit: async (event) => {
 		const user = requireRole(event, STOCK_EDITORS);
-		try {
-			const lines = linesFromForm(await event.request.formData());
-			return { result: await take.stockTake(db, lines, { dryRun: false, actor: { id: user.id } }), lines };
-		} catch (err) {
-			return countFailure(err);
-		}
+		return commitCount(db, await event.request.formData(), user.id);
 	}
 } satisfies Actions;

@@ -1,7 +1,8 @@
 /** Form plumbing shared by the stock-take pages (the upload and the drawer count). */
 import { DomainError } from '$lib/server/errors';
 import { failFrom } from '$lib/server/form-failure';
-import type { CountLine } from './stock-take';
+import type { DbOrTx } from '$lib/server/db';
+import { stockTake, type CountLine } from './stock-take';
 
 /** The lines a dry run showed, posted back as JSON in the field `lines`. */
 export function linesFromForm(form: FormData): CountLine[] {
@@ -17,4 +18,14 @@ export function linesFromForm(form: FormData): CountLine[] {
 /** A refused count as the page shows it: the message, and every refused line in `rows` (`StockTakeRefused.lines`). */
 export function countFailure(err: unknown, values: Record<string, string> = {}) {
 	return failFrom(err, { values });
+}
+
+/** The confirm step of both stock-take pages: the dry run's lines posted back, checked and written. */
+export async function commitCount(db: DbOrTx, form: FormData, actorId: number) {
+	try {
+		const lines = linesFromForm(form);
+		return { result: await stockTake(db, lines, { dryRun: false, actor: { id: actorId } }), lines };
+	} catch (err) {
+		return countFailure(err);
+	}
 }

@@ -4,7 +4,7 @@ import { db } from '$lib/server/db';
 import { requireRole } from '$lib/server/auth/guard';
 import { STOCK_EDITORS } from '$lib/roles';
 import * as take from '$lib/server/stock/stock-take';
-import { countFailure, linesFromForm } from '$lib/server/stock/stock-take-forms';
+import { commitCount, countFailure } from '$lib/server/stock/stock-take-forms';
 import { formFailure } from '$lib/server/form-failure';
 
 /** The drawer's location id (the `id` matcher has checked it). */
@@ -48,11 +48,6 @@ export const actions = {
 	commit: async (event) => {
 		const user = requireRole(event, STOCK_EDITORS);
 		idOf(event.params);
-		try {
-			const lines = linesFromForm(await event.request.formData());
-			return { result: await take.stockTake(db, lines, { dryRun: false, actor: { id: user.id } }), lines };
-		} catch (err) {
-			return countFailure(err);
-		}
+		return commitCount(db, await event.request.formData(), user.id);
 	}
 } satisfies Actions;
