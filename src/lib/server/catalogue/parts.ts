@@ -14,7 +14,6 @@
  *   const json = await parts.getPartJson(db, id);
  */
 import { and, desc, eq } from 'drizzle-orm';
-import { ZodError } from 'zod';
 import type { DbOrTx } from '$lib/server/db';
 import { inTransaction } from '$lib/server/db/transaction';
 import { measurements, movements, partSurfaces, parts, reservations, stock, suppliers, type Part } from '$lib/server/db/schema';
@@ -306,9 +305,4 @@ export async function getPartJson(db: DbOrTx, id: number): Promise<PartJson> {
 	const [part] = await db.select().from(parts).where(eq(parts.id, id));
 	if (!part) throw new PartNotFound(id);
 	return (await partsJson(db, [part]))[0];
-}
-
-/** True when `err` is a validation failure of part input (for forms that show field messages). */
-export function isInvalidInput(err: unknown): err is ZodError {
-	return err instanceof ZodError;
 }
