@@ -103,6 +103,14 @@ describe('answers match the OpenAPI document', () => {
 		const until = new Date(Date.now() + 86_400_000).toISOString();
 		await call('engineer', 'POST', '/api/v1/reservations', '/reservations', 201, { partId, quantity: 1, until });
 		await call('engineer', 'POST', '/api/v1/stock/issue', '/stock/issue', 201, { partId, quantity: 1, locationId });
+		await call('stockroom', 'POST', '/api/v1/stock/move', '/stock/move', 201, { partId, quantity: 1, fromLocationId: locationId, toLocationId: locations.items[1].id });
+		const ledger = await call('engineer', 'GET', `/api/v1/parts/${partId}/movements`, '/parts/{id}/movements', 200);
+		expect(ledger.items.map((m: { kind: string }) => m.kind)).toEqual(['move', 'issue', 'receive']);
+		await call('engineer', 'GET', `/api/v1/locations/${locationId}`, '/locations/{id}', 200);
+		const mine = await call('engineer', 'GET', `/api/v1/reservations?partId=${partId}`, '/reservations', 200);
+		expect(mine.items).toHaveLength(1);
+		const gone = await call('stockroom', 'DELETE', `/api/v1/parts/${partId}`, '/parts/{id}', 200);
+		expect(gone.outcome).toBe('archived');
 	});
 
 	it('errors have the Error shape', async () => {
