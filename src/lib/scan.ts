@@ -4,6 +4,8 @@
  * (`/parts/<id>`); anything else (another site, a different path) is refused, so a planted code
  * cannot send the phone elsewhere.
  */
+import { isId } from '$lib/id';
+
 export type ScanTarget = { kind: 'part'; id: number; path: string } | { kind: 'drawer'; id: number; path: string };
 
 export function labelTarget(text: string, origin: string): ScanTarget | null {
@@ -14,10 +16,10 @@ export function labelTarget(text: string, origin: string): ScanTarget | null {
 		return null;
 	}
 	if (u.origin !== new URL(origin).origin) return null;
-	const part = /^\/parts\/([1-9]\d{0,11})$/.exec(u.pathname);
-	if (part) return { kind: 'part', id: Number(part[1]), path: `/parts/${part[1]}` };
+	const part = /^\/parts\/([^/]+)$/.exec(u.pathname);
+	if (part && isId(part[1])) return { kind: 'part', id: Number(part[1]), path: `/parts/${part[1]}` };
 	const loc = u.searchParams.get('locationId');
-	if (u.pathname === '/stock' && loc && /^[1-9]\d{0,11}$/.test(loc)) return { kind: 'drawer', id: Number(loc), path: `/stock?locationId=${loc}` };
+	if (u.pathname === '/stock' && isId(loc)) return { kind: 'drawer', id: Number(loc), path: `/stock?locationId=${loc}` };
 	return null;
 }
 

@@ -1,6 +1,6 @@
 import type { LayoutServerLoad } from './$types';
 import { navFor } from '$lib/nav';
-import { ROLE_LABELS } from '$lib/server/auth/roles';
+import { ROLE_LABELS } from '$lib/roles';
 
 // Shapes only what the shell shows; each page's own load checks its role again.
 export const load = (async ({ locals }) => {

@@ -1,14 +1,13 @@
 import type { PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { requireRole } from '$lib/server/auth/guard';
-import { ANY_ROLE } from '$lib/server/auth/roles';
+import { ANY_ROLE, OVERVIEW_SECTIONS } from '$lib/roles';
 import { quarantineParts, stockSummary } from '$lib/server/overview/summary';
 import { flaggedParts } from '$lib/server/purchasing/flags';
 import { listRequests } from '$lib/server/purchasing/requests';
 import { OPEN, STATUS_LABELS } from '$lib/server/purchasing/states';
 import { listImports } from '$lib/server/imports/service';
 import { listSavedSetups } from '$lib/server/solver/setup-list';
-import type { Role } from '$lib/server/db/schema';
 
 /** How many rows each overview list shows. */
 const SHORT_LIST = 5;
@@ -42,17 +41,9 @@ async function setups(userId: number) {
 	return { total, items: items.map((s) => ({ id: s.id, name: s.name, createdAt: s.createdAt, skus: s.skus, reserved: s.reserved !== null })) };
 }
 
-/** Which sections each role sees (the numbers stay cheap: a few indexed queries per section). */
-const SECTIONS: Record<Role, readonly ('purchasing' | 'stockroom' | 'setups')[]> = {
-	admin: ['purchasing', 'stockroom'],
-	stockroom: ['stockroom'],
-	engineer: ['setups'],
-	purchaser: ['purchasing']
-};
-
 export const load = (async (event) => {
 	const user = requireRole(event, ANY_ROLE);
-	const wants = SECTIONS[user.role];
+	const wants = OVERVIEW_SECTIONS[user.role];
 	const [summary, purchase, stock, saved] = await Promise.all([
 		stockSummary(db),
 		wants.includes('purchasing') ? purchasing() : null,

@@ -47,7 +47,6 @@ export * from './raytrace';
 export * from './spot';
 export * from './field-spot';
 export * from './colour';
-export * from './seidel';
 export * from './gaussian';
 export * from './coupling';
 export * from './fibre';

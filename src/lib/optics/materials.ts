@@ -30,6 +30,12 @@ import {
 
 /** Fraunhofer/ISO 7944 reference wavelength d (helium), nm. */
 export const WAVELENGTH_D_NM = 587.5618;
+
+/**
+ * The default wavelength, nm: the d line as datasheets and forms write it. A part's design wavelength,
+ * an imaging question's and the lab's default when none is set (common practice, no source).
+ */
+export const DEFAULT_WAVELENGTH_NM = 587.6;
 /** Fraunhofer/ISO 7944 reference wavelength F (hydrogen), nm. */
 export const WAVELENGTH_F_NM = 486.1327;
 /** Fraunhofer/ISO 7944 reference wavelength C (hydrogen), nm. */

@@ -5,6 +5,8 @@
  * Every field is text in the URL, so a link reproduces the question.
  */
 
+import { DEFAULT_WAVELENGTH_NM } from '../optics/materials';
+
 /** The three questions of Build from stock. */
 export type Question = 'imaging' | 'beam' | 'afocal';
 export const QUESTIONS: readonly { id: Question; label: string; blurb: string }[] = [
@@ -34,7 +36,7 @@ export const IMAGING_DEFAULTS = {
 	imageSize: '',
 	na: '0.05',
 	fNumber: '',
-	wavelength: '587.6 nm',
+	wavelength: `${DEFAULT_WAVELENGTH_NM} nm`,
 	minGap: '1 mm',
 	minWd: '5 mm',
 	available: 'true',

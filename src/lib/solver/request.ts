@@ -7,6 +7,7 @@
  */
 import { z } from 'zod';
 import { normalisedFrequency, marcuseRangeProblem } from '../optics/fibre';
+import { DEFAULT_WAVELENGTH_NM } from '../optics/materials';
 
 /** Largest time budget a client may ask for, ms. */
 export const MAX_TIME_BUDGET_MS = 10_000;
@@ -21,7 +22,7 @@ export const imagingRequestSchema = z
 		mode: z.literal('imaging', { error: 'The mode must be "imaging", "beam" or "afocal".' }).default('imaging'),
 		wavelengthNm: num('The wavelength')
 			.pipe(z.number().min(200, 'The wavelength must be at least 200 nm.').max(12_000, 'The wavelength must be at most 12000 nm.'))
-			.default(587.6),
+			.default(DEFAULT_WAVELENGTH_NM),
 		trackMm: num('The track').pipe(
 			z.number().gt(0, 'The track (object plane to target plane) must be longer than 0 mm.').max(20_000, 'The track must be at most 20000 mm.')
 		),

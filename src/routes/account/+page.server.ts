@@ -1,12 +1,11 @@
-import { fail } from '@sveltejs/kit';
 import { env } from '$env/dynamic/private';
 import { z } from 'zod';
 import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { requireRole } from '$lib/server/auth/guard';
-import { ANY_ROLE, ROLE_LABELS } from '$lib/server/auth/roles';
+import { ADMINS, ANY_ROLE, inSet, ROLE_LABELS } from '$lib/roles';
 import { endOtherSessions, endSessionByHandle, listSessions } from '$lib/server/auth/sessions';
-import { DomainError, zodFields } from '$lib/server/api/http';
+import { failFrom, formFailure } from '$lib/server/form-failure';
 import * as twoStep from '$lib/server/accounts/two-step';
 import * as apiTokens from '$lib/server/accounts/api-tokens';
 import { changePassword, changePasswordSchema, recheckPassword, recheckRefusal } from '$lib/server/accounts/passwords';
@@ -21,7 +20,7 @@ export const load = (async (event) => {
 		twoStep: {
 			...(await twoStep.status(db, user.id)),
 			setup: await twoStep.setupView(db, user, env.AUTH_PEPPER),
-			isAdmin: user.role === 'admin'
+			isAdmin: inSet(user.role, ADMINS)
 		}
 	};
 }) satisfies PageServerLoad;
@@ -29,7 +28,7 @@ export const load = (async (event) => {
 /** A two-step form's failure: the code or password field, or a message for the whole form. */
 function twoStepRefusal(result: Exclude<twoStep.CodeResult, { ok: true }>) {
 	const field = result.reason === 'wrong-password' ? 'password' : 'code';
-	return fail(result.reason === 'throttled' ? 429 : 400, { form: 'twostep' as const, errors: { [field]: twoStep.refusalText(result) } as Record<string, string> });
+	return formFailure(result.reason === 'throttled' ? 429 : 400, { form: 'twostep' as const, errors: { [field]: twoStep.refusalText(result) } });
 }
 
 /** Runs a two-step change; a domain error (already on, no set-up started, ...) becomes the form's message. */
@@ -37,8 +36,7 @@ async function twoStepChange<T>(work: () => Promise<T>) {
 	try {
 		return { ok: true as const, value: await work() };
 	} catch (err) {
-		if (err instanceof DomainError) return { ok: false as const, failure: fail(err.status, { form: 'twostep' as const, message: err.message }) };
-		throw err;
+		return { ok: false as const, failure: failFrom(err, { form: 'twostep' }) };
 	}
 }
 
@@ -50,9 +48,9 @@ export const actions = {
 		const user = requireRole(event, ANY_ROLE);
 		const form = Object.fromEntries(await event.request.formData());
 		const parsed = changePasswordSchema.safeParse(form);
-		if (!parsed.success) return fail(400, { form: 'password' as const, errors: zodFields(parsed.error) });
+		if (!parsed.success) return failFrom(parsed.error, { form: 'password' });
 		const result = await changePassword(db, user.id, parsed.data, env.AUTH_PEPPER);
-		if (!result.ok) return fail(result.retryAfterSeconds ? 429 : 400, { form: 'password' as const, errors: { [result.field]: result.message } as Record<string, string> });
+		if (!result.ok) return formFailure(result.retryAfterSeconds ? 429 : 400, { form: 'password' as const, errors: { [result.field]: result.message } });
 		if (event.locals.session) await endOtherSessions(user.id, event.locals.session.id);
 		return { form: 'password' as const, done: 'Password changed. Your other sessions have been signed out.' };
 	},
@@ -61,10 +59,10 @@ export const actions = {
 		const form = Object.fromEntries(await event.request.formData());
 		const values = { name: String(form.name ?? ''), expiresInDays: String(form.expiresInDays ?? '0') };
 		const parsed = apiTokens.createTokenSchema.safeParse({ ...values, password: String(form.password ?? '') });
-		if (!parsed.success) return fail(400, { form: 'token' as const, values, errors: zodFields(parsed.error) });
+		if (!parsed.success) return failFrom(parsed.error, { form: 'token', values });
 		const check = await recheckPassword(db, user.id, parsed.data.password ?? '', env.AUTH_PEPPER);
 		if (!check.ok) {
-			return fail(check.reason === 'throttled' ? 429 : 400, { form: 'token' as const, values, errors: { password: recheckRefusal(check) } as Record<string, string> });
+			return formFailure(check.reason === 'throttled' ? 429 : 400, { form: 'token' as const, values, errors: { password: recheckRefusal(check) } });
 		}
 		const created = await apiTokens.create(db, user, parsed.data);
 		return { form: 'token' as const, created: { name: created.name, token: created.token } };
@@ -72,11 +70,11 @@ export const actions = {
 	revokeToken: async (event) => {
 		const user = requireRole(event, ANY_ROLE);
 		const parsed = revokeSchema.safeParse(Object.fromEntries(await event.request.formData()));
-		if (!parsed.success) return fail(400, { form: 'revoke' as const, message: 'Choose a token to revoke.' });
+		if (!parsed.success) return formFailure(400, { form: 'revoke' as const, message: 'Choose a token to revoke.' });
 		try {
 			await apiTokens.revoke(db, { id: user.id, isAdmin: false }, parsed.data.tokenId);
 		} catch (err) {
-			if (err instanceof apiTokens.TokenNotFound) return fail(404, { form: 'revoke' as const, message: 'That token does not exist or is already revoked.' });
+			if (err instanceof apiTokens.TokenNotFound) return formFailure(404, { form: 'revoke' as const, message: 'That token does not exist or is already revoked.' });
 			throw err;
 		}
 		return { form: 'revoke' as const, done: 'Token revoked.' };
@@ -84,38 +82,38 @@ export const actions = {
 	endSession: async (event) => {
 		const user = requireRole(event, ANY_ROLE);
 		const parsed = sessionSchema.safeParse(Object.fromEntries(await event.request.formData()));
-		if (!parsed.success) return fail(400, { form: 'sessions' as const, message: 'Choose a session to sign out.' });
+		if (!parsed.success) return formFailure(400, { form: 'sessions' as const, message: 'Choose a session to sign out.' });
 		if (!(await endSessionByHandle(user.id, parsed.data.handle, event.locals.session?.id ?? null))) {
-			return fail(404, { form: 'sessions' as const, message: 'That session has already ended.' });
+			return formFailure(404, { form: 'sessions' as const, message: 'That session has already ended.' });
 		}
 		return { form: 'sessions' as const, done: 'That session is signed out.' };
 	},
 	endOtherSessions: async (event) => {
 		const user = requireRole(event, ANY_ROLE);
-		if (!event.locals.session) return fail(400, { form: 'sessions' as const, message: 'Sign in with a browser to do this.' });
+		if (!event.locals.session) return formFailure(400, { form: 'sessions' as const, message: 'Sign in with a browser to do this.' });
 		// The button says what it does; a post without it (an empty form) changes nothing.
-		if ((await event.request.formData()).get('confirm') !== 'yes') return fail(400, { form: 'sessions' as const, message: 'Use the button to sign out the other sessions.' });
+		if ((await event.request.formData()).get('confirm') !== 'yes') return formFailure(400, { form: 'sessions' as const, message: 'Use the button to sign out the other sessions.' });
 		await endOtherSessions(user.id, event.locals.session.id);
 		return { form: 'sessions' as const, done: 'Every other session is signed out.' };
 	},
 	startTwoStep: async (event) => {
 		const user = requireRole(event, ANY_ROLE);
 		// Only the button starts it (an empty post changes nothing).
-		if ((await event.request.formData()).get('confirm') !== 'yes') return fail(400, { form: 'twostep' as const, message: 'Use the button to start the set-up.' });
+		if ((await event.request.formData()).get('confirm') !== 'yes') return formFailure(400, { form: 'twostep' as const, message: 'Use the button to start the set-up.' });
 		const run = await twoStepChange(() => twoStep.startSetup(db, user.id, env.AUTH_PEPPER));
 		if (!run.ok) return run.failure;
 		return { form: 'twostep' as const, started: true };
 	},
 	cancelTwoStep: async (event) => {
 		const user = requireRole(event, ANY_ROLE);
-		if ((await event.request.formData()).get('confirm') !== 'yes') return fail(400, { form: 'twostep' as const, message: 'Use the button to cancel the set-up.' });
+		if ((await event.request.formData()).get('confirm') !== 'yes') return formFailure(400, { form: 'twostep' as const, message: 'Use the button to cancel the set-up.' });
 		await twoStep.cancelSetup(db, user.id);
 		return { form: 'twostep' as const, done: 'Set-up cancelled; two-step sign-in stays off.' };
 	},
 	confirmTwoStep: async (event) => {
 		const user = requireRole(event, ANY_ROLE);
 		const parsed = twoStep.codeSchema.safeParse(Object.fromEntries(await event.request.formData()));
-		if (!parsed.success) return fail(400, { form: 'twostep' as const, errors: zodFields(parsed.error) });
+		if (!parsed.success) return failFrom(parsed.error, { form: 'twostep' });
 		const run = await twoStepChange(() => twoStep.confirmSetup(db, user, event.locals.session?.id ?? null, parsed.data.code, env.AUTH_PEPPER));
 		if (!run.ok) return run.failure;
 		if (!run.value.ok) return twoStepRefusal(run.value);
@@ -124,7 +122,7 @@ export const actions = {
 	turnOffTwoStep: async (event) => {
 		const user = requireRole(event, ANY_ROLE);
 		const parsed = twoStep.turnOffSchema.safeParse(Object.fromEntries(await event.request.formData()));
-		if (!parsed.success) return fail(400, { form: 'twostep' as const, errors: zodFields(parsed.error) });
+		if (!parsed.success) return failFrom(parsed.error, { form: 'twostep' });
 		const run = await twoStepChange(() => twoStep.turnOff(db, user, parsed.data, env.AUTH_PEPPER));
 		if (!run.ok) return run.failure;
 		if (!run.value.ok) return twoStepRefusal(run.value);

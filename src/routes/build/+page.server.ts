@@ -1,10 +1,11 @@
-import { fail, redirect } from '@sveltejs/kit';
+import { redirect } from '@sveltejs/kit';
 import { ZodError } from 'zod';
 import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { hasRole, requireRole } from '$lib/server/auth/guard';
-import { PURCHASERS, SOLVER_USERS } from '$lib/server/auth/roles';
-import { ApiError, DomainError, zodFields } from '$lib/server/api/http';
+import { PURCHASERS, SOLVER_USERS } from '$lib/roles';
+import { DomainError, zodFields } from '$lib/server/errors';
+import { failFrom, formFailure } from '$lib/server/form-failure';
 import { unlockForQuestion } from '$lib/server/purchasing/unlock-search';
 import { listProjects } from '$lib/server/stock/projects';
 import * as form from '$lib/server/solver/form';
@@ -53,15 +54,13 @@ export const actions = {
 				choice: JSON.parse(String(data.get('choice') ?? 'null'))
 			};
 		} catch {
-			return fail(400, { save: { errors: { choice: 'Choose a solution first.' }, values } });
+			return formFailure(400, { form: 'save', errors: { choice: 'Choose a solution first.' }, values });
 		}
 		let id: number;
 		try {
 			id = (await setups.createSetup(db, body, { id: user.id })).id;
 		} catch (e) {
-			if (e instanceof ZodError) return fail(400, { save: { errors: zodFields(e), values } });
-			if (e instanceof DomainError) return fail(e.status, { save: { errors: e.fields ?? { choice: e.message }, values } });
-			throw e;
+			return failFrom(e, { form: 'save', values });
 		}
 		redirect(303, `/build/${id}`);
 	},
@@ -72,13 +71,12 @@ export const actions = {
 	unlock: async (event) => {
 		const user = requireRole(event, SOLVER_USERS);
 		const parsed = form.readBuildForm(event.url.searchParams, await getDefaultWavelengthNm(db));
-		if (!parsed.request) return fail(400, { unlock: { error: 'Ask a complete question first: the form above has a field to fix.' } });
+		if (!parsed.request) return formFailure(400, { form: 'unlock', message: 'Ask a complete question first: the form above has a field to fix.' });
 		try {
 			return { unlock: { answer: await unlockForQuestion(db, parsed.request, { id: user.id }, event.request.signal) } };
 		} catch (e) {
-			if (e instanceof DomainError || e instanceof ApiError) return fail(e.status, { unlock: { error: e.message } });
-			if (e instanceof ZodError) return fail(400, { unlock: { error: Object.values(zodFields(e)).join(' ') } });
-			throw e;
+			if (e instanceof ZodError) return formFailure(400, { form: 'unlock', message: Object.values(zodFields(e)).join(' ') });
+			return failFrom(e, { form: 'unlock' });
 		}
 	}
 } satisfies Actions;

@@ -1,12 +1,13 @@
 import type { PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { requireRole } from '$lib/server/auth/guard';
-import { STOCK_EDITORS } from '$lib/server/auth/roles';
+import { STOCK_EDITORS } from '$lib/roles';
 import { listLocations } from '$lib/server/stock/locations';
 import { publicOrigin } from '$lib/server/accounts/notify';
 import { makeLabels, MAX_LABELS } from '$lib/server/stock/labels';
+import { isId } from '$lib/id';
 
-const ids = (vals: string[]) => [...new Set(vals.filter((v) => /^[1-9]\d{0,11}$/.test(v)).map(Number))].slice(0, MAX_LABELS);
+const ids = (vals: string[]) => [...new Set(vals.filter(isId).map(Number))].slice(0, MAX_LABELS);
 
 /** `?location=<id>` (repeated) and `?part=<id>` / `?skus=<list>` choose the labels; a GET form, so the sheet has an address. */
 export const load = (async (event) => {

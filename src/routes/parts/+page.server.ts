@@ -2,11 +2,11 @@ import { error } from '@sveltejs/kit';
 import type { PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { requireRole, hasRole } from '$lib/server/auth/guard';
-import { ANY_ROLE, STOCK_EDITORS } from '$lib/server/auth/roles';
+import { ANY_ROLE, STOCK_EDITORS } from '$lib/roles';
 import * as parts from '$lib/server/catalogue/parts';
 import { filterOptions, listQuerySchema } from '$lib/server/catalogue/list';
 import { getDefaultWavelengthNm } from '$lib/server/catalogue/settings';
-import { zodFields } from '$lib/server/api/http';
+import { zodFields } from '$lib/server/errors';
 
 /** The catalogue page renders its first page on the server from the URL; the client then pages through the API. */
 export const load = (async (event) => {

@@ -1,13 +1,11 @@
-import { fail, redirect } from '@sveltejs/kit';
+import { redirect } from '@sveltejs/kit';
 import type { Actions, PageServerLoad } from './$types';
-import { ZodError } from 'zod';
 import { db } from '$lib/server/db';
 import { REQUEST_STATUSES, type RequestStatus } from '$lib/server/db/schema';
 import { requireRole } from '$lib/server/auth/guard';
-import { PURCHASERS } from '$lib/server/auth/roles';
-import { DomainError, zodFields } from '$lib/server/api/http';
+import { PURCHASERS, REQUEST_VIEWERS } from '$lib/roles';
+import { failFrom, formFailure } from '$lib/server/form-failure';
 import * as requests from '$lib/server/purchasing/requests';
-import { REQUEST_VIEWERS } from '$lib/server/purchasing/roles';
 import { STATUS_LABELS } from '$lib/server/purchasing/states';
 import { findPartIdBySku } from '$lib/server/catalogue/parts';
 
@@ -37,7 +35,7 @@ export const actions = {
 		const form = Object.fromEntries(await event.request.formData());
 		const values = { sku: String(form.sku ?? '').trim(), quantity: String(form.quantity ?? '').trim(), note: String(form.note ?? '') };
 		const partId = values.sku ? await findPartIdBySku(db, values.sku) : null;
-		if (!partId) return fail(400, { values, errors: { sku: values.sku ? `No part has the SKU ${values.sku}.` : 'Enter a SKU.' } as Record<string, string> });
+		if (!partId) return formFailure(400, { values, errors: { sku: values.sku ? `No part has the SKU ${values.sku}.` : 'Enter a SKU.' } });
 		let id: number;
 		try {
 			id = await requests.createRequest(
@@ -46,9 +44,7 @@ export const actions = {
 				{ id: user.id, role: user.role }
 			);
 		} catch (err) {
-			if (err instanceof ZodError) return fail(400, { values, errors: zodFields(err) });
-			if (err instanceof DomainError) return fail(err.status, { values, errors: { sku: err.message } as Record<string, string> });
-			throw err;
+			return failFrom(err, { values });
 		}
 		redirect(303, `/requests/${id}`);
 	}

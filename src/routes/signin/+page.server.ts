@@ -1,12 +1,13 @@
-import { fail, redirect } from '@sveltejs/kit';
+import { redirect } from '@sveltejs/kit';
 import { env } from '$env/dynamic/private';
 import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { attemptSignin, INVALID_CREDENTIALS, safeRedirect, signinSchema, throttledMessage } from '$lib/server/accounts/signin';
 import { startSession } from '$lib/server/auth/sessions';
 import { requireRole } from '$lib/server/auth/guard';
-import { PUBLIC } from '$lib/server/auth/roles';
+import { PUBLIC } from '$lib/roles';
 import { SECOND_FACTOR_PAGE } from '$lib/server/auth/public-paths';
+import { formFailure } from '$lib/server/form-failure';
 
 export const load = (async (event) => {
 	// Public page. A signed-in user goes straight on.
@@ -23,13 +24,13 @@ export const actions = {
 		const values = { email: String(form.get('email') ?? ''), password: String(form.get('password') ?? '') };
 		const parsed = signinSchema.safeParse(values);
 		if (!parsed.success) {
-			return fail(400, { email: values.email, message: 'Enter your e-mail address and password.' });
+			return formFailure(400, { values: { email: values.email }, message: 'Enter your e-mail address and password.' });
 		}
 		const result = await attemptSignin(db, { ...parsed.data, clientAddress: event.getClientAddress(), pepper: env.AUTH_PEPPER });
 		if (!result.ok && result.reason === 'throttled') {
-			return fail(429, { email: values.email, message: throttledMessage(result.retryAfterSeconds) });
+			return formFailure(429, { values: { email: values.email }, message: throttledMessage(result.retryAfterSeconds) });
 		}
-		if (!result.ok) return fail(400, { email: values.email, message: INVALID_CREDENTIALS });
+		if (!result.ok) return formFailure(400, { values: { email: values.email }, message: INVALID_CREDENTIALS });
 		await startSession(result.user.id, cookies, request.headers.get('user-agent'));
 		const to = safeRedirect(url.searchParams.get('redirectTo'));
 		// With two-step sign-in on, the session is only half signed in until the code is given.

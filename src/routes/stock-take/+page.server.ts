@@ -1,15 +1,14 @@
 import fs from 'node:fs';
-import { fail } from '@sveltejs/kit';
 import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
-import { ApiError, DomainError } from '$lib/server/api/http';
 import { requireRole } from '$lib/server/auth/guard';
-import { STOCK_EDITORS } from '$lib/server/auth/roles';
+import { STOCK_EDITORS } from '$lib/roles';
 import { readCsvUpload } from '$lib/server/imports/service';
 import { csvRecords, type Delimiter } from '$lib/server/imports/csv';
 import { listLocations } from '$lib/server/stock/locations';
 import * as take from '$lib/server/stock/stock-take';
-import { countFailure, linesFromForm } from '$lib/server/stock/stock-take-forms';
+import { commitCount, countFailure } from '$lib/server/stock/stock-take-forms';
+import { failFrom, formFailure } from '$lib/server/form-failure';
 
 export const load = (async (event) => {
 	requireRole(event, STOCK_EDITORS);
@@ -25,10 +24,9 @@ export const actions = {
 		try {
 			upload = await readCsvUpload(event.request, { skipUnnamed: true });
 		} catch (err) {
-			if (err instanceof DomainError || err instanceof ApiError) return fail(err.status, { errors: { file: err.message } });
-			throw err;
+			return failFrom(err);
 		}
-		if (!upload.file) return fail(400, { errors: { file: 'Choose the CSV file of the count.' } });
+		if (!upload.file) return formFailure(400, { errors: { file: 'Choose the CSV file of the count.' } });
 		try {
 			const { lines, rows } = await take.linesFromCsv(csvRecords(fs.createReadStream(upload.file.csv.path), upload.file.csv.delimiter as Delimiter));
 			return { result: await take.stockTake(db, lines, { dryRun: true, actor: { id: user.id }, rowOf: (i) => rows[i] }), lines };
@@ -41,11 +39,6 @@ export const actions = {
 	/** Commit of the lines the dry run showed (sent back as JSON; checked again under the part locks). */
 	commit: async (event) => {
 		const user = requireRole(event, STOCK_EDITORS);
-		try {
-			const lines = linesFromForm(await event.request.formData());
-			return { result: await take.stockTake(db, lines, { dryRun: false, actor: { id: user.id } }), lines };
-		} catch (err) {
-			return countFailure(err);
-		}
+		return commitCount(db, await event.request.formData(), user.id);
 	}
 } satisfies Actions;

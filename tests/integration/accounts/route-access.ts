@@ -4,7 +4,7 @@
  * One entry per route id (the folder under src/routes, e.g. '/parts/[id=id]'), with the access of
  * each thing the route exports: the page load as GET, each form action under `actions` (the unnamed
  * one is 'default'), and each HTTP method of a +server.ts. Access is `PUBLIC` or one of the named
- * role sets from src/lib/server/auth/roles.ts. The test fails when a route exists that the table
+ * role sets from src/lib/roles.ts. The test fails when a route exists that the table
  * does not list (or the table lists one that no longer exists), so add your route here with it.
  *
  * - A route with a dynamic param needs `url`, a sample address. The walk really sends the requests
@@ -17,7 +17,7 @@
  *   role-matrix.test.ts's HALF_SIGNED_IN list.
  */
 import type { Role } from '../../../src/lib/server/db/schema';
-import { ADMINS, ANY_ROLE, PUBLIC, PURCHASERS, RESERVERS, SOLVER_USERS, STOCK_EDITORS, STOCK_HANDLERS } from '../../../src/lib/server/auth/roles';
+import { ADMINS, ANY_ROLE, PUBLIC, PURCHASERS, RESERVERS, SOLVER_USERS, STOCK_EDITORS, STOCK_HANDLERS } from '../../../src/lib/roles';
 
 export type Access = typeof PUBLIC | readonly Role[];
 export type Method = 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE';
@@ -112,7 +112,7 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	'/labels': { GET: STOCK_EDITORS },
 	'/scan': { GET: STOCK_HANDLERS },
 	'/stock-take': { GET: STOCK_EDITORS, actions: { check: STOCK_EDITORS, commit: STOCK_EDITORS } },
-	'/stock-take/[location]': { url: '/stock-take/99999999', GET: STOCK_EDITORS, actions: { check: STOCK_EDITORS, commit: STOCK_EDITORS } },
+	'/stock-take/[location=id]': { url: '/stock-take/99999999', GET: STOCK_EDITORS, actions: { check: STOCK_EDITORS, commit: STOCK_EDITORS } },
 	'/api/v1/stock/scrap': { POST: STOCK_EDITORS },
 	'/api/v1/stock/condition': { POST: STOCK_EDITORS },
 	'/api/v1/stock/issue': { POST: STOCK_HANDLERS },

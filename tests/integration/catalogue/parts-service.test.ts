@@ -6,7 +6,7 @@ import * as t from '../../../src/lib/server/db/schema';
 import * as parts from '../../../src/lib/server/catalogue/parts';
 import { recordMeasurement } from '../../../src/lib/server/catalogue/measurements';
 import { refractiveIndex } from '../../../src/lib/optics';
-import { DomainError } from '../../../src/lib/server/api/http';
+import { DomainError } from '../../../src/lib/server/errors';
 
 const { db, pool } = testDb();
 const created: number[] = [];

@@ -16,7 +16,7 @@ import { and, gt, sql } from 'drizzle-orm';
 import { testDb } from '../../support/env';
 import * as t from '../../../src/lib/server/db/schema';
 import { mulberry32 } from '../../../src/lib/prng';
-import { PUBLIC } from '../../../src/lib/server/auth/roles';
+import { PUBLIC } from '../../../src/lib/roles';
 import { APP, clearThrottle, cookieWithCode, twoStepAdmin, url } from '../accounts/helpers';
 import { fuzzTargets, type Target } from './targets';
 import { requestsFor, resolve, type FuzzRequest, type Schema } from './generate';

@@ -10,7 +10,7 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { eq } from 'drizzle-orm';
 import * as t from '../../../src/lib/server/db/schema';
 import { createDb } from '../../../src/lib/server/db/client';
-import { DomainError } from '../../../src/lib/server/api/http';
+import { DomainError } from '../../../src/lib/server/errors';
 import * as importsService from '../../../src/lib/server/imports/service';
 import { pendingOutcomes, STALE_AFTER_MS } from '../../../src/lib/server/imports/run';
 import { INTERRUPTED_MESSAGE, sweepImports } from '../../../src/lib/server/imports/watchdog';

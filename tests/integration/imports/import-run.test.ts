@@ -2,7 +2,7 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { and, count, eq, inArray, like, TransactionRollbackError } from 'drizzle-orm';
 import * as t from '../../../src/lib/server/db/schema';
 import * as importsService from '../../../src/lib/server/imports/service';
-import { ApiError, DomainError } from '../../../src/lib/server/api/http';
+import { DomainError } from '../../../src/lib/server/errors';
 import { refractiveIndex } from '../../../src/lib/optics';
 import { csvLine } from '../../../src/lib/server/imports/csv';
 import { insertRows } from '../../../src/lib/server/imports/bulk-sql';
@@ -103,7 +103,7 @@ describe('bad files are refused before anything is stored', () => {
 			const err = await importsService
 				.createImport(db, store, { filename: 'x.csv', file: bytes, supplierId: null, actorId: await stockroomId() })
 				.catch((e) => e);
-			expect(err).toBeInstanceOf(ApiError);
+			expect(err).toBeInstanceOf(DomainError);
 			expect(err.status).toBe(status);
 			expect(err.message).toMatch(message);
 			expect((await db.select({ n: count() }).from(t.imports))[0].n).toBe(before);

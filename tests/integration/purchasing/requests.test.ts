@@ -8,7 +8,7 @@ import * as res from '../../../src/lib/server/stock/reservations';
 import * as requests from '../../../src/lib/server/purchasing/requests';
 import { totalsOf } from '../../../src/lib/server/stock/availability';
 import { parseOrderCsv } from '../../../src/lib/server/purchasing/csv';
-import { DomainError } from '../../../src/lib/server/api/http';
+import { DomainError } from '../../../src/lib/server/errors';
 import { api, cookieFor } from '../accounts/helpers';
 import { lastOutboxId, newPart, people, waitForMentions } from './helpers';
 

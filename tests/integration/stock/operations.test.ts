@@ -7,7 +7,7 @@ import * as ops from '../../../src/lib/server/stock/operations';
 import * as res from '../../../src/lib/server/stock/reservations';
 import { totalsOf } from '../../../src/lib/server/stock/availability';
 import { currentStockVersion } from '../../../src/lib/server/stock/version';
-import { DomainError } from '../../../src/lib/server/api/http';
+import { DomainError } from '../../../src/lib/server/errors';
 
 // 20 connections so that the parallel requests really run side by side.
 const { db, pool } = testDb();

@@ -4,7 +4,7 @@ import os from 'node:os';
 import { Readable } from 'node:stream';
 import Papa from 'papaparse';
 import { csvLine, csvRecords, detectDelimiter, escapeFormula, spoolCsv, unescapeFormula } from '$lib/server/imports/csv';
-import { ApiError } from '$lib/server/api/http';
+import { DomainError } from '$lib/server/errors';
 
 const enc = (s: string) => new TextEncoder().encode(s);
 /** Checks a file given whole and given as a stream of `chunk`-byte pieces; both must agree. */
@@ -34,8 +34,8 @@ const refused = async (bytes: Uint8Array, opts: { maxRows?: number; maxBytes?: n
 		(e) => e
 	);
 	if (!err) throw new Error('the file was accepted');
-	expect(err).toBeInstanceOf(ApiError);
-	return err as ApiError;
+	expect(err).toBeInstanceOf(DomainError);
+	return err as DomainError;
 };
 const uploadDirs = () => fs.readdirSync(os.tmpdir()).filter((n) => n.startsWith('glasscrib-upload-')).sort();
 
@@ -95,7 +95,7 @@ describe('spoolCsv: checks of an uploaded CSV as it streams in', () => {
 		bytes.set(enc('A-2,L'), good.byteLength);
 		bytes.set([0xff, 0x0a, 0x0a], good.byteLength + 5);
 		const err = await spoolCsv(Readable.from([bytes.subarray(0, 70_000), bytes.subarray(70_000)])).catch((e) => e);
-		expect(err).toBeInstanceOf(ApiError);
+		expect(err).toBeInstanceOf(DomainError);
 		expect(err.message).toMatch(/not UTF-8/);
 	});
 
@@ -110,7 +110,7 @@ describe('spoolCsv: checks of an uploaded CSV as it streams in', () => {
 			}
 		})();
 		const err = await spoolCsv(endless, { maxBytes: 1024 * 1024 }).catch((e) => e);
-		expect(err).toBeInstanceOf(ApiError);
+		expect(err).toBeInstanceOf(DomainError);
 		expect(err.status).toBe(413);
 		expect(err.message).toMatch(/at most 1 MB/);
 		expect(pulled).toBeLessThan(1024 * 1024 + 128 * 1024);

@@ -11,7 +11,7 @@ import { solveRequestSchema, type ParsedAfocalRequest, type ParsedBeamRequest } 
 import { buildElementSnapshot, clearApertureOf, type CandidatePart } from '../../../src/lib/server/solver/elements';
 import type { StockView } from '../../../src/lib/server/solver/solve';
 import { refractiveIndex, checkPairPhysical, type ThickElement } from '../../../src/lib/optics';
-import { zodFields } from '../../../src/lib/server/api/http';
+import { zodFields } from '../../../src/lib/server/errors';
 import type { BeamSolution } from '../../../src/lib/solver/types';
 import { syntheticStock } from '../../bench/_synthetic-stock';
 import { beamKernelOptions, decodeRankKey, encodeRankKey } from '../../../src/lib/server/solver/beam-kernel';

@@ -4,7 +4,7 @@ import { z } from 'zod';
 import type { Db } from '$lib/server/db';
 import { apiTokens } from '$lib/server/db/schema';
 import { newToken } from '$lib/server/auth/tokens';
-import { DomainError } from '$lib/server/api/http';
+import { NotFound } from '$lib/server/errors';
 import { recordAudit } from '$lib/server/audit';
 import * as notify from './notify';
 import { inTransaction } from '$lib/server/db/transaction';
@@ -20,9 +20,9 @@ export const createTokenSchema = z
 	})
 	.strict();
 
-export class TokenNotFound extends DomainError {
+export class TokenNotFound extends NotFound {
 	constructor() {
-		super(404, 'not-found', 'No such token.');
+		super('No such token.');
 	}
 }
 

@@ -5,7 +5,7 @@
 import { env } from '$env/dynamic/private';
 import { dev } from '$app/environment';
 import { sendMail } from '$lib/server/mail';
-import { ROLE_LABELS } from '$lib/server/auth/roles';
+import { ROLE_LABELS } from '$lib/roles';
 import type { Role } from '$lib/server/db/schema';
 
 /** The public address of the app, from ORIGIN. */

@@ -12,7 +12,7 @@ import { z } from 'zod';
 import QRCode from 'qrcode';
 import type { Db, Tx } from '$lib/server/db';
 import { sessions, users } from '$lib/server/db/schema';
-import { DomainError } from '$lib/server/api/http';
+import { Conflict, DomainError } from '$lib/server/errors';
 import { recordAudit } from '$lib/server/audit';
 import * as throttle from '$lib/server/auth/throttle';
 import * as totp from '$lib/server/auth/totp';
@@ -38,19 +38,19 @@ export const codeField = z
 export const codeSchema = z.object({ code: codeField }).strict();
 export const turnOffSchema = z.object({ password: z.string().min(1, 'Enter your current password.').max(1024), code: codeField }).strict();
 
-export class TwoStepAlreadyOn extends DomainError {
+export class TwoStepAlreadyOn extends Conflict {
 	constructor() {
-		super(409, 'two-step-on', 'Two-step sign-in is already on.');
+		super('two-step-on', 'Two-step sign-in is already on.');
 	}
 }
-export class TwoStepOff extends DomainError {
+export class TwoStepOff extends Conflict {
 	constructor(message = 'Two-step sign-in is not on for this account.') {
-		super(409, 'two-step-off', message);
+		super('two-step-off', message);
 	}
 }
-export class NoSetupStarted extends DomainError {
+export class NoSetupStarted extends Conflict {
 	constructor() {
-		super(409, 'no-setup', 'Start the set-up first: the code must come from the secret shown on this page.');
+		super('no-setup', 'Start the set-up first: the code must come from the secret shown on this page.');
 	}
 }
 
@@ -240,9 +240,9 @@ export async function turnOff(
 	return result;
 }
 
-export class OwnTwoStep extends DomainError {
+export class OwnTwoStep extends Conflict {
 	constructor() {
-		super(409, 'own-two-step', 'Turn your own two-step sign-in off on your account page (it asks for your password and a code).');
+		super('own-two-step', 'Turn your own two-step sign-in off on your account page (it asks for your password and a code).');
 	}
 }
 

@@ -2,15 +2,16 @@
  * People and roles, for administrators: list, invite, change role, deactivate, reactivate.
  * The last active administrator can be neither demoted nor deactivated.
  */
-import { and, asc, count, eq, isNull } from 'drizzle-orm';
+import { and, asc, count, eq, inArray, isNull } from 'drizzle-orm';
 import { z } from 'zod';
 import type { Db, Tx } from '$lib/server/db';
 import { apiTokens, ROLES, sessions, users, type Role } from '$lib/server/db/schema';
-import { DomainError } from '$lib/server/api/http';
+import { Conflict, DomainError, NotFound } from '$lib/server/errors';
 import { recordAudit } from '$lib/server/audit';
 import { createLink, LINK_LIFETIME_MS } from './links';
 import * as notify from './notify';
 import { inTransaction } from '$lib/server/db/transaction';
+import { ADMINS, inSet } from '$lib/roles';
 
 export const inviteSchema = z
 	.object({
@@ -23,14 +24,14 @@ export const inviteSchema = z
 export const roleChangeSchema = z.object({ userId: z.coerce.number().int().positive(), role: z.enum(ROLES, { message: 'Choose a role.' }) }).strict();
 export const userIdSchema = z.object({ userId: z.coerce.number().int().positive() }).strict();
 
-export class UserNotFound extends DomainError {
+export class UserNotFound extends NotFound {
 	constructor() {
-		super(404, 'not-found', 'No such user.');
+		super('No such user.');
 	}
 }
-export class LastAdmin extends DomainError {
+export class LastAdmin extends Conflict {
 	constructor() {
-		super(409, 'last-admin', 'This is the last active administrator: make someone else an administrator first.');
+		super('last-admin', 'This is the last active administrator: make someone else an administrator first.');
 	}
 }
 
@@ -68,7 +69,7 @@ async function otherActiveAdmins(tx: Tx, userId: number) {
 	const admins = await tx
 		.select({ id: users.id })
 		.from(users)
-		.where(and(eq(users.role, 'admin'), eq(users.status, 'active')))
+		.where(and(inArray(users.role, [...ADMINS]), eq(users.status, 'active')))
 		.for('update');
 	return admins.filter((a) => a.id !== userId).length;
 }
@@ -103,7 +104,7 @@ export async function changeRole(db: Db, actorId: number, userId: number, role: 
 	const changed = await inTransaction(db, async (tx) => {
 		const user = await lockUser(tx, userId);
 		if (user.role === role) return null;
-		if (user.role === 'admin' && user.status === 'active' && (await otherActiveAdmins(tx, user.id)) === 0) throw new LastAdmin();
+		if (inSet(user.role, ADMINS) && user.status === 'active' && (await otherActiveAdmins(tx, user.id)) === 0) throw new LastAdmin();
 		await tx.update(users).set({ role }).where(eq(users.id, user.id));
 		await recordAudit(tx, { actorId, action: 'user.role-changed', targetType: 'user', targetId: user.id, detail: { from: user.role, to: role } });
 		return user;
@@ -125,7 +126,7 @@ export async function deactivate(db: Db, actorId: number, userId: number) {
 	await inTransaction(db, async (tx) => {
 		const user = await lockUser(tx, userId);
 		if (user.status === 'disabled') return;
-		if (user.role === 'admin' && (await otherActiveAdmins(tx, user.id)) === 0) throw new LastAdmin();
+		if (inSet(user.role, ADMINS) && (await otherActiveAdmins(tx, user.id)) === 0) throw new LastAdmin();
 		await tx.update(users).set({ status: 'disabled' }).where(eq(users.id, user.id));
 		await tx.delete(sessions).where(eq(sessions.userId, user.id));
 		const tokensRevoked = await revokeAllTokens(tx, user.id, new Date());

@@ -3,30 +3,7 @@ import { ZodError } from 'zod';
 import { badTextReason } from '$lib/input';
 import { INPUT_ERRNOS, dbErrno, isRetryable, isUnavailable } from '$lib/server/db/errno';
 import { duplicateOf } from '$lib/server/db/unique';
-
-/** An error with the JSON shape of the API: `{ error: { code, message, fields? } }`. */
-export class ApiError extends Error {
-	constructor(
-		readonly status: number,
-		readonly code: string,
-		message: string,
-		readonly fields?: Record<string, string>
-	) {
-		super(message);
-	}
-}
-
-/** Domain errors from services carry a status and code so routes can map them without a table. */
-export class DomainError extends Error {
-	constructor(
-		readonly status: number,
-		readonly code: string,
-		message: string,
-		readonly fields?: Record<string, string>
-	) {
-		super(message);
-	}
-}
+import { DomainError, zodFields } from '$lib/server/errors';
 
 const CODES: Record<number, string> = {
 	400: 'bad-request',
@@ -52,19 +29,9 @@ export function errorResponse(
 	return json({ error: fields ? { code, message, fields } : { code, message } }, { status, headers });
 }
 
-/** Field messages from a zod error, keyed by dotted path. */
-export function zodFields(err: ZodError): Record<string, string> {
-	const fields: Record<string, string> = {};
-	for (const issue of err.issues) {
-		const key = issue.path.length ? issue.path.join('.') : '_';
-		if (!fields[key]) fields[key] = issue.message;
-	}
-	return fields;
-}
-
 /** Turns anything thrown inside an API handler into the API's error shape. */
 export function toErrorResponse(err: unknown): Response {
-	if (err instanceof ApiError || err instanceof DomainError) {
+	if (err instanceof DomainError) {
 		return errorResponse(err.status, err.code, err.message, err.fields);
 	}
 	if (err instanceof ZodError) {
@@ -107,7 +74,7 @@ export function endpoint<E extends RequestEvent>(handler: (event: E) => Promise<
 export async function readJson(request: Request): Promise<unknown> {
 	const type = request.headers.get('content-type') ?? '';
 	if (!type.toLowerCase().startsWith('application/json')) {
-		throw new ApiError(415, 'unsupported-media-type', 'Send the body as application/json.');
+		throw new DomainError(415, 'unsupported-media-type', 'Send the body as application/json.');
 	}
 	let body: unknown;
 	let text: string;
@@ -115,12 +82,12 @@ export async function readJson(request: Request): Promise<unknown> {
 		// fatal: bytes that are not UTF-8 are refused, not turned into U+FFFD and stored.
 		text = new TextDecoder('utf-8', { fatal: true }).decode(await request.arrayBuffer());
 	} catch {
-		throw new ApiError(400, 'invalid-json', 'The body is not valid UTF-8.');
+		throw new DomainError(400, 'invalid-json', 'The body is not valid UTF-8.');
 	}
 	try {
 		body = JSON.parse(text);
 	} catch {
-		throw new ApiError(400, 'invalid-json', 'The body is not valid JSON.');
+		throw new DomainError(400, 'invalid-json', 'The body is not valid JSON.');
 	}
 	checkJsonBody(body);
 	return body;
@@ -140,15 +107,15 @@ export function checkJsonBody(body: unknown): void {
 		const { value, path, depth } = stack.pop()!;
 		if (typeof value === 'string') {
 			const reason = badTextReason(value);
-			if (reason) throw new ApiError(400, 'invalid-text', `${path || 'The body'}: ${reason}`, { [path || '_']: reason });
+			if (reason) throw new DomainError(400, 'invalid-text', `${path || 'The body'}: ${reason}`, { [path || '_']: reason });
 			continue;
 		}
 		if (value === null || typeof value !== 'object') continue;
-		if (depth >= MAX_JSON_DEPTH) throw new ApiError(400, 'too-deep', `The body nests deeper than ${MAX_JSON_DEPTH} levels.`, { [path || '_']: 'Nested too deeply.' });
+		if (depth >= MAX_JSON_DEPTH) throw new DomainError(400, 'too-deep', `The body nests deeper than ${MAX_JSON_DEPTH} levels.`, { [path || '_']: 'Nested too deeply.' });
 		for (const [key, child] of Object.entries(value)) {
 			const childPath = path ? `${path}.${key}` : key;
 			const reason = badTextReason(key);
-			if (reason) throw new ApiError(400, 'invalid-text', `A field name: ${reason}`, { _: reason });
+			if (reason) throw new DomainError(400, 'invalid-text', `A field name: ${reason}`, { _: reason });
 			stack.push({ value: child, path: childPath, depth: depth + 1 });
 		}
 	}

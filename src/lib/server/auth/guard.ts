@@ -1,7 +1,6 @@
 import { error, redirect, type RequestEvent } from '@sveltejs/kit';
-import type { Role } from '$lib/server/db/schema';
-import type { PUBLIC } from './roles';
 import { isHalfSignedInPath, secondFactorPageFor } from './public-paths';
+import { ADMINS, inSet, isAdminOnly, type PUBLIC, type Role } from '$lib/roles';
 
 export type SignedInUser = NonNullable<App.Locals['user']>;
 
@@ -40,7 +39,7 @@ export function requireRole(event: GuardEvent, roles: readonly Role[] | typeof P
 	if (!roles.includes(user.role)) {
 		error(403, { code: 'forbidden', message: 'Your role may not do this.' });
 	}
-	if (roles.length > 0 && roles.every((r) => r === 'admin') && event.locals.secondFactor !== 'verified') {
+	if (isAdminOnly(roles) && event.locals.secondFactor !== 'verified') {
 		error(403, {
 			code: SECOND_FACTOR_NEEDED,
 			message:
@@ -57,7 +56,7 @@ export function requireRole(event: GuardEvent, roles: readonly Role[] | typeof P
  * inside routes open to every role (revoking anyone's token), the same rule as admin-only sets.
  */
 export function hasAdminFactor(event: Pick<RequestEvent, 'locals'>): boolean {
-	return event.locals.user?.role === 'admin' && event.locals.secondFactor === 'verified';
+	return inSet(event.locals.user?.role, ADMINS) && event.locals.secondFactor === 'verified';
 }
 
 /** True when the user holds one of the roles (for showing or hiding UI; the server still checks). */

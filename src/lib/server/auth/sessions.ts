@@ -116,11 +116,6 @@ export async function endSession(session: Session, cookies: Cookies) {
 	clearCookie(cookies);
 }
 
-/** Ends every session of a user (password reset, deactivation). */
-export function endAllSessions(userId: number) {
-	return lucia.invalidateUserSessions(userId);
-}
-
 /** Ends every session of a user except one (after a password change in that session). */
 export async function endOtherSessions(userId: number, keepSessionId: string) {
 	await db.delete(sessions).where(and(eq(sessions.userId, userId), ne(sessions.id, keepSessionId)));

@@ -17,7 +17,7 @@ import { z } from 'zod';
 import type { DbOrTx } from '$lib/server/db';
 import { inTransaction } from '$lib/server/db/transaction';
 import { materials } from '$lib/server/db/schema';
-import { DomainError } from '$lib/server/api/http';
+import { DomainError } from '$lib/server/errors';
 import { recordAudit } from '$lib/server/audit';
 import { bumpStockVersion } from '$lib/server/stock/version';
 import { text } from '$lib/input';

@@ -12,7 +12,7 @@ import { z } from 'zod';
 import type { DbOrTx, Tx } from '$lib/server/db';
 import { inTransaction } from '$lib/server/db/transaction';
 import { measurements, partSurfaces, parts, settings } from '$lib/server/db/schema';
-import { GLASS_CODE_RANGE_NM } from '$lib/optics';
+import { DEFAULT_WAVELENGTH_NM, GLASS_CODE_RANGE_NM } from '$lib/optics';
 import { recordAudit } from '$lib/server/audit';
 import { bumpStockVersion } from '$lib/server/stock/version';
 import { opticsPartOf, paraxialColumns, type MeasuredEfl } from './derived';
@@ -25,7 +25,7 @@ export const LAB_WAVELENGTH_RANGE_NM = GLASS_CODE_RANGE_NM;
 export const COMMON_WAVELENGTHS_NM: readonly { nm: number; label: string }[] = [
 	{ nm: 486.1, label: 'F line, hydrogen' },
 	{ nm: 532, label: 'doubled Nd laser' },
-	{ nm: 587.6, label: 'd line, helium' },
+	{ nm: DEFAULT_WAVELENGTH_NM, label: 'd line, helium' },
 	{ nm: 632.8, label: 'helium–neon laser' },
 	{ nm: 656.3, label: 'C line, hydrogen' },
 	{ nm: 780, label: 'near-infrared diode' },

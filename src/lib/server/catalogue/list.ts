@@ -25,9 +25,8 @@ import { text } from '$lib/input';
 import type { DbOrTx } from '$lib/server/db';
 import { PART_KINDS, parts } from '$lib/server/db/schema';
 import { availableSql } from '$lib/server/stock/availability';
-import { partsJson } from './parts';
 import { kindLabel } from '$lib/format';
-import type { PartJson } from './part-json';
+import { partsJson, type PartJson } from './part-json';
 
 /** Sortable columns of the list (allow-list) → the column sorted on. */
 export const SORTS = {

@@ -11,7 +11,7 @@ import { inTransaction } from '$lib/server/db/transaction';
 import { measurements, parts, users } from '$lib/server/db/schema';
 import { bumpStockVersion } from '$lib/server/stock/version';
 import { recordAudit } from '$lib/server/audit';
-import { DomainError } from '$lib/server/api/http';
+import { DomainError } from '$lib/server/errors';
 import { PartNotFound, refreshDerived, type Actor } from './parts';
 
 export const measurementInputSchema = z

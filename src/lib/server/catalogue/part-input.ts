@@ -6,7 +6,7 @@
 import { z } from 'zod';
 import { text } from '$lib/input';
 import { isWholeCents } from '$lib/money';
-import { buildElement, resolveMaterial, thicknessesAtHeight } from '$lib/optics';
+import { buildElement, DEFAULT_WAVELENGTH_NM, resolveMaterial, thicknessesAtHeight } from '$lib/optics';
 import { toSurfaceSpecs } from './derived';
 import { parseCoatingBand } from '$lib/coating';
 import { PART_KINDS } from '$lib/server/db/schema';
@@ -84,7 +84,7 @@ export const partFieldsSchema = z
 	.object({
 		...fields,
 		surfaces: fields.surfaces.default([]),
-		designWavelengthNm: fields.designWavelengthNm.default(587.6),
+		designWavelengthNm: fields.designWavelengthNm.default(DEFAULT_WAVELENGTH_NM),
 		currency: fields.currency.default('EUR'),
 		reorderPoint: fields.reorderPoint.default(0),
 		reorderQuantity: fields.reorderQuantity.default(0)

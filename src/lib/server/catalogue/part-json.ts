@@ -2,8 +2,11 @@
  * The Part JSON of the API (DESIGN.md): one serializer used by the API, the CSV export
  * and anyone else who hands a part to the outside.
  */
-import type { Measurement, Part, PartSurface } from '$lib/server/db/schema';
-import type { Totals } from '$lib/server/stock/availability';
+import { desc, inArray } from 'drizzle-orm';
+import type { DbOrTx } from '$lib/server/db';
+import { measurements, partSurfaces, suppliers, type Measurement, type Part, type PartSurface } from '$lib/server/db/schema';
+import { totalsFor, type Totals } from '$lib/server/stock/availability';
+import { getDefaultWavelengthNm } from './settings';
 import type { EflSource } from './derived';
 import { toMajor } from '$lib/money';
 import { bandOf } from '$lib/coating';
@@ -103,4 +106,29 @@ export function toPartJson(
 		archived: part.archivedAt !== null,
 		updatedAt: part.updatedAt.toISOString()
 	};
+}
+
+/** Part JSON of many parts at once (one query per table), in the order of `rows`. */
+export async function partsJson(db: DbOrTx, rows: readonly Part[]): Promise<PartJson[]> {
+	if (!rows.length) return [];
+	const ids = rows.map((r) => r.id);
+	const [surfaceRows, supplierRows, measurementRows, totals, wl] = await Promise.all([
+		db.select().from(partSurfaces).where(inArray(partSurfaces.partId, ids)),
+		db.select({ id: suppliers.id, name: suppliers.name }).from(suppliers),
+		db.select().from(measurements).where(inArray(measurements.partId, ids)).orderBy(desc(measurements.measuredAt), desc(measurements.id)),
+		totalsFor(db, ids),
+		getDefaultWavelengthNm(db)
+	]);
+	const supplierName = new Map(supplierRows.map((s) => [s.id, s.name]));
+	const latest = new Map<number, (typeof measurementRows)[number]>();
+	for (const m of measurementRows) if (!latest.has(m.partId)) latest.set(m.partId, m);
+	return rows.map((p) =>
+		toPartJson(p, {
+			surfaces: surfaceRows.filter((s) => s.partId === p.id),
+			supplierName: p.supplierId ? (supplierName.get(p.supplierId) ?? null) : null,
+			totals: totals.get(p.id)!,
+			measured: latest.get(p.id) ?? null,
+			defaultWavelengthNm: wl
+		})
+	);
 }

@@ -13,27 +13,26 @@
  *   const { id } = await parts.createPart(db, body, { id: user.id });
  *   const json = await parts.getPartJson(db, id);
  */
-import { and, desc, eq, inArray } from 'drizzle-orm';
-import { ZodError } from 'zod';
+import { and, desc, eq } from 'drizzle-orm';
 import type { DbOrTx } from '$lib/server/db';
 import { inTransaction } from '$lib/server/db/transaction';
 import { measurements, movements, partSurfaces, parts, reservations, stock, suppliers, type Part } from '$lib/server/db/schema';
 import type { Role } from '$lib/server/db/schema';
-import { DomainError } from '$lib/server/api/http';
+import { DomainError, NotFound } from '$lib/server/errors';
 import { recordAudit } from '$lib/server/audit';
 import { bumpStockVersion } from '$lib/server/stock/version';
-import { totalsFor } from '$lib/server/stock/availability';
 import { opticsPartOf, paraxialColumns, type MeasuredEfl } from './derived';
 import { partInputSchema, partPatchSchema, PURCHASING_FIELDS, toSurfaceSpecs, type PartInput, type PartPatch } from './part-input';
-import { toPartJson, type PartJson } from './part-json';
+import { partsJson, type PartJson } from './part-json';
 import { getDefaultWavelengthNm } from './settings';
 import { toMajor, toMinor } from '$lib/money';
 import { parseCoatingBand } from '$lib/coating';
 import { syncLabMaterials } from './lab-materials';
+import { inSet, PURCHASING_FIELDS_ONLY, STOCK_EDITORS } from '$lib/roles';
 
 export { partInputSchema, partPatchSchema, partFieldsSchema, PURCHASING_FIELDS } from './part-input';
 export type { PartInput, PartPatch } from './part-input';
-export { toPartJson, type PartJson } from './part-json';
+export { partsJson, toPartJson, type PartJson } from './part-json';
 export { computeDerived, paraxialColumns } from './derived';
 export { listParts, listQuerySchema, type ListQuery } from './list';
 
@@ -42,9 +41,9 @@ export interface Actor {
 	role?: Role;
 }
 
-export class PartNotFound extends DomainError {
+export class PartNotFound extends NotFound {
 	constructor(id: number | string) {
-		super(404, 'not-found', `There is no part ${id}.`);
+		super(`There is no part ${id}.`);
 	}
 }
 
@@ -212,8 +211,8 @@ export function toInput(record: PartRecord): PartInput {
  * lead time, reorder point and quantity). Anything else is 403.
  */
 export function assertPatchAllowed(role: Role | undefined, patch: PartPatch) {
-	if (role === 'admin' || role === 'stockroom') return;
-	if (role === 'purchaser') {
+	if (inSet(role, STOCK_EDITORS)) return;
+	if (inSet(role, PURCHASING_FIELDS_ONLY)) {
 		const other = Object.keys(patch).filter((k) => !(PURCHASING_FIELDS as readonly string[]).includes(k));
 		if (other.length) {
 			throw new DomainError(403, 'forbidden', `A purchaser may change only the purchasing fields, not: ${other.join(', ')}.`);
@@ -310,39 +309,9 @@ export async function findPartIdBySku(db: DbOrTx, sku: string): Promise<number |
 	return row?.id ?? null;
 }
 
-/** Part JSON of many parts at once (one query per table), in the order of `rows`. */
-export async function partsJson(db: DbOrTx, rows: readonly Part[]): Promise<PartJson[]> {
-	if (!rows.length) return [];
-	const ids = rows.map((r) => r.id);
-	const [surfaceRows, supplierRows, measurementRows, totals, wl] = await Promise.all([
-		db.select().from(partSurfaces).where(inArray(partSurfaces.partId, ids)),
-		db.select({ id: suppliers.id, name: suppliers.name }).from(suppliers),
-		db.select().from(measurements).where(inArray(measurements.partId, ids)).orderBy(desc(measurements.measuredAt), desc(measurements.id)),
-		totalsFor(db, ids),
-		getDefaultWavelengthNm(db)
-	]);
-	const supplierName = new Map(supplierRows.map((s) => [s.id, s.name]));
-	const latest = new Map<number, (typeof measurementRows)[number]>();
-	for (const m of measurementRows) if (!latest.has(m.partId)) latest.set(m.partId, m);
-	return rows.map((p) =>
-		toPartJson(p, {
-			surfaces: surfaceRows.filter((s) => s.partId === p.id),
-			supplierName: p.supplierId ? (supplierName.get(p.supplierId) ?? null) : null,
-			totals: totals.get(p.id)!,
-			measured: latest.get(p.id) ?? null,
-			defaultWavelengthNm: wl
-		})
-	);
-}
-
 /** Part JSON of one part; throws 404 when it does not exist. */
 export async function getPartJson(db: DbOrTx, id: number): Promise<PartJson> {
 	const [part] = await db.select().from(parts).where(eq(parts.id, id));
 	if (!part) throw new PartNotFound(id);
 	return (await partsJson(db, [part]))[0];
-}
-
-/** True when `err` is a validation failure of part input (for forms that show field messages). */
-export function isInvalidInput(err: unknown): err is ZodError {
-	return err instanceof ZodError;
 }

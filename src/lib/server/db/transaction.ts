@@ -17,7 +17,7 @@
  * after the commit.
  */
 import { MySqlTransaction, type MySqlTransactionConfig } from 'drizzle-orm/mysql-core';
-import { DomainError } from '$lib/server/api/http';
+import { DomainError } from '$lib/server/errors';
 import type { DbOrTx, Tx } from './client';
 import { dbErrno, isRetryable } from './errno';
 import { duplicateOf } from './unique';

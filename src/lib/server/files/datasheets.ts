@@ -9,9 +9,10 @@
 import { createHash, randomUUID } from 'node:crypto';
 import fs from 'node:fs';
 import { and, desc, eq, inArray, isNull } from 'drizzle-orm';
+import { z } from 'zod';
 import type { DbOrTx } from '$lib/server/db';
 import { datasheets, parts, users, type Datasheet, type DatasheetType } from '$lib/server/db/schema';
-import { ApiError, DomainError } from '$lib/server/api/http';
+import { DomainError, NotFound } from '$lib/server/errors';
 import { recordAudit } from '$lib/server/audit';
 import { describeRefused, EXTENSIONS, isImageType, maxBytesFor, sniffType, MAX_IMAGE_BYTES, MAX_PDF_BYTES } from './magic';
 import { makeThumbnail, ThumbnailFailed, type Thumbnail } from './thumbnails';
@@ -19,6 +20,9 @@ import { imageSize, MAX_IMAGE_MEGAPIXELS, MAX_IMAGE_PIXELS } from './image-size'
 import { spoolToTempFile, type SpooledFile } from './spool';
 import type { ObjectStore, StoredObject } from './s3';
 import { inTransaction } from '$lib/server/db/transaction';
+
+/** `POST /datasheets/match`: the dropped files' names. */
+export const matchInputSchema = z.object({ filenames: z.array(z.string().max(255)).min(1).max(500) }).strict();
 
 export interface DatasheetJson {
 	id: number;
@@ -47,14 +51,14 @@ export function cleanFilename(name: string): string {
 	return cleaned || 'unnamed';
 }
 
-export class DatasheetNotFound extends DomainError {
+export class DatasheetNotFound extends NotFound {
 	constructor(id: number) {
-		super(404, 'not-found', `There is no datasheet ${id}.`);
+		super(`There is no datasheet ${id}.`);
 	}
 }
 
 /**
- * Checks the bytes of an upload and says what they are. Throws ApiError 400 (empty, wrong type,
+ * Checks the bytes of an upload and says what they are. Throws DomainError 400 (empty, wrong type,
  * unreadable image) or 413 (too large) with a message for people.
  */
 export function checkUpload(bytes: Uint8Array): DatasheetType {
@@ -63,24 +67,24 @@ export function checkUpload(bytes: Uint8Array): DatasheetType {
 
 /** What `checkUpload` decides, from the first HEAD_BYTES bytes and the size alone. */
 function checkHead(head: Uint8Array, size: number): DatasheetType {
-	if (size === 0) throw new ApiError(400, 'empty-file', 'The file is empty.');
+	if (size === 0) throw new DomainError(400, 'empty-file', 'The file is empty.');
 	const type = sniffType(head);
 	if (!type) {
-		throw new ApiError(
+		throw new DomainError(
 			400,
 			'unsupported-type',
 			`This looks like ${describeRefused(head)}. Upload a PDF, PNG or JPEG file; the type is read from the file itself, not its name.`
 		);
 	}
 	if (type === 'image/webp') {
-		throw new ApiError(400, 'unsupported-type', 'WebP images are not accepted (no thumbnail can be made): save the photo as PNG or JPEG.');
+		throw new DomainError(400, 'unsupported-type', 'WebP images are not accepted (no thumbnail can be made): save the photo as PNG or JPEG.');
 	}
 	if (size > maxBytesFor(type)) throw tooLarge(type, `${(size / (1024 * 1024)).toFixed(1)} MB`);
 	return type;
 }
 
 const tooLarge = (type: DatasheetType, size: string) =>
-	new ApiError(413, 'too-large', `The file is ${size}; ${isImageType(type) ? `photos may be at most ${mb(MAX_IMAGE_BYTES)}` : `PDFs may be at most ${mb(MAX_PDF_BYTES)}`}.`);
+	new DomainError(413, 'too-large', `The file is ${size}; ${isImageType(type) ? `photos may be at most ${mb(MAX_IMAGE_BYTES)}` : `PDFs may be at most ${mb(MAX_PDF_BYTES)}`}.`);
 
 /** Bytes the type checks look at (the refusal message reads the start of the file). */
 const HEAD_BYTES = 512;
@@ -206,7 +210,7 @@ export async function uploadDatasheet(
 	}
 }
 
-const unreadable = () => new ApiError(400, 'unreadable-image', 'The image could not be read: the file may be damaged or not really an image.');
+const unreadable = () => new DomainError(400, 'unreadable-image', 'The image could not be read: the file may be damaged or not really an image.');
 
 /**
  * The pixel count from the header first (an image bomb is refused before a pixel is decoded), then
@@ -217,7 +221,7 @@ async function thumbnailOf(bytes: Uint8Array, type: DatasheetType): Promise<Thum
 	if (!size) throw unreadable();
 	if (size.width * size.height > MAX_IMAGE_PIXELS) {
 		const mp = (size.width * size.height) / 1e6;
-		throw new ApiError(
+		throw new DomainError(
 			413,
 			'image-too-large',
 			`The photo is ${size.width} × ${size.height} pixels (${mp < 100 ? mp.toFixed(1) : Math.round(mp)} megapixels); photos may have at most ${MAX_IMAGE_MEGAPIXELS} megapixels. Scale it down (for example to 4000 pixels on the long side) and upload it again.`,
@@ -230,9 +234,9 @@ async function thumbnailOf(bytes: Uint8Array, type: DatasheetType): Promise<Thum
 	} catch (err) {
 		if (!(err instanceof ThumbnailFailed)) throw err;
 		if (err.reason === 'out-of-memory') {
-			throw new ApiError(413, 'image-too-large', 'The photo needs more memory to read than a thumbnail may use: scale it down and upload it again.');
+			throw new DomainError(413, 'image-too-large', 'The photo needs more memory to read than a thumbnail may use: scale it down and upload it again.');
 		}
-		throw new ApiError(503, 'thumbnail-unavailable', 'No thumbnail could be made in time (the server is busy); nothing was saved. Try again in a minute.');
+		throw new DomainError(503, 'thumbnail-unavailable', 'No thumbnail could be made in time (the server is busy); nothing was saved. Try again in a minute.');
 	}
 	if (!thumb) throw unreadable();
 	return thumb;

@@ -1,6 +1,6 @@
 import { Readable } from 'node:stream';
 import busboy from 'busboy';
-import { ApiError } from '$lib/server/api/http';
+import { DomainError } from '$lib/server/errors';
 
 /** A file part of a streamed multipart body, as `readMultipartStream` hands it over. */
 export interface FilePart {
@@ -10,7 +10,7 @@ export interface FilePart {
 }
 
 const tooLarge = (maxBytes: number) =>
-	new ApiError(413, 'too-large', `The upload is too large: at most ${Math.round(maxBytes / (1024 * 1024))} MB may be sent at once.`, { file: 'The file is too large.' });
+	new DomainError(413, 'too-large', `The upload is too large: at most ${Math.round(maxBytes / (1024 * 1024))} MB may be sent at once.`, { file: 'The file is too large.' });
 
 /**
  * Reads a multipart/form-data body as a stream (busboy), without holding the file in memory: the
@@ -34,17 +34,17 @@ export async function readMultipartStream<T>(
 	const fileField = opts.fileField ?? 'file';
 	const type = request.headers.get('content-type') ?? '';
 	if (!type.toLowerCase().startsWith('multipart/form-data')) {
-		throw new ApiError(415, 'unsupported-media-type', `Send the file as multipart/form-data (field "${fileField}").`);
+		throw new DomainError(415, 'unsupported-media-type', `Send the file as multipart/form-data (field "${fileField}").`);
 	}
 	const length = Number(request.headers.get('content-length') ?? NaN);
 	if (Number.isFinite(length) && length > opts.maxBodyBytes) throw tooLarge(opts.maxBodyBytes);
-	if (!request.body) throw new ApiError(400, 'invalid-multipart', 'The upload is empty.');
+	if (!request.body) throw new DomainError(400, 'invalid-multipart', 'The upload is empty.');
 	let parser: busboy.Busboy;
 	try {
 		// fileSize one byte over the limit: the handler sees that byte and refuses the file (busboy alone would cut it silently).
 		parser = busboy({ headers: { 'content-type': type }, defParamCharset: 'utf8', limits: { files: 5, fields: 40, fieldSize: 256 * 1024, parts: 50, fileSize: opts.maxFileBytes + 1 } });
 	} catch {
-		throw new ApiError(400, 'invalid-multipart', 'The upload could not be read as multipart/form-data.');
+		throw new DomainError(400, 'invalid-multipart', 'The upload could not be read as multipart/form-data.');
 	}
 	const body = Readable.fromWeb(request.body as import('node:stream/web').ReadableStream<Uint8Array>);
 	return new Promise((resolve, reject) => {
@@ -65,7 +65,7 @@ export async function readMultipartStream<T>(
 			handling?.then((file) => opts.discard?.(file)).catch(() => {});
 		};
 		parser.on('field', (name, value, info) => {
-			if (info.valueTruncated) return fail(new ApiError(400, 'invalid-input', `The field "${name}" is too long.`, { [name]: 'Too long.' }));
+			if (info.valueTruncated) return fail(new DomainError(400, 'invalid-input', `The field "${name}" is too long.`, { [name]: 'Too long.' }));
 			fields[name] = value;
 		});
 		parser.on('file', (name, stream, info) => {
@@ -82,10 +82,10 @@ export async function readMultipartStream<T>(
 			handling = opts.handleFile({ stream, filename: info.filename ?? '', mimeType: info.mimeType });
 			handling.catch((err) => {
 				stream.resume();
-				fail(streamCut && !(err instanceof ApiError) ? new ApiError(400, 'invalid-multipart', 'The upload was cut off before its end.') : err);
+				fail(streamCut && !(err instanceof DomainError) ? new DomainError(400, 'invalid-multipart', 'The upload was cut off before its end.') : err);
 			});
 		});
-		parser.on('error', () => fail(new ApiError(400, 'invalid-multipart', 'The upload could not be read as multipart/form-data.')));
+		parser.on('error', () => fail(new DomainError(400, 'invalid-multipart', 'The upload could not be read as multipart/form-data.')));
 		parser.on('close', () => {
 			if (settled) return;
 			(handling ?? Promise.resolve(null)).then(
@@ -99,7 +99,7 @@ export async function readMultipartStream<T>(
 		});
 		body.on('error', (err) => {
 			const status = err && typeof err === 'object' && 'status' in err ? (err as { status: number }).status : 0;
-			fail(status === 413 ? tooLarge(opts.maxBodyBytes) : new ApiError(400, 'invalid-multipart', 'The upload was interrupted.'));
+			fail(status === 413 ? tooLarge(opts.maxBodyBytes) : new DomainError(400, 'invalid-multipart', 'The upload was interrupted.'));
 		});
 		body.pipe(parser);
 	});

@@ -14,8 +14,7 @@ import {
 	S3Client,
 	S3ServiceException
 } from '@aws-sdk/client-s3';
-import { getSignedUrl } from '@aws-sdk/s3-request-presigner';
-import { DomainError } from '$lib/server/api/http';
+import { DomainError, NotFound } from '$lib/server/errors';
 
 export interface ObjectStoreConfig {
 	endpoint?: string;
@@ -48,9 +47,9 @@ export class StorageUnavailable extends DomainError {
 }
 
 /** The object does not exist (deleted behind our back, or a wrong key). */
-export class ObjectMissing extends DomainError {
+export class ObjectMissing extends NotFound {
 	constructor(key: string) {
-		super(404, 'object-missing', `The stored file ${key} is missing from the file store.`);
+		super(`The stored file ${key} is missing from the file store.`, 'object-missing');
 	}
 }
 
@@ -70,8 +69,6 @@ export interface ObjectStore {
 	putFile(key: string, file: string, contentType: string, metadata?: Record<string, string>): Promise<void>;
 	get(key: string): Promise<StoredObject>;
 	delete(key: string): Promise<void>;
-	/** A presigned GET URL valid for `seconds` (at most 300), with the response headers forced. */
-	presignedGet(key: string, seconds: number, headers: { contentType: string; contentDisposition: string }): Promise<string>;
 }
 
 function isMissing(err: unknown): boolean {
@@ -204,30 +201,8 @@ export function createObjectStore(config: ObjectStoreConfig): ObjectStore {
 		async delete(key) {
 			await ensureBucket();
 			await wrap((opts) => client.send(new DeleteObjectCommand({ Bucket, Key: key }), opts));
-		},
-		async presignedGet(key, seconds, headers) {
-			const expiresIn = Math.min(Math.max(1, Math.round(seconds)), 300);
-			return wrap(() =>
-				getSignedUrl(
-					client,
-					new GetObjectCommand({
-						Bucket,
-						Key: key,
-						ResponseContentType: headers.contentType,
-						ResponseContentDisposition: headers.contentDisposition
-					}),
-					{ expiresIn }
-				)
-			);
 		}
 	};
-}
-
-/** Reads a whole object into memory (for small objects: thumbnails, tests). */
-export async function readAll(stream: Readable): Promise<Buffer> {
-	const chunks: Buffer[] = [];
-	for await (const chunk of stream) chunks.push(typeof chunk === 'string' ? Buffer.from(chunk) : chunk);
-	return Buffer.concat(chunks);
 }
 
 /** The store configured from environment variables (S3_ENDPOINT, S3_BUCKET, ...). */

@@ -5,7 +5,7 @@
 import fs from 'node:fs';
 import type { Readable } from 'node:stream';
 import Papa from 'papaparse';
-import { ApiError } from '$lib/server/api/http';
+import { DomainError } from '$lib/server/errors';
 import { spoolToTempFile, type SpooledFile, type SpoolProgress } from '$lib/server/files/spool';
 
 /** Caps on an uploaded CSV. 16 MB holds about 80,000 rows of the export's format (~200 bytes a row). */
@@ -61,7 +61,7 @@ const BINARY_SIGNATURES: [number[], string][] = [
 /**
  * The byte-level checks of an uploaded CSV, made as it streams in (`push` each chunk, then `end`
  * with what the spool saw): size, not empty, not a known binary format, no NUL bytes near the
- * start, valid UTF-8. Throws ApiError (400, or 413 for size, as soon as the limit is passed) with a
+ * start, valid UTF-8. Throws DomainError (400, or 413 for size, as soon as the limit is passed) with a
  * message for people. The other refusals wait for `end`, so that each file gets the same message
  * whatever its chunks.
  */
@@ -74,7 +74,7 @@ export class CsvByteCheck {
 
 	push(chunk: Uint8Array, so: SpoolProgress): void {
 		if (so.size > this.maxBytes) {
-			throw new ApiError(413, 'too-large', `The file is more than ${Math.round(this.maxBytes / (1024 * 1024))} MB; a CSV may be at most ${Math.round(this.maxBytes / (1024 * 1024))} MB. Split it into smaller files.`, {
+			throw new DomainError(413, 'too-large', `The file is more than ${Math.round(this.maxBytes / (1024 * 1024))} MB; a CSV may be at most ${Math.round(this.maxBytes / (1024 * 1024))} MB. Split it into smaller files.`, {
 				file: 'The file is too large.'
 			});
 		}
@@ -89,15 +89,15 @@ export class CsvByteCheck {
 
 	/** `head`: the first 8 KB of the file (NUL bytes there mean binary data). */
 	end(so: Pick<SpoolProgress, 'size' | 'head'>): void {
-		if (so.size === 0) throw new ApiError(400, 'empty-file', 'The file is empty.', { file: 'The file is empty.' });
+		if (so.size === 0) throw new DomainError(400, 'empty-file', 'The file is empty.', { file: 'The file is empty.' });
 		const head = so.head;
 		for (const [sig, what] of BINARY_SIGNATURES) {
 			if (head.byteLength >= sig.length && sig.every((b, i) => head[i] === b)) {
-				throw new ApiError(400, 'not-csv', `This is ${what}, not a CSV file.`, { file: `This is ${what}, not a CSV file.` });
+				throw new DomainError(400, 'not-csv', `This is ${what}, not a CSV file.`, { file: `This is ${what}, not a CSV file.` });
 			}
 		}
 		if (head.includes(0)) {
-			throw new ApiError(400, 'not-csv', 'This is not a text file (it contains binary data). Upload a CSV file.', { file: 'This is not a CSV file.' });
+			throw new DomainError(400, 'not-csv', 'This is not a text file (it contains binary data). Upload a CSV file.', { file: 'This is not a CSV file.' });
 		}
 		if (this.utf8) {
 			try {
@@ -107,9 +107,9 @@ export class CsvByteCheck {
 			}
 		}
 		if (!this.utf8) {
-			throw new ApiError(400, 'not-utf8', 'The file is not UTF-8 text. Save it from your spreadsheet as "CSV UTF-8".', { file: 'Save the file as CSV UTF-8.' });
+			throw new DomainError(400, 'not-utf8', 'The file is not UTF-8 text. Save it from your spreadsheet as "CSV UTF-8".', { file: 'Save the file as CSV UTF-8.' });
 		}
-		if (this.blank) throw new ApiError(400, 'empty-file', 'The file is empty.', { file: 'The file is empty.' });
+		if (this.blank) throw new DomainError(400, 'empty-file', 'The file is empty.', { file: 'The file is empty.' });
 	}
 }
 
@@ -142,18 +142,18 @@ export async function inspectCsvFile(file: string, opts: { maxRows?: number } = 
 		rowCount++;
 		if (preview.length < 5) preview.push(record);
 		if (rowCount > maxRows) {
-			throw new ApiError(400, 'too-many-rows', `The file has more than ${maxRows.toLocaleString('en')} rows. Split it into smaller files.`, { file: 'Too many rows.' });
+			throw new DomainError(400, 'too-many-rows', `The file has more than ${maxRows.toLocaleString('en')} rows. Split it into smaller files.`, { file: 'Too many rows.' });
 		}
 	}
 	const h = header as string[] | null;
-	if (!h || h.every((c) => c === '')) throw new ApiError(400, 'no-header', 'The file has no header row.', { file: 'No header row.' });
+	if (!h || h.every((c) => c === '')) throw new DomainError(400, 'no-header', 'The file has no header row.', { file: 'No header row.' });
 	if (rowCount === 0) {
-		throw new ApiError(400, 'header-only', 'The file has a header row but no data rows.', { file: 'The file has a header row but no data rows.' });
+		throw new DomainError(400, 'header-only', 'The file has a header row but no data rows.', { file: 'The file has a header row but no data rows.' });
 	}
 	const seen = new Set<string>();
 	h.forEach((c, i) => {
-		if (c === '') throw new ApiError(400, 'blank-header', `Column ${i + 1} of the header row has no name.`, { file: `Column ${i + 1} has no name.` });
-		if (seen.has(c)) throw new ApiError(400, 'duplicate-header', `Two columns of the header row are named "${c}".`, { file: `Two columns are named "${c}".` });
+		if (c === '') throw new DomainError(400, 'blank-header', `Column ${i + 1} of the header row has no name.`, { file: `Column ${i + 1} has no name.` });
+		if (seen.has(c)) throw new DomainError(400, 'duplicate-header', `Two columns of the header row are named "${c}".`, { file: `Two columns are named "${c}".` });
 		seen.add(c);
 	});
 	return { delimiter, header: h, preview, rowCount };
@@ -164,7 +164,7 @@ export type SpooledCsv = SpooledFile & CheckedCsv;
 
 /**
  * Takes an uploaded CSV as it streams in: the byte checks on the way to a temporary file, then the
- * structure from that file. Throws ApiError for a refused file, and leaves no file behind then;
+ * structure from that file. Throws DomainError for a refused file, and leaves no file behind then;
  * otherwise the caller removes the file (`remove`) when done.
  */
 export async function spoolCsv(source: AsyncIterable<Uint8Array> | Uint8Array, opts: { maxBytes?: number; maxRows?: number } = {}): Promise<SpooledCsv> {

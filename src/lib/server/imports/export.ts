@@ -5,6 +5,7 @@
  * leading ' (the importer strips it again). Numbers are written in JavaScript's shortest exact
  * form, so a round trip gives the same doubles.
  */
+import { z } from 'zod';
 import { and, asc, desc, eq, gt, max, sql } from 'drizzle-orm';
 import type { DbOrTx } from '$lib/server/db';
 import { locations, partSurfaces, parts, stock } from '$lib/server/db/schema';
@@ -61,6 +62,9 @@ export async function* partsCsv(db: DbOrTx, q: ListQuery): AsyncGenerator<string
 		if (rows.length < PAGE) return;
 	}
 }
+
+/** `GET /stock/export.csv`: optionally one location. */
+export const stockExportQuerySchema = z.object({ locationId: z.coerce.number().int().positive().optional() }).strict();
 
 export const STOCK_HEADER = ['locationCode', 'locationName', 'sku', 'name', 'kind', 'diameterMm', 'condition', 'quantity'];
 

@@ -40,9 +40,6 @@ export const IMPORT_FIELDS: readonly string[] = [
 const FIELD_SET = new Set(IMPORT_FIELDS);
 export const isImportField = (f: string) => FIELD_SET.has(f);
 
-/** Columns the export writes that the importer reads but never writes (computed or stock values). */
-export const READ_ONLY_COLUMNS = ['id', 'onHand', 'available', 'computedEflMm'] as const;
-
 const NUMERIC = new Set<string>([
 	'diameterMm',
 	'clearApertureMm',

@@ -22,7 +22,7 @@ import { inTransaction } from '$lib/server/db/transaction';
 import { isUnavailable } from '$lib/server/db/errno';
 import { importRowErrors, imports, partSurfaces, parts, suppliers, type ImportRecord } from '$lib/server/db/schema';
 import { recordAudit } from '$lib/server/audit';
-import { DomainError } from '$lib/server/api/http';
+import { DomainError } from '$lib/server/errors';
 import { bumpStockVersion } from '$lib/server/stock/version';
 import { partInputSchema, type PartInput } from '$lib/server/catalogue/part-input';
 import { toInput } from '$lib/server/catalogue/parts';

@@ -8,12 +8,12 @@ import { and, asc, count, desc, eq, gt, inArray, isNull, lt, notInArray, or } fr
 import { z } from 'zod';
 import type { Db, DbOrTx } from '$lib/server/db';
 import { importRowErrors, imports, suppliers, users, type ImportRecord, type ImportStatus } from '$lib/server/db/schema';
-import { ApiError, DomainError } from '$lib/server/api/http';
+import { DomainError, NotFound } from '$lib/server/errors';
 import { recordAudit } from '$lib/server/audit';
 import type { ObjectStore } from '$lib/server/files/s3';
 import { CSV_MAX_BYTES, csvLine, csvRecords, escapeFormula, spoolCsv, type CheckedCsv, type Delimiter, type SpooledCsv } from './csv';
 import { readMultipartStream } from '$lib/server/files/multipart';
-import { fieldLabel, hasDecimals, IMPORT_FIELDS, isImportField, isLengthField, LENGTH_UNITS, PRICE_UNITS, priceUnitUnknown, suggestMapping, type PriceUnit, type Suggestion } from './fields';
+import { fieldLabel, hasDecimals, isImportField, isLengthField, LENGTH_UNITS, PRICE_UNITS, priceUnitUnknown, suggestMapping, type PriceUnit, type Suggestion } from './fields';
 import fs from 'node:fs';
 import type { Readable } from 'node:stream';
 import { isStale, runImport, STALE_AFTER_MS, type RunHooks } from './run';
@@ -43,11 +43,19 @@ export interface ImportReport {
 	message: string | null;
 }
 
-export class ImportNotFound extends DomainError {
+export class ImportNotFound extends NotFound {
 	constructor(id: number) {
-		super(404, 'not-found', `There is no import ${id}.`);
+		super(`There is no import ${id}.`);
 	}
 }
+
+/** `GET /imports`: the history's paging. */
+export const listQuerySchema = z
+	.object({ page: z.coerce.number().int().min(1).default(1), pageSize: z.coerce.number().int().min(1).max(200).default(50) })
+	.strict();
+
+/** `GET /imports/:id`: how many row errors to include. */
+export const reportQuerySchema = z.object({ errors: z.coerce.number().int().min(0).max(5000).default(200) }).strict();
 
 /**
  * Checks a CSV, stores it in S3 and records the import with a suggested mapping. Nothing is stored
@@ -66,7 +74,7 @@ export async function createImport(
 		let saved: Suggestion | null = null;
 		if (input.supplierId !== null) {
 			const [s] = await db.select().from(suppliers).where(eq(suppliers.id, input.supplierId));
-			if (!s) throw new ApiError(400, 'invalid-input', 'That supplier does not exist.', { supplier: 'Choose a supplier from the list.' });
+			if (!s) throw new DomainError(400, 'invalid-input', 'That supplier does not exist.', { supplier: 'Choose a supplier from the list.' });
 			saved = (s.importMapping as Suggestion | null) ?? null;
 		}
 		const suggestion = suggestMapping(csv.header, saved);
@@ -368,9 +376,6 @@ export async function* errorReportCsv(db: DbOrTx, id: number): AsyncGenerator<st
 		yield rows.map((r) => csvLine([r.row, escapeFormula(r.column), escapeFormula(r.value ?? ''), escapeFormula(r.message)])).join('');
 	}
 }
-
-/** The fields the mapping screen offers, in order. */
-export const MAPPABLE_FIELDS = IMPORT_FIELDS;
 
 /** The first `n` data rows of the stored file (for the mapping screen). */
 export async function previewRows(db: DbOrTx, store: ObjectStore, id: number, n = 5): Promise<string[][]> {

@@ -28,6 +28,7 @@ import { inTransaction } from '$lib/server/db/transaction';
 import { flagNotices, parts, reservations, suppliers, users } from '$lib/server/db/schema';
 import { totalsFor } from '$lib/server/stock/availability';
 import { availableOf, flagReason, type FlagReason } from './rules';
+import { DIGEST_RECIPIENTS } from '$lib/roles';
 
 export interface FlaggedPart {
 	partId: number;
@@ -132,7 +133,7 @@ export async function purchaserAddresses(db: DbOrTx): Promise<string[]> {
 	const rows = await db
 		.select({ email: users.email })
 		.from(users)
-		.where(and(eq(users.role, 'purchaser'), eq(users.status, 'active')));
+		.where(and(inArray(users.role, [...DIGEST_RECIPIENTS]), eq(users.status, 'active')));
 	return rows.map((r) => r.email).sort();
 }
 

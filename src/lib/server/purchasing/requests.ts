@@ -22,21 +22,18 @@ import {
 	type RequestStatus,
 	type Role
 } from '$lib/server/db/schema';
-import { DomainError } from '$lib/server/api/http';
+import { Conflict, DomainError } from '$lib/server/errors';
 import { receive as receiveStock } from '$lib/server/stock/operations';
 import { totalsOf } from '$lib/server/stock/availability';
 import { EDITABLE, NAMED_STEPS, RECEIVABLE, STATUS_LABELS, canStep, statusAfterReceipt } from './states';
 import { isWholeCents, toMajor, toMinor } from '$lib/money';
+import { PURCHASERS, REQUEST_VIEWERS } from '$lib/roles';
 
 export interface RequestActor {
 	id: number;
 	role: Role;
 }
 
-/** Who may create requests and step them through their states. */
-export const REQUEST_MANAGERS: readonly Role[] = ['admin', 'purchaser'];
-/** Who may receive goods against a request (the stockroom takes deliveries too). */
-export const REQUEST_RECEIVERS: readonly Role[] = ['admin', 'purchaser', 'stockroom'];
 
 const quantity = z.number({ error: 'Enter a number of units.' }).int('Whole units only.').min(1, 'At least 1 unit.').max(100_000, 'At most 100000 units.');
 const note = text().trim().max(2000, 'At most 2000 characters.').nullable().optional();
@@ -85,11 +82,10 @@ export const patchRequestSchema = z
 	});
 export type PatchRequestInput = z.input<typeof patchRequestSchema>;
 
-export class IllegalTransition extends DomainError {
+export class IllegalTransition extends Conflict {
 	constructor(from: RequestStatus, to: RequestStatus) {
 		const allowed = NAMED_STEPS[from];
 		super(
-			409,
 			'illegal-transition',
 			`A request that is ${STATUS_LABELS[from].toLowerCase()} cannot become ${STATUS_LABELS[to].toLowerCase()}` +
 				(to === 'received' || to === 'partly-received' ? ': receive the goods instead.' : allowed.length ? ` (allowed: ${allowed.join(', ')}).` : ' (no further steps).'),
@@ -132,7 +128,7 @@ async function recordEvent(
 }
 
 function assertManager(actor: RequestActor) {
-	if (!REQUEST_MANAGERS.includes(actor.role)) throw new DomainError(403, 'forbidden', 'Only purchasers change purchase requests; the stockroom may receive goods.');
+	if (!PURCHASERS.includes(actor.role)) throw new DomainError(403, 'forbidden', 'Only purchasers change purchase requests; the stockroom may receive goods.');
 }
 
 /** Creates requests for several parts in one transaction (the reorder board's "create requests"). */
@@ -219,7 +215,7 @@ async function newlyCovered(tx: Tx, partId: number, onHandBefore: number, onHand
 export async function patchRequest(db: DbOrTx, requestId: number, input: unknown, actor: RequestActor): Promise<PatchResult> {
 	const d = patchRequestSchema.parse(input);
 	if (!d.receive) assertManager(actor);
-	else if (!REQUEST_RECEIVERS.includes(actor.role)) throw new DomainError(403, 'forbidden', 'Your role may not receive goods.');
+	else if (!REQUEST_VIEWERS.includes(actor.role)) throw new DomainError(403, 'forbidden', 'Your role may not receive goods.');
 	return inTransaction(db, async (tx) => {
 		const [req] = await tx.select().from(purchaseRequests).where(eq(purchaseRequests.id, requestId)).for('update');
 		if (!req) throw notFound(requestId);

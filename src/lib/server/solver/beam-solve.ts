@@ -4,7 +4,7 @@
  * merge, per-answer figures, ranking, and, when nothing qualifies, the reason and the nearest miss.
  * Database-free: `service.ts` loads the stock.
  */
-import { DomainError } from '../api/http';
+import { DomainError } from '../errors';
 import type { ParsedAfocalRequest, ParsedBeamRequest } from '../../solver/request';
 import type { AfocalSolution, AfocalSolveResponse, BeamSolution, BeamSolveResponse, SolveStats } from '../../solver/types';
 import { wavelengthCoveredByAnyMaterial } from './elements';

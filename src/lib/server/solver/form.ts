@@ -36,7 +36,7 @@ import {
 	type ImagingValues
 } from '$lib/solver/form-fields';
 import { marcuseRangeProblem, modeFieldDiameterMm, normalisedFrequency } from '$lib/optics/fibre';
-import { zodFields } from '$lib/server/api/http';
+import { zodFields } from '$lib/server/errors';
 
 /** The imaging fields, as text, with their defaults (the wavelength: the lab's, see `formDefaults`). */
 export const FORM_DEFAULTS = IMAGING_DEFAULTS;

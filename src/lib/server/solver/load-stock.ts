@@ -112,8 +112,3 @@ export async function candidatePartsById(db: DbOrTx, ids: number[]): Promise<Map
 	return new Map(view.parts.filter((p) => want.has(p.partId)).map((p) => [p.partId, p]));
 }
 
-/** Drops the cache (tests). */
-export function clearStockCache(): void {
-	cached = null;
-}
-

@@ -8,7 +8,7 @@
  * MariaDB).
  */
 import type { DbOrTx } from '$lib/server/db';
-import { DomainError } from '$lib/server/api/http';
+import { DomainError } from '$lib/server/errors';
 import { solveRequestSchema, type ParsedSolveRequest } from '$lib/solver/request';
 import type { AnySolveResponse, SolveProgress } from '$lib/solver/types';
 import { stockView } from './load-stock';

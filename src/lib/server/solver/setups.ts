@@ -10,7 +10,7 @@ import { dateInput, text } from '$lib/input';
 import type { DbOrTx } from '$lib/server/db';
 import { inTransaction } from '$lib/server/db/transaction';
 import { setups, projects, users, reservations } from '$lib/server/db/schema';
-import { DomainError } from '$lib/server/api/http';
+import { DomainError } from '$lib/server/errors';
 import { reserve, reservationRows } from '$lib/server/stock/reservations';
 import { solveRequestSchema, type ParsedAfocalRequest, type ParsedBeamRequest, type ParsedImagingRequest, type ParsedSolveRequest } from '$lib/solver/request';
 import type { AfocalSolution, AnySolution, BeamSolution, Solution } from '$lib/solver/types';
@@ -50,20 +50,6 @@ export const reserveInputSchema = z
 		projectId: z.number().int().positive().nullable().optional()
 	})
 	.strict();
-
-/**
- * The choice of a solution (what a client sends back to save it). Mode beam: objectDistanceMm is
- * the first vertex from z = 0 and backDistanceMm the last vertex to the target waist; mode afocal:
- * both 0 and the one gap.
- */
-export function choiceOf(s: AnySolution): Choice {
-	return {
-		elements: s.elements.map((e) => ({ partId: e.partId, reversed: e.reversed })),
-		objectDistanceMm: s.objectDistanceMm,
-		gapsMm: s.gapsMm,
-		backDistanceMm: s.backDistanceMm
-	};
-}
 
 const notAnswer = (message: string, field = 'choice') => new DomainError(400, 'invalid-input', message, { [field]: message });
 

@@ -4,7 +4,7 @@
  * merge of the shards' best candidates, exact real-ray evaluation of the best few, ranking.
  * Database-free: `service.ts` loads the stock and calls `solveWithStock`.
  */
-import { DomainError } from '../api/http';
+import { DomainError } from '../errors';
 import { ROOT_DOUBLE, ROOT_FAMILY } from '../../optics/imaging';
 import type { ParsedImagingRequest } from '../../solver/request';
 import type { PartsExcluded, Solution, SolveProgress, SolveResponse } from '../../solver/types';

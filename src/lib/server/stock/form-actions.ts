@@ -1,12 +1,11 @@
 /**
  * Form actions for stock operations, measurements and reservations on the part page: read
- * the form, run the service, and turn expected failures into `fail()` with field messages
- * and the typed values, keyed by `op` so the page shows them at the right form.
+ * the form, run the service, and turn expected failures into the one `FormFailure` with field
+ * messages and the typed values, keyed by `form` so the page shows them at the right form.
  */
-import { fail, type RequestEvent } from '@sveltejs/kit';
+import type { RequestEvent } from '@sveltejs/kit';
 import { db } from '$lib/server/db';
-import { DomainError, zodFields } from '$lib/server/api/http';
-import { ZodError } from 'zod';
+import { failFrom } from '$lib/server/form-failure';
 import type { SignedInUser } from '$lib/server/auth/guard';
 import { formStrings, readForm } from '$lib/server/catalogue/forms';
 import { OPERATIONS, type OperationName } from './operations';
@@ -14,14 +13,12 @@ import { OPERATIONS, type OperationName } from './operations';
 const NUMBERS = ['quantity', 'locationId', 'fromLocationId', 'toLocationId', 'delta', 'projectId', 'reservationId'];
 const TEXTS = ['condition', 'from', 'to', 'issuedTo', 'reason', 'note'];
 
-/** Runs `work` and maps ZodError / DomainError to fail(status, { op, errors, values }). */
-export async function guarded<T>(op: string, form: FormData, work: () => Promise<T>) {
+/** Runs `work`: `{ form: key, ok, result }`, or the failure of form `key` with the typed values. */
+export async function guarded<T>(key: string, form: FormData, work: () => Promise<T>) {
 	try {
-		return { op, ok: true as const, result: await work() };
+		return { form: key, ok: true as const, result: await work() };
 	} catch (e) {
-		if (e instanceof ZodError) return fail(400, { op, errors: zodFields(e), values: formStrings(form) });
-		if (e instanceof DomainError) return fail(e.status, { op, errors: { ...(e.fields ?? {}), _: e.message }, values: formStrings(form) });
-		throw e;
+		return failFrom(e, { form: key, values: formStrings(form) });
 	}
 }
 

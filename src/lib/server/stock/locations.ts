@@ -9,7 +9,7 @@ import { text } from '$lib/input';
 import type { DbOrTx } from '$lib/server/db';
 import { inTransaction } from '$lib/server/db/transaction';
 import { locations, movements, parts, stock } from '$lib/server/db/schema';
-import { DomainError } from '$lib/server/api/http';
+import { DomainError } from '$lib/server/errors';
 import { recordAudit } from '$lib/server/audit';
 
 export const locationInputSchema = z
@@ -22,6 +22,16 @@ export const locationInputSchema = z
 			.regex(/^[A-Z0-9]+(-[A-Z0-9]+)*$/, 'Letters and digits in segments joined by "-", e.g. A1-D2-B04.'),
 		name: text().trim().min(1, 'Enter a name.').max(120, 'At most 120 characters.')
 	})
+	.strict();
+
+/** `PATCH /locations/:id`: rename (`code`, `name`, checked by `locationInputSchema`) or archive/restore. */
+export const locationPatchSchema = z
+	.object({ code: z.string().optional(), name: z.string().optional(), archived: z.boolean().optional() })
+	.strict();
+
+/** `GET /stock` filters. */
+export const stockQuerySchema = z
+	.object({ locationId: z.coerce.number().int().positive().optional(), partId: z.coerce.number().int().positive().optional() })
 	.strict();
 
 async function assertCodeFree(db: DbOrTx, code: string, exceptId: number | null) {

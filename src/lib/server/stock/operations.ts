@@ -32,12 +32,12 @@ import {
 	type Condition,
 	type MovementKind
 } from '$lib/server/db/schema';
-import { DomainError } from '$lib/server/api/http';
+import { Conflict, DomainError } from '$lib/server/errors';
 import { bumpStockVersion } from './version';
 
-export class InsufficientStock extends DomainError {
+export class InsufficientStock extends Conflict {
 	constructor(message: string) {
-		super(409, 'insufficient-stock', message, { quantity: message });
+		super('insufficient-stock', message, { quantity: message });
 	}
 }
 
@@ -45,6 +45,11 @@ const id = z.number({ error: 'Choose one.' }).int().positive();
 const quantity = z.number({ error: 'Enter a number of units.' }).int('Whole units only.').min(1, 'At least 1 unit.').max(100_000, 'At most 100000 units at once.');
 const note = text().trim().max(2000, 'At most 2000 characters.').nullable().optional();
 const condition = z.enum(CONDITIONS, { error: 'Choose usable, quarantine or damaged.' });
+
+/** `GET /parts/:id/movements` paging. */
+export const movementQuerySchema = z
+	.object({ limit: z.coerce.number().int().min(1).max(500).default(100), offset: z.coerce.number().int().min(0).default(0) })
+	.strict();
 
 export const receiveSchema = z.object({ partId: id, quantity, locationId: id, condition: condition.default('usable'), note }).strict();
 export const moveSchema = z

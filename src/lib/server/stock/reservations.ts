@@ -10,11 +10,21 @@ import type { DbOrTx, Tx } from '$lib/server/db';
 import { inTransaction } from '$lib/server/db/transaction';
 import { parts, projects, reservations, users } from '$lib/server/db/schema';
 import type { Role } from '$lib/server/db/schema';
-import { DomainError } from '$lib/server/api/http';
+import { DomainError } from '$lib/server/errors';
 import { bumpStockVersion } from './version';
 import { totalsOf } from './availability';
+import { inSet, RESERVATION_KEEPERS } from '$lib/roles';
 
 const MAX_DAYS = 366;
+
+/** `GET /reservations` filters: `?partId=`, `?mine=true`, `?active=true`. */
+export const reservationQuerySchema = z
+	.object({
+		partId: z.coerce.number().int().positive().optional(),
+		mine: z.enum(['true', 'false']).optional(),
+		active: z.enum(['true', 'false']).optional()
+	})
+	.strict();
 
 export const reservationInputSchema = z
 	.object({
@@ -79,7 +89,7 @@ export async function releaseReservation(db: DbOrTx, id: number, actor: { id: nu
 		const [found] = await tx.select({ partId: reservations.partId }).from(reservations).where(eq(reservations.id, id));
 		if (found) await tx.select({ id: parts.id }).from(parts).where(eq(parts.id, found.partId)).for('update');
 		const [r] = await tx.select().from(reservations).where(eq(reservations.id, id)).for('update');
-		const mayRelease = r && (r.userId === actor.id || actor.role === 'admin' || actor.role === 'stockroom');
+		const mayRelease = r && (r.userId === actor.id || inSet(actor.role, RESERVATION_KEEPERS));
 		if (!r || !mayRelease) throw new DomainError(404, 'not-found', `There is no reservation ${id} of yours.`);
 		if (r.status !== 'active') throw new DomainError(409, 'not-active', `Reservation ${id} is already ${r.status}.`);
 		await tx.update(reservations).set({ status: 'released' }).where(eq(reservations.id, id));

@@ -1,7 +1,8 @@
 /** Form plumbing shared by the stock-take pages (the upload and the drawer count). */
-import { fail } from '@sveltejs/kit';
-import { ApiError, DomainError } from '$lib/server/api/http';
-import { StockTakeRefused, type CountLine } from './stock-take';
+import { DomainError } from '$lib/server/errors';
+import { failFrom } from '$lib/server/form-failure';
+import type { DbOrTx } from '$lib/server/db';
+import { stockTake, type CountLine } from './stock-take';
 
 /** The lines a dry run showed, posted back as JSON in the field `lines`. */
 export function linesFromForm(form: FormData): CountLine[] {
@@ -14,9 +15,17 @@ export function linesFromForm(form: FormData): CountLine[] {
 	throw new DomainError(400, 'no-lines', 'Nothing to write: check the count first.', { file: 'Check the count first.' });
 }
 
-/** A refused count as the page shows it (every refused line), or null for other errors. */
-export function countFailure(err: unknown) {
-	if (err instanceof StockTakeRefused) return fail(400, { errors: { file: err.message }, refused: err.lines });
-	if (err instanceof DomainError || err instanceof ApiError) return fail(err.status, { errors: { file: err.message } });
-	throw err;
+/** A refused count as the page shows it: the message, and every refused line in `rows` (`StockTakeRefused.lines`). */
+export function countFailure(err: unknown, values: Record<string, string> = {}) {
+	return failFrom(err, { values });
+}
+
+/** The confirm step of both stock-take pages: the dry run's lines posted back, checked and written. */
+export async function commitCount(db: DbOrTx, form: FormData, actorId: number) {
+	try {
+		const lines = linesFromForm(form);
+		return { result: await stockTake(db, lines, { dryRun: false, actor: { id: actorId } }), lines };
+	} catch (err) {
+		return countFailure(err);
+	}
 }

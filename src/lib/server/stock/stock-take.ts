@@ -1,7 +1,7 @@
 /**
  * Stock take: count what is in the drawers and correct the books (issue 16). A count is a list of lines
  * (location code, SKU, condition, counted units), from a CSV (`POST /api/v1/stock-takes`, the
- * /stock-take page) or from counting one drawer on a phone (/stock-take/[location]).
+ * /stock-take page) or from counting one drawer on a phone (/stock-take/[location=id]).
  *
  * - A dry run answers, per line, the booked units (the stock table), the counted units and the difference.
  * - A commit writes one `adjust` movement per line with a difference (reason "stock take", the count's
@@ -17,7 +17,7 @@ import { text } from '$lib/input';
 import type { DbOrTx } from '$lib/server/db';
 import { inTransaction } from '$lib/server/db/transaction';
 import { CONDITIONS, locations, parts, stock, type Condition } from '$lib/server/db/schema';
-import { DomainError } from '$lib/server/api/http';
+import { DomainError, InvalidInput } from '$lib/server/errors';
 import { formatDate } from '$lib/format';
 import * as ops from './operations';
 
@@ -69,11 +69,13 @@ export interface TakeResult {
 	movements: number[];
 }
 
-export class StockTakeRefused extends DomainError {
+export class StockTakeRefused extends InvalidInput {
 	constructor(readonly lines: LineError[]) {
-		super(400, 'invalid-lines', `${lines.length} line${lines.length === 1 ? ' was' : 's were'} refused: nothing was written. The first: row ${lines[0].row}, ${lines[0].column}: ${lines[0].message}`, {
-			file: 'Some lines were refused.'
-		});
+		super(
+			`${lines.length} line${lines.length === 1 ? ' was' : 's were'} refused: nothing was written. The first: row ${lines[0].row}, ${lines[0].column}: ${lines[0].message}`,
+			{ file: 'Some lines were refused.' },
+			'invalid-lines'
+		);
 	}
 }
 

@@ -1,10 +1,8 @@
-import { fail } from '@sveltejs/kit';
-import { ZodError } from 'zod';
 import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { requireRole } from '$lib/server/auth/guard';
-import { ADMINS } from '$lib/server/auth/roles';
-import { DomainError, zodFields } from '$lib/server/api/http';
+import { ADMINS } from '$lib/roles';
+import { failFrom } from '$lib/server/form-failure';
 import { toNumber } from '$lib/server/catalogue/forms';
 import * as labMaterials from '$lib/server/catalogue/lab-materials';
 
@@ -45,9 +43,7 @@ export const actions = {
 			const created = await labMaterials.createLabMaterial(db, body, user);
 			return { created };
 		} catch (e) {
-			if (e instanceof ZodError) return fail(400, { values, errors: zodFields(e) });
-			if (e instanceof DomainError && e.status === 409) return fail(409, { values, errors: { code: e.message } as Record<string, string> });
-			throw e;
+			return failFrom(e, { form: 'create', values });
 		}
 	}
 } satisfies Actions;

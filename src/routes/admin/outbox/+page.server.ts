@@ -1,7 +1,7 @@
 import type { PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { requireRole } from '$lib/server/auth/guard';
-import { ADMINS } from '$lib/server/auth/roles';
+import { ADMINS } from '$lib/roles';
 import * as outbox from '$lib/server/accounts/outbox';
 
 export const load = (async (event) => {

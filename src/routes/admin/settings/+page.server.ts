@@ -1,9 +1,8 @@
-import { fail } from '@sveltejs/kit';
 import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { requireRole } from '$lib/server/auth/guard';
-import { ADMINS } from '$lib/server/auth/roles';
-import { zodFields } from '$lib/server/api/http';
+import { ADMINS } from '$lib/roles';
+import { failFrom } from '$lib/server/form-failure';
 import { COMMON_WAVELENGTHS_NM, LAB_WAVELENGTH_RANGE_NM, labSettingsSchema, setDefaultWavelength, wavelengthSetting } from '$lib/server/catalogue/lab-settings';
 
 export const load = (async (event) => {
@@ -16,7 +15,7 @@ export const actions = {
 		const user = requireRole(event, ADMINS);
 		const values = { defaultWavelengthNm: String((await event.request.formData()).get('defaultWavelengthNm') ?? '').trim().replace(',', '.') };
 		const parsed = labSettingsSchema.safeParse(values);
-		if (!parsed.success) return fail(400, { values, errors: zodFields(parsed.error) });
+		if (!parsed.success) return failFrom(parsed.error, { values });
 		const done = await setDefaultWavelength(db, parsed.data, user);
 		return { values, done };
 	}

@@ -1,10 +1,11 @@
-import { error, fail } from '@sveltejs/kit';
+import { error } from '@sveltejs/kit';
 import { z, ZodError } from 'zod';
 import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { requireRole, hasRole } from '$lib/server/auth/guard';
-import { SOLVER_USERS, RESERVERS, PURCHASERS } from '$lib/server/auth/roles';
-import { ApiError, DomainError, zodFields } from '$lib/server/api/http';
+import { SOLVER_USERS, RESERVERS, PURCHASERS } from '$lib/roles';
+import { DomainError } from '$lib/server/errors';
+import { failFrom, formFailure } from '$lib/server/form-failure';
 import { setupShortfall, unlockForSetup } from '$lib/server/purchasing/unlock-search';
 import { totalsFor } from '$lib/server/stock/availability';
 import { listProjects } from '$lib/server/stock/projects';
@@ -52,9 +53,7 @@ export const actions = {
 			const units = items.reduce((n, r) => n + (r as { quantity: number }).quantity, 0);
 			return { reserved: items.length, units, values };
 		} catch (e) {
-			if (e instanceof ZodError) return fail(400, { errors: zodFields(e), values });
-			if (e instanceof DomainError) return fail(e.status, { errors: e.fields ?? {}, message: e.message, values });
-			throw e;
+			return failFrom(e, { form: 'reserve', values });
 		}
 	},
 	/** "What purchase would help?" for this setup's question (the same service as POST /api/v1/reorder/unlock). */
@@ -64,9 +63,8 @@ export const actions = {
 		try {
 			return { unlock: { answer: await unlockForSetup(db, setup.id, { id: user.id }, event.request.signal) } };
 		} catch (e) {
-			if (e instanceof DomainError || e instanceof ApiError) return fail(e.status, { unlock: { error: e.message } });
-			if (e instanceof ZodError) return fail(400, { unlock: { error: 'The saved question of this setup is no longer valid for the solver.' } });
-			throw e;
+			if (e instanceof ZodError) return formFailure(400, { form: 'unlock', message: 'The saved question of this setup is no longer valid for the solver.' });
+			return failFrom(e, { form: 'unlock' });
 		}
 	}
 } satisfies Actions;

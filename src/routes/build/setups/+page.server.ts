@@ -2,7 +2,7 @@ import { z } from 'zod';
 import type { PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { requireRole } from '$lib/server/auth/guard';
-import { SOLVER_USERS } from '$lib/server/auth/roles';
+import { SOLVER_USERS } from '$lib/roles';
 import * as setupList from '$lib/server/solver/setup-list';
 
 /** Setups per page of the full list. */

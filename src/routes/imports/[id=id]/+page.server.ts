@@ -1,12 +1,13 @@
-import { error, fail } from '@sveltejs/kit';
+import { error } from '@sveltejs/kit';
 import { eq } from 'drizzle-orm';
-import { ZodError } from 'zod';
 import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { imports } from '$lib/server/db/schema';
-import { DomainError, zodFields } from '$lib/server/api/http';
+import { DomainError } from '$lib/server/errors';
+import { failFrom } from '$lib/server/form-failure';
+import { formStrings } from '$lib/server/catalogue/forms';
 import { requireRole } from '$lib/server/auth/guard';
-import { STOCK_EDITORS } from '$lib/server/auth/roles';
+import { STOCK_EDITORS } from '$lib/roles';
 import { appStore } from '$lib/server/files/store';
 import { fieldLabel, isLengthField, MAX_SURFACES, SCALAR_FIELDS, surfaceFields } from '$lib/server/imports/fields';
 import * as importsService from '$lib/server/imports/service';
@@ -14,10 +15,8 @@ import { parseNumberCell } from '$lib/server/imports/rows';
 import type { Delimiter } from '$lib/server/imports/csv';
 import { formatMoney } from '$lib/money';
 
-function idOf(params: { id: string }): number {
-	if (!/^\d{1,12}$/.test(params.id)) error(404, { code: 'not-found', message: 'There is no such import.' });
-	return Number(params.id);
-}
+/** The import's id (the `id` matcher has checked it). */
+const idOf = (params: { id: string }) => Number(params.id);
 
 export const load = (async (event) => {
 	requireRole(event, STOCK_EDITORS);
@@ -76,14 +75,12 @@ export const actions = {
 	check: async (event) => {
 		const user = requireRole(event, STOCK_EDITORS);
 		const id = idOf(event.params);
-		const values = mappingFrom(await event.request.formData());
+		const form = await event.request.formData();
 		try {
-			await importsService.saveMapping(db, id, values, appStore());
+			await importsService.saveMapping(db, id, mappingFrom(form), appStore());
 			await importsService.beginRun(db, id, 'check');
 		} catch (err) {
-			if (err instanceof ZodError) return fail(400, { errors: zodFields(err), values });
-			if (err instanceof DomainError) return fail(err.status, { errors: { _: err.message, ...(err.fields ?? {}) }, values });
-			throw err;
+			return failFrom(err, { form: 'check', values: formStrings(form) });
 		}
 		importsService.startRun(db, appStore(), id, 'check', user.id);
 		return { started: 'check' };
@@ -102,8 +99,7 @@ export const actions = {
 				.where(eq(imports.id, id));
 			await importsService.beginRun(db, id, 'commit');
 		} catch (err) {
-			if (err instanceof DomainError) return fail(err.status, { errors: { _: err.message } });
-			throw err;
+			return failFrom(err, { form: 'commit' });
 		}
 		importsService.startRun(db, appStore(), id, 'commit', user.id);
 		return { started: 'commit' };

@@ -1,6 +1,6 @@
 import type { PageServerLoad } from './$types';
 import { requireRole } from '$lib/server/auth/guard';
-import { STOCK_EDITORS } from '$lib/server/auth/roles';
+import { STOCK_EDITORS } from '$lib/roles';
 import { MAX_IMAGE_BYTES, MAX_PDF_BYTES } from '$lib/server/files/magic';
 
 export const load = (async (event) => {

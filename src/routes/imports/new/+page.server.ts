@@ -1,14 +1,13 @@
-import { fail, redirect } from '@sveltejs/kit';
+import { redirect } from '@sveltejs/kit';
 import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
-import { ApiError, DomainError } from '$lib/server/api/http';
+import { failFrom, formFailure } from '$lib/server/form-failure';
 import { requireRole } from '$lib/server/auth/guard';
-import { STOCK_EDITORS } from '$lib/server/auth/roles';
+import { STOCK_EDITORS } from '$lib/roles';
 import { listSuppliers } from '$lib/server/catalogue/materials';
 import { appStore } from '$lib/server/files/store';
 import { CSV_MAX_BYTES } from '$lib/server/imports/csv';
 
-type Errors = { file?: string; supplierId?: string };
 import * as importsService from '$lib/server/imports/service';
 
 export const load = (async (event) => {
@@ -26,9 +25,9 @@ export const actions = {
 			const { fields, file } = await importsService.readCsvUpload(event.request, { skipUnnamed: true });
 			const supplierId = fields.supplierId ?? '';
 			values = { supplierId };
-			if (!file) return fail(400, { errors: { file: 'Choose a CSV file.' } as Errors, values });
+			if (!file) return formFailure(400, { errors: { file: 'Choose a CSV file.' }, values });
 			try {
-				if (supplierId && !/^\d+$/.test(supplierId)) return fail(400, { errors: { supplierId: 'Choose a supplier from the list.' } as Errors, values });
+				if (supplierId && !/^\d+$/.test(supplierId)) return formFailure(400, { errors: { supplierId: 'Choose a supplier from the list.' }, values });
 				({ id } = await importsService.createImport(db, appStore(), {
 					filename: file.filename,
 					file: file.csv,
@@ -39,11 +38,7 @@ export const actions = {
 				await file.csv.remove();
 			}
 		} catch (err) {
-			if (err instanceof ApiError || err instanceof DomainError) {
-				const field = err.fields?.supplier ? 'supplierId' : 'file';
-				return fail(err.status, { errors: { [field]: err.message } as Errors, values });
-			}
-			throw err;
+			return failFrom(err, { values });
 		}
 		redirect(303, `/imports/${id}`);
 	}

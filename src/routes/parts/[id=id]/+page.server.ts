@@ -1,8 +1,8 @@
-import { error, fail, redirect } from '@sveltejs/kit';
+import { error, redirect } from '@sveltejs/kit';
 import type { Actions, PageServerLoad, RequestEvent } from './$types';
 import { db } from '$lib/server/db';
 import { hasRole, requireRole } from '$lib/server/auth/guard';
-import { RESERVERS, STOCK_EDITORS, STOCK_HANDLERS, ANY_ROLE } from '$lib/server/auth/roles';
+import { ANY_ROLE, RESERVERS, STOCK_EDITORS, STOCK_OPERATION_ROLES, stockOperationsFor } from '$lib/roles';
 import * as parts from '$lib/server/catalogue/parts';
 import * as measurements from '$lib/server/catalogue/measurements';
 import { computeDerived } from '$lib/server/catalogue/derived';
@@ -15,11 +15,10 @@ import { movementRows } from '$lib/server/stock/operations';
 import * as reservations from '$lib/server/stock/reservations';
 import { listProjects } from '$lib/server/stock/projects';
 import { guarded, stockFormAction } from '$lib/server/stock/form-actions';
+import { formFailure } from '$lib/server/form-failure';
 
-function idOf(event: Pick<RequestEvent, 'params'>) {
-	if (!/^[1-9]\d{0,15}$/.test(event.params.id)) error(404, { message: 'There is no such part.' });
-	return Number(event.params.id);
-}
+/** The part's id (the `id` matcher has checked it). */
+const idOf = (event: Pick<RequestEvent, 'params'>) => Number(event.params.id);
 
 export const load = (async (event) => {
 	const user = requireRole(event, ANY_ROLE);
@@ -73,39 +72,40 @@ export const load = (async (event) => {
 		userId: user.id,
 		can: {
 			edit: hasRole(user, STOCK_EDITORS),
-			handle: hasRole(user, STOCK_HANDLERS),
 			reserve: hasRole(user, RESERVERS)
-		}
+		},
+		/** The stock operations this role may run here (the table in `$lib/roles`). */
+		ops: stockOperationsFor(user.role)
 	};
 }) satisfies PageServerLoad;
 
 export const actions = {
 	receive: async (event) => {
-		const user = requireRole(event, STOCK_EDITORS);
+		const user = requireRole(event, STOCK_OPERATION_ROLES.receive);
 		return stockFormAction(event, 'receive', idOf(event), user);
 	},
 	move: async (event) => {
-		const user = requireRole(event, STOCK_EDITORS);
+		const user = requireRole(event, STOCK_OPERATION_ROLES.move);
 		return stockFormAction(event, 'move', idOf(event), user);
 	},
 	issue: async (event) => {
-		const user = requireRole(event, STOCK_HANDLERS);
+		const user = requireRole(event, STOCK_OPERATION_ROLES.issue);
 		return stockFormAction(event, 'issue', idOf(event), user);
 	},
 	return: async (event) => {
-		const user = requireRole(event, STOCK_HANDLERS);
+		const user = requireRole(event, STOCK_OPERATION_ROLES.return);
 		return stockFormAction(event, 'return', idOf(event), user);
 	},
 	adjust: async (event) => {
-		const user = requireRole(event, STOCK_EDITORS);
+		const user = requireRole(event, STOCK_OPERATION_ROLES.adjust);
 		return stockFormAction(event, 'adjust', idOf(event), user);
 	},
 	scrap: async (event) => {
-		const user = requireRole(event, STOCK_EDITORS);
+		const user = requireRole(event, STOCK_OPERATION_ROLES.scrap);
 		return stockFormAction(event, 'scrap', idOf(event), user);
 	},
 	condition: async (event) => {
-		const user = requireRole(event, STOCK_EDITORS);
+		const user = requireRole(event, STOCK_OPERATION_ROLES.condition);
 		return stockFormAction(event, 'condition', idOf(event), user);
 	},
 	measure: async (event) => {
@@ -128,7 +128,7 @@ export const actions = {
 		const user = requireRole(event, RESERVERS);
 		const form = await event.request.formData();
 		const rid = Number(form.get('reservationId'));
-		if (!Number.isInteger(rid) || rid <= 0) return fail(404, { op: 'release', errors: { _: 'There is no such reservation.' }, values: {} });
+		if (!Number.isInteger(rid) || rid <= 0) return formFailure(404, { form: 'release', message: 'There is no such reservation.' });
 		return guarded('release', form, () => reservations.releaseReservation(db, rid, user));
 	},
 	archive: async (event) => {

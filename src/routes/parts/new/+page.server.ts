@@ -1,9 +1,9 @@
-import { fail, redirect } from '@sveltejs/kit';
+import { redirect } from '@sveltejs/kit';
 import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { requireRole } from '$lib/server/auth/guard';
-import { STOCK_EDITORS } from '$lib/server/auth/roles';
-import { DomainError, zodFields } from '$lib/server/api/http';
+import { STOCK_EDITORS } from '$lib/roles';
+import { failFrom } from '$lib/server/form-failure';
 import { PART_KINDS } from '$lib/server/db/schema';
 import * as parts from '$lib/server/catalogue/parts';
 import { listMaterials } from '$lib/server/catalogue/materials';
@@ -22,9 +22,7 @@ export const actions = {
 		try {
 			({ id } = await parts.createPart(db, readPartForm(form), { id: user.id, role: user.role }));
 		} catch (e) {
-			if (parts.isInvalidInput(e)) return fail(400, { errors: zodFields(e), values: formStrings(form) });
-			if (e instanceof DomainError) return fail(e.status, { errors: e.fields ?? { _: e.message }, values: formStrings(form) });
-			throw e;
+			return failFrom(e, { values: formStrings(form) });
 		}
 		redirect(303, `/parts/${id}`);
 	}

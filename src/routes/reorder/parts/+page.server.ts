@@ -2,7 +2,7 @@ import { redirect } from '@sveltejs/kit';
 import type { PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { requireRole } from '$lib/server/auth/guard';
-import { PURCHASERS } from '$lib/server/auth/roles';
+import { PURCHASERS } from '$lib/roles';
 import { findPartIdBySku } from '$lib/server/catalogue/parts';
 
 /** `?sku=…` finds a part's reorder settings; without a match it shows the lookup form again. */

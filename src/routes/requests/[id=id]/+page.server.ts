@@ -1,21 +1,18 @@
-import { error, fail } from '@sveltejs/kit';
+import { error } from '@sveltejs/kit';
 import type { Actions, PageServerLoad } from './$types';
-import { ZodError } from 'zod';
 import { db } from '$lib/server/db';
 import { requireRole } from '$lib/server/auth/guard';
-import { PURCHASERS } from '$lib/server/auth/roles';
-import { DomainError, zodFields } from '$lib/server/api/http';
+import { PURCHASERS, REQUEST_VIEWERS } from '$lib/roles';
+import { failFrom } from '$lib/server/form-failure';
+import { DomainError } from '$lib/server/errors';
 import * as requests from '$lib/server/purchasing/requests';
 import { patchAndNotify } from '$lib/server/purchasing/service';
-import { REQUEST_VIEWERS } from '$lib/server/purchasing/roles';
 import { STATUS_LABELS } from '$lib/server/purchasing/states';
 import { homeLocationOf, listLocations } from '$lib/server/stock/locations';
 import type { SignedInUser } from '$lib/server/auth/guard';
 
-function requestId(raw: string): number {
-	if (!/^[1-9]\d{0,15}$/.test(raw)) error(404, { code: 'not-found', message: 'There is no such request.' });
-	return Number(raw);
-}
+/** The request's id (the `id` matcher has checked it). */
+const requestId = (raw: string) => Number(raw);
 
 export const load = (async (event) => {
 	const user = requireRole(event, REQUEST_VIEWERS);
@@ -37,20 +34,13 @@ export const load = (async (event) => {
 	};
 }) satisfies PageServerLoad;
 
-/** Runs a change and maps expected failures to the form of `which`. */
+/** Runs a change: `{ form: which, done }`, or the failure of the form `which`. */
 async function change(event: { params: { id: string } }, user: SignedInUser, which: string, body: unknown, values: Record<string, string>) {
 	try {
 		const r = await patchAndNotify(db, requestId(event.params.id), body, { id: user.id, role: user.role });
-		return { which, done: r.receipt ? `Received ${r.receipt.quantity} into stock${r.notified ? `; ${r.notified} engineer${r.notified === 1 ? '' : 's'} told` : ''}.` : `Now ${STATUS_LABELS[r.status].toLowerCase()}.` };
+		return { form: which, done: r.receipt ? `Received ${r.receipt.quantity} into stock${r.notified ? `; ${r.notified} engineer${r.notified === 1 ? '' : 's'} told` : ''}.` : `Now ${STATUS_LABELS[r.status].toLowerCase()}.` };
 	} catch (err) {
-		if (err instanceof ZodError) return fail(400, { which, values, errors: zodFields(err) });
-		if (err instanceof DomainError) {
-			// The general message only when no field already says it (else the form shows it twice).
-			const fields = err.fields ?? {};
-			const said = Object.values(fields).includes(err.message);
-			return fail(err.status, { which, values, errors: said ? { ...fields } : { ...fields, _: err.message } });
-		}
-		throw err;
+		return failFrom(err, { form: which, values });
 	}
 }
 

@@ -1,5 +1,4 @@
-import type { OpenApiPaths } from './types';
-import { jsonResponse } from './types';
+import { jsonResponse, type OpenApiPaths } from './build';
 
 export const foundationPaths: OpenApiPaths = {
 	'/openapi.json': {

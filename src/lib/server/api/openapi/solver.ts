@@ -1,147 +1,21 @@
 /** OpenAPI paths of Build from stock: the solver (modes imaging, beam, afocal) and setups. */
-import type { OpenApiPaths } from './types';
-import { errors, jsonBody, jsonResponse } from './types';
+import { z } from 'zod';
+import { solveRequestSchema } from '$lib/solver/request';
+import { reserveInputSchema, setupInputSchema } from '$lib/server/solver/setups';
+import { reservationJson } from './catalogue';
+import { errors, jsonBody, jsonResponse, type OpenApiPaths } from './build';
 
-const num = { type: 'number' };
-const int = { type: 'integer' };
+const int = z.number().int();
 
-const shared = {
-	availableOnly: { type: 'boolean', default: true, description: 'false: catalogue parts without stock too, marked toBuy' },
-	inCoatingBandOnly: { type: 'boolean', default: false, description: 'true: leave out parts whose coating band does not cover the wavelength (else they are used, with a coating warning, ranked after in-band answers)' },
-	partIds: { type: 'array', items: int, description: 'restrict to a kit' },
-	locationIds: { type: 'array', items: int, description: 'restrict to parts with usable stock in these locations' },
-	limit: { ...int, minimum: 1, maximum: 50, default: 10 },
-	timeBudgetMs: { ...int, minimum: 100, maximum: 10000, default: 5000 },
-	minGapMm: { ...num, minimum: 0, default: 1, description: 'smallest vertex gap between two parts, mm' }
-};
-
-const imagingRequest = {
-	type: 'object',
-	additionalProperties: false,
-	required: ['trackMm', 'magnification', 'objectNA'],
-	properties: {
-		mode: { type: 'string', enum: ['imaging'], default: 'imaging', description: 'may be left out (imaging)' },
-		wavelengthNm: { ...num, minimum: 200, maximum: 12000, default: 587.6 },
-		trackMm: { ...num, exclusiveMinimum: 0, description: 'object plane to target plane, mm' },
-		trackToleranceMm: { ...num, minimum: 0, maximum: 1000, default: 0, description: 'an answer may use any track within trackMm ± this, mm (below trackMm); each solution says which (trackMm, trackOffsetMm)' },
-		magnification: { ...num, description: 'signed; negative = inverted real image; 0.001 ≤ |m| ≤ 1000' },
-		magnificationTolerance: { ...num, minimum: 0, maximum: 0.5, default: 0.02, description: 'relative, for single parts' },
-		objectHeightMm: { ...num, minimum: 0, default: 0, description: 'half the field' },
-		objectNA: { ...num, exclusiveMinimum: 0, exclusiveMaximum: 1 },
-		maxElements: { type: 'integer', enum: [1, 2], default: 2 },
-		minGapMm: { ...num, minimum: 0, default: 1 },
-		minWorkingDistanceMm: { ...num, minimum: 0, default: 5 },
-		availableOnly: { type: 'boolean', default: true, description: 'false: catalogue parts without stock too, marked toBuy' },
-		inCoatingBandOnly: { type: 'boolean', default: false, description: 'true: leave out parts outside their coating band' },
-		partIds: { type: 'array', items: int, description: 'restrict to a kit' },
-		locationIds: { type: 'array', items: int, description: 'restrict to parts with usable stock in these locations' },
-		limit: { ...int, minimum: 1, maximum: 50, default: 10 },
-		rankBy: {
-			type: 'string',
-			enum: ['monochromatic', 'band'],
-			default: 'monochromatic',
-			description: 'rank by the spot figures at wavelengthNm, or by those over the colour band (solution.colour)'
-		},
-		timeBudgetMs: { ...int, minimum: 100, maximum: 10000, default: 5000 }
-	}
-};
-
-const position = { ...num, minimum: -100000, maximum: 100000, description: 'along the axis from the bench reference plane z = 0, mm (light towards +z)' };
-const diameter = { ...num, exclusiveMinimum: 0, description: 'full 1/e² intensity diameter, mm' };
-
-const beamRequest = {
-	type: 'object',
-	additionalProperties: false,
-	required: ['mode', 'wavelengthNm', 'input', 'target'],
+const question = solveRequestSchema.meta({
 	description:
-		'Mode beam: one or two parts that turn the input Gaussian beam into the target beam. Parts lie at z ≥ 0 and end at least minWorkingDistanceMm before the target waist. ' +
-		'400 with a field message for a waist ≤ 0 (input.waistDiameterMm), M² < 1 (input.mSquared), a target that cannot be reached (target.waistPositionMm before z = minWorkingDistanceMm; ' +
-		'target.waistDiameterMm diverging faster than 0.25 rad), a multimode or too weakly guiding fibre (target.fibre.coreDiameterMm).',
-	properties: {
-		mode: { type: 'string', enum: ['beam'] },
-		wavelengthNm: { ...num, minimum: 200, maximum: 12000 },
-		input: {
-			type: 'object',
-			additionalProperties: false,
-			required: ['waistDiameterMm', 'waistPositionMm'],
-			properties: {
-				waistDiameterMm: diameter,
-				waistPositionMm: { ...position, description: 'may be negative (the waist inside the laser)' },
-				mSquared: { ...num, minimum: 1, maximum: 100, default: 1, description: 'beam quality; the beam is propagated as M times its embedded Gaussian (Siegman 1986)' }
-			}
-		},
-		target: {
-			type: 'object',
-			additionalProperties: false,
-			required: ['waistPositionMm'],
-			description: 'exactly one of waistDiameterMm and fibre',
-			properties: {
-				waistPositionMm: position,
-				waistDiameterMm: diameter,
-				fibre: {
-					type: 'object',
-					additionalProperties: false,
-					description: 'a single-mode fibre face at the target: modeFieldDiameterMm, or coreDiameterMm and numericalAperture (mode field by Marcuse 1977)',
-					properties: { modeFieldDiameterMm: diameter, coreDiameterMm: { ...num, exclusiveMinimum: 0 }, numericalAperture: { ...num, exclusiveMinimum: 0, exclusiveMaximum: 1 } }
-				}
-			}
-		},
-		maxElements: { type: 'integer', enum: [1, 2], default: 2 },
-		minWorkingDistanceMm: { ...num, minimum: 0, default: 5, description: 'last vertex to the target waist, at least' },
-		minClearance: { ...num, minimum: 1, maximum: 10, default: 1.5, description: 'a part whose clear aperture is below this × the 1/e² beam diameter at it is refused' },
-		minEfficiency: { ...num, exclusiveMinimum: 0, maximum: 1, default: 0.8, description: 'answers below it are not returned; the best is then the near miss' },
-		powerW: { ...num, exclusiveMinimum: 0, description: 'optional beam power, W: gives the peak irradiance at the focus' },
-		...shared
-	}
-};
+		'A union on `mode`; a body without mode is an imaging question. Mode beam: one or two parts that turn the input Gaussian beam into the target beam ' +
+		'(parts at z ≥ 0, positions along the axis from the bench reference plane z = 0, light towards +z; diameters are full 1/e² intensity diameters; ' +
+		'target: exactly one of waistDiameterMm and fibre). Mode afocal: beam expanders and reducers from two parts at the afocal gap of the thick matrices. ' +
+		'400 names the field of a cross-field refusal with a dotted path (target.waistDiameterMm).'
+});
 
-const afocalRequest = {
-	type: 'object',
-	additionalProperties: false,
-	required: ['mode', 'wavelengthNm', 'expansion', 'inputBeamDiameterMm', 'maxLengthMm'],
-	description: 'Mode afocal: beam expanders and reducers from two parts, spaced at the afocal gap of the thick matrices at the wavelength.',
-	properties: {
-		mode: { type: 'string', enum: ['afocal'] },
-		wavelengthNm: { ...num, minimum: 200, maximum: 12000 },
-		expansion: { ...num, minimum: 0.01, maximum: 100, description: 'output over input beam diameter (below 1: a reducer); not 1 within the tolerance' },
-		expansionTolerance: { ...num, minimum: 0, maximum: 0.5, default: 0.02 },
-		inputBeamDiameterMm: diameter,
-		maxLengthMm: { ...num, exclusiveMinimum: 0, description: 'first vertex to last vertex, at most' },
-		intermediateFocus: { type: 'boolean', description: 'true: only pairs with a real focus between the parts; false: only pairs without; left out: both' },
-		minClearance: { ...num, minimum: 1, maximum: 10, default: 1.5 },
-		...shared
-	}
-};
-
-const solveRequest = { oneOf: [imagingRequest, beamRequest, afocalRequest], discriminator: { propertyName: 'mode' }, description: 'a body without mode is an imaging question' };
-
-const beamSolution = {
-	type: 'object',
-	description:
-		'mode "beam"; elements as for imaging, firstVertexMm from z = 0; objectDistanceMm (z = 0 to the first vertex), gapsMm, backDistanceMm (last vertex to the target waist); ' +
-		'beam {outputWaistDiameterMm, outputWaistPositionMm (the focus, from z = 0), efficiency (0–1, overlap with the target beam), minClearance, lengthMm, targetWaistDiameterMm, targetWaistPositionMm, ' +
-		'waistOffsetMm, outputRayleighRangeMm, outputDivergenceMrad (full angle), peakIrradianceWPerCm2 (2P/(πw0²) in W/cm², null without powerW), waists [{kind input|intermediate|output, zMm, diameterMm, rayleighRangeMm}], ' +
-		'parts [{partIndex, sku, beamDiameterMm, clearApertureMm, clearance, fillRatio, efficiencyAtShift [−1 mm, +1 mm], efficiencyDropPerMm}], systemMatrix (input waist plane to output waist plane), envelope [[zMm, 1/e² radius mm]]}. ' +
-		'Ranked by efficiency, then clearance in steps of 2× over minClearance (below 2×, 2–4×, from 4×), then length, then part count.'
-};
-
-const afocalSolution = {
-	type: 'object',
-	description:
-		'mode "afocal"; elements with firstVertexMm from the first part\'s first vertex (0 for it); gapsMm [the afocal gap]; ' +
-		'afocal {expansion, lengthMm, inverted, residualDivergenceMrad (real ray at the input beam\'s full 1/e² radius; null for a part without surfaces), intermediateFocusMm, gapMm, outputBeamDiameterMm, ' +
-		'minClearance, parts, systemMatrix, marginalRay}. Ranked by residual divergence (to 1e-4 mrad), then length.'
-};
-
-const noAnswer = {
-	type: ['object', 'null'],
-	description:
-		'when no answer qualifies: {reason, hint, nearMiss (modes beam and afocal: the nearest answer with its figures, or null)}; ' +
-		'mode imaging: {reason, hint, nearTracks [{skus, label, trackMm, trackOffsetMm, objectDistanceMm, backDistanceMm, magnification}] (single parts that image at the magnification asked on another track, nearest first)}'
-};
-
-const solution = {
-	type: 'object',
+const imagingSolution = z.looseObject({}).meta({
 	description:
 		'elements [{partId, sku, reversed, symmetric, orientation (bench words a technician can check by eye: which outer face is flat, convex or concave, or the more strongly curved, toward the object; then how that stands to the catalogue listing with the radii of the outer faces, e.g. "more strongly curved face toward the object, flatter face toward the image (both convex); as in the catalogue listing; R 61.5 mm face toward the object, R 129 mm face toward the image"; modes beam and afocal say "toward the incoming beam"), firstVertexMm (from the object plane), eflMm, eflSource, toBuy, available, locations}], ' +
 		'objectDistanceMm, gapsMm, backDistanceMm, trackMm (the track this answer uses), trackOffsetMm (that track minus the one asked, within ± trackToleranceMm), magnification, systemMatrix {A,B,C,D}, pointTransferMatrix (3x3 row-major), ' +
@@ -154,75 +28,74 @@ const solution = {
 		'colour {bandNm [short, centre, long] (F–d–C 486.1/587.6/656.3 nm when wavelengthNm lies in it, else that band scaled by wavelengthNm/587.6), axialColourMm (paraxial image position at the long end minus at the short end), ' +
 		'axialRmsMm, edgeRmsMm (RMS radius about the common centroid, the band wavelengths weighted equally), airyRadiusMm (at the centre wavelength), ratioToAiry, note}, rays (never running backwards; a ray stopped at an aperture ends there), tolerance, ' +
 		'warnings [{code: "coating-out-of-band", partId, sku, message}] (a part used outside its coating band; such answers rank after in-band ones)'
-};
+});
+const beamSolution = z.looseObject({ mode: z.literal('beam') }).meta({
+	description:
+		'elements as for imaging, firstVertexMm from z = 0; objectDistanceMm (z = 0 to the first vertex), gapsMm, backDistanceMm (last vertex to the target waist); ' +
+		'beam {outputWaistDiameterMm, outputWaistPositionMm, efficiency (0–1), minClearance, lengthMm, waists, parts, systemMatrix, envelope, peakIrradianceWPerCm2}. ' +
+		'Ranked by efficiency, then clearance in steps of 2× over minClearance, then length, then part count.'
+});
+const afocalSolution = z.looseObject({ mode: z.literal('afocal') }).meta({
+	description:
+		'elements with firstVertexMm from the first part’s first vertex; gapsMm [the afocal gap]; afocal {expansion, lengthMm, inverted, residualDivergenceMrad, ' +
+		'intermediateFocusMm, gapMm, outputBeamDiameterMm, minClearance, parts, systemMatrix, marginalRay}. Ranked by residual divergence, then length.'
+});
+const solution = z.union([beamSolution, afocalSolution, imagingSolution]);
 
-const choice = {
-	type: 'object',
-	description: 'the parts, their orientation and positions of a returned solution (mode beam: objectDistanceMm from z = 0, backDistanceMm to the target waist; mode afocal: both 0); the server re-evaluates it',
-	additionalProperties: false,
-	required: ['elements', 'objectDistanceMm', 'gapsMm', 'backDistanceMm'],
-	properties: {
-		elements: { type: 'array', minItems: 1, maxItems: 2, items: { type: 'object', properties: { partId: int, reversed: { type: 'boolean' } } } },
-		objectDistanceMm: num,
-		gapsMm: { type: 'array', items: num },
-		backDistanceMm: num
-	}
-};
-
-const setup = {
-	type: 'object',
-	properties: {
-		id: int,
-		name: { type: 'string' },
-		projectId: { type: ['integer', 'null'] },
-		query: solveRequest,
-		solution: { oneOf: [solution, beamSolution, afocalSolution] },
-		reservations: { type: 'array', items: { type: 'object' } }
-	}
-};
+const setup = z.looseObject({
+	id: int,
+	name: z.string(),
+	projectId: int.nullable(),
+	query: z.looseObject({}),
+	solution: solution.nullable(),
+	reservations: z.array(reservationJson).optional()
+});
 
 export const solverPaths: OpenApiPaths = {
 	'/solve': {
 		post: {
 			summary: 'Build from stock: one- and two-part setups from usable, unreserved stock for an imaging, beam-shaping or beam-expanding question',
-			requestBody: jsonBody(solveRequest),
+			description:
+				'With `Accept: application/x-ndjson` the answer is a stream of JSON lines: {"type":"progress","fraction" (0–1, share searched),"best" ({parts: [sku], efficiency?} ' +
+				'or null: the best candidate so far, before its final check)} a few times a second while the search runs, then one {"type":"result","result" (the answer below)} ' +
+				'or {"type":"error","status","error"}. Bad input (400) and a busy solver (429) are refused before the stream starts; closing the connection cancels the search.',
+			requestBody: jsonBody(question),
 			responses: {
-				'200': jsonResponse('Solutions and stats', {
-					type: 'object',
-					properties: {
-						request: solveRequest,
-						solutions: { type: 'array', items: { oneOf: [solution, beamSolution, afocalSolution] } },
-						noAnswer,
-						stats: {
-							type: 'object',
-							properties: {
-								partsConsidered: int,
-								configurationsEvaluated: int,
-								elapsedMs: num,
-								truncated: { type: 'boolean' },
-								partsExcluded: {
-									type: 'array',
-									description: 'parts left out and why, one entry per reason (no index at the wavelength, outside the coating band when asked)',
-									items: { type: 'object', properties: { reason: { type: 'string' }, count: int, skus: { type: 'array', items: { type: 'string' } } } }
-								}
-							}
-						}
-					}
-				}),
+				'200': jsonResponse(
+					'Solutions and stats',
+					z.looseObject({
+						request: z.looseObject({ mode: z.enum(['imaging', 'beam', 'afocal']) }),
+						solutions: z.array(solution),
+						noAnswer: z
+							.looseObject({ reason: z.string(), hint: z.string() })
+							.nullable()
+							.optional()
+							.describe(
+								'when no answer qualifies: {reason, hint, nearMiss (modes beam and afocal: the nearest answer with its figures, or null)}; ' +
+									'mode imaging: {reason, hint, nearTracks [{skus, label, trackMm, trackOffsetMm, objectDistanceMm, backDistanceMm, magnification}] (single parts that image at the magnification asked on another track, nearest first)}'
+							),
+						stats: z.looseObject({
+							partsConsidered: int,
+							configurationsEvaluated: int,
+							elapsedMs: z.number(),
+							truncated: z.boolean(),
+							partsExcluded: z
+								.array(z.looseObject({ reason: z.string(), count: int, skus: z.array(z.string()) }))
+								.describe('parts left out and why, one entry per reason (no index at the wavelength, outside the coating band when asked)')
+						})
+					})
+				),
 				...errors(400, 401, 403, 415, 429)
 			}
 		}
 	},
 	'/setups': {
-		get: { summary: 'Recent setups', responses: { '200': jsonResponse('Setups', { type: 'object' }), ...errors(401, 403) } },
+		get: { summary: 'Recent setups', responses: { '200': jsonResponse('Setups'), ...errors(401, 403) } },
 		post: {
 			summary: 'Save a question with its chosen solution as a setup (re-evaluated by the server)',
-			requestBody: jsonBody({
-				type: 'object',
-				additionalProperties: false,
-				required: ['name', 'query', 'choice'],
-				properties: { name: { type: 'string' }, projectId: { type: ['integer', 'null'] }, query: solveRequest, choice }
-			}),
+			description:
+				'`choice`: the parts, their orientation and positions of a returned solution (mode beam: objectDistanceMm from z = 0, backDistanceMm to the target waist; mode afocal: both 0).',
+			requestBody: jsonBody(setupInputSchema),
 			responses: { '201': jsonResponse('The setup', setup), ...errors(400, 401, 403, 415) }
 		}
 	},
@@ -232,12 +105,7 @@ export const solverPaths: OpenApiPaths = {
 	'/setups/{id}/reservations': {
 		post: {
 			summary: 'Reserve every part of a setup in one step',
-			requestBody: jsonBody({
-				type: 'object',
-				additionalProperties: false,
-				required: ['until'],
-				properties: { until: { type: 'string', format: 'date-time' }, projectId: { type: ['integer', 'null'] } }
-			}),
+			requestBody: jsonBody(reserveInputSchema),
 			responses: { '201': jsonResponse('The reservations made'), ...errors(400, 401, 403, 404, 409, 415) }
 		}
 	}

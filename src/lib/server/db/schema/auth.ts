@@ -14,9 +14,10 @@ import {
 } from 'drizzle-orm/mysql-core';
 import { id, ref } from './columns';
 
-/** The four roles of Glasscrib; one user has one role. */
-export const ROLES = ['admin', 'stockroom', 'engineer', 'purchaser'] as const;
-export type Role = (typeof ROLES)[number];
+import { ROLES } from '../../../roles';
+
+/** The four roles (`$lib/roles`, the one place that names them); one user has one role. */
+export { ROLES, type Role } from '../../../roles';
 
 
 export const users = mysqlTable(

@@ -14,6 +14,7 @@ import {
 } from 'drizzle-orm/mysql-core';
 import { id, ref } from './columns';
 import { users } from './auth';
+import { DEFAULT_WAVELENGTH_NM } from '../../../optics/materials';
 
 
 /** Kinds of catalogue part; each fills a sensible surface template in the part form. */
@@ -87,7 +88,7 @@ export const parts = mysqlTable(
 		bflMm: double('bfl_mm'),
 		/** Centre thickness; for parts without a prescription (black-box model). */
 		centerThicknessMm: double('center_thickness_mm'),
-		designWavelengthNm: double('design_wavelength_nm').notNull().default(587.6),
+		designWavelengthNm: double('design_wavelength_nm').notNull().default(DEFAULT_WAVELENGTH_NM),
 		/** EFL computed by the optics core at the lab's default wavelength (or measured, rescaled); used for sort and filter. */
 		paraxialEflMm: double('paraxial_efl_mm'),
 		eflSource: mysqlEnum('efl_source', ['prescription', 'nominal', 'measured']),

@@ -1,23 +1,19 @@
 import { json } from '@sveltejs/kit';
 import { eq } from 'drizzle-orm';
-import { z } from 'zod';
 import type { RequestHandler } from './$types';
 import { db } from '$lib/server/db';
 import { suppliers } from '$lib/server/db/schema';
-import { ApiError, endpoint } from '$lib/server/api/http';
+import { endpoint } from '$lib/server/api/http';
+import { DomainError } from '$lib/server/errors';
 import { requireRole } from '$lib/server/auth/guard';
-import { STOCK_EDITORS } from '$lib/server/auth/roles';
+import { STOCK_EDITORS } from '$lib/roles';
 import { appStore } from '$lib/server/files/store';
 import * as importsService from '$lib/server/imports/service';
-
-const listQuery = z
-	.object({ page: z.coerce.number().int().min(1).default(1), pageSize: z.coerce.number().int().min(1).max(200).default(50) })
-	.strict();
 
 /** The import history, newest first. */
 export const GET = endpoint(async (event) => {
 	requireRole(event, STOCK_EDITORS);
-	const q = listQuery.parse(Object.fromEntries(event.url.searchParams));
+	const q = importsService.listQuerySchema.parse(Object.fromEntries(event.url.searchParams));
 	return json(await importsService.listImports(db, q));
 }) satisfies RequestHandler;
 
@@ -27,7 +23,7 @@ const jsonField = (fields: Record<string, string>, name: string): unknown => {
 	try {
 		return JSON.parse(v);
 	} catch {
-		throw new ApiError(400, 'invalid-input', `The field "${name}" is not valid JSON.`, { [name]: 'Not valid JSON.' });
+		throw new DomainError(400, 'invalid-input', `The field "${name}" is not valid JSON.`, { [name]: 'Not valid JSON.' });
 	}
 };
 const flag = (fields: Record<string, string>, name: string) => ['true', '1', 'yes', 'on'].includes((fields[name] ?? '').toLowerCase());
@@ -41,13 +37,13 @@ const flag = (fields: Record<string, string>, name: string) => ['true', '1', 'ye
 export const POST = endpoint(async (event) => {
 	const user = requireRole(event, STOCK_EDITORS);
 	const { fields, file } = await importsService.readCsvUpload(event.request);
-	if (!file) throw new ApiError(400, 'no-file', 'Attach the file in the form field "file".', { file: 'Choose a file.' });
+	if (!file) throw new DomainError(400, 'no-file', 'Attach the file in the form field "file".', { file: 'Choose a file.' });
 	try {
 		let supplierId: number | null = null;
 		const supplierName = (fields.supplier ?? '').trim();
 		if (supplierName) {
 			const [s] = await db.select({ id: suppliers.id }).from(suppliers).where(eq(suppliers.name, supplierName));
-			if (!s) throw new ApiError(400, 'invalid-input', `There is no supplier "${supplierName}".`, { supplier: 'Unknown supplier.' });
+			if (!s) throw new DomainError(400, 'invalid-input', `There is no supplier "${supplierName}".`, { supplier: 'Unknown supplier.' });
 			supplierId = s.id;
 		}
 		const mapping = jsonField(fields, 'mapping');

@@ -3,7 +3,7 @@ import type { RequestHandler } from './$types';
 import { db } from '$lib/server/db';
 import { endpoint, readJson } from '$lib/server/api/http';
 import { requireRole } from '$lib/server/auth/guard';
-import { ANY_ROLE, STOCK_EDITORS } from '$lib/server/auth/roles';
+import { ANY_ROLE, STOCK_EDITORS } from '$lib/roles';
 import * as locations from '$lib/server/stock/locations';
 
 /** Storage locations with their unit counts (`?archived=include` lists archived ones too). */

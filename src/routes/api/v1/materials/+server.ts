@@ -3,7 +3,7 @@ import type { RequestHandler } from './$types';
 import { db } from '$lib/server/db';
 import { endpoint, readJson } from '$lib/server/api/http';
 import { requireRole } from '$lib/server/auth/guard';
-import { ADMINS, ANY_ROLE } from '$lib/server/auth/roles';
+import { ADMINS, ANY_ROLE } from '$lib/roles';
 import * as labMaterials from '$lib/server/catalogue/lab-materials';
 
 /** Every material with its dispersion formula, valid range and source (open, the lab's own, glass codes). */

@@ -2,7 +2,7 @@ import { json } from '@sveltejs/kit';
 import type { RequestHandler } from './$types';
 import { endpoint } from '$lib/server/api/http';
 import { requireRole } from '$lib/server/auth/guard';
-import { ANY_ROLE } from '$lib/server/auth/roles';
+import { ANY_ROLE } from '$lib/roles';
 
 /** Who is signed in, and how. */
 export const GET = endpoint(async (event) => {

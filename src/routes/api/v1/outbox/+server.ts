@@ -3,7 +3,7 @@ import type { RequestHandler } from './$types';
 import { db } from '$lib/server/db';
 import { endpoint } from '$lib/server/api/http';
 import { requireRole } from '$lib/server/auth/guard';
-import { ADMINS } from '$lib/server/auth/roles';
+import { ADMINS } from '$lib/roles';
 import * as outbox from '$lib/server/accounts/outbox';
 
 /** Mail captured by the local mail fake, newest first (`?to=` filters by recipient, `?limit=`). */

@@ -3,9 +3,8 @@ import type { RequestHandler } from './$types';
 import { db } from '$lib/server/db';
 import { endpoint, readJson } from '$lib/server/api/http';
 import { requireRole } from '$lib/server/auth/guard';
-import { PURCHASERS } from '$lib/server/auth/roles';
+import { PURCHASERS, REQUEST_VIEWERS } from '$lib/roles';
 import * as requests from '$lib/server/purchasing/requests';
-import { REQUEST_VIEWERS } from '$lib/server/purchasing/roles';
 import { z } from 'zod';
 
 /** Purchase requests, newest change first; `?status=ordered`, `?partId=12`, `?open=true`. */

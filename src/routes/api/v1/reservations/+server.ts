@@ -1,24 +1,15 @@
 import { json } from '@sveltejs/kit';
-import { z } from 'zod';
 import type { RequestHandler } from './$types';
 import { db } from '$lib/server/db';
 import { endpoint, readJson } from '$lib/server/api/http';
 import { requireRole } from '$lib/server/auth/guard';
-import { ANY_ROLE, RESERVERS } from '$lib/server/auth/roles';
+import { ANY_ROLE, RESERVERS } from '$lib/roles';
 import * as reservations from '$lib/server/stock/reservations';
-
-const query = z
-	.object({
-		partId: z.coerce.number().int().positive().optional(),
-		mine: z.enum(['true', 'false']).optional(),
-		active: z.enum(['true', 'false']).optional()
-	})
-	.strict();
 
 /** Reservations (`?partId=`, `?mine=true`, `?active=true`). */
 export const GET = endpoint(async (event) => {
 	const user = requireRole(event, ANY_ROLE);
-	const q = query.parse(Object.fromEntries(event.url.searchParams));
+	const q = reservations.reservationQuerySchema.parse(Object.fromEntries(event.url.searchParams));
 	const items = await reservations.reservationRows(db, {
 		partId: q.partId,
 		userId: q.mine === 'true' ? user.id : undefined,

@@ -2,9 +2,10 @@ import { json } from '@sveltejs/kit';
 import { env } from '$env/dynamic/private';
 import type { RequestHandler } from './$types';
 import { db } from '$lib/server/db';
-import { ApiError, endpoint, errorResponse, readJson } from '$lib/server/api/http';
+import { endpoint, errorResponse, readJson } from '$lib/server/api/http';
+import { DomainError } from '$lib/server/errors';
 import { requireRole } from '$lib/server/auth/guard';
-import { ANY_ROLE, PUBLIC } from '$lib/server/auth/roles';
+import { ANY_ROLE, PUBLIC } from '$lib/roles';
 import { endSession, startSession } from '$lib/server/auth/sessions';
 import { attemptSignin, INVALID_CREDENTIALS, signinSchema, throttledMessage } from '$lib/server/accounts/signin';
 
@@ -22,7 +23,7 @@ export const POST = endpoint(async (event) => {
 			'Retry-After': String(result.retryAfterSeconds)
 		});
 	}
-	if (!result.ok) throw new ApiError(401, 'invalid-credentials', INVALID_CREDENTIALS);
+	if (!result.ok) throw new DomainError(401, 'invalid-credentials', INVALID_CREDENTIALS);
 	await startSession(result.user.id, event.cookies, event.request.headers.get('user-agent'));
 	const { id, email, name, role } = result.user;
 	return json({ user: { id, email, name, role }, secondFactorRequired: result.user.totpEnabledAt !== null });
@@ -31,7 +32,7 @@ export const POST = endpoint(async (event) => {
 /** Signs out: ends the session on the server and clears the cookie. */
 export const DELETE = endpoint(async (event) => {
 	requireRole(event, ANY_ROLE);
-	if (!event.locals.session) throw new ApiError(400, 'no-session', 'This request is signed with a token, not a session; revoke the token instead.');
+	if (!event.locals.session) throw new DomainError(400, 'no-session', 'This request is signed with a token, not a session; revoke the token instead.');
 	await endSession(event.locals.session, event.cookies);
 	return new Response(null, { status: 204 });
 }) satisfies RequestHandler;

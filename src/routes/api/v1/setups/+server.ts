@@ -3,7 +3,7 @@ import type { RequestHandler } from './$types';
 import { db } from '$lib/server/db';
 import { endpoint, readJson } from '$lib/server/api/http';
 import { requireRole } from '$lib/server/auth/guard';
-import { SOLVER_USERS } from '$lib/server/auth/roles';
+import { SOLVER_USERS } from '$lib/roles';
 import * as setups from '$lib/server/solver/setups';
 
 /** Recent setups, newest first. */

@@ -3,7 +3,7 @@ import type { RequestHandler } from './$types';
 import { db } from '$lib/server/db';
 import { endpoint, readJson, toErrorResponse } from '$lib/server/api/http';
 import { requireRole } from '$lib/server/auth/guard';
-import { SOLVER_USERS } from '$lib/server/auth/roles';
+import { SOLVER_USERS } from '$lib/roles';
 import { solveRequestSchema } from '$lib/solver/request';
 import * as solver from '$lib/server/solver/service';
 

@@ -2,9 +2,10 @@ import fs from 'node:fs';
 import { json } from '@sveltejs/kit';
 import type { RequestHandler } from './$types';
 import { db } from '$lib/server/db';
-import { ApiError, endpoint } from '$lib/server/api/http';
+import { endpoint } from '$lib/server/api/http';
+import { DomainError } from '$lib/server/errors';
 import { requireRole } from '$lib/server/auth/guard';
-import { STOCK_EDITORS } from '$lib/server/auth/roles';
+import { STOCK_EDITORS } from '$lib/roles';
 import { readCsvUpload } from '$lib/server/imports/service';
 import { csvRecords, type Delimiter } from '$lib/server/imports/csv';
 import { linesFromCsv, stockTake, StockTakeRefused } from '$lib/server/stock/stock-take';
@@ -18,7 +19,7 @@ import { linesFromCsv, stockTake, StockTakeRefused } from '$lib/server/stock/sto
 export const POST = endpoint(async (event) => {
 	const user = requireRole(event, STOCK_EDITORS);
 	const { fields, file } = await readCsvUpload(event.request);
-	if (!file) throw new ApiError(400, 'no-file', 'Attach the count in the form field "file".', { file: 'Choose a file.' });
+	if (!file) throw new DomainError(400, 'no-file', 'Attach the count in the form field "file".', { file: 'Choose a file.' });
 	try {
 		const dryRun = ['true', '1', 'yes', 'on'].includes((fields.dryRun ?? '').toLowerCase());
 		const { lines, rows } = await linesFromCsv(csvRecords(fs.createReadStream(file.csv.path), file.csv.delimiter as Delimiter));

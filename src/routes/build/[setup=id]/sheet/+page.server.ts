@@ -3,8 +3,8 @@ import { z } from 'zod';
 import type { PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { requireRole } from '$lib/server/auth/guard';
-import { SOLVER_USERS } from '$lib/server/auth/roles';
-import { DomainError } from '$lib/server/api/http';
+import { SOLVER_USERS } from '$lib/roles';
+import { DomainError } from '$lib/server/errors';
 import * as setups from '$lib/server/solver/setups';
 
 export const load = (async (event) => {

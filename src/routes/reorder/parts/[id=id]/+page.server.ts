@@ -1,16 +1,14 @@
-import { error, fail } from '@sveltejs/kit';
+import { error } from '@sveltejs/kit';
 import type { Actions, PageServerLoad } from './$types';
-import { ZodError } from 'zod';
 import { db } from '$lib/server/db';
 import { requireRole } from '$lib/server/auth/guard';
-import { PURCHASERS } from '$lib/server/auth/roles';
-import { DomainError, zodFields } from '$lib/server/api/http';
+import { PURCHASERS } from '$lib/roles';
+import { DomainError } from '$lib/server/errors';
+import { failFrom } from '$lib/server/form-failure';
 import * as parts from '$lib/server/catalogue/parts';
 
-function partId(raw: string): number {
-	if (!/^[1-9]\d{0,15}$/.test(raw)) error(404, { code: 'not-found', message: 'There is no such part.' });
-	return Number(raw);
-}
+/** The part's id (the `id` matcher has checked it). */
+const partId = (raw: string) => Number(raw);
 
 async function partOr404(id: number) {
 	try {
@@ -53,9 +51,7 @@ export const actions = {
 		try {
 			await parts.updatePart(db, id, patchFrom(values), { id: user.id, role: user.role });
 		} catch (err) {
-			if (err instanceof ZodError) return fail(400, { values, errors: zodFields(err) });
-			if (err instanceof DomainError) return fail(err.status, { values, errors: err.fields ?? { _: err.message } });
-			throw err;
+			return failFrom(err, { values });
 		}
 		return { saved: true };
 	}

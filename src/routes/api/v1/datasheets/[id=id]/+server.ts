@@ -2,9 +2,10 @@ import { Readable } from 'node:stream';
 import { z } from 'zod';
 import type { RequestHandler } from './$types';
 import { db } from '$lib/server/db';
-import { ApiError, endpoint } from '$lib/server/api/http';
+import { endpoint } from '$lib/server/api/http';
+import { DomainError } from '$lib/server/errors';
 import { requireRole } from '$lib/server/auth/guard';
-import { ANY_ROLE, STOCK_EDITORS } from '$lib/server/auth/roles';
+import { ANY_ROLE, STOCK_EDITORS } from '$lib/roles';
 import * as datasheets from '$lib/server/files/datasheets';
 import { appStore } from '$lib/server/files/store';
 
@@ -18,7 +19,7 @@ export const GET = endpoint(async (event) => {
 	requireRole(event, ANY_ROLE);
 	const { id } = params.parse(event.params);
 	const view = event.url.searchParams.get('view');
-	if (view !== null && view !== 'inline') throw new ApiError(400, 'invalid-input', 'view is "inline" or absent.', { view: 'Use view=inline.' });
+	if (view !== null && view !== 'inline') throw new DomainError(400, 'invalid-input', 'view is "inline" or absent.', { view: 'Use view=inline.' });
 	const { object, headers } = await datasheets.openDatasheet(db, appStore(), id, 'file', view === 'inline' ? 'inline' : 'attachment');
 	return new Response(Readable.toWeb(object.body) as ReadableStream, { headers });
 }) satisfies RequestHandler;

@@ -1,17 +1,14 @@
 import { json } from '@sveltejs/kit';
-import { z } from 'zod';
 import type { RequestHandler } from './$types';
 import { db } from '$lib/server/db';
 import { endpoint, readJson } from '$lib/server/api/http';
 import { requireRole } from '$lib/server/auth/guard';
-import { STOCK_EDITORS } from '$lib/server/auth/roles';
+import { STOCK_EDITORS } from '$lib/roles';
 import * as datasheets from '$lib/server/files/datasheets';
-
-const body = z.object({ filenames: z.array(z.string().max(255)).min(1).max(500) }).strict();
 
 /** Bulk attach, step 1: which dropped files are named after a SKU (the rest are for manual matching). */
 export const POST = endpoint(async (event) => {
 	requireRole(event, STOCK_EDITORS);
-	const { filenames } = body.parse(await readJson(event.request));
+	const { filenames } = datasheets.matchInputSchema.parse(await readJson(event.request));
 	return json({ matches: await datasheets.matchFilenames(db, filenames) });
 }) satisfies RequestHandler;

@@ -3,9 +3,9 @@ import type { RequestHandler } from './$types';
 import { db } from '$lib/server/db';
 import { endpoint, readJson } from '$lib/server/api/http';
 import { requireRole } from '$lib/server/auth/guard';
-import { ANY_ROLE, STOCK_EDITORS } from '$lib/server/auth/roles';
+import { ANY_ROLE, PART_PATCHERS, STOCK_EDITORS } from '$lib/roles';
 import * as parts from '$lib/server/catalogue/parts';
-import { idParam, PART_PATCHERS } from '$lib/server/catalogue/params';
+import { idParam } from '$lib/server/catalogue/params';
 
 /** One part as Part JSON. */
 export const GET = endpoint(async (event) => {

@@ -5,7 +5,7 @@ import { endpoint, readJson } from '$lib/server/api/http';
 import { requireRole } from '$lib/server/auth/guard';
 import * as requests from '$lib/server/purchasing/requests';
 import { patchAndNotify } from '$lib/server/purchasing/service';
-import { REQUEST_VIEWERS } from '$lib/server/purchasing/roles';
+import { REQUEST_VIEWERS } from '$lib/roles';
 import { idParam } from '$lib/server/catalogue/params';
 
 /** One request with its history. */

@@ -3,7 +3,7 @@ import type { RequestHandler } from './$types';
 import { db } from '$lib/server/db';
 import { endpoint } from '$lib/server/api/http';
 import { requireRole } from '$lib/server/auth/guard';
-import { RESERVERS } from '$lib/server/auth/roles';
+import { RESERVERS } from '$lib/roles';
 import * as reservations from '$lib/server/stock/reservations';
 import { idParam } from '$lib/server/catalogue/params';
 

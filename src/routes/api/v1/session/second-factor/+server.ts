@@ -2,9 +2,10 @@ import { json } from '@sveltejs/kit';
 import { env } from '$env/dynamic/private';
 import type { RequestHandler } from './$types';
 import { db } from '$lib/server/db';
-import { ApiError, endpoint, errorResponse, readJson } from '$lib/server/api/http';
+import { endpoint, errorResponse, readJson } from '$lib/server/api/http';
+import { DomainError } from '$lib/server/errors';
 import { requireRole } from '$lib/server/auth/guard';
-import { ANY_ROLE } from '$lib/server/auth/roles';
+import { ANY_ROLE } from '$lib/roles';
 import { completeSecondFactor } from '$lib/server/auth/sessions';
 import * as twoStep from '$lib/server/accounts/two-step';
 
@@ -16,15 +17,15 @@ import * as twoStep from '$lib/server/accounts/two-step';
 export const POST = endpoint(async (event) => {
 	const user = requireRole(event, ANY_ROLE);
 	const session = event.locals.session;
-	if (!session) throw new ApiError(400, 'no-session', 'A token needs no two-step code; sign in with POST /api/v1/session first.');
-	if (event.locals.secondFactor !== 'pending') throw new ApiError(409, 'no-code-needed', 'This session needs no two-step code (already given, or two-step sign-in is off).');
+	if (!session) throw new DomainError(400, 'no-session', 'A token needs no two-step code; sign in with POST /api/v1/session first.');
+	if (event.locals.secondFactor !== 'pending') throw new DomainError(409, 'no-code-needed', 'This session needs no two-step code (already given, or two-step sign-in is off).');
 	const input = twoStep.codeSchema.parse(await readJson(event.request));
 	const result = await twoStep.verifySignin(db, user.id, input.code, env.AUTH_PEPPER);
 	if (!result.ok) {
 		if (result.reason === 'throttled') {
 			return errorResponse(429, 'too-many-attempts', twoStep.refusalText(result), undefined, { 'Retry-After': String(result.retryAfterSeconds) });
 		}
-		throw new ApiError(401, result.reason, twoStep.refusalText(result));
+		throw new DomainError(401, result.reason, twoStep.refusalText(result));
 	}
 	await completeSecondFactor(session, user.id, event.cookies, event.request.headers.get('user-agent'));
 	const { id, email, name, role } = user;

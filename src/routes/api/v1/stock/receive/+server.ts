@@ -1,11 +1,11 @@
 import type { RequestHandler } from './$types';
 import { endpoint } from '$lib/server/api/http';
 import { requireRole } from '$lib/server/auth/guard';
-import { STOCK_EDITORS } from '$lib/server/auth/roles';
+import { STOCK_OPERATION_ROLES } from '$lib/roles';
 import { runOperation } from '$lib/server/stock/api';
 
 /** Receives units into a location. 409 'insufficient-stock' when the stock would go below zero. */
 export const POST = endpoint(async (event) => {
-	const user = requireRole(event, STOCK_EDITORS);
+	const user = requireRole(event, STOCK_OPERATION_ROLES.receive);
 	return runOperation('receive', event, user);
 }) satisfies RequestHandler;

@@ -3,7 +3,7 @@ import type { RequestHandler } from './$types';
 import { db } from '$lib/server/db';
 import { endpoint } from '$lib/server/api/http';
 import { hasAdminFactor, requireRole } from '$lib/server/auth/guard';
-import { ANY_ROLE } from '$lib/server/auth/roles';
+import { ANY_ROLE } from '$lib/roles';
 import * as apiTokens from '$lib/server/accounts/api-tokens';
 
 const params = z.object({ id: z.coerce.number().int().positive() });

@@ -4,7 +4,7 @@ import type { RequestHandler } from './$types';
 import { db } from '$lib/server/db';
 import { endpoint } from '$lib/server/api/http';
 import { requireRole } from '$lib/server/auth/guard';
-import { ANY_ROLE } from '$lib/server/auth/roles';
+import { ANY_ROLE } from '$lib/roles';
 import * as datasheets from '$lib/server/files/datasheets';
 import { appStore } from '$lib/server/files/store';
 

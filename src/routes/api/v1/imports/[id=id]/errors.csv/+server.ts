@@ -3,7 +3,7 @@ import type { RequestHandler } from './$types';
 import { db } from '$lib/server/db';
 import { endpoint } from '$lib/server/api/http';
 import { requireRole } from '$lib/server/auth/guard';
-import { STOCK_EDITORS } from '$lib/server/auth/roles';
+import { STOCK_EDITORS } from '$lib/roles';
 import { csvStream } from '$lib/server/imports/export';
 import * as importsService from '$lib/server/imports/service';
 

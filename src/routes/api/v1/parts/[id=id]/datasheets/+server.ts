@@ -2,9 +2,10 @@ import { json } from '@sveltejs/kit';
 import { z } from 'zod';
 import type { RequestHandler } from './$types';
 import { db } from '$lib/server/db';
-import { ApiError, endpoint } from '$lib/server/api/http';
+import { endpoint } from '$lib/server/api/http';
+import { DomainError } from '$lib/server/errors';
 import { requireRole } from '$lib/server/auth/guard';
-import { ANY_ROLE, STOCK_EDITORS } from '$lib/server/auth/roles';
+import { ANY_ROLE, STOCK_EDITORS } from '$lib/roles';
 import * as datasheets from '$lib/server/files/datasheets';
 import { readMultipartStream } from '$lib/server/files/multipart';
 import { MAX_PDF_BYTES } from '$lib/server/files/magic';
@@ -30,7 +31,7 @@ export const POST = endpoint(async (event) => {
 		handleFile: async (part) => ({ sheet: await datasheets.spoolDatasheet(part.stream), filename: part.filename }),
 		discard: (f) => f.sheet.remove()
 	});
-	if (!file) throw new ApiError(400, 'no-file', 'Attach the file in the form field "file".', { file: 'Choose a file.' });
+	if (!file) throw new DomainError(400, 'no-file', 'Attach the file in the form field "file".', { file: 'Choose a file.' });
 	try {
 		const sheet = await datasheets.uploadDatasheet(db, appStore(), { partId: id, filename: file.filename, file: file.sheet, actorId: user.id });
 		return json(sheet, { status: 201 });

@@ -4,7 +4,7 @@ import type { RequestHandler } from './$types';
 import { db } from '$lib/server/db';
 import { endpoint, readJson } from '$lib/server/api/http';
 import { requireRole } from '$lib/server/auth/guard';
-import { RESERVERS } from '$lib/server/auth/roles';
+import { RESERVERS } from '$lib/roles';
 import * as setups from '$lib/server/solver/setups';
 
 const idParam = z.coerce.number().int().positive();

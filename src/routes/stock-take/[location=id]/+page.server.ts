@@ -1,15 +1,14 @@
-import { error, fail } from '@sveltejs/kit';
+import { error } from '@sveltejs/kit';
 import type { Actions, PageServerLoad } from './$types';
 import { db } from '$lib/server/db';
 import { requireRole } from '$lib/server/auth/guard';
-import { STOCK_EDITORS } from '$lib/server/auth/roles';
+import { STOCK_EDITORS } from '$lib/roles';
 import * as take from '$lib/server/stock/stock-take';
-import { countFailure, linesFromForm } from '$lib/server/stock/stock-take-forms';
+import { commitCount, countFailure } from '$lib/server/stock/stock-take-forms';
+import { formFailure } from '$lib/server/form-failure';
 
-function idOf(params: { location: string }) {
-	if (!/^[1-9]\d{0,11}$/.test(params.location)) error(404, { code: 'not-found', message: 'There is no such location.' });
-	return Number(params.location);
-}
+/** The drawer's location id (the `id` matcher has checked it). */
+const idOf = (params: { location: string }) => Number(params.location);
 
 /** One drawer's booked lines, to count on a phone. */
 export const load = (async (event) => {
@@ -39,22 +38,16 @@ export const actions = {
 		const drawer = await take.drawerContents(db, idOf(event.params));
 		if (!drawer) error(404, { code: 'not-found', message: 'There is no such location.' });
 		const { lines, values } = countFrom(await event.request.formData(), drawer.location.code);
-		if (!lines.length) return fail(400, { errors: { file: 'Type the count of at least one line (0 when none are there).' }, values });
+		if (!lines.length) return formFailure(400, { errors: { file: 'Type the count of at least one line (0 when none are there).' }, values });
 		try {
 			return { result: await take.stockTake(db, lines, { dryRun: true, actor: { id: user.id } }), lines, values };
 		} catch (err) {
-			const f = countFailure(err);
-			return fail(f.status, { ...f.data, values });
+			return countFailure(err, values);
 		}
 	},
 	commit: async (event) => {
 		const user = requireRole(event, STOCK_EDITORS);
 		idOf(event.params);
-		try {
-			const lines = linesFromForm(await event.request.formData());
-			return { result: await take.stockTake(db, lines, { dryRun: false, actor: { id: user.id } }), lines };
-		} catch (err) {
-			return countFailure(err);
-		}
+		return commitCount(db, await event.request.formData(), user.id);
 	}
 } satisfies Actions;
