@@ -18,12 +18,11 @@
 import { and, DrizzleQueryError, eq } from 'drizzle-orm';
 import { syncLabMaterials } from '$lib/server/catalogue/lab-materials';
 import type { Db, DbOrTx, Tx } from '$lib/server/db';
-import { inTransaction } from '$lib/server/db/transaction';
 import { isUnavailable } from '$lib/server/db/errno';
 import { importRowErrors, imports, partSurfaces, parts, suppliers, type ImportRecord } from '$lib/server/db/schema';
 import { recordAudit } from '$lib/server/audit';
 import { DomainError } from '$lib/server/errors';
-import { bumpStockVersion } from '$lib/server/stock/version';
+import { changeStock } from '$lib/server/stock/version';
 import { partInputSchema, type PartInput } from '$lib/server/catalogue/part-input';
 import { toInput } from '$lib/server/catalogue/parts';
 import { getDefaultWavelengthNm } from '$lib/server/catalogue/settings';
@@ -410,14 +409,13 @@ async function runImportUnwatched(
 			await pass(null);
 		} else {
 			// One attempt: a retry would read and write the whole file again; a deadlock fails the run with its message.
-			await inTransaction(db, async (tx) => {
+			await changeStock(db, async (tx) => {
 				await pass(tx);
 				if (counts.rejected > 0 && !options.skipRejected) {
 					throw new RowsRejected(
 						`${counts.rejected} row${counts.rejected === 1 ? ' was' : 's were'} rejected, so nothing was written. Fix the file, or choose to skip the rejected rows.`
 					);
 				}
-				await bumpStockVersion(tx);
 				await recordAudit(tx, {
 					actorId: opts.actorId,
 					action: 'import.commit',
