@@ -15,7 +15,7 @@
  * condition changes and moves record what physically happened and are never refused for
  * reservations; available is then shown as 0 until someone releases a reservation.
  */
-import { and, asc, desc, eq, gt, inArray, sql } from 'drizzle-orm';
+import { and, asc, desc, eq, inArray, sql } from 'drizzle-orm';
 import { z } from 'zod';
 import { text } from '$lib/input';
 import type { DbOrTx, Tx } from '$lib/server/db';
@@ -33,6 +33,7 @@ import {
 } from '$lib/server/db/schema';
 import { Conflict, DomainError } from '$lib/server/errors';
 import { changeStock } from './version';
+import { activeReservation } from './active-reservation';
 
 export class InsufficientStock extends Conflict {
 	constructor(message: string) {
@@ -227,7 +228,7 @@ async function usableAndReservations(tx: Tx, partId: number) {
 	const active = await tx
 		.select()
 		.from(reservations)
-		.where(and(eq(reservations.partId, partId), eq(reservations.status, 'active'), gt(reservations.until, sql`utc_timestamp()`)))
+		.where(and(eq(reservations.partId, partId), activeReservation))
 		.orderBy(asc(reservations.createdAt), asc(reservations.id));
 	return { usable: Number(s.q), active };
 }

@@ -1,9 +1,10 @@
 /**
  * Reservations: units of a part held for a project until a date. Active reservations whose
- * `until` has passed stop counting (no job needed: every query compares with the clock).
+ * `until` has passed stop counting (no job needed: every query compares with the database's clock
+ * through the one rule in `active-reservation.ts`).
  * available = usable on hand − active unexpired reservations (availability.ts).
  */
-import { and, desc, eq, gt, sql } from 'drizzle-orm';
+import { and, desc, eq } from 'drizzle-orm';
 import { z } from 'zod';
 import { dateInput, text } from '$lib/input';
 import type { DbOrTx, Tx } from '$lib/server/db';
@@ -13,6 +14,7 @@ import { DomainError } from '$lib/server/errors';
 import { changeStock } from './version';
 import { totalsOf } from './availability';
 import { inSet, RESERVATION_KEEPERS } from '$lib/roles';
+import { activeReservation, isActiveNow } from './active-reservation';
 
 const MAX_DAYS = 366;
 
@@ -104,9 +106,9 @@ export async function reservationRows(db: DbOrTx, filter: { id?: number; partId?
 	if (filter.id) conds.push(eq(reservations.id, filter.id));
 	if (filter.partId) conds.push(eq(reservations.partId, filter.partId));
 	if (filter.userId) conds.push(eq(reservations.userId, filter.userId));
-	if (filter.activeOnly) conds.push(and(eq(reservations.status, 'active'), gt(reservations.until, sql`utc_timestamp()`)));
+	if (filter.activeOnly) conds.push(activeReservation);
 	const rows = await db
-		.select({ r: reservations, sku: parts.sku, userName: users.name, projectCode: projects.code })
+		.select({ r: reservations, activeNow: isActiveNow, sku: parts.sku, userName: users.name, projectCode: projects.code })
 		.from(reservations)
 		.innerJoin(parts, eq(parts.id, reservations.partId))
 		.innerJoin(users, eq(users.id, reservations.userId))
@@ -114,7 +116,7 @@ export async function reservationRows(db: DbOrTx, filter: { id?: number; partId?
 		.where(and(...conds))
 		.orderBy(desc(reservations.createdAt), desc(reservations.id))
 		.limit(500);
-	return rows.map(({ r, sku, userName, projectCode }) => ({
+	return rows.map(({ r, activeNow, sku, userName, projectCode }) => ({
 		id: r.id,
 		partId: r.partId,
 		sku,
@@ -126,7 +128,7 @@ export async function reservationRows(db: DbOrTx, filter: { id?: number; partId?
 		quantity: r.quantity,
 		until: r.until.toISOString(),
 		status: r.status,
-		state: r.status === 'active' && r.until.getTime() <= Date.now() ? ('expired' as const) : r.status,
+		state: r.status === 'active' && !activeNow ? ('expired' as const) : r.status,
 		note: r.note,
 		createdAt: r.createdAt.toISOString()
 	}));
