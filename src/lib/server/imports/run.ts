@@ -16,16 +16,13 @@
  * batch by batch (at most MAX_STORED_ERRORS of them), and the writer's caches are bounded.
  */
 import { and, DrizzleQueryError, eq } from 'drizzle-orm';
-import { syncLabMaterials } from '$lib/server/catalogue/lab-materials';
 import type { Db, DbOrTx, Tx } from '$lib/server/db';
 import { isUnavailable } from '$lib/server/db/errno';
 import { importRowErrors, imports, partSurfaces, parts, suppliers, type ImportRecord } from '$lib/server/db/schema';
 import { recordAudit } from '$lib/server/audit';
 import { DomainError } from '$lib/server/errors';
 import { changeStock } from '$lib/server/stock/version';
-import { partInputSchema, type PartInput } from '$lib/server/catalogue/part-input';
-import { toInput } from '$lib/server/catalogue/parts';
-import { getDefaultWavelengthNm } from '$lib/server/catalogue/settings';
+import { getDefaultWavelengthNm, partInputSchema, syncLabMaterials, toInput, type PartInput } from '$lib/server/catalogue';
 import type { ObjectStore } from '$lib/server/files/s3';
 import { inList } from './bulk-sql';
 import { csvRecords, type Delimiter } from './csv';
