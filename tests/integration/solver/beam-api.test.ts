@@ -9,15 +9,14 @@ import { and, eq, inArray } from 'drizzle-orm';
 import { testDb } from '../../support/env';
 import { api, cookieFor } from '../accounts/helpers';
 import * as t from '../../../src/lib/server/db/schema';
-import { bumpStockVersion } from '../../../src/lib/server/stock/version';
+import { changeStock } from '../../../src/lib/server/stock/version';
 
 const { db, pool } = testDb();
 const reservedSetups: number[] = [];
 afterAll(async () => {
 	if (reservedSetups.length) {
-		await db.transaction(async (tx) => {
+		await changeStock(db, async (tx) => {
 			await tx.update(t.reservations).set({ status: 'released' }).where(and(eq(t.reservations.status, 'active'), inArray(t.reservations.setupId, reservedSetups)));
-			await bumpStockVersion(tx);
 		});
 	}
 	await pool.end();

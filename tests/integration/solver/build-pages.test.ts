@@ -9,7 +9,7 @@ import { and, eq, inArray } from 'drizzle-orm';
 import { testDb } from '../../support/env';
 import { api, cookieFor } from '../accounts/helpers';
 import * as t from '../../../src/lib/server/db/schema';
-import { bumpStockVersion } from '../../../src/lib/server/stock/version';
+import { changeStock } from '../../../src/lib/server/stock/version';
 import { readForm } from '../../../src/lib/server/solver/form';
 import { listSavedSetups } from '../../../src/lib/server/solver/setup-list';
 import { orientationText } from '../../../src/lib/solver/orientation';
@@ -21,9 +21,8 @@ const { db, pool } = testDb();
 const created: number[] = [];
 afterAll(async () => {
 	if (created.length) {
-		await db.transaction(async (tx) => {
+		await changeStock(db, async (tx) => {
 			await tx.update(t.reservations).set({ status: 'released' }).where(and(inArray(t.reservations.setupId, created), eq(t.reservations.status, 'active')));
-			await bumpStockVersion(tx);
 		});
 		// Setups that never held a reservation leave no trace elsewhere: remove them so other files' lists stay as they were.
 		const held = new Set((await db.select({ id: t.reservations.setupId }).from(t.reservations).where(inArray(t.reservations.setupId, created))).map((r) => r.id));

@@ -9,7 +9,7 @@ import { and, eq, inArray, or, sql } from 'drizzle-orm';
 import { testDb } from '../../support/env';
 import { api, cookieFor } from '../accounts/helpers';
 import * as t from '../../../src/lib/server/db/schema';
-import { bumpStockVersion } from '../../../src/lib/server/stock/version';
+import { changeStock } from '../../../src/lib/server/stock/version';
 
 const { db, pool } = testDb();
 // Reservations this file makes on demo parts, released at the end so that later files (unlocks,
@@ -22,9 +22,8 @@ afterAll(async () => {
 		...(reservedSetups.length ? [inArray(t.reservations.setupId, reservedSetups)] : [])
 	];
 	if (mine.length) {
-		await db.transaction(async (tx) => {
+		await changeStock(db, async (tx) => {
 			await tx.update(t.reservations).set({ status: 'released' }).where(and(eq(t.reservations.status, 'active'), or(...mine)));
-			await bumpStockVersion(tx);
 		});
 	}
 	await pool.end();
@@ -194,10 +193,9 @@ describe('setups', () => {
 		const spare = Number(onHand) - Number(held) - 1;
 		const [admin] = await db.select().from(t.users).where(eq(t.users.role, 'admin'));
 		if (spare > 0) {
-			await db.transaction(async (tx) => {
+			await changeStock(db, async (tx) => {
 				const [hold] = await tx.insert(t.reservations).values({ partId, userId: admin.id, quantity: spare, until: new Date(Date.now() + 86_400_000), note: 'test: hold all but one' }).$returningId();
 				heldIds.push(hold.id);
-				await bumpStockVersion(tx);
 			});
 		}
 		const until = new Date(Date.now() + 7 * 86_400_000).toISOString();

@@ -5,7 +5,8 @@
 import { eq } from 'drizzle-orm';
 import { z } from 'zod';
 import type { Db } from '$lib/server/db';
-import { sessions, users } from '$lib/server/db/schema';
+import { users } from '$lib/server/db/schema';
+import { endAllSessionsInTx } from '$lib/server/auth/sessions';
 import { hashPassword, verifyPassword } from '$lib/server/auth/password';
 import { newPasswordSchema, passwordProblem } from '$lib/server/auth/password-policy';
 import * as throttle from '$lib/server/auth/throttle';
@@ -34,7 +35,7 @@ export async function setPasswordFromLink(db: Db, token: string, password: strin
 		if (problem) throw new PasswordRefused(problem);
 		await spendLink(tx, check.linkId);
 		await tx.update(users).set({ passwordHash: hash }).where(eq(users.id, check.user.id));
-		await tx.delete(sessions).where(eq(sessions.userId, check.user.id));
+		await endAllSessionsInTx(tx, check.user.id);
 		await recordAudit(tx, {
 			actorId: check.user.id,
 			action: check.purpose === 'invite' ? 'user.invite-accepted' : 'user.password-reset',

@@ -11,7 +11,8 @@ import { eq } from 'drizzle-orm';
 import { z } from 'zod';
 import QRCode from 'qrcode';
 import type { Db, Tx } from '$lib/server/db';
-import { sessions, users } from '$lib/server/db/schema';
+import { users } from '$lib/server/db/schema';
+import { clearSecondFactorInTx, markSecondFactorInTx } from '$lib/server/auth/sessions';
 import { Conflict, DomainError } from '$lib/server/errors';
 import { recordAudit } from '$lib/server/audit';
 import * as throttle from '$lib/server/auth/throttle';
@@ -176,7 +177,7 @@ export async function confirmSetup(
 					.update(users)
 					.set({ totpSecret: row.totpPendingSecret, totpPendingSecret: null, totpEnabledAt: now, totpLastStep: check.step })
 					.where(eq(users.id, user.id));
-				if (sessionId) await tx.update(sessions).set({ secondFactorAt: now }).where(eq(sessions.id, sessionId));
+				if (sessionId) await markSecondFactorInTx(tx, sessionId, now);
 				await recordAudit(tx, { actorId: user.id, action: 'user.two-step-on', targetType: 'user', targetId: user.id });
 				return { ok: true };
 			}),
@@ -207,7 +208,7 @@ export async function verifySignin(db: Db, userId: number, code: string, pepper:
 /** Clears everything two-step of a user and the factor mark of their sessions (inside the caller's transaction). */
 async function clearTwoStep(tx: Tx, userId: number) {
 	await tx.update(users).set({ totpSecret: null, totpPendingSecret: null, totpEnabledAt: null, totpLastStep: null }).where(eq(users.id, userId));
-	await tx.update(sessions).set({ secondFactorAt: null }).where(eq(sessions.userId, userId));
+	await clearSecondFactorInTx(tx, userId);
 }
 
 /** Turns two-step sign-in off; needs the current password and a current code. */

@@ -5,7 +5,8 @@
 import { and, asc, count, eq, inArray, isNull } from 'drizzle-orm';
 import { z } from 'zod';
 import type { Db, Tx } from '$lib/server/db';
-import { apiTokens, ROLES, sessions, users, type Role } from '$lib/server/db/schema';
+import { apiTokens, ROLES, users, type Role } from '$lib/server/db/schema';
+import { endAllSessionsInTx } from '$lib/server/auth/sessions';
 import { Conflict, DomainError, NotFound } from '$lib/server/errors';
 import { recordAudit } from '$lib/server/audit';
 import { createLink, LINK_LIFETIME_MS } from './links';
@@ -128,7 +129,7 @@ export async function deactivate(db: Db, actorId: number, userId: number) {
 		if (user.status === 'disabled') return;
 		if (inSet(user.role, ADMINS) && (await otherActiveAdmins(tx, user.id)) === 0) throw new LastAdmin();
 		await tx.update(users).set({ status: 'disabled' }).where(eq(users.id, user.id));
-		await tx.delete(sessions).where(eq(sessions.userId, user.id));
+		await endAllSessionsInTx(tx, user.id);
 		const tokensRevoked = await revokeAllTokens(tx, user.id, new Date());
 		await recordAudit(tx, { actorId, action: 'user.deactivated', targetType: 'user', targetId: user.id, detail: { tokensRevoked } });
 	});

@@ -5,12 +5,17 @@
  * The cookie holds a random id (25 bytes); the database holds only its SHA-256 (`sessions.id`), which
  * is what lucia sees as the session id. Someone who reads the table cannot sign in with what it holds.
  * The cookie's Max-Age ends with the session's absolute end (12 h after sign-in), never later.
+ *
+ * This is the only module that writes the `sessions` table. Services that end or mark sessions
+ * inside their own transaction (deactivation, a password set from a link, two-step changes) call
+ * the `…InTx` functions below. The app's database is opened on first use, so services importing
+ * this module stay importable without a database (unit tests, the API description).
  */
 import { generateIdFromEntropySize, Lucia, TimeSpan, type Session } from 'lucia';
 import { DrizzleMySQLAdapter } from '@lucia-auth/adapter-drizzle';
 import { env } from '$env/dynamic/private';
 import type { Cookies } from '@sveltejs/kit';
-import { db } from '$lib/server/db';
+import type { Db, Tx } from '$lib/server/db';
 import { createHash } from 'node:crypto';
 import { and, desc, eq, gt, ne } from 'drizzle-orm';
 import { sessions, users, type Role } from '$lib/server/db/schema';
@@ -20,29 +25,39 @@ export const ABSOLUTE_LIFETIME_MS = 12 * 60 * 60 * 1000;
 
 const secure = (env.ORIGIN ?? '').startsWith('https:');
 
-const adapter = new DrizzleMySQLAdapter(db, sessions, users);
+const createLucia = (db: Db) =>
+	new Lucia(new DrizzleMySQLAdapter(db, sessions, users), {
+		sessionExpiresIn: IDLE_TIMEOUT,
+		sessionCookie: {
+			name: secure ? '__Host-gc_session' : 'gc_session',
+			expires: false,
+			attributes: { secure, sameSite: 'lax', path: '/' }
+		},
+		getUserAttributes: (a) => ({ email: a.email, name: a.name, role: a.role, status: a.status, twoStep: a.totpEnabledAt !== null }),
+		getSessionAttributes: (a) => ({ createdAt: a.createdAt, secondFactorAt: a.secondFactorAt ?? null })
+	});
 
-export const lucia = new Lucia(adapter, {
-	sessionExpiresIn: IDLE_TIMEOUT,
-	sessionCookie: {
-		name: secure ? '__Host-gc_session' : 'gc_session',
-		expires: false,
-		attributes: { secure, sameSite: 'lax', path: '/' }
-	},
-	getUserAttributes: (a) => ({ email: a.email, name: a.name, role: a.role, status: a.status, twoStep: a.totpEnabledAt !== null }),
-	getSessionAttributes: (a) => ({ createdAt: a.createdAt, secondFactorAt: a.secondFactorAt ?? null })
-});
+let opened: { db: Db; lucia: ReturnType<typeof createLucia> } | undefined;
+
+/** The app's database and lucia on it, made on first use. */
+async function app() {
+	if (!opened) {
+		const { db } = await import('$lib/server/db');
+		opened = { db, lucia: createLucia(db) };
+	}
+	return opened;
+}
 
 declare module 'lucia' {
 	interface Register {
-		Lucia: typeof lucia;
+		Lucia: ReturnType<typeof createLucia>;
 		UserId: number;
 		DatabaseUserAttributes: { email: string; name: string; role: Role; status: 'active' | 'disabled'; totpEnabledAt: Date | null };
 		DatabaseSessionAttributes: { createdAt: Date; secondFactorAt: Date | null };
 	}
 }
 
-export const SESSION_COOKIE = lucia.sessionCookieName;
+export const SESSION_COOKIE = secure ? '__Host-gc_session' : 'gc_session';
 
 /** What the database stores of a cookie's session id (and lucia's id of the session). */
 export const hashSessionId = (cookieId: string) => createHash('sha256').update(cookieId).digest('hex');
@@ -52,8 +67,8 @@ export const secondsToAbsoluteEnd = (createdAt: Date, now = Date.now()) =>
 	Math.max(0, Math.floor((createdAt.getTime() + ABSOLUTE_LIFETIME_MS - now) / 1000));
 
 /** Sets the cookie with the plain id, living until the session's absolute end. */
-function setSessionCookie(cookies: Cookies, cookieId: string, createdAt: Date) {
-	const cookie = lucia.createSessionCookie(cookieId);
+async function setSessionCookie(cookies: Cookies, cookieId: string, createdAt: Date) {
+	const cookie = (await app()).lucia.createSessionCookie(cookieId);
 	cookies.set(cookie.name, cookie.value, { ...cookie.attributes, path: '/', expires: undefined, maxAge: secondsToAbsoluteEnd(createdAt) });
 }
 
@@ -65,6 +80,7 @@ function setSessionCookie(cookies: Cookies, cookieId: string, createdAt: Date) {
 export async function startSession(userId: number, cookies: Cookies, userAgent?: string | null, secondFactorAt: Date | null = null) {
 	const cookieId = generateIdFromEntropySize(25);
 	const createdAt = new Date();
+	const { lucia } = await app();
 	const session = await lucia.createSession(
 		userId,
 		{
@@ -74,7 +90,7 @@ export async function startSession(userId: number, cookies: Cookies, userAgent?:
 		} as unknown as { createdAt: Date; secondFactorAt: Date | null },
 		{ sessionId: hashSessionId(cookieId) }
 	);
-	setSessionCookie(cookies, cookieId, createdAt);
+	await setSessionCookie(cookies, cookieId, createdAt);
 	return session;
 }
 
@@ -85,18 +101,19 @@ export async function startSession(userId: number, cookies: Cookies, userAgent?:
 export async function resolveSession(cookies: Cookies) {
 	const cookieId = cookies.get(SESSION_COOKIE);
 	if (!cookieId) return null;
+	const { lucia } = await app();
 	const { session, user } = await lucia.validateSession(hashSessionId(cookieId));
 	if (!session || !user) {
-		clearCookie(cookies);
+		await clearCookie(cookies);
 		return null;
 	}
 	const created = new Date(session.createdAt).getTime();
 	if (user.status !== 'active' || Date.now() - created > ABSOLUTE_LIFETIME_MS) {
 		await lucia.invalidateSession(session.id);
-		clearCookie(cookies);
+		await clearCookie(cookies);
 		return null;
 	}
-	if (session.fresh) setSessionCookie(cookies, cookieId, new Date(session.createdAt));
+	if (session.fresh) await setSessionCookie(cookies, cookieId, new Date(session.createdAt));
 	return { session, user };
 }
 
@@ -106,18 +123,19 @@ export async function resolveSession(cookies: Cookies) {
  */
 export async function completeSecondFactor(session: Session, userId: number, cookies: Cookies, userAgent?: string | null) {
 	const next = await startSession(userId, cookies, userAgent, new Date());
-	await lucia.invalidateSession(session.id);
+	await (await app()).lucia.invalidateSession(session.id);
 	return next;
 }
 
 /** Ends one session on the server and clears its cookie. */
 export async function endSession(session: Session, cookies: Cookies) {
-	await lucia.invalidateSession(session.id);
-	clearCookie(cookies);
+	await (await app()).lucia.invalidateSession(session.id);
+	await clearCookie(cookies);
 }
 
 /** Ends every session of a user except one (after a password change in that session). */
 export async function endOtherSessions(userId: number, keepSessionId: string) {
+	const { db } = await app();
 	await db.delete(sessions).where(and(eq(sessions.userId, userId), ne(sessions.id, keepSessionId)));
 }
 
@@ -141,6 +159,7 @@ export const sessionHandle = (storedId: string) => storedId.slice(0, 24);
 
 /** The user's live sessions, newest first. */
 export async function listSessions(userId: number, currentId: string | null): Promise<SessionSummary[]> {
+	const { db } = await app();
 	const rows = await db.select().from(sessions).where(and(eq(sessions.userId, userId), gt(sessions.expiresAt, new Date()))).orderBy(desc(sessions.createdAt));
 	return rows
 		.filter((r) => Date.now() - r.createdAt.getTime() <= ABSOLUTE_LIFETIME_MS)
@@ -159,6 +178,7 @@ export async function listSessions(userId: number, currentId: string | null): Pr
  * Returns false when there is no such session of this user.
  */
 export async function endSessionByHandle(userId: number, handle: string, currentId: string | null): Promise<boolean> {
+	const { db } = await app();
 	const rows = await db.select({ id: sessions.id }).from(sessions).where(eq(sessions.userId, userId));
 	const target = rows.find((r) => r.id !== currentId && sessionHandle(r.id) === handle);
 	if (!target) return false;
@@ -196,7 +216,22 @@ export function describeUserAgent(ua: string | null | undefined): string {
 	return os ? `${browser} on ${os}` : browser;
 }
 
-function clearCookie(cookies: Cookies) {
-	const blank = lucia.createBlankSessionCookie();
+async function clearCookie(cookies: Cookies) {
+	const blank = (await app()).lucia.createBlankSessionCookie();
 	cookies.set(blank.name, blank.value, { ...blank.attributes, path: '/' });
+}
+
+/** Ends every session of a user, inside the caller's transaction (deactivation, a password set from a link). */
+export async function endAllSessionsInTx(tx: Tx, userId: number) {
+	await tx.delete(sessions).where(eq(sessions.userId, userId));
+}
+
+/** Marks one session as having passed the second factor, inside the caller's transaction (two-step set up in it). */
+export async function markSecondFactorInTx(tx: Tx, sessionId: string, at: Date) {
+	await tx.update(sessions).set({ secondFactorAt: at }).where(eq(sessions.id, sessionId));
+}
+
+/** Clears the second-factor mark of every session of a user, inside the caller's transaction (two-step turned off). */
+export async function clearSecondFactorInTx(tx: Tx, userId: number) {
+	await tx.update(sessions).set({ secondFactorAt: null }).where(eq(sessions.userId, userId));
 }

@@ -15,11 +15,10 @@
 import { asc, eq, isNotNull } from 'drizzle-orm';
 import { z } from 'zod';
 import type { DbOrTx } from '$lib/server/db';
-import { inTransaction } from '$lib/server/db/transaction';
 import { materials } from '$lib/server/db/schema';
 import { DomainError } from '$lib/server/errors';
 import { recordAudit } from '$lib/server/audit';
-import { bumpStockVersion } from '$lib/server/stock/version';
+import { changeStock } from '$lib/server/stock/version';
 import { text } from '$lib/input';
 import {
 	dispersionProblem,
@@ -184,7 +183,8 @@ export async function createLabMaterial(db: DbOrTx, body: unknown, actor: { id: 
 			? { code: input.code, name: input.name, formula: 'sellmeier', b: input.b, c: input.c, minNm: input.minNm, maxNm: input.maxNm, source: input.source }
 			: { code: input.code, name: input.name, formula: 'cauchy', terms: input.terms, minNm: input.minNm, maxNm: input.maxNm, source: input.source };
 	const abbe = abbeOf(spec);
-	await inTransaction(db, async (tx) => {
+	// The solver's cached element snapshots are keyed by the stock version: changeStock bumps it.
+	await changeStock(db, async (tx) => {
 		const [dup] = await tx.select({ id: materials.id }).from(materials).where(eq(materials.code, spec.code)).limit(1);
 		if (dup) throw new DomainError(409, 'duplicate-code', `There is already a material ${spec.code}.`, { code: 'This code is already in use.' });
 		const [{ id }] = await tx
@@ -203,8 +203,6 @@ export async function createLabMaterial(db: DbOrTx, body: unknown, actor: { id: 
 			})
 			.$returningId();
 		await recordAudit(tx, { actorId: actor.id, action: 'material.create', targetType: 'material', targetId: id, detail: { code: spec.code, formula: spec.formula } });
-		// The solver's cached element snapshots are keyed by the stock version.
-		await bumpStockVersion(tx);
 	});
 	await syncLabMaterials(db);
 	return {

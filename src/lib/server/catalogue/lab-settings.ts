@@ -10,11 +10,10 @@ import { escape } from 'mysql2';
 import { sql } from 'drizzle-orm';
 import { z } from 'zod';
 import type { DbOrTx, Tx } from '$lib/server/db';
-import { inTransaction } from '$lib/server/db/transaction';
 import { measurements, partSurfaces, parts, settings } from '$lib/server/db/schema';
 import { DEFAULT_WAVELENGTH_NM, GLASS_CODE_RANGE_NM } from '$lib/optics';
 import { recordAudit } from '$lib/server/audit';
-import { bumpStockVersion } from '$lib/server/stock/version';
+import { changeStock } from '$lib/server/stock/version';
 import { opticsPartOf, paraxialColumns, type MeasuredEfl } from './derived';
 import { getDefaultWavelengthNm } from './settings';
 
@@ -108,12 +107,11 @@ export async function setDefaultWavelength(db: DbOrTx, input: unknown, actor: { 
 			.values({ key: 'defaultWavelengthNm', value: to })
 			.onDuplicateKeyUpdate({ set: { value: to } });
 		const outcome = await recomputeDerived(tx, to);
-		await bumpStockVersion(tx);
 		await recordAudit(tx, { actorId: actor.id, action: 'settings.wavelength', targetType: 'settings', targetId: 'defaultWavelengthNm', detail: { from, to, parts: outcome.parts } });
 		return { ...outcome, from, to };
 	};
 	// Inside a caller's transaction (tests roll theirs back) or in one of its own.
-	return inTransaction(db, run);
+	return changeStock(db, run);
 }
 
 /** Counts for the settings page. */

@@ -27,6 +27,7 @@ import { PART_KINDS, parts } from '$lib/server/db/schema';
 import { availableSql } from '$lib/server/stock/availability';
 import { kindLabel } from '$lib/format';
 import { partsJson, type PartJson } from './part-json';
+import { activeReservationAs } from '$lib/server/stock/active-reservation';
 
 /** Sortable columns of the list (allow-list) → the column sorted on. */
 export const SORTS = {
@@ -183,7 +184,7 @@ function availablePartIds(): SQL {
 		select s.part_id from stock s
 		left join (
 			select r.part_id, sum(r.quantity) as q from reservations r
-			where r.status = 'active' and r.until > utc_timestamp()
+			where ${activeReservationAs('r')}
 			group by r.part_id
 		) rr on rr.part_id = s.part_id
 		where s.\`condition\` = 'usable'

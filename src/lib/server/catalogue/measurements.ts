@@ -7,9 +7,8 @@ import { desc, eq } from 'drizzle-orm';
 import { z } from 'zod';
 import { dateInput, text } from '$lib/input';
 import type { DbOrTx } from '$lib/server/db';
-import { inTransaction } from '$lib/server/db/transaction';
 import { measurements, parts, users } from '$lib/server/db/schema';
-import { bumpStockVersion } from '$lib/server/stock/version';
+import { changeStock } from '$lib/server/stock/version';
 import { recordAudit } from '$lib/server/audit';
 import { DomainError } from '$lib/server/errors';
 import { PartNotFound, refreshDerived, type Actor } from './parts';
@@ -32,7 +31,7 @@ export type MeasurementInput = z.infer<typeof measurementInputSchema>;
 /** Records a measurement by `actor`; returns it. Throws ZodError, 404, or 409 when the part is archived. */
 export async function recordMeasurement(db: DbOrTx, partId: number, input: unknown, actor: Actor) {
 	const data = measurementInputSchema.parse(input);
-	return inTransaction(db, async (tx) => {
+	return changeStock(db, async (tx) => {
 		const [part] = await tx.select({ id: parts.id, eflMm: parts.paraxialEflMm, archivedAt: parts.archivedAt }).from(parts).where(eq(parts.id, partId)).for('update');
 		if (!part) throw new PartNotFound(partId);
 		if (part.eflMm !== null && Math.sign(part.eflMm) !== Math.sign(data.eflMm)) {
@@ -53,7 +52,6 @@ export async function recordMeasurement(db: DbOrTx, partId: number, input: unkno
 			})
 			.$returningId();
 		await refreshDerived(tx, partId);
-		await bumpStockVersion(tx);
 		await recordAudit(tx, { actorId: actor.id, action: 'measurement.create', targetType: 'part', targetId: partId, detail: { measurementId: id } });
 		const [row] = await tx.select().from(measurements).where(eq(measurements.id, id));
 		return toMeasurementJson({ ...row, measuredByName: null });

@@ -15,12 +15,11 @@
  */
 import { and, desc, eq } from 'drizzle-orm';
 import type { DbOrTx } from '$lib/server/db';
-import { inTransaction } from '$lib/server/db/transaction';
 import { measurements, movements, partSurfaces, parts, reservations, stock, suppliers, type Part } from '$lib/server/db/schema';
 import type { Role } from '$lib/server/db/schema';
 import { DomainError, NotFound } from '$lib/server/errors';
 import { recordAudit } from '$lib/server/audit';
-import { bumpStockVersion } from '$lib/server/stock/version';
+import { changeStock } from '$lib/server/stock/version';
 import { opticsPartOf, paraxialColumns, type MeasuredEfl } from './derived';
 import { partInputSchema, partPatchSchema, PURCHASING_FIELDS, toSurfaceSpecs, type PartInput, type PartPatch } from './part-input';
 import { partsJson, type PartJson } from './part-json';
@@ -164,13 +163,12 @@ export async function refreshDerived(tx: DbOrTx, partId: number, defaultWaveleng
 export async function createPart(db: DbOrTx, input: unknown, actor: Actor): Promise<{ id: number }> {
 	await syncLabMaterials(db);
 	const data = partInputSchema.parse(input);
-	return inTransaction(db, async (tx) => {
+	return changeStock(db, async (tx) => {
 		const cols = columnsOf(data, await supplierIdFor(tx, data.supplier, actor));
 		await assertUnique(tx, cols, null);
 		const [{ id }] = await tx.insert(parts).values(cols).$returningId();
 		await writeSurfaces(tx, id, data);
 		await refreshDerived(tx, id);
-		await bumpStockVersion(tx);
 		await recordAudit(tx, { actorId: actor.id, action: 'part.create', targetType: 'part', targetId: id, detail: { sku: data.sku } });
 		return { id };
 	});
@@ -231,7 +229,7 @@ export async function updatePart(db: DbOrTx, id: number, patch: unknown, actor: 
 	await syncLabMaterials(db);
 	const data = partPatchSchema.parse(patch);
 	if (actor.role) assertPatchAllowed(actor.role, data);
-	return inTransaction(db, async (tx) => {
+	return changeStock(db, async (tx) => {
 		const record = await getPart(tx, id, { forUpdate: true });
 		if (!record) throw new PartNotFound(id);
 		const merged = partInputSchema.parse({ ...toInput(record), ...data });
@@ -240,7 +238,6 @@ export async function updatePart(db: DbOrTx, id: number, patch: unknown, actor: 
 		await tx.update(parts).set(cols).where(eq(parts.id, id));
 		if (data.surfaces) await writeSurfaces(tx, id, merged);
 		await refreshDerived(tx, id);
-		await bumpStockVersion(tx);
 		await recordAudit(tx, { actorId: actor.id, action: 'part.update', targetType: 'part', targetId: id, detail: { fields: Object.keys(data) } });
 		return { id };
 	});
@@ -252,7 +249,7 @@ export async function updatePart(db: DbOrTx, id: number, patch: unknown, actor: 
  * one that never had any is deleted outright.
  */
 export async function archivePart(db: DbOrTx, id: number, actor: Actor): Promise<{ id: number; outcome: 'archived' | 'deleted' }> {
-	return inTransaction(db, async (tx) => {
+	return changeStock(db, async (tx) => {
 		const [part] = await tx.select().from(parts).where(eq(parts.id, id)).for('update');
 		if (!part) throw new PartNotFound(id);
 		const has = async (table: typeof stock | typeof movements | typeof reservations | typeof measurements) =>
@@ -273,7 +270,6 @@ export async function archivePart(db: DbOrTx, id: number, actor: Actor): Promise
 				await tx.update(parts).set({ archivedAt: new Date() }).where(eq(parts.id, id));
 			}
 		}
-		await bumpStockVersion(tx);
 		await recordAudit(tx, { actorId: actor.id, action: `part.${outcome === 'deleted' ? 'delete' : 'archive'}`, targetType: 'part', targetId: id, detail: { sku: part.sku } });
 		return { id, outcome };
 	});
@@ -281,11 +277,10 @@ export async function archivePart(db: DbOrTx, id: number, actor: Actor): Promise
 
 /** Brings an archived part back into the catalogue. */
 export async function restorePart(db: DbOrTx, id: number, actor: Actor) {
-	return inTransaction(db, async (tx) => {
+	return changeStock(db, async (tx) => {
 		const [part] = await tx.select({ id: parts.id }).from(parts).where(eq(parts.id, id)).for('update');
 		if (!part) throw new PartNotFound(id);
 		await tx.update(parts).set({ archivedAt: null }).where(eq(parts.id, id));
-		await bumpStockVersion(tx);
 		await recordAudit(tx, { actorId: actor.id, action: 'part.restore', targetType: 'part', targetId: id });
 		return { id };
 	});

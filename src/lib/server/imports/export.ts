@@ -9,8 +9,7 @@ import { z } from 'zod';
 import { and, asc, desc, eq, gt, max, sql } from 'drizzle-orm';
 import type { DbOrTx } from '$lib/server/db';
 import { locations, partSurfaces, parts, stock } from '$lib/server/db/schema';
-import { listConditions, SORTS, type ListQuery } from '$lib/server/catalogue/list';
-import { partsJson, type PartJson } from '$lib/server/catalogue/parts';
+import { listConditions, partsJson, SORTS, type ListQuery, type PartJson } from '$lib/server/catalogue';
 import { csvLine, escapeFormula } from './csv';
 import { SCALAR_FIELDS, surfaceFields } from './fields';
 

@@ -11,9 +11,7 @@ import { desc, sql } from 'drizzle-orm';
 import type { Tx } from '$lib/server/db';
 import { measurements, partSurfaces, parts, suppliers } from '$lib/server/db/schema';
 import { recordAudit } from '$lib/server/audit';
-import { paraxialColumns, type MeasuredEfl, type OpticsPart } from '$lib/server/catalogue/derived';
-import { toSurfaceSpecs, type PartInput } from '$lib/server/catalogue/part-input';
-import { columnsOf } from '$lib/server/catalogue/parts';
+import { columnsOf, paraxialColumns, toSurfaceSpecs, type MeasuredEfl, type OpticsPart, type PartInput } from '$lib/server/catalogue';
 import { inList, insertRows } from './bulk-sql';
 
 /**

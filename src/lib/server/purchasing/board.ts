@@ -12,6 +12,7 @@ import { setupIndex, shortfalls, type ElementRef, type SetupRef } from './unlock
 import { onOrderByPart } from './requests';
 import { openNotices } from './flags';
 import { toMajor } from '$lib/money';
+import { activeReservation } from '$lib/server/stock/active-reservation';
 
 export const USAGE_DAYS = 90;
 
@@ -170,7 +171,7 @@ export async function heldBySetup(db: DbOrTx, setupIds: number[]): Promise<Map<n
 	const rows = await db
 		.select({ setupId: reservations.setupId, partId: reservations.partId, quantity: sql<string>`sum(${reservations.quantity})` })
 		.from(reservations)
-		.where(and(inArray(reservations.setupId, setupIds), eq(reservations.status, 'active'), gt(reservations.until, new Date())))
+		.where(and(inArray(reservations.setupId, setupIds), activeReservation))
 		.groupBy(reservations.setupId, reservations.partId);
 	for (const r of rows) {
 		if (r.setupId === null) continue;

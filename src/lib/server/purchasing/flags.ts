@@ -22,13 +22,14 @@
  * The digest never grows past DIGEST_MAX_BYTES: past that it lists the first parts and says how
  * many more there are on the reorder board (whose link it always carries).
  */
-import { and, eq, gt, inArray, isNotNull, isNull, or, sql } from 'drizzle-orm';
+import { and, eq, gt, inArray, isNotNull, isNull, or } from 'drizzle-orm';
 import type { DbOrTx } from '$lib/server/db';
 import { inTransaction } from '$lib/server/db/transaction';
 import { flagNotices, parts, reservations, suppliers, users } from '$lib/server/db/schema';
 import { totalsFor } from '$lib/server/stock/availability';
 import { availableOf, flagReason, type FlagReason } from './rules';
 import { DIGEST_RECIPIENTS } from '$lib/roles';
+import { activeReservation } from '$lib/server/stock/active-reservation';
 
 export interface FlaggedPart {
 	partId: number;
@@ -73,7 +74,7 @@ export async function flaggedParts(db: DbOrTx): Promise<FlaggedPart[]> {
 						db
 							.select({ id: reservations.partId })
 							.from(reservations)
-							.where(and(eq(reservations.status, 'active'), gt(reservations.until, sql`utc_timestamp()`)))
+							.where(activeReservation)
 					)
 				)
 			)

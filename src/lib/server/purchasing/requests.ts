@@ -5,7 +5,7 @@
  * movement, the request's received quantity and the event commit together or not at all;
  * the stock service stays the only writer of the ledger.
  */
-import { and, asc, desc, eq, gt, inArray, sql, type SQL } from 'drizzle-orm';
+import { and, asc, desc, eq, inArray, sql, type SQL } from 'drizzle-orm';
 import { z } from 'zod';
 import { text } from '$lib/input';
 import type { DbOrTx, Tx } from '$lib/server/db';
@@ -28,6 +28,7 @@ import { totalsOf } from '$lib/server/stock/availability';
 import { EDITABLE, NAMED_STEPS, RECEIVABLE, STATUS_LABELS, canStep, statusAfterReceipt } from './states';
 import { isWholeCents, toMajor, toMinor } from '$lib/money';
 import { PURCHASERS, REQUEST_VIEWERS } from '$lib/roles';
+import { activeReservation } from '$lib/server/stock/active-reservation';
 
 export interface RequestActor {
 	id: number;
@@ -194,7 +195,7 @@ async function newlyCovered(tx: Tx, partId: number, onHandBefore: number, onHand
 		.select({ r: reservations, email: users.email, name: users.name })
 		.from(reservations)
 		.innerJoin(users, eq(users.id, reservations.userId))
-		.where(and(eq(reservations.partId, partId), eq(reservations.status, 'active'), gt(reservations.until, sql`utc_timestamp()`)))
+		.where(and(eq(reservations.partId, partId), activeReservation))
 		.orderBy(asc(reservations.createdAt), asc(reservations.id));
 	const out: CoveredReservation[] = [];
 	let before = 0;

@@ -12,6 +12,7 @@ import type { CandidatePart } from './elements';
 import { bandOf } from '$lib/coating';
 import { syncLabMaterials } from '$lib/server/catalogue/lab-materials';
 import type { StockView } from './solve';
+import { activeReservation } from '$lib/server/stock/active-reservation';
 
 /** A cached view older than this is reloaded even if the version did not move (reservations expire). */
 const MAX_AGE_MS = 60_000;
@@ -20,7 +21,7 @@ let cached: { version: number; loadedAt: number; view: StockView } | null = null
 let loading: Promise<StockView> | null = null;
 
 /** Loads every non-archived part with its surfaces, latest measurement, usable stock and availability. */
-export async function loadCandidateParts(db: DbOrTx, now = new Date()): Promise<CandidatePart[]> {
+export async function loadCandidateParts(db: DbOrTx): Promise<CandidatePart[]> {
 	const rows = await db.select().from(parts).where(isNull(parts.archivedAt));
 	if (!rows.length) return [];
 	const surfaceRows = await db.select().from(partSurfaces).orderBy(partSurfaces.partId, partSurfaces.position);
@@ -36,7 +37,7 @@ export async function loadCandidateParts(db: DbOrTx, now = new Date()): Promise<
 	const reservedRows = await db
 		.select({ partId: reservations.partId, qty: sql<string>`sum(${reservations.quantity})` })
 		.from(reservations)
-		.where(and(eq(reservations.status, 'active'), gt(reservations.until, now)))
+		.where(activeReservation)
 		.groupBy(reservations.partId);
 
 	const surfaces = new Map<number, typeof surfaceRows>();

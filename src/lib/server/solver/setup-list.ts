@@ -4,9 +4,10 @@
  * database, so the rays and figures of each solution are not loaded) and whether the setup's
  * parts are reserved now (one grouped query over the listed setups).
  */
-import { and, desc, eq, gt, inArray, like, sql } from 'drizzle-orm';
+import { and, desc, eq, inArray, like, sql } from 'drizzle-orm';
 import type { DbOrTx } from '$lib/server/db';
 import { projects, reservations, setups, users } from '$lib/server/db/schema';
+import { activeReservation } from '$lib/server/stock/active-reservation';
 
 /** One saved setup as the list shows it. */
 export interface SavedSetupRow {
@@ -106,7 +107,7 @@ export async function listSavedSetups(db: DbOrTx, query: SetupListQuery): Promis
 					until: sql<Date>`min(${reservations.until})`.mapWith(reservations.until)
 				})
 				.from(reservations)
-				.where(and(inArray(reservations.setupId, ids), eq(reservations.status, 'active'), gt(reservations.until, sql`utc_timestamp()`)))
+				.where(and(inArray(reservations.setupId, ids), activeReservation))
 				.groupBy(reservations.setupId)
 		: [];
 	const heldBy = new Map(held.map((h) => [h.setupId, h]));

@@ -20,6 +20,7 @@ import { buildElementSnapshot } from './elements';
 import { evaluatePlacement } from './evaluate';
 import { withCoatingWarnings } from './solve';
 import { candidatePartsById } from './load-stock';
+import { activeReservation } from '$lib/server/stock/active-reservation';
 
 export const choiceSchema = z
 	.object({
@@ -232,7 +233,7 @@ export async function getSetup(db: DbOrTx, id: number): Promise<SetupView> {
 	const res = await db
 		.select({ id: reservations.id })
 		.from(reservations)
-		.where(and(eq(reservations.setupId, id), eq(reservations.status, 'active')))
+		.where(and(eq(reservations.setupId, id), activeReservation))
 		.orderBy(desc(reservations.id));
 	const rows = (await Promise.all(res.map((r) => reservationRows(db, { id: r.id })))).flat();
 	return {
@@ -246,7 +247,7 @@ export async function getSetup(db: DbOrTx, id: number): Promise<SetupView> {
 		query: row.s.query as ParsedSolveRequest,
 		solution: row.s.solution as AnySolution,
 		createdAt: row.s.createdAt.toISOString(),
-		reservations: rows.filter((r) => r.state === 'active')
+		reservations: rows
 	};
 }
 

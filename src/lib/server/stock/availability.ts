@@ -5,9 +5,10 @@
  * never shown below 0 (it can only dip there when stock was scrapped or issued against
  * a reservation's own units, see operations.ts).
  */
-import { and, eq, gt, inArray, sql } from 'drizzle-orm';
+import { and, inArray, sql } from 'drizzle-orm';
 import type { DbOrTx } from '$lib/server/db';
 import { reservations, stock } from '$lib/server/db/schema';
+import { activeReservation, activeReservationAs } from './active-reservation';
 
 export interface Totals {
 	onHand: number;
@@ -39,7 +40,7 @@ export async function totalsFor(db: DbOrTx, partIds: readonly number[]): Promise
 	const res = await db
 		.select({ partId: reservations.partId, q: sql<string>`sum(${reservations.quantity})` })
 		.from(reservations)
-		.where(and(inArray(reservations.partId, [...partIds]), eq(reservations.status, 'active'), gt(reservations.until, sql`utc_timestamp()`)))
+		.where(and(inArray(reservations.partId, [...partIds]), activeReservation))
 		.groupBy(reservations.partId);
 	for (const r of res) out.get(r.partId)!.reserved = Number(r.q);
 	for (const t of out.values()) t.available = Math.max(0, t.onHand - t.reserved);
@@ -56,6 +57,6 @@ export function availableSql(partIdColumn: unknown) {
 	return sql<number>`(
 		(select coalesce(sum(s.quantity), 0) from stock s where s.part_id = ${partIdColumn} and s.\`condition\` = 'usable')
 		- (select coalesce(sum(r.quantity), 0) from reservations r
-			where r.part_id = ${partIdColumn} and r.status = 'active' and r.until > utc_timestamp())
+			where r.part_id = ${partIdColumn} and ${activeReservationAs('r')})
 	)`;
 }

@@ -15,11 +15,10 @@
  * condition changes and moves record what physically happened and are never refused for
  * reservations; available is then shown as 0 until someone releases a reservation.
  */
-import { and, asc, desc, eq, gt, inArray, sql } from 'drizzle-orm';
+import { and, asc, desc, eq, inArray, sql } from 'drizzle-orm';
 import { z } from 'zod';
 import { text } from '$lib/input';
 import type { DbOrTx, Tx } from '$lib/server/db';
-import { inTransaction } from '$lib/server/db/transaction';
 import {
 	CONDITIONS,
 	locations,
@@ -33,7 +32,8 @@ import {
 	type MovementKind
 } from '$lib/server/db/schema';
 import { Conflict, DomainError } from '$lib/server/errors';
-import { bumpStockVersion } from './version';
+import { changeStock } from './version';
+import { activeReservation } from './active-reservation';
 
 export class InsufficientStock extends Conflict {
 	constructor(message: string) {
@@ -176,7 +176,6 @@ async function record(
 			at: new Date()
 		})
 		.$returningId();
-	await bumpStockVersion(tx);
 	const [row] = await movementRows(tx, { ids: [movementId] });
 	return row;
 }
@@ -190,7 +189,7 @@ async function checkProject(tx: Tx, projectId: number | null | undefined) {
 /** Receives units into a location (new stock from a supplier, or found units). */
 export async function receive(db: DbOrTx, input: unknown, actor: StockActor) {
 	const d = receiveSchema.parse(input);
-	return inTransaction(db, async (tx) => {
+	return changeStock(db, async (tx) => {
 		const part = await lockPart(tx, d.partId);
 		if (part.archivedAt) throw new DomainError(409, 'part-archived', `${part.sku} is archived: restore it before receiving stock.`);
 		await checkLocation(tx, d.locationId, 'locationId', true);
@@ -202,7 +201,7 @@ export async function receive(db: DbOrTx, input: unknown, actor: StockActor) {
 /** Moves units between locations, keeping their condition. */
 export async function move(db: DbOrTx, input: unknown, actor: StockActor) {
 	const d = moveSchema.parse(input);
-	return inTransaction(db, async (tx) => {
+	return changeStock(db, async (tx) => {
 		const part = await lockPart(tx, d.partId);
 		const from = await checkLocation(tx, d.fromLocationId, 'fromLocationId', false);
 		await checkLocation(tx, d.toLocationId, 'toLocationId', true);
@@ -229,7 +228,7 @@ async function usableAndReservations(tx: Tx, partId: number) {
 	const active = await tx
 		.select()
 		.from(reservations)
-		.where(and(eq(reservations.partId, partId), eq(reservations.status, 'active'), gt(reservations.until, sql`utc_timestamp()`)))
+		.where(and(eq(reservations.partId, partId), activeReservation))
 		.orderBy(asc(reservations.createdAt), asc(reservations.id));
 	return { usable: Number(s.q), active };
 }
@@ -237,7 +236,7 @@ async function usableAndReservations(tx: Tx, partId: number) {
 /** Issues usable units to a person or project; never takes units others reserved (see the module note). */
 export async function issue(db: DbOrTx, input: unknown, actor: StockActor) {
 	const d = issueSchema.parse(input);
-	return inTransaction(db, async (tx) => {
+	return changeStock(db, async (tx) => {
 		const part = await lockPart(tx, d.partId);
 		const loc = await checkLocation(tx, d.locationId, 'locationId', false);
 		await checkProject(tx, d.projectId);
@@ -285,7 +284,7 @@ export async function issue(db: DbOrTx, input: unknown, actor: StockActor) {
 /** Returns issued units into a location (usable, or quarantine/damaged when they came back hurt). */
 export async function returnStock(db: DbOrTx, input: unknown, actor: StockActor) {
 	const d = returnSchema.parse(input);
-	return inTransaction(db, async (tx) => {
+	return changeStock(db, async (tx) => {
 		await lockPart(tx, d.partId);
 		await checkLocation(tx, d.locationId, 'locationId', true);
 		await checkProject(tx, d.projectId);
@@ -322,7 +321,7 @@ export async function returnStock(db: DbOrTx, input: unknown, actor: StockActor)
 /** Corrects a count (stock-taking): + found units, − missing units, always with a reason. */
 export async function adjust(db: DbOrTx, input: unknown, actor: StockActor) {
 	const d = adjustSchema.parse(input);
-	return inTransaction(db, async (tx) => {
+	return changeStock(db, async (tx) => {
 		const part = await lockPart(tx, d.partId);
 		const loc = await checkLocation(tx, d.locationId, 'locationId', d.delta > 0);
 		const n = Math.abs(d.delta);
@@ -344,7 +343,7 @@ export async function adjust(db: DbOrTx, input: unknown, actor: StockActor) {
 /** Scraps units (broken, scratched beyond use): they leave the stock for good. */
 export async function scrap(db: DbOrTx, input: unknown, actor: StockActor) {
 	const d = scrapSchema.parse(input);
-	return inTransaction(db, async (tx) => {
+	return changeStock(db, async (tx) => {
 		const part = await lockPart(tx, d.partId);
 		const loc = await checkLocation(tx, d.locationId, 'locationId', false);
 		await takeOut(tx, d.partId, d.locationId, d.condition, d.quantity, { sku: part.sku, code: loc.code });
@@ -363,7 +362,7 @@ export async function scrap(db: DbOrTx, input: unknown, actor: StockActor) {
 /** Changes the condition of units in place (usable ↔ quarantine ↔ damaged). */
 export async function changeCondition(db: DbOrTx, input: unknown, actor: StockActor) {
 	const d = conditionSchema.parse(input);
-	return inTransaction(db, async (tx) => {
+	return changeStock(db, async (tx) => {
 		const part = await lockPart(tx, d.partId);
 		const loc = await checkLocation(tx, d.locationId, 'locationId', false);
 		await takeOut(tx, d.partId, d.locationId, d.from, d.quantity, { sku: part.sku, code: loc.code });

@@ -1,19 +1,20 @@
 /**
  * Reservations: units of a part held for a project until a date. Active reservations whose
- * `until` has passed stop counting (no job needed: every query compares with the clock).
+ * `until` has passed stop counting (no job needed: every query compares with the database's clock
+ * through the one rule in `active-reservation.ts`).
  * available = usable on hand − active unexpired reservations (availability.ts).
  */
-import { and, desc, eq, gt, sql } from 'drizzle-orm';
+import { and, desc, eq } from 'drizzle-orm';
 import { z } from 'zod';
 import { dateInput, text } from '$lib/input';
 import type { DbOrTx, Tx } from '$lib/server/db';
-import { inTransaction } from '$lib/server/db/transaction';
 import { parts, projects, reservations, users } from '$lib/server/db/schema';
 import type { Role } from '$lib/server/db/schema';
 import { DomainError } from '$lib/server/errors';
-import { bumpStockVersion } from './version';
+import { changeStock } from './version';
 import { totalsOf } from './availability';
 import { inSet, RESERVATION_KEEPERS } from '$lib/roles';
+import { activeReservation, isActiveNow } from './active-reservation';
 
 const MAX_DAYS = 366;
 
@@ -40,16 +41,19 @@ export const reservationInputSchema = z
 	.strict();
 export type ReservationInput = z.infer<typeof reservationInputSchema>;
 
+type ReserveInput = { partId: number; quantity: number; until: Date | string; projectId?: number | null; setupId?: number | null; note?: string | null; userId: number };
+
 /**
  * Reserves units inside the caller's transaction `tx` (the solver reserves all parts of a
  * setup in one transaction this way). Locks the part row, so concurrent reservations and
  * issues of the same part are serialised. Throws DomainError 409 'insufficient-stock' when
  * fewer units are available, 404 for an unknown part, 400 for bad input.
  */
-export async function reserve(
-	tx: Tx,
-	input: { partId: number; quantity: number; until: Date | string; projectId?: number | null; setupId?: number | null; note?: string | null; userId: number }
-) {
+export async function reserve(tx: Tx, input: ReserveInput) {
+	return changeStock(tx, (t) => reserveUnits(t, input));
+}
+
+async function reserveUnits(tx: Tx, input: ReserveInput) {
 	const { userId, ...rest } = input;
 	const d = reservationInputSchema.parse(rest);
 	const [part] = await tx.select({ id: parts.id, sku: parts.sku, archivedAt: parts.archivedAt }).from(parts).where(eq(parts.id, d.partId)).for('update');
@@ -68,14 +72,13 @@ export async function reserve(
 		.insert(reservations)
 		.values({ partId: d.partId, userId, projectId: d.projectId ?? null, setupId: d.setupId ?? null, quantity: d.quantity, until: d.until, note: d.note || null })
 		.$returningId();
-	await bumpStockVersion(tx);
 	return (await reservationRows(tx, { id }))[0];
 }
 
 /** `reserve` in a transaction of its own. */
 export async function createReservation(db: DbOrTx, input: unknown, actor: { id: number }) {
 	const body = z.object({}).passthrough().parse(input);
-	return inTransaction(db, (tx) => reserve(tx, { ...(body as ReservationInput), userId: actor.id }));
+	return changeStock(db, (tx) => reserveUnits(tx, { ...(body as ReservationInput), userId: actor.id }));
 }
 
 /**
@@ -83,7 +86,7 @@ export async function createReservation(db: DbOrTx, input: unknown, actor: { id:
  * release anyone's. Anyone else gets 404, as if it did not exist.
  */
 export async function releaseReservation(db: DbOrTx, id: number, actor: { id: number; role: Role }) {
-	return inTransaction(db, async (tx) => {
+	return changeStock(db, async (tx) => {
 		// Lock order (the one used by every stock path): the part row first, then its reservations.
 		// Locking the reservation first deadlocked against an issue of the same part.
 		const [found] = await tx.select({ partId: reservations.partId }).from(reservations).where(eq(reservations.id, id));
@@ -93,7 +96,6 @@ export async function releaseReservation(db: DbOrTx, id: number, actor: { id: nu
 		if (!r || !mayRelease) throw new DomainError(404, 'not-found', `There is no reservation ${id} of yours.`);
 		if (r.status !== 'active') throw new DomainError(409, 'not-active', `Reservation ${id} is already ${r.status}.`);
 		await tx.update(reservations).set({ status: 'released' }).where(eq(reservations.id, id));
-		await bumpStockVersion(tx);
 		return { id, status: 'released' as const };
 	});
 }
@@ -104,9 +106,9 @@ export async function reservationRows(db: DbOrTx, filter: { id?: number; partId?
 	if (filter.id) conds.push(eq(reservations.id, filter.id));
 	if (filter.partId) conds.push(eq(reservations.partId, filter.partId));
 	if (filter.userId) conds.push(eq(reservations.userId, filter.userId));
-	if (filter.activeOnly) conds.push(and(eq(reservations.status, 'active'), gt(reservations.until, sql`utc_timestamp()`)));
+	if (filter.activeOnly) conds.push(activeReservation);
 	const rows = await db
-		.select({ r: reservations, sku: parts.sku, userName: users.name, projectCode: projects.code })
+		.select({ r: reservations, activeNow: isActiveNow, sku: parts.sku, userName: users.name, projectCode: projects.code })
 		.from(reservations)
 		.innerJoin(parts, eq(parts.id, reservations.partId))
 		.innerJoin(users, eq(users.id, reservations.userId))
@@ -114,7 +116,7 @@ export async function reservationRows(db: DbOrTx, filter: { id?: number; partId?
 		.where(and(...conds))
 		.orderBy(desc(reservations.createdAt), desc(reservations.id))
 		.limit(500);
-	return rows.map(({ r, sku, userName, projectCode }) => ({
+	return rows.map(({ r, activeNow, sku, userName, projectCode }) => ({
 		id: r.id,
 		partId: r.partId,
 		sku,
@@ -126,7 +128,7 @@ export async function reservationRows(db: DbOrTx, filter: { id?: number; partId?
 		quantity: r.quantity,
 		until: r.until.toISOString(),
 		status: r.status,
-		state: r.status === 'active' && r.until.getTime() <= Date.now() ? ('expired' as const) : r.status,
+		state: r.status === 'active' && !activeNow ? ('expired' as const) : r.status,
 		note: r.note,
 		createdAt: r.createdAt.toISOString()
 	}));

@@ -1,10 +1,30 @@
 import { sql } from 'drizzle-orm';
-import type { DbOrTx } from '$lib/server/db';
+import type { DbOrTx, Tx } from '$lib/server/db';
 import { stockVersion } from '$lib/server/db/schema';
+import { inTransaction, type TransactionOptions } from '$lib/server/db/transaction';
 
 /**
- * Bumps the stock version. Call it inside the same transaction as any change to parts, surfaces,
- * measurements, stock or reservations: the solver's in-memory snapshot is keyed by this number.
+ * The one way to change what the solver sees (parts, surfaces, measurements, materials, lab
+ * settings, stock, reservations): runs `fn` through `inTransaction` (or inside the caller's open
+ * transaction) and bumps the stock version after it, in the same transaction. The solver's
+ * in-memory snapshot is keyed by that number, so a write that skipped the bump would leave stale
+ * answers; going through here, none can forget it. The version row is written last, which keeps
+ * the lock order (part, reservations, stock rows, then the stock version).
+ */
+export async function changeStock<T>(db: DbOrTx, fn: (tx: Tx) => Promise<T>, opts?: TransactionOptions): Promise<T> {
+	return inTransaction(
+		db,
+		async (tx) => {
+			const out = await fn(tx);
+			await bumpStockVersion(tx);
+			return out;
+		},
+		opts
+	);
+}
+
+/**
+ * Bumps the stock version (only through `changeStock`).
  *
  * The version is the sum of one counter per database server (row id = the server's `server_id`;
  * a single server has one row). On a Galera cluster one shared row would be written by every
@@ -12,7 +32,7 @@ import { stockVersion } from '$lib/server/db/schema';
  * (a deadlock error, and a long import could never commit while stock moves elsewhere); one row
  * per node keeps them apart, and the sum still grows with every change.
  */
-export async function bumpStockVersion(tx: DbOrTx) {
+async function bumpStockVersion(tx: DbOrTx) {
 	await tx
 		.insert(stockVersion)
 		.values({ id: sql`least(@@server_id, 2147483647)`, version: 1 })
