@@ -133,6 +133,24 @@ describe('the best 1:1 relay at 587.6 nm and a part coated for 1050–1700 nm (i
 		expect(single.rank).toBeGreaterThan(1);
 	});
 
+	it('a saved setup that uses it says so on its page and on its build sheet', async () => {
+		const body = (await (await ask()).json()) as { request: unknown; solutions: Solution[] };
+		const single = body.solutions.find((s) => s.elements.length === 1 && s.elements[0].partId === nirId)!;
+		const choice = { elements: single.elements.map((e) => ({ partId: e.partId, reversed: e.reversed })), objectDistanceMm: single.objectDistanceMm, gapsMm: single.gapsMm, backDistanceMm: single.backDistanceMm };
+		const saved = await api('POST', '/api/v1/setups', { cookie: engineer }, { name: `${tag} NIR relay`, query: body.request, choice });
+		expect(saved.status).toBe(201);
+		const { id } = (await saved.json()) as { id: number };
+		try {
+			for (const path of [`/build/${id}`, `/build/${id}/sheet`]) {
+				const html = await (await fetch(url(path), { headers: { cookie: engineer } })).text();
+				expect(html, path).toContain('data-testid="solution-warnings"');
+				expect(html, path).toContain('outside its coating band 1050–1700 nm');
+			}
+		} finally {
+			await db.delete(t.setups).where(eq(t.setups.id, id));
+		}
+	});
+
 	it('inCoatingBandOnly leaves it out and says so', async () => {
 		const body = await (await ask({ inCoatingBandOnly: true })).json();
 		expect(body.solutions.length).toBeGreaterThan(0);
