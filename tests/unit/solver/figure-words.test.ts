@@ -53,7 +53,11 @@ describe('answer figures', () => {
 		const v = byKey(vignettingLines(s));
 		expect(v['vignetting.edgeLostFraction']).toBe('12.5 %');
 		expect(v['vignetting.axialLostFraction']).toBe('0.0 %');
-		expect(vignettingLines(s).find((l) => l.key === 'vignetting.edgeLostFraction')!.label).toBe('Edge lost fraction');
+		expect(vignettingLines(s).find((l) => l.key === 'vignetting.edgeLostFraction')!.label).toBe('Share of the cone lost at the field edge');
+		// The stop in words (parts counted from 1), and a figure the solver adds later named from its field name.
+		const t = byKey(vignettingLines(base({ vignetting: { axial: false, edge: false, worstFill: 0.3, stop: { partIndex: 0, surface: 3 }, newShareLostFraction: 0.5 } })));
+		expect(t['vignetting.stop']).toBe('part 1, surface 3');
+		expect(vignettingLines(base({ vignetting: { axial: false, edge: false, worstFill: 0.3, newShareLostFraction: 0.5 } })).find((l) => l.key === 'vignetting.newShareLostFraction')!.label).toBe('New share lost fraction');
 	});
 
 	it('further groups (colour over a band) appear only when the answer has them, in the units their names give', () => {

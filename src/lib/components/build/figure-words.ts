@@ -55,15 +55,44 @@ export function fieldValue(key: string, v: unknown): string | null {
 	return null;
 }
 
+/** Labels of the figures the solver gives today (by field path); a figure added later is named from its field name. */
+const LABELS: Record<string, string> = {
+	'spot.statistic': 'Spot statistic',
+	'vignetting.axialLostFraction': 'Share of the cone lost on axis',
+	'vignetting.edgeLostFraction': 'Share of the cone lost at the field edge',
+	'vignetting.edgeBlocked': 'Field edge blocked',
+	'vignetting.tracedNA': 'Object-side NA traced',
+	'vignetting.stop': 'Aperture stop',
+	'colour.bandNm': 'Band (short, centre, long)',
+	'colour.axialColourMm': 'Axial colour (focus, long end − short end)',
+	'colour.axialRmsMm': 'RMS spot radius on axis over the band',
+	'colour.edgeRmsMm': 'RMS spot radius at the field edge over the band',
+	'colour.airyRadiusMm': 'Airy radius at the centre wavelength',
+	'colour.ratioToAiry': 'Larger band RMS radius over the Airy radius'
+};
+/** Values that read better in words than as they are stored. */
+const WORDS: Record<string, (v: unknown) => string | null> = {
+	'spot.statistic': (v) => (v === 'rms-radius-about-centroid' ? 'RMS radius about the centroid, over a 2-D grid of rays' : null),
+	'vignetting.tracedNA': (v) => (typeof v === 'number' ? num(v, 4) : null),
+	'vignetting.stop': (v) => {
+		const stop = v as { partIndex?: unknown; surface?: unknown } | null;
+		return stop && typeof stop.partIndex === 'number' && typeof stop.surface === 'number' ? `part ${stop.partIndex + 1}, surface ${stop.surface}` : 'none found';
+	}
+};
+
 /** Lines for every figure of `group` except `known` ones (nested objects one level down, labelled "outer: inner"). */
 export function extraLines(prefix: string, group: unknown, known: ReadonlySet<string> = new Set()): FigureLine[] {
 	if (group === null || typeof group !== 'object' || Array.isArray(group)) return [];
 	const out: FigureLine[] = [];
 	for (const [k, v] of Object.entries(group as Record<string, unknown>)) {
 		if (known.has(k)) continue;
-		const value = fieldValue(k, v);
+		const path = `${prefix}.${k}`;
+		// A note that says nothing is not a figure.
+		if (k === 'note' && (v === null || v === '')) continue;
+		const worded = WORDS[path]?.(v) ?? null;
+		const value = worded ?? fieldValue(k, v);
 		if (value !== null) {
-			out.push({ key: `${prefix}.${k}`, label: fieldLabel(k), value });
+			out.push({ key: path, label: LABELS[path] ?? fieldLabel(k), value });
 			continue;
 		}
 		if (v !== null && typeof v === 'object' && !Array.isArray(v)) {
