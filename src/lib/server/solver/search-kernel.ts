@@ -444,8 +444,6 @@ function shardContext(input: ShardInput, top: TopK): ShardContext {
 	};
 }
 
-/** Scratch of the prefilter: a pair's system coefficients A₀, A₁, C₀, C₁, D₀, D₁ (linear in the gap). */
-const coef = new Float64Array(6);
 
 /**
  * The track nearest to `trackMm`, within ± tol, at which a pair's gap quadratic (coefficients C₁,
@@ -508,11 +506,13 @@ function anyPhysicalPair(ctx: ShardContext, i: number, j: number, k: number): bo
 
 /** Every ordered pair with element i first. */
 function pairRow(ctx: ShardContext, i: number): void {
-	const { partIndex, partUnits, candidates, p, mu } = ctx;
+	const { packed, seidel, partIndex, untraceable, partUnits, candidates, p, top, mu, im, minS, minG, airyPair, u0 } = ctx;
 	const soa = ctx.soa as Soa;
 	const n = candidates.length;
+	const m = p.magnification;
 	const pi = partIndex[i];
 	const tol = p.trackToleranceMm;
+	const ui = untraceable[i] === 1;
 	const sa = soa.a,
 		sb = soa.b,
 		sc = soa.c,
@@ -561,50 +561,33 @@ function pairRow(ctx: ShardContext, i: number): void {
 			} else if (disc > 1e-6 * scale) {
 				const sq = Math.sqrt(disc);
 				const qq = -0.5 * (qb + (qb >= 0 ? sq : -sq));
-				coef[0] = A0;
-				coef[1] = A1;
-				coef[2] = C0;
-				coef[3] = C1;
-				coef[4] = D0;
-				coef[5] = D1;
-				if (!rootsMayBeKept(ctx, i, j, qq * rc1 * src[j], qc / qq)) continue;
+				// Roots g₀ = qq/C₁ = qq·(1/c₁)(1/c₂) and g₁ = qc/qq. A root that may be
+				// physical is screened right here with its approximate (s, g): the full kernel
+				// and the physical check run only when the top-K would keep it.
+				let need = false;
+				for (let r = 0; r < 2 && !need; r++) {
+					const g = r === 0 ? qq * rc1 * src[j] : qc / qq;
+					if (!(g >= minG)) continue;
+					const kC = C0 + g * C1,
+						kA = A0 + g * A1,
+						kD = D0 + g * D1;
+					const size = Math.abs(kA) + Math.abs(kD) + Math.abs(m) + Math.abs(im);
+					if (!(Math.abs(kC) > 1e-9 * size)) {
+						need = true; // nearly afocal: the kernel handles it
+						break;
+					}
+					const lim = kC * kC * minS;
+					if (!((im - kD) * kC >= lim && (m - kA) * kC >= lim)) continue;
+					// Lower bound of the screen score (aperture penalties only raise it).
+					const bound = sphericalRms(packed, seidel, i, j, (im - kD) / kC, g, u0) / airyPair;
+					need = top.admits((ui || untraceable[j] === 1 ? UNTRACEABLE_OFFSET + bound : bound) * (1 - 1e-9));
+				}
+				if (!need) continue;
 			}
 		}
 		offerPair(ctx, i, j, track);
 	}
 	counters[0] += evaluated;
-}
-
-/**
- * The prefilter's screen of a pair's two real gap roots g₀ = qq/C₁ = qq·(1/c₁)(1/c₂) and
- * g₁ = qc/qq (coefficients in `coef`): a root that may be physical is screened right here
- * with its approximate (s, g); true when the top-K would keep one, or one is nearly afocal
- * (the kernel handles it), so that the full kernel and the physical check run.
- */
-function rootsMayBeKept(ctx: ShardContext, i: number, j: number, g0: number, g1: number): boolean {
-	const { minG, minS, im, u0, airyPair, untraceable } = ctx;
-	const m = ctx.p.magnification;
-	const A0 = coef[0],
-		A1 = coef[1],
-		C0 = coef[2],
-		C1 = coef[3],
-		D0 = coef[4],
-		D1 = coef[5];
-	for (let r = 0; r < 2; r++) {
-		const g = r === 0 ? g0 : g1;
-		if (!(g >= minG)) continue;
-		const kC = C0 + g * C1,
-			kA = A0 + g * A1,
-			kD = D0 + g * D1;
-		const size = Math.abs(kA) + Math.abs(kD) + Math.abs(m) + Math.abs(im);
-		if (!(Math.abs(kC) > 1e-9 * size)) return true; // nearly afocal: the kernel handles it
-		const lim = kC * kC * minS;
-		if (!((im - kD) * kC >= lim && (m - kA) * kC >= lim)) continue;
-		// Lower bound of the screen score (aperture penalties only raise it).
-		const bound = sphericalRms(ctx.packed, ctx.seidel, i, j, (im - kD) / kC, g, u0) / airyPair;
-		if (ctx.top.admits((untraceable[i] === 1 || untraceable[j] === 1 ? UNTRACEABLE_OFFSET + bound : bound) * (1 - 1e-9))) return true;
-	}
-	return false;
 }
 
 /**
