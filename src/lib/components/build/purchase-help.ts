@@ -2,9 +2,8 @@
  * The /build page's words around "What purchase would help?": why it is offered (no answer from
  * stock good enough) and the note a purchase request carries. No DOM or framework imports.
  */
-import { NEAR_DIFFRACTION_RATIO } from '$lib/components/PurchaseSuggestion.svelte';
 import { GOOD_EFFICIENCY, percentText } from './beam-words';
-import { edgeBlocked } from '$lib/solver/ranking';
+import { NEAR_DIFFRACTION_RATIO, edgeBlocked } from '$lib/solver/ranking';
 import type { AnySolveResponse, Solution } from '$lib/solver/types';
 
 const fmt = (x: number | null | undefined, d = 2) => (x === null || x === undefined || !Number.isFinite(x) ? '–' : x.toFixed(d));
