@@ -400,13 +400,7 @@ function toSoa(packed: Float64Array): Soa {
  * What every step of one shard's search reads, built once per shard (`shardContext`): the
  * snapshot's arrays, the question, the top-K and the matrices as separate arrays.
  */
-interface ShardContext {
-	packed: Float64Array;
-	seidel: Float64Array;
-	partIndex: Int32Array;
-	untraceable: Uint8Array;
-	partUnits: Int32Array;
-	candidates: Int32Array;
+interface ShardContext extends Pick<ShardInput, 'packed' | 'seidel' | 'partIndex' | 'untraceable' | 'partUnits' | 'candidates'> {
 	p: SearchParams;
 	top: TopK;
 	/** The matrices as separate arrays; null when the question asks for single parts only. */
