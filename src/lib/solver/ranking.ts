@@ -19,6 +19,12 @@ export const VIGNETTING_TOLERANCE = 0.02;
  * passes (relative illumination below 50 %; a rule of this product, common practice, no source).
  */
 export const EDGE_BLOCKED_RATIO = 0.5;
+/**
+ * A spot counts as near the diffraction limit when its RMS radius is at most this many Airy
+ * radii (max of axis and field edge). 2 is our own line for "good enough to image", not a
+ * standard (common practice, no source: the Maréchal-type criteria are much stricter).
+ */
+export const NEAR_DIFFRACTION_RATIO = 2;
 
 /** Which figures rank the answers: at the working wavelength, or over the colour band. */
 export type RankBy = 'monochromatic' | 'band';

@@ -202,73 +202,149 @@ export function evaluatePlacement(choice: PlacementChoice, asked: EvalQuestion, 
 		Math.abs(full[1]) <= VERIFY_B_TOL_MM &&
 		(choice.elements.length === 1 || Math.abs(mag - choice.targetMagnification) <= VERIFY_A_TOL * Math.max(1, Math.abs(mag)));
 	const ptm = pointTransferMatrix(createMat3(), full, 0, q.trackMm);
-	const vertices = firstVertexPositionsMm(layout);
 	const lens = matrixBetween(choice.elements, choice.gapsMm);
 
 	const diameters = choice.parts.map((p) => p.diameterMm);
 	const traced = traceSystemFromLayout(layout, diameters);
 	const hEdge = q.objectHeightMm;
-	let axialRms: number | null = null,
-		edgeRms: number | null = null,
-		untracedReason: string | null = null;
-	let axialLost: number | null = null,
-		edgeLost: number | null = null,
-		tracedNA: number | null = null,
-		stop: { partIndex: number; surface: number } | null = null,
-		grid: EdgeTrace | null = null,
-		worstFill = 0;
-	const rays: RayPath[] = [];
-	if (traced.ok) {
-		const sys = traced.value;
-		const cone = axialCone(sys, q.objectNA);
-		tracedNA = cone.passedSine;
-		axialLost = cone.lostFraction;
-		stop = cone.stopSurface >= 0 ? stopOf(sys, cone.stopSurface) : null;
-		const axial = cone.passedSine > 0 ? axialSpot(sys, { na: cone.passedSine, rays: FAN_RAYS }) : null;
-		axialRms = axial ? axial.rmsAboutCentroidMm : null;
-		if (hEdge > 0) {
-			grid = edgeTrace(sys, hEdge, q.objectNA, cone.stopSurface);
-			edgeRms = grid.rmsMm;
-			edgeLost = grid.lostFraction;
-		} else {
-			edgeRms = axialRms;
-			edgeLost = 0;
-		}
-		const rep = drawing ? apertureReport(sys, hEdge, { na: q.objectNA }) : { surfaces: [] };
-		for (const sf of rep.surfaces) {
-			if (!Number.isFinite(sf.semiApertureMm)) continue;
-			for (const v of [sf.marginalMm, hEdge > 0 ? sf.chiefMm : null, hEdge > 0 ? sf.edgeRimMm : null]) {
-				if (v !== null && Number.isFinite(v)) worstFill = Math.max(worstFill, v / sf.semiApertureMm);
-			}
-		}
-		if (axialRms === null) untracedReason = 'No real ray of the axial cone reaches the target plane.';
-		for (const sgn of drawing ? [1, -1] : []) {
-			const pts = rayPolyline(sys, 0, sgn * cone.passedSine);
-			if (pts) rays.push({ kind: 'marginal', points: pts });
-		}
-		if (drawing && hEdge > 0 && grid) {
-			const sc = grid.sinChief;
-			const chief = rayPolyline(sys, hEdge, sc);
-			if (chief) rays.push({ kind: 'chief', points: chief });
-			for (const sgn of [1, -1]) {
-				const off = rimOffset(sys, hEdge, sc, sgn, q.objectNA);
-				const pts = off === null ? null : rayPolyline(sys, hEdge, sc + sgn * off);
-				if (pts) rays.push({ kind: 'edge-rim', points: pts });
-			}
-		}
-	} else {
-		untracedReason = 'A part without a prescription (black box) cannot be traced with real rays; the answer is paraxial only.';
-	}
+	const rr = traced.ok ? realRayFigures(traced.value, q, drawing) : untraceableFigures();
+	const { axialRms, edgeRms, axialLost, edgeLost, tracedNA, rays } = rr;
 	const airy = airyRadiusMm(q.wavelengthNm, workingFNumber(imageSideNA(tracedNA ?? q.objectNA, mag)));
-	const vigAxial = axialLost !== null && axialLost > VIGNETTING_TOLERANCE;
-	const vigEdge = hEdge > 0 && edgeLost !== null && edgeLost > VIGNETTING_TOLERANCE;
-	const blocked = hEdge > 0 && edgeLost !== null && axialLost !== null && 1 - edgeLost < EDGE_BLOCKED_RATIO * (1 - axialLost);
-	const colour = options.colour ?? true ? colourFigures(choice, q, layout, diameters, mag, traced.ok ? { tracedNA, grid, axialRms } : null) : undefined;
+	const colour = options.colour ?? true ? colourFigures(choice, q, layout, diameters, mag, traced.ok ? { tracedNA, grid: rr.grid, axialRms } : null) : undefined;
 	const h = hEdge > 0 ? hEdge : Math.max(1, 0.2 * Math.min(...choice.parts.map((p) => clearApertureOf(p) / 2)));
 	if (drawing) rays.push(...principalRays(layout, lens, mag * h, h, q.trackMm));
 
+	const ratio = axialRms === null ? null : Math.max(axialRms, edgeRms ?? axialRms) / airy;
+	return {
+		verified,
+		solution: {
+			elements: solutionElements(choice, firstVertexPositionsMm(layout), symmetricParts),
+			objectDistanceMm: choice.objectDistanceMm,
+			gapsMm: choice.gapsMm,
+			backDistanceMm: choice.backDistanceMm,
+			trackMm: q.trackMm,
+			magnification: mag,
+			systemMatrix: { A: full[0], B: full[1], C: full[2], D: full[3] },
+			pointTransferMatrix: Array.from(ptm),
+			afocalFamily: choice.afocalFamily,
+			doubleRoot: choice.doubleRoot,
+			spot: {
+				axialRmsMm: axialRms,
+				edgeRmsMm: edgeRms,
+				airyRadiusMm: airy,
+				ratioToAiry: ratio,
+				statistic: 'rms-radius-about-centroid',
+				untracedReason: rr.untracedReason,
+				screenEstimateMm: choice.screenEstimateMm
+			},
+			vignetting: {
+				axial: axialLost !== null && axialLost > VIGNETTING_TOLERANCE,
+				edge: hEdge > 0 && edgeLost !== null && edgeLost > VIGNETTING_TOLERANCE,
+				worstFill: rr.worstFill,
+				axialLostFraction: axialLost,
+				edgeLostFraction: edgeLost,
+				edgeBlocked: hEdge > 0 && edgeLost !== null && axialLost !== null && 1 - edgeLost < EDGE_BLOCKED_RATIO * (1 - axialLost),
+				tracedNA,
+				stop: rr.stop
+			},
+			colour,
+			rays,
+			tolerance: drawing ? toleranceRows(choice) : []
+		}
+	};
+}
+
+/** What the real rays tell of a placement (all null for a part that cannot be traced), and the rays drawn so far. */
+interface RealRayFigures {
+	axialRms: number | null;
+	edgeRms: number | null;
+	untracedReason: string | null;
+	axialLost: number | null;
+	edgeLost: number | null;
+	tracedNA: number | null;
+	stop: { partIndex: number; surface: number } | null;
+	grid: EdgeTrace | null;
+	worstFill: number;
+	rays: RayPath[];
+}
+
+/** The figures of a placement with a black box: paraxial only. */
+function untraceableFigures(): RealRayFigures {
+	return {
+		axialRms: null,
+		edgeRms: null,
+		untracedReason: 'A part without a prescription (black box) cannot be traced with real rays; the answer is paraxial only.',
+		axialLost: null,
+		edgeLost: null,
+		tracedNA: null,
+		stop: null,
+		grid: null,
+		worstFill: 0,
+		rays: []
+	};
+}
+
+/**
+ * Real rays through the traced system: the axial cone (what passes, the stop, the spot), the field
+ * edge's grid, and with `drawing` the apertures' fill and the marginal, chief and edge-rim rays.
+ */
+function realRayFigures(sys: TraceSystem, q: EvalQuestion, drawing: boolean): RealRayFigures {
+	const hEdge = q.objectHeightMm;
+	const cone = axialCone(sys, q.objectNA);
+	const axial = cone.passedSine > 0 ? axialSpot(sys, { na: cone.passedSine, rays: FAN_RAYS }) : null;
+	const axialRms = axial ? axial.rmsAboutCentroidMm : null;
+	const grid = hEdge > 0 ? edgeTrace(sys, hEdge, q.objectNA, cone.stopSurface) : null;
+	return {
+		axialRms,
+		edgeRms: grid ? grid.rmsMm : axialRms,
+		untracedReason: axialRms === null ? 'No real ray of the axial cone reaches the target plane.' : null,
+		axialLost: cone.lostFraction,
+		edgeLost: grid ? grid.lostFraction : 0,
+		tracedNA: cone.passedSine,
+		stop: cone.stopSurface >= 0 ? stopOf(sys, cone.stopSurface) : null,
+		grid,
+		worstFill: drawing ? worstApertureFill(sys, q) : 0,
+		rays: drawing ? drawnRealRays(sys, hEdge, q.objectNA, cone.passedSine, grid) : []
+	};
+}
+
+/** The largest ray height over clear semi-aperture at any surface (marginal, and chief and edge rim with a field). */
+function worstApertureFill(sys: TraceSystem, q: EvalQuestion): number {
+	const hEdge = q.objectHeightMm;
+	let worst = 0;
+	for (const sf of apertureReport(sys, hEdge, { na: q.objectNA }).surfaces) {
+		if (!Number.isFinite(sf.semiApertureMm)) continue;
+		for (const v of [sf.marginalMm, hEdge > 0 ? sf.chiefMm : null, hEdge > 0 ? sf.edgeRimMm : null]) {
+			if (v !== null && Number.isFinite(v)) worst = Math.max(worst, v / sf.semiApertureMm);
+		}
+	}
+	return worst;
+}
+
+/** The real rays drawn: both marginal rays of the cone that passes, and with a field the chief ray and both edge-rim rays. */
+function drawnRealRays(sys: TraceSystem, hEdge: number, objectNA: number, passedSine: number, grid: EdgeTrace | null): RayPath[] {
+	const rays: RayPath[] = [];
+	for (const sgn of [1, -1]) {
+		const pts = rayPolyline(sys, 0, sgn * passedSine);
+		if (pts) rays.push({ kind: 'marginal', points: pts });
+	}
+	if (hEdge > 0 && grid) {
+		const sc = grid.sinChief;
+		const chief = rayPolyline(sys, hEdge, sc);
+		if (chief) rays.push({ kind: 'chief', points: chief });
+		for (const sgn of [1, -1]) {
+			const off = rimOffset(sys, hEdge, sc, sgn, objectNA);
+			const pts = off === null ? null : rayPolyline(sys, hEdge, sc + sgn * off);
+			if (pts) rays.push({ kind: 'edge-rim', points: pts });
+		}
+	}
+	return rays;
+}
+
+/** The answer's elements in the order light meets them (a part used twice: the second copy is to buy when only one is available). */
+function solutionElements(choice: PlacementChoice, vertices: number[], symmetricParts: boolean[]): SolutionElement[] {
 	const used = new Map<number, number>();
-	const elements: SolutionElement[] = choice.elements.map((el, k) => {
+	return choice.elements.map((el, k) => {
 		const part = choice.parts[k];
 		const n = (used.get(part.partId) ?? 0) + 1;
 		used.set(part.partId, n);
@@ -297,8 +373,11 @@ export function evaluatePlacement(choice: PlacementChoice, asked: EvalQuestion, 
 			backPrincipalZMm: cp ? lastVertex + cp.backPrincipalMm : null
 		};
 	});
+}
 
-	const tolerance: ToleranceRow[] = (drawing ? choice.elements : []).map((_, k) => {
+/** Each part's focal length moved by its relative uncertainty both ways: the image shift and the magnification. */
+function toleranceRows(choice: PlacementChoice): ToleranceRow[] {
+	return choice.elements.map((_, k) => {
 		const { rel, basis } = relUncertainty(choice.parts[k]);
 		const plus = perturbed(choice, k, rel),
 			minus = perturbed(choice, k, -rel);
@@ -311,45 +390,6 @@ export function evaluatePlacement(choice: PlacementChoice, asked: EvalQuestion, 
 			magnification: [plus?.magnification ?? null, minus?.magnification ?? null]
 		};
 	});
-
-	const ratio = axialRms === null ? null : Math.max(axialRms, edgeRms ?? axialRms) / airy;
-	return {
-		verified,
-		solution: {
-			elements,
-			objectDistanceMm: choice.objectDistanceMm,
-			gapsMm: choice.gapsMm,
-			backDistanceMm: choice.backDistanceMm,
-			trackMm: q.trackMm,
-			magnification: mag,
-			systemMatrix: { A: full[0], B: full[1], C: full[2], D: full[3] },
-			pointTransferMatrix: Array.from(ptm),
-			afocalFamily: choice.afocalFamily,
-			doubleRoot: choice.doubleRoot,
-			spot: {
-				axialRmsMm: axialRms,
-				edgeRmsMm: edgeRms,
-				airyRadiusMm: airy,
-				ratioToAiry: ratio,
-				statistic: 'rms-radius-about-centroid',
-				untracedReason,
-				screenEstimateMm: choice.screenEstimateMm
-			},
-			vignetting: {
-				axial: vigAxial,
-				edge: vigEdge,
-				worstFill,
-				axialLostFraction: axialLost,
-				edgeLostFraction: edgeLost,
-				edgeBlocked: blocked,
-				tracedNA,
-				stop
-			},
-			colour,
-			rays,
-			tolerance
-		}
-	};
 }
 
 /** The ranking lives beside the types so that /build can explain it with the same code. */

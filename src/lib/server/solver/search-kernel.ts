@@ -299,7 +299,8 @@ const counters = new Float64Array(3);
 const rec = new Float64Array(REC_STRIDE);
 
 /** Screens one physical root (in `roots` at `base`) and offers it to the top-K. */
-function consider(top: TopK, packed: Float64Array, seidel: Float64Array, p: SearchParams, i: number, j: number, base: number, untr: boolean, trackMm: number): void {
+function consider(ctx: ShardContext, i: number, j: number, base: number, untr: boolean, trackMm: number): void {
+	const { packed, seidel, p, top } = ctx;
 	const s = roots[base + ROOT_OBJECT_DISTANCE],
 		g = roots[base + ROOT_GAP],
 		mAch = roots[base + ROOT_MAGNIFICATION];
@@ -325,8 +326,8 @@ function consider(top: TopK, packed: Float64Array, seidel: Float64Array, p: Sear
 }
 
 /** Every single element of the candidates. */
-function singles(input: ShardInput, top: TopK): void {
-	const { packed, seidel, untraceable, candidates, params: p } = input;
+function singles(ctx: ShardContext): void {
+	const { packed, untraceable, candidates, p } = ctx;
 	const m = p.magnification;
 	const tol = p.trackToleranceMm;
 	for (let q = 0; q < candidates.length; q++) {
@@ -335,7 +336,7 @@ function singles(input: ShardInput, top: TopK): void {
 		// The track asked first; with a tolerance and nothing there, the track within it nearest
 		// to the one that gives exactly m (|m| is monotone in the track on each branch, so that
 		// is where the magnification comes closest to m).
-		if (singlesAt(packed, seidel, untraceable, p, top, i, p.trackMm) || !(tol > 0)) continue;
+		if (singlesAt(ctx, i, p.trackMm) || !(tol > 0)) continue;
 		const exactTrack = singleAtMagnification(packed, i, m, roots, 0);
 		if (!Number.isFinite(exactTrack)) continue;
 		if (Math.abs(exactTrack - p.trackMm) <= tol) {
@@ -344,15 +345,16 @@ function singles(input: ShardInput, top: TopK): void {
 			if ((roots[ROOT_FLAGS] & ROOT_NON_PHYSICAL) !== 0) continue;
 			if (checkSinglePhysical(packed, i, roots[ROOT_OBJECT_DISTANCE], roots[ROOT_BACK_DISTANCE], p.minWorkingDistanceMm) !== 0) continue;
 			counters[2]++;
-			consider(top, packed, seidel, p, i, -1, 0, untraceable[i] === 1, exactTrack);
+			consider(ctx, i, -1, 0, untraceable[i] === 1, exactTrack);
 		} else {
-			singlesAt(packed, seidel, untraceable, p, top, i, exactTrack > p.trackMm ? p.trackMm + tol : p.trackMm - tol);
+			singlesAt(ctx, i, exactTrack > p.trackMm ? p.trackMm + tol : p.trackMm - tol);
 		}
 	}
 }
 
 /** The placements of single element i at one track that meet the magnification tolerance and the limits; true when one was offered. */
-function singlesAt(packed: Float64Array, seidel: Float64Array, untraceable: Uint8Array, p: SearchParams, top: TopK, i: number, trackMm: number): boolean {
+function singlesAt(ctx: ShardContext, i: number, trackMm: number): boolean {
+	const { packed, untraceable, p } = ctx;
 	const k = solveSingleKernel(packed, i, trackMm, roots, 0);
 	let found = false;
 	for (let r = 0; r < k; r++) {
@@ -363,7 +365,7 @@ function singlesAt(packed: Float64Array, seidel: Float64Array, untraceable: Uint
 		if (!(Math.abs(mAch / p.magnification - 1) <= p.magnificationTolerance)) continue;
 		if (checkSinglePhysical(packed, i, roots[base + ROOT_OBJECT_DISTANCE], roots[base + ROOT_BACK_DISTANCE], p.minWorkingDistanceMm) !== 0) continue;
 		counters[2]++;
-		consider(top, packed, seidel, p, i, -1, base, untraceable[i] === 1, trackMm);
+		consider(ctx, i, -1, base, untraceable[i] === 1, trackMm);
 		found = true;
 	}
 	return found;
@@ -395,6 +397,49 @@ function toSoa(packed: Float64Array): Soa {
 }
 
 /**
+ * What every step of one shard's search reads, built once per shard (`shardContext`): the
+ * snapshot's arrays, the question, the top-K and the matrices as separate arrays.
+ */
+interface ShardContext extends Pick<ShardInput, 'packed' | 'seidel' | 'partIndex' | 'untraceable' | 'partUnits' | 'candidates'> {
+	p: SearchParams;
+	top: TopK;
+	/** The matrices as separate arrays; null when the question asks for single parts only. */
+	soa: Soa | null;
+	/** The prefilter's constants of the question: 1/m, m + 1/m, the limits less a slack, the Airy radius at m, the marginal slope. */
+	im: number;
+	mu: number;
+	minS: number;
+	minG: number;
+	airyPair: number;
+	u0: number;
+}
+
+function shardContext(input: ShardInput, top: TopK): ShardContext {
+	const { packed, seidel, partIndex, untraceable, partUnits, candidates, params: p } = input;
+	const soa = p.maxElements >= 2 ? toSoa(packed) : null;
+	const m = p.magnification;
+	const slack = 1e-6 * (Math.abs(p.trackMm) + 1);
+	return {
+		packed,
+		seidel,
+		partIndex,
+		untraceable,
+		partUnits,
+		candidates,
+		p,
+		top,
+		soa,
+		im: 1 / m,
+		mu: m + 1 / m,
+		minS: p.minWorkingDistanceMm - slack,
+		minG: p.minGapMm - slack,
+		airyPair: airyForMagnification(p.wavelengthNm, p.objectNA, m),
+		u0: p.objectNA / Math.sqrt(1 - p.objectNA * p.objectNA)
+	};
+}
+
+
+/**
  * The track nearest to `trackMm`, within ± tol, at which a pair's gap quadratic (coefficients C₁,
  * qb, discriminant disc < 0 at trackMm) has a real root; NaN when none. Moving the track by δ
  * moves qb by −C₁δ and qc by −C₀δ, so the discriminant is the quadratic
@@ -424,17 +469,18 @@ const settled = new Float64Array(1);
  * (bisection between the two: the double root broke a limit, a working distance or the gap).
  * Returns the root count (0: none) and leaves the track in settled[0].
  */
-function settlePairTrack(packed: Float64Array, i: number, j: number, p: SearchParams, track: number, k: number): number {
+function settlePairTrack(ctx: ShardContext, i: number, j: number, track: number, k: number): number {
+	const { packed, p } = ctx;
 	settled[0] = track;
-	if (anyPhysicalPair(packed, i, j, p, k)) return k;
+	if (anyPhysicalPair(ctx, i, j, k)) return k;
 	const m = p.magnification;
 	const edge = track > p.trackMm ? p.trackMm + p.trackToleranceMm : p.trackMm - p.trackToleranceMm;
-	if (!anyPhysicalPair(packed, i, j, p, solvePairKernel(packed, i, j, edge, m, roots, 0))) return 0;
+	if (!anyPhysicalPair(ctx, i, j, solvePairKernel(packed, i, j, edge, m, roots, 0))) return 0;
 	let near = track,
 		far = edge;
 	for (let it = 0; it < 60 && Math.abs(far - near) > 1e-9 * (Math.abs(p.trackMm) + 1); it++) {
 		const mid = 0.5 * (near + far);
-		if (anyPhysicalPair(packed, i, j, p, solvePairKernel(packed, i, j, mid, m, roots, 0))) far = mid;
+		if (anyPhysicalPair(ctx, i, j, solvePairKernel(packed, i, j, mid, m, roots, 0))) far = mid;
 		else near = mid;
 	}
 	settled[0] = far;
@@ -442,7 +488,8 @@ function settlePairTrack(packed: Float64Array, i: number, j: number, p: SearchPa
 }
 
 /** True when one of the k pair roots in `roots` passes the physical filter. */
-function anyPhysicalPair(packed: Float64Array, i: number, j: number, p: SearchParams, k: number): boolean {
+function anyPhysicalPair(ctx: ShardContext, i: number, j: number, k: number): boolean {
+	const { packed, p } = ctx;
 	for (let r = 0; r < k; r++) {
 		const base = r * ROOT_STRIDE;
 		if ((roots[base + ROOT_FLAGS] & ROOT_NON_PHYSICAL) !== 0) continue;
@@ -452,43 +499,26 @@ function anyPhysicalPair(packed: Float64Array, i: number, j: number, p: SearchPa
 }
 
 /** Every ordered pair with element i first. */
-function pairRow(
-	packed: Float64Array,
-	seidel: Float64Array,
-	partIndex: Int32Array,
-	untraceable: Uint8Array,
-	partUnits: Int32Array,
-	candidates: Int32Array,
-	p: SearchParams,
-	top: TopK,
-	soa: Soa,
-	i: number
-): void {
+function pairRow(ctx: ShardContext, i: number): void {
+	const { packed, seidel, partIndex, untraceable, partUnits, candidates, p, top, mu, im, minS, minG, airyPair, u0 } = ctx;
+	const soa = ctx.soa as Soa;
 	const n = candidates.length;
 	const m = p.magnification;
-	const mu = m + 1 / m,
-		im = 1 / m;
-	const slack = 1e-6 * (Math.abs(p.trackMm) + 1);
-	const minS = p.minWorkingDistanceMm - slack,
-		minG = p.minGapMm - slack;
 	const pi = partIndex[i];
 	const tol = p.trackToleranceMm;
 	const ui = untraceable[i] === 1;
-	const untr1 = ui;
-	const airyPair = airyForMagnification(p.wavelengthNm, p.objectNA, m);
-	const u0 = p.objectNA / Math.sqrt(1 - p.objectNA * p.objectNA);
 	const sa = soa.a,
 		sb = soa.b,
 		sc = soa.c,
 		sd = soa.d,
 		st = soa.t,
 		src = soa.rc;
-	const a1 = soa.a[i],
-		b1 = soa.b[i],
-		c1 = soa.c[i],
-		d1 = soa.d[i];
-	const rc1 = soa.rc[i];
-	const lam1 = p.trackMm - soa.t[i];
+	const a1 = sa[i],
+		b1 = sb[i],
+		c1 = sc[i],
+		d1 = sd[i];
+	const rc1 = src[i];
+	const lam1 = p.trackMm - st[i];
 	let evaluated = 0;
 	for (let w = 0; w < n; w++) {
 		const j = candidates[w];
@@ -544,36 +574,47 @@ function pairRow(
 					if (!((im - kD) * kC >= lim && (m - kA) * kC >= lim)) continue;
 					// Lower bound of the screen score (aperture penalties only raise it).
 					const bound = sphericalRms(packed, seidel, i, j, (im - kD) / kC, g, u0) / airyPair;
-					need = top.admits((untr1 || untraceable[j] === 1 ? UNTRACEABLE_OFFSET + bound : bound) * (1 - 1e-9));
+					need = top.admits((ui || untraceable[j] === 1 ? UNTRACEABLE_OFFSET + bound : bound) * (1 - 1e-9));
 				}
 				if (!need) continue;
 			}
 		}
-		let k = solvePairKernel(packed, i, j, track, m, roots, 0);
-		if (track !== p.trackMm) {
-			k = settlePairTrack(packed, i, j, p, track, k);
-			track = settled[0];
-		}
-		for (let r = 0; r < k; r++) {
-			const base = r * ROOT_STRIDE;
-			counters[1]++;
-			if ((roots[base + ROOT_FLAGS] & ROOT_NON_PHYSICAL) !== 0) continue;
-			const bad = checkPairPhysical(
-				packed,
-				i,
-				j,
-				roots[base + ROOT_OBJECT_DISTANCE],
-				roots[base + ROOT_GAP],
-				roots[base + ROOT_BACK_DISTANCE],
-				p.minWorkingDistanceMm,
-				p.minGapMm
-			);
-			if (bad !== 0) continue;
-			counters[2]++;
-			consider(top, packed, seidel, p, i, j, base, ui || untraceable[j] === 1, track);
-		}
+		offerPair(ctx, i, j, track);
 	}
 	counters[0] += evaluated;
+}
+
+/**
+ * The pair i then j that passed the prefilter: the optics core's kernel at `track` (settled
+ * within the track tolerance when that is not the track asked), the physical filter, and
+ * every physical root offered to the top-K.
+ */
+function offerPair(ctx: ShardContext, i: number, j: number, track: number): void {
+	const { packed, untraceable, p } = ctx;
+	let k = solvePairKernel(packed, i, j, track, p.magnification, roots, 0);
+	if (track !== p.trackMm) {
+		k = settlePairTrack(ctx, i, j, track, k);
+		track = settled[0];
+	}
+	const untr = untraceable[i] === 1 || untraceable[j] === 1;
+	for (let r = 0; r < k; r++) {
+		const base = r * ROOT_STRIDE;
+		counters[1]++;
+		if ((roots[base + ROOT_FLAGS] & ROOT_NON_PHYSICAL) !== 0) continue;
+		const bad = checkPairPhysical(
+			packed,
+			i,
+			j,
+			roots[base + ROOT_OBJECT_DISTANCE],
+			roots[base + ROOT_GAP],
+			roots[base + ROOT_BACK_DISTANCE],
+			p.minWorkingDistanceMm,
+			p.minGapMm
+		);
+		if (bad !== 0) continue;
+		counters[2]++;
+		consider(ctx, i, j, base, untr, track);
+	}
 }
 
 /** Runs the search of one shard (see the module comment). */
@@ -583,11 +624,11 @@ export function searchShard(input: ShardInput): ShardResult {
 	progressOut = input.progress ?? null;
 	let truncated = false;
 	const cancel = input.cancel ?? null;
+	const ctx = shardContext(input, top);
 	// Single parts: shard 0 does them all (there are few).
-	if (input.shardIndex === 0) singles(input, top);
-	if (input.params.maxElements >= 2) {
-		const { packed, seidel, partIndex, untraceable, partUnits, candidates, params } = input;
-		const soa = toSoa(packed);
+	if (input.shardIndex === 0) singles(ctx);
+	if (ctx.soa !== null) {
+		const { candidates } = ctx;
 		const rows = Math.max(1, Math.ceil((candidates.length - input.shardIndex) / input.shardCount));
 		let done = 0;
 		for (let q = input.shardIndex; q < candidates.length; q += input.shardCount) {
@@ -595,7 +636,7 @@ export function searchShard(input: ShardInput): ShardResult {
 				truncated = true;
 				break;
 			}
-			pairRow(packed, seidel, partIndex, untraceable, partUnits, candidates, params, top, soa, candidates[q]);
+			pairRow(ctx, candidates[q]);
 			if (progressOut) progressOut[PG_FRACTION] = ++done / rows;
 		}
 	}

@@ -23,10 +23,11 @@ import {
 	REC_SCORE,
 	REC_SA_MM,
 	REC_TRACK,
-	type SearchParams
+	type SearchParams,
+	type ShardResult
 } from './search-kernel';
 import { searchOnPool, workerCount } from './pool';
-import { evaluatePlacement, rankKey, compareKeys } from './evaluate';
+import { evaluatePlacement, rankKey, compareKeys, type PlacementChoice } from './evaluate';
 import { coatingExclusionReason, coatingWarnings, groupExcluded, outsideCoating } from './exclusions';
 
 /** The answer with its coating warnings (parts in the order light meets them); none → no `warnings` key change. */
@@ -146,98 +147,15 @@ export async function solveWithStock(stock: StockView, req: ParsedImagingRequest
 	}
 	const { key, snapshot: snap } = snapshotFor(stock, req.wavelengthNm);
 	const { candidates, partUnits, parts, excluded } = candidateFilter(snap, req);
-	const params: SearchParams = {
-		trackMm: req.trackMm,
-		trackToleranceMm: req.trackToleranceMm,
-		magnification: req.magnification,
-		magnificationTolerance: req.magnificationTolerance,
-		objectNA: req.objectNA,
-		objectHeightMm: req.objectHeightMm,
-		minGapMm: req.minGapMm,
-		minWorkingDistanceMm: req.minWorkingDistanceMm,
-		maxElements: req.maxElements,
-		wavelengthNm: req.wavelengthNm
-	};
-	const deadline = Date.now() + req.timeBudgetMs;
 	const tSearch = performance.now();
-	let shards: { records: Float64Array; count: number; configurationsEvaluated: number; rootsFound: number; physicalRoots: number; truncated: boolean }[];
-	let workers = 0;
-	if (options.inline) {
-		shards = [
-			searchShard({
-				packed: snap.packed,
-				seidel: snap.seidel,
-				partIndex: snap.partIndex,
-				untraceable: snap.untraceable,
-				partUnits,
-				candidates,
-				params,
-				shardIndex: 0,
-				shardCount: 1,
-				topK: options.keepAll ? Infinity : TOP_K_PER_SHARD,
-				deadline
-			})
-		];
-	} else {
-		workers = workerCount();
-		const watch = watchProgress(options, workers, ({ i, j }) => ({ parts: (j < 0 ? [i] : [i, j]).map((e) => snap.parts[snap.partIndex[e]].sku) }));
-		try {
-			shards = await searchOnPool(
-				{ key, packed: snap.packed, seidel: snap.seidel, partIndex: snap.partIndex, untraceable: snap.untraceable },
-				{ candidates, partUnits, params, topK: TOP_K_PER_SHARD, deadline, signal: options.signal, progress: watch.buffer }
-			);
-		} finally {
-			watch.stop();
-		}
-	}
+	const { shards, workers } = await searchShards(key, snap, candidates, partUnits, req, options);
 	const searchMs = performance.now() - tSearch;
 	if (options.signal?.aborted) throw new DomainError(499, 'cancelled', 'The request was cancelled.');
 
-	// Merge: every shard's records, best screen score first.
-	const all: { rec: Float64Array; score: number }[] = [];
-	for (const sh of shards) {
-		for (let k = 0; k < sh.count; k++) {
-			const rec = sh.records.subarray(k * REC_STRIDE, (k + 1) * REC_STRIDE);
-			all.push({ rec, score: rec[REC_SCORE] });
-		}
-	}
-	all.sort((a, b) => a.score - b.score);
-	const toTrace = options.keepAll ? all : all.slice(0, TRACE_COUNT);
+	const toTrace = mergeShards(shards, options.keepAll ? Infinity : TRACE_COUNT);
+	const solutions = rankTraced(toTrace, snap, req, options.keepAll ? Infinity : req.limit);
 
-	// Every candidate with the figures that rank (the colour band only when it ranks); the answers
-	// returned are evaluated again in full (drawing rays, tolerance view, colour band): the same figures, so the same order.
-	const evaluated: { s: Omit<Solution, 'rank'>; again: () => Omit<Solution, 'rank'> }[] = [];
-	const rankOnly = { colour: req.rankBy === 'band', details: false };
-	for (const { rec } of toTrace) {
-		const i = rec[REC_I],
-			j = rec[REC_J];
-		const idx = j < 0 ? [i] : [i, j];
-		const flags = rec[REC_FLAGS];
-		const trackMm = rec[REC_TRACK];
-		const choice = {
-			parts: idx.map((e) => snap.parts[snap.partIndex[e]]),
-			elements: idx.map((e) => snap.elements[e]),
-			objectDistanceMm: rec[REC_S],
-			gapsMm: j < 0 ? [] : [rec[REC_G]],
-			backDistanceMm: rec[REC_D],
-			targetMagnification: req.magnification,
-			afocalFamily: (flags & ROOT_FAMILY) !== 0,
-			doubleRoot: (flags & ROOT_DOUBLE) !== 0,
-			screenEstimateMm: rec[REC_SA_MM]
-		};
-		const symmetric = idx.map((e) => snap.symmetricPart[snap.partIndex[e]]);
-		const asked = trackMm === req.trackMm ? req : { ...req, trackMm };
-		const ev = evaluatePlacement(choice, asked, symmetric, rankOnly);
-		// The answer with the track it uses and its coating warnings.
-		const finish = (sol: Omit<Solution, 'rank'>) => ({ ...withCoatingWarnings(sol, choice.parts, req.wavelengthNm), trackOffsetMm: trackMm - req.trackMm });
-		if (ev.verified) evaluated.push({ s: finish(ev.solution), again: () => finish(evaluatePlacement(choice, asked, symmetric).solution) });
-	}
-	const keyed = evaluated.map((e) => ({ e, k: rankKey(e.s, req.rankBy) }));
-	keyed.sort((a, b) => compareKeys(a.k, b.k));
-	const limit = options.keepAll ? keyed.length : req.limit;
-	const solutions: Solution[] = keyed.slice(0, limit).map(({ e }, n) => ({ rank: n + 1, ...e.again() }));
-
-	const sum = (f: (s: (typeof shards)[number]) => number) => shards.reduce((a, s) => a + f(s), 0);
+	const sum = (f: (s: ShardResult) => number) => shards.reduce((a, s) => a + f(s), 0);
 	return {
 		request: req,
 		solutions,
@@ -256,4 +174,102 @@ export async function solveWithStock(stock: StockView, req: ParsedImagingRequest
 			partsExcluded: excluded
 		}
 	};
+}
+
+/** The question as the search kernel reads it. */
+function searchParamsOf(req: ParsedImagingRequest): SearchParams {
+	return {
+		trackMm: req.trackMm,
+		trackToleranceMm: req.trackToleranceMm,
+		magnification: req.magnification,
+		magnificationTolerance: req.magnificationTolerance,
+		objectNA: req.objectNA,
+		objectHeightMm: req.objectHeightMm,
+		minGapMm: req.minGapMm,
+		minWorkingDistanceMm: req.minWorkingDistanceMm,
+		maxElements: req.maxElements,
+		wavelengthNm: req.wavelengthNm
+	};
+}
+
+/** The search within the question's time budget: one shard on this thread (inline), else a shard per worker of the pool. */
+async function searchShards(
+	key: string,
+	snap: ElementSnapshot,
+	candidates: Int32Array,
+	partUnits: Int32Array,
+	req: ParsedImagingRequest,
+	options: SolveOptions
+): Promise<{ shards: ShardResult[]; workers: number }> {
+	const params = searchParamsOf(req);
+	const deadline = Date.now() + req.timeBudgetMs;
+	const { packed, seidel, partIndex, untraceable } = snap;
+	if (options.inline) {
+		const topK = options.keepAll ? Infinity : TOP_K_PER_SHARD;
+		return { shards: [searchShard({ packed, seidel, partIndex, untraceable, partUnits, candidates, params, shardIndex: 0, shardCount: 1, topK, deadline })], workers: 0 };
+	}
+	const workers = workerCount();
+	const watch = watchProgress(options, workers, ({ i, j }) => ({ parts: (j < 0 ? [i] : [i, j]).map((e) => snap.parts[snap.partIndex[e]].sku) }));
+	try {
+		const shards = await searchOnPool(
+			{ key, packed, seidel, partIndex, untraceable },
+			{ candidates, partUnits, params, topK: TOP_K_PER_SHARD, deadline, signal: options.signal, progress: watch.buffer }
+		);
+		return { shards, workers };
+	} finally {
+		watch.stop();
+	}
+}
+
+/** Merge: every shard's records, best screen score first, the first `count` of them. */
+function mergeShards(shards: ShardResult[], count: number): Float64Array[] {
+	const all: { rec: Float64Array; score: number }[] = [];
+	for (const sh of shards) {
+		for (let k = 0; k < sh.count; k++) {
+			const rec = sh.records.subarray(k * REC_STRIDE, (k + 1) * REC_STRIDE);
+			all.push({ rec, score: rec[REC_SCORE] });
+		}
+	}
+	all.sort((a, b) => a.score - b.score);
+	return (Number.isFinite(count) ? all.slice(0, count) : all).map((x) => x.rec);
+}
+
+/**
+ * Every candidate with the figures that rank (the colour band only when it ranks), ranked; the first `limit`
+ * answers are evaluated again in full (drawing rays, tolerance view, colour band): the same figures, so the same order.
+ */
+function rankTraced(toTrace: Float64Array[], snap: ElementSnapshot, req: ParsedImagingRequest, limit: number): Solution[] {
+	const evaluated: { s: Omit<Solution, 'rank'>; again: () => Omit<Solution, 'rank'> }[] = [];
+	const rankOnly = { colour: req.rankBy === 'band', details: false };
+	for (const rec of toTrace) {
+		const { choice, symmetric, trackMm } = placementOf(rec, snap, req);
+		const asked = trackMm === req.trackMm ? req : { ...req, trackMm };
+		const ev = evaluatePlacement(choice, asked, symmetric, rankOnly);
+		// The answer with the track it uses and its coating warnings.
+		const finish = (sol: Omit<Solution, 'rank'>) => ({ ...withCoatingWarnings(sol, choice.parts, req.wavelengthNm), trackOffsetMm: trackMm - req.trackMm });
+		if (ev.verified) evaluated.push({ s: finish(ev.solution), again: () => finish(evaluatePlacement(choice, asked, symmetric).solution) });
+	}
+	const keyed = evaluated.map((e) => ({ e, k: rankKey(e.s, req.rankBy) }));
+	keyed.sort((a, b) => compareKeys(a.k, b.k));
+	return keyed.slice(0, limit).map(({ e }, n) => ({ rank: n + 1, ...e.again() }));
+}
+
+/** A search record as the evaluation reads it: the parts and elements in order, the placement, the track it uses. */
+function placementOf(rec: Float64Array, snap: ElementSnapshot, req: ParsedImagingRequest): { choice: PlacementChoice; symmetric: boolean[]; trackMm: number } {
+	const i = rec[REC_I],
+		j = rec[REC_J];
+	const idx = j < 0 ? [i] : [i, j];
+	const flags = rec[REC_FLAGS];
+	const choice: PlacementChoice = {
+		parts: idx.map((e) => snap.parts[snap.partIndex[e]]),
+		elements: idx.map((e) => snap.elements[e]),
+		objectDistanceMm: rec[REC_S],
+		gapsMm: j < 0 ? [] : [rec[REC_G]],
+		backDistanceMm: rec[REC_D],
+		targetMagnification: req.magnification,
+		afocalFamily: (flags & ROOT_FAMILY) !== 0,
+		doubleRoot: (flags & ROOT_DOUBLE) !== 0,
+		screenEstimateMm: rec[REC_SA_MM]
+	};
+	return { choice, symmetric: idx.map((e) => snap.symmetricPart[snap.partIndex[e]]), trackMm: rec[REC_TRACK] };
 }
