@@ -9,37 +9,15 @@ import { complex, multiply as mmul, matrix, add, divide, abs, type Complex, type
 import { solveBeamWithStock, solveAfocalWithStock } from '../../../src/lib/server/solver/beam-solve';
 import { solveRequestSchema, type ParsedAfocalRequest, type ParsedBeamRequest } from '../../../src/lib/solver/request';
 import { buildElementSnapshot, clearApertureOf, type CandidatePart } from '../../../src/lib/server/solver/elements';
-import type { StockView } from '../../../src/lib/server/solver/solve';
 import { refractiveIndex, checkPairPhysical, type ThickElement } from '../../../src/lib/optics';
 import { zodFields } from '../../../src/lib/server/errors';
 import type { BeamSolution } from '../../../src/lib/solver/types';
 import { syntheticStock } from '../../bench/_synthetic-stock';
 import { beamKernelOptions, decodeRankKey, encodeRankKey } from '../../../src/lib/server/solver/beam-kernel';
 import { mulberry32 } from '../../../src/lib/prng';
+import { lensMaker } from './test-lens';
 
-let nextId = 1;
-/** An invented singlet (R1, R2 in mm; null = flat), glass 517642, in stock. */
-function lens(r1: number | null, r2: number | null, ct: number, diameterMm = 25.4, available = 3): CandidatePart {
-	const id = nextId++;
-	return {
-		partId: id,
-		sku: `B-${id}`,
-		name: `Beam test lens ${id}`,
-		kind: 'other',
-		diameterMm,
-		clearApertureMm: null,
-		surfaces: [{ radiusMm: r1, thicknessMm: ct, material: '517642' }, { radiusMm: r2 }],
-		eflMm: null,
-		bflMm: null,
-		centerThicknessMm: ct,
-		designWavelengthNm: 587.6,
-		measured: null,
-		onHand: available,
-		available,
-		locations: [{ locationId: 1, code: 'T1', name: 'Test drawer', quantity: available }]
-	};
-}
-const stockOf = (parts: CandidatePart[]): StockView => ({ key: `beam-test-${nextId}-${Math.random()}`, parts });
+const { lens, stockOf } = lensMaker({ firstId: 1, prefix: 'B', name: 'Beam test lens' });
 const beamQ = (q: Record<string, unknown>) => solveRequestSchema.parse({ mode: 'beam', wavelengthNm: 1064, minGapMm: 1, minWorkingDistanceMm: 5, limit: 50, ...q }) as ParsedBeamRequest;
 const afocalQ = (q: Record<string, unknown>) => solveRequestSchema.parse({ mode: 'afocal', wavelengthNm: 632.8, minGapMm: 1, limit: 50, ...q }) as ParsedAfocalRequest;
 

@@ -9,35 +9,16 @@
  * spherical surface; from memory). The rest is geometry of the bench: common practice, no source.
  */
 import { describe, expect, it } from 'vitest';
-import { solveWithStock, type StockView } from '../../../src/lib/server/solver/solve';
+import { solveWithStock } from '../../../src/lib/server/solver/solve';
 import { solveAfocalWithStock } from '../../../src/lib/server/solver/beam-solve';
 import { imagingRequestSchema, solveRequestSchema, type ParsedAfocalRequest } from '../../../src/lib/solver/request';
 import type { CandidatePart } from '../../../src/lib/server/solver/elements';
 import { buildElementSnapshot } from '../../../src/lib/server/solver/elements';
 import { checkPairPhysical, EL_EDGE_SEMI_DIAMETER, ELEMENT_STRIDE, PHYS_SURFACES_TOUCH } from '../../../src/lib/optics';
 import type { Solution } from '../../../src/lib/solver/types';
+import { lensMaker } from './test-lens';
 
-let nextId = 9000;
-function lens(r1: number | null, r2: number | null, ct: number, diameterMm: number, available = 2): CandidatePart {
-	const id = nextId++;
-	return {
-		partId: id,
-		sku: `EDGE-${id}`,
-		name: `Edge test lens ${id}`,
-		kind: 'biconvex',
-		diameterMm,
-		clearApertureMm: null,
-		surfaces: [{ radiusMm: r1, thicknessMm: ct, material: '517642' }, { radiusMm: r2 }],
-		eflMm: null,
-		bflMm: null,
-		centerThicknessMm: ct,
-		designWavelengthNm: 587.6,
-		measured: null,
-		onHand: available,
-		available,
-		locations: [{ locationId: 1, code: 'E1', name: 'Edge drawer', quantity: available }]
-	};
-}
+const { lens, stockOf } = lensMaker({ firstId: 9000, prefix: 'EDGE', name: 'Edge test lens', kind: 'biconvex', available: 2, drawer: { code: 'E1', name: 'Edge drawer' } });
 
 /** Independent sag (mm) of a sphere of radius r (null: flat) at height y. */
 function sag(r: number | null, y: number): number {
@@ -72,7 +53,6 @@ function smallestAirGap(s: Solution, parts: CandidatePart[]): number {
 	return least;
 }
 
-const stockOf = (parts: CandidatePart[]): StockView => ({ key: `edges-${nextId}-${Math.random()}`, parts });
 
 describe('glass edges never overlap', () => {
 	it('issue example: two units of R 50 / −50, t 5, Ø 25.4 at m −3 over 147.5 mm, minimum gap 0: no answer overlaps', async () => {

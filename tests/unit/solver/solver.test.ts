@@ -6,36 +6,15 @@
  */
 import { describe, expect, it } from 'vitest';
 import { multiply, matrix, type Matrix } from 'mathjs';
-import { solveWithStock, type StockView } from '../../../src/lib/server/solver/solve';
+import { solveWithStock } from '../../../src/lib/server/solver/solve';
 import { imagingRequestSchema as solveRequestSchema } from '../../../src/lib/solver/request';
 import { buildElementSnapshot, type CandidatePart } from '../../../src/lib/server/solver/elements';
 import { refractiveIndex, cardinalPoints, checkPairPhysical, checkSinglePhysical } from '../../../src/lib/optics';
 import type { Solution } from '../../../src/lib/solver/types';
+import { lensMaker } from './test-lens';
 
-let nextId = 1;
-/** An invented singlet part (R1, R2 in mm; null = flat), glass 517642, fully in stock. */
-function lens(r1: number | null, r2: number | null, ct: number, diameterMm = 25.4, available = 3, material = '517642'): CandidatePart {
-	const id = nextId++;
-	return {
-		partId: id,
-		sku: `T-${id}`,
-		name: `Test lens ${id}`,
-		kind: 'other',
-		diameterMm,
-		clearApertureMm: null,
-		surfaces: [{ radiusMm: r1, thicknessMm: ct, material }, { radiusMm: r2 }],
-		eflMm: null,
-		bflMm: null,
-		centerThicknessMm: ct,
-		designWavelengthNm: 587.6,
-		measured: null,
-		onHand: available,
-		available,
-		locations: [{ locationId: 1, code: 'T1', name: 'Test drawer', quantity: available }]
-	};
-}
+const { lens, stockOf } = lensMaker({ firstId: 1, prefix: 'T', name: 'Test lens' });
 
-const stockOf = (parts: CandidatePart[]): StockView => ({ key: `test-${nextId}-${Math.random()}`, parts });
 const ask = (q: Record<string, unknown>) => solveRequestSchema.parse({ wavelengthNm: 587.6, objectNA: 0.02, minGapMm: 0.5, minWorkingDistanceMm: 2, limit: 50, ...q });
 
 /**

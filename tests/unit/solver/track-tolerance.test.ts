@@ -8,33 +8,12 @@
  * thick-lens formulas (same section), independently of the solver's matrices.
  */
 import { describe, expect, it } from 'vitest';
-import { solveWithStock, type StockView } from '../../../src/lib/server/solver/solve';
+import { solveWithStock } from '../../../src/lib/server/solver/solve';
 import { imagingRequestSchema } from '../../../src/lib/solver/request';
-import type { CandidatePart } from '../../../src/lib/server/solver/elements';
 import { refractiveIndex } from '../../../src/lib/optics';
+import { lensMaker } from './test-lens';
 
-let nextId = 7000;
-function lens(r1: number | null, r2: number | null, ct: number, diameterMm = 25.4, available = 1): CandidatePart {
-	const id = nextId++;
-	return {
-		partId: id,
-		sku: `TT-${id}`,
-		name: `Track test lens ${id}`,
-		kind: 'biconvex',
-		diameterMm,
-		clearApertureMm: null,
-		surfaces: [{ radiusMm: r1, thicknessMm: ct, material: '517642' }, { radiusMm: r2 }],
-		eflMm: null,
-		bflMm: null,
-		centerThicknessMm: ct,
-		designWavelengthNm: 587.6,
-		measured: null,
-		onHand: available,
-		available,
-		locations: [{ locationId: 1, code: 'T1', name: 'Test drawer', quantity: available }]
-	};
-}
-const stockOf = (parts: CandidatePart[]): StockView => ({ key: `track-${nextId}-${Math.random()}`, parts });
+const { lens, stockOf } = lensMaker({ firstId: 7000, prefix: 'TT', name: 'Track test lens', kind: 'biconvex', available: 1 });
 
 /** Thick-lens f and principal-plane separation (Hecht §6.1): 1/f = (n−1)[1/R1 − 1/R2 + (n−1)t/(n R1 R2)], HH' = t(n−1)/n·(1 − f(n−1)t…) via h1, h2. */
 function thickLens(r1: number, r2: number, t: number, n: number): { f: number; hiatus: number } {
