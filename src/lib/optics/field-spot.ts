@@ -39,6 +39,37 @@ export interface GridOptions {
 
 const skew = new Float64Array(SKEW_STRIDE);
 
+/** Running sums over the rays that reach the evaluation plane: x², y and y² (x centroids are 0 by symmetry). */
+class Landings {
+	n = 0;
+	sx2 = 0;
+	sy = 0;
+	sy2 = 0;
+	/** Adds where the traced skew `ray` meets z = `zImg`; false (nothing added) when it runs parallel to the plane. */
+	add(ray: Float64Array, zImg: number): boolean {
+		const dz = ray[5];
+		if (!(Math.abs(dz) > 1e-15)) return false;
+		const t = (zImg - ray[2]) / dz;
+		const x = ray[0] + t * ray[3],
+			y = ray[1] + t * ray[4];
+		this.n++;
+		this.sx2 += x * x;
+		this.sy += y;
+		this.sy2 += y * y;
+		return true;
+	}
+	/** Centroid height, mm (NaN without a ray). */
+	centroid(): number {
+		return this.n > 0 ? this.sy / this.n : NaN;
+	}
+	/** RMS radius about the centroid, mm (NaN without a ray). */
+	rmsAboutCentroid(): number {
+		const mean = this.centroid();
+		const meanR2 = this.n > 0 ? (this.sx2 + this.sy2) / this.n : NaN;
+		return Math.sqrt(Math.max(0, meanR2 - mean * mean));
+	}
+}
+
 /**
  * RMS spot of the object point (0, `objectHeightMm`) from a square grid of skew rays over a
  * disc of directions: direction cosines L = r·pₓ, M = sin θc + r·p_y with (pₓ, p_y) the
@@ -53,11 +84,8 @@ export function fieldGridSpot(sys: TraceSystem, objectHeightMm: number, options:
 	const n = Math.max(2, 2 * Math.round((options.grid ?? 16) / 2));
 	const zImg = options.imageZMm ?? sys.imageZMm;
 	const step = 2 / n;
-	let all = 0,
-		traced = 0,
-		sx2 = 0,
-		sy = 0,
-		sy2 = 0;
+	let all = 0;
+	const sums = new Landings();
 	for (let i = 0; i < n / 2; i++) {
 		const px = (i + 0.5) * step;
 		for (let j = 0; j < n; j++) {
@@ -74,27 +102,17 @@ export function fieldGridSpot(sys: TraceSystem, objectHeightMm: number, options:
 			skew[3] = L;
 			skew[4] = M;
 			skew[5] = Math.sqrt(N2);
-			if (traceSkewRay(sys, skew) !== TRACE_OK) continue;
-			const dz = skew[5];
-			if (!(Math.abs(dz) > 1e-15)) continue;
-			const t = (zImg - skew[2]) / dz;
-			const x = skew[0] + t * skew[3],
-				y = skew[1] + t * skew[4];
-			traced++;
-			sx2 += x * x;
-			sy += y;
-			sy2 += y * y;
+			if (traceSkewRay(sys, skew) === TRACE_OK) sums.add(skew, zImg);
 		}
 	}
-	const mean = traced > 0 ? sy / traced : NaN;
-	const meanR2 = traced > 0 ? (sx2 + sy2) / traced : NaN;
+	const traced = sums.n;
 	const chief = landingHeight(sys, objectHeightMm, options.sinChief, zImg);
-	const aboutChief = chief === null || traced === 0 ? null : Math.sqrt(Math.max(0, (sx2 + sy2 - 2 * chief * sy) / traced + chief * chief));
+	const aboutChief = chief === null || traced === 0 ? null : Math.sqrt(Math.max(0, (sums.sx2 + sums.sy2 - 2 * chief * sums.sy) / traced + chief * chief));
 	return {
 		kind: 'skew-grid',
-		rmsAboutCentroidMm: Math.sqrt(Math.max(0, meanR2 - mean * mean)),
+		rmsAboutCentroidMm: sums.rmsAboutCentroid(),
 		rmsAboutChiefMm: aboutChief,
-		centroidMm: mean,
+		centroidMm: sums.centroid(),
 		raysTraced: traced,
 		raysFailed: all - traced,
 		passedFraction: all > 0 ? traced / all : 0
@@ -240,11 +258,8 @@ export function pupilSpot(sys: TraceSystem, objectHeightMm: number, pupil: Pupil
 	const ax = pupil.halfWidthSine * PUPIL_MARGIN,
 		ay = pupil.halfHeightSine * PUPIL_MARGIN;
 	const na2 = pupil.requestedSine * pupil.requestedSine;
-	let traced = 0,
-		failed = 0,
-		sx2 = 0,
-		sy = 0,
-		sy2 = 0;
+	let failed = 0;
+	const sums = new Landings();
 	for (let k = 1; k <= K; k++) {
 		const rho = Math.sqrt((k - 0.5) / K);
 		for (let j = 0; j < J; j++) {
@@ -256,22 +271,10 @@ export function pupilSpot(sys: TraceSystem, objectHeightMm: number, pupil: Pupil
 				failed++;
 				continue;
 			}
-			const dz = probe[5];
-			if (!(Math.abs(dz) > 1e-15)) {
-				failed++;
-				continue;
-			}
-			const t = (zImg - probe[2]) / dz;
-			const x = probe[0] + t * probe[3],
-				y = probe[1] + t * probe[4];
-			traced++;
-			sx2 += x * x;
-			sy += y;
-			sy2 += y * y;
+			if (!sums.add(probe, zImg)) failed++;
 		}
 	}
-	const mean = traced > 0 ? sy / traced : NaN;
-	const meanR2 = traced > 0 ? (sx2 + sy2) / traced : NaN;
+	const traced = sums.n;
 	const passedShare = na2 > 0 ? Math.min(1, (traced * ax * ay) / (K * J * na2)) : 0;
-	return { rmsAboutCentroidMm: Math.sqrt(Math.max(0, meanR2 - mean * mean)), centroidMm: mean, raysTraced: traced, raysFailed: failed, passedShare };
+	return { rmsAboutCentroidMm: sums.rmsAboutCentroid(), centroidMm: sums.centroid(), raysTraced: traced, raysFailed: failed, passedShare };
 }
