@@ -552,6 +552,16 @@ function sweepPairs(
 	let count = 0;
 	let cap = RANK_BINS - 1;
 	const inBuf = new Float64Array(RANK_BINS);
+	/** Doubles the buffer (pair codes and their bins). */
+	const grow = () => {
+		size *= 2;
+		const nb = new Int32Array(size);
+		nb.set(buf);
+		buf = nb;
+		const nbb = new Int16Array(size);
+		nbb.set(bufBin);
+		bufBin = nbb;
+	};
 	// Per class c: lengths at or beyond capLen[c] fall after `cap`.
 	const capLen = new Float64Array(3);
 	const setCaps = () => {
@@ -696,15 +706,8 @@ function sweepPairs(
 				const b = rankBin(c, len);
 				if (b <= fromBin || b > cap) continue;
 				if (count === size) {
-					if (size < capacity) {
-						size *= 2;
-						const nb = new Int32Array(size);
-						nb.set(buf);
-						buf = nb;
-						const nbb = new Int16Array(size);
-						nbb.set(bufBin);
-						bufBin = nbb;
-					} else {
+					if (size < capacity) grow();
+					else {
 						// Full: lower the cap to keep about half (at least one bin), drop the rest.
 						let keep = 0,
 							nc = fromBin;
@@ -717,15 +720,7 @@ function sweepPairs(
 						cap = nc;
 						setCaps();
 						if (b > cap) continue;
-						if (count === size) {
-							size *= 2;
-							const nb = new Int32Array(size);
-							nb.set(buf);
-							buf = nb;
-							const nbb = new Int16Array(size);
-							nbb.set(bufBin);
-							bufBin = nbb;
-						}
+						if (count === size) grow();
 					}
 				}
 				buf[count] = k1 * n + k2;
