@@ -13,7 +13,7 @@ import { EL_C, ELEMENT_STRIDE } from '../../optics/snapshot';
 import type { ParsedImagingRequest } from '../../solver/request';
 import type { NearTrack, SolveResponse } from '../../solver/types';
 import type { ElementSnapshot } from './elements';
-import { searchShard, REC_STRIDE, REC_I, REC_J, REC_S, REC_D, REC_M, REC_TRACK } from './search-kernel';
+import { searchShard, searchParamsOf, REC_STRIDE, REC_I, REC_J, REC_S, REC_D, REC_M, REC_TRACK } from './search-kernel';
 
 /** Pairs are looked for only in stocks of at most this many oriented elements (the search runs on the request's thread). */
 export const NEAR_PAIR_MAX_ELEMENTS = 400;
@@ -80,18 +80,7 @@ export function nearPairTracks(snap: ElementSnapshot, candidates: Int32Array, pa
 		untraceable: snap.untraceable,
 		partUnits,
 		candidates,
-		params: {
-			trackMm: req.trackMm,
-			trackToleranceMm: Math.min(NEAR_PAIR_WINDOW * req.trackMm, 1000),
-			magnification: req.magnification,
-			magnificationTolerance: req.magnificationTolerance,
-			objectNA: req.objectNA,
-			objectHeightMm: req.objectHeightMm,
-			minGapMm: req.minGapMm,
-			minWorkingDistanceMm: req.minWorkingDistanceMm,
-			maxElements: 2,
-			wavelengthNm: req.wavelengthNm
-		},
+		params: { ...searchParamsOf(req), trackToleranceMm: Math.min(NEAR_PAIR_WINDOW * req.trackMm, 1000), maxElements: 2 },
 		shardIndex: 0, // (single parts come too; they are left out below: nearSingleTracks lists them)
 		shardCount: 1,
 		topK: Infinity,

@@ -31,6 +31,7 @@ import {
 import { checkSinglePhysical, checkPairPhysical } from '../../optics/physical';
 import { evalSeidel } from './seidel-poly';
 import { offerBest, PG_FRACTION } from './progress';
+import type { ParsedImagingRequest } from '../../solver/request';
 
 /** Numbers per candidate record. */
 export const REC_STRIDE = 13;
@@ -71,6 +72,22 @@ export interface SearchParams {
 	minWorkingDistanceMm: number;
 	maxElements: number;
 	wavelengthNm: number;
+}
+
+/** The question as the search kernel reads it. */
+export function searchParamsOf(req: ParsedImagingRequest): SearchParams {
+	return {
+		trackMm: req.trackMm,
+		trackToleranceMm: req.trackToleranceMm,
+		magnification: req.magnification,
+		magnificationTolerance: req.magnificationTolerance,
+		objectNA: req.objectNA,
+		objectHeightMm: req.objectHeightMm,
+		minGapMm: req.minGapMm,
+		minWorkingDistanceMm: req.minWorkingDistanceMm,
+		maxElements: req.maxElements,
+		wavelengthNm: req.wavelengthNm
+	};
 }
 
 /** What one shard found. */

@@ -23,7 +23,7 @@ import {
 	REC_SCORE,
 	REC_SA_MM,
 	REC_TRACK,
-	type SearchParams,
+	searchParamsOf,
 	type ShardResult
 } from './search-kernel';
 import { searchOnPool, workerCount } from './pool';
@@ -176,21 +176,6 @@ export async function solveWithStock(stock: StockView, req: ParsedImagingRequest
 	};
 }
 
-/** The question as the search kernel reads it. */
-function searchParamsOf(req: ParsedImagingRequest): SearchParams {
-	return {
-		trackMm: req.trackMm,
-		trackToleranceMm: req.trackToleranceMm,
-		magnification: req.magnification,
-		magnificationTolerance: req.magnificationTolerance,
-		objectNA: req.objectNA,
-		objectHeightMm: req.objectHeightMm,
-		minGapMm: req.minGapMm,
-		minWorkingDistanceMm: req.minWorkingDistanceMm,
-		maxElements: req.maxElements,
-		wavelengthNm: req.wavelengthNm
-	};
-}
 
 /** The search within the question's time budget: one shard on this thread (inline), else a shard per worker of the pool. */
 async function searchShards(
