@@ -293,8 +293,10 @@ export interface AxialCone {
 	readonly lostFraction: number;
 }
 
+/** The steepest axial ray `axialCone` tries (direction sine): when it passes, the whole cone asked for counts. */
+export const CONE_TOP = 0.999;
 /** Bisection steps of `axialCone` when the stop cuts the cone asked for (the limit to 2⁻³⁶ of a direction sine). */
-const CONE_STEPS = 36;
+export const CONE_STEPS = 36;
 /** Bisection steps when the whole cone asked for passes: only which surface stops the cone as it opens further is wanted. */
 const STOP_STEPS = 16;
 
@@ -309,7 +311,7 @@ const STOP_STEPS = 16;
 export function axialCone(sys: TraceSystem, requestedSine: number): AxialCone {
 	const ray = new Float64Array(RAY_STRIDE);
 	const passes = (u: number) => startRay(ray, 0, u) && traceRay(sys, ray) === TRACE_OK;
-	const top = 0.999;
+	const top = CONE_TOP;
 	if (passes(top)) return { requestedSine, passedSine: requestedSine, stopSurface: -1, lostFraction: 0 };
 	let stopSurface = ray[5];
 	// When the whole cone asked for passes, only the stop's name is wanted: a coarse search above it will do.

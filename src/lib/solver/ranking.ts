@@ -115,3 +115,28 @@ export function decidingStep(above: Omit<Solution, 'rank'>, below: Omit<Solution
 	for (let k = 0; k < steps.length; k++) if (a[k] !== b[k]) return steps[k];
 	return 'tie';
 }
+
+/** Spot bands the packed key tells apart (band 0 … RANK_BANDS − 2; untraced answers and higher bands share the last). */
+const RANK_BANDS = 128;
+/** Working-distance steps the packed key tells apart (0 … 32 767 steps of 10 mm: 327 m). */
+const RANK_WD_STEPS = 32768;
+
+/**
+ * A ranking key (`rankKey`'s six numbers) as one number that orders as `compareKeys` does,
+ * except that keys differing only in the exact ratio may tie or order within about 1e-7 of
+ * it: the integer part holds vignetting class, coating, spot band, working-distance step and
+ * part count; the fraction, r/(1 + r), the exact ratio. Monotone in each component, so a
+ * key that is componentwise-lexicographically at most another packs to at most the other's
+ * number: the solver's search compares lower bounds of keys with the N-th answer's key in it.
+ */
+export function packRankKey(k: readonly number[]): number {
+	return packRankParts(k[0], k[1], k[2], k[3], k[4], k[5]);
+}
+
+/** `packRankKey` of the six components given one by one (the search's hot path: no array). */
+export function packRankParts(vignetting: number, coating: number, band: number, wdStep: number, parts: number, ratio: number): number {
+	const b = Math.min(RANK_BANDS - 1, Math.max(0, band));
+	const wd = Math.min(RANK_WD_STEPS - 1, Math.max(0, wdStep + RANK_WD_STEPS / 2));
+	const r = Math.max(0, ratio);
+	return (((vignetting * 2 + coating) * RANK_BANDS + b) * RANK_WD_STEPS + wd) * 4 + parts + r / (1 + r);
+}

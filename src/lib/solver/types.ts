@@ -244,6 +244,11 @@ export interface SolveStats {
 	searchMs: number;
 	/** The search stopped at its time budget before covering every pair. */
 	truncated: boolean;
+	/**
+	 * Imaging: the answers are the best N by the ranking among every physical root (each root that
+	 * could rank among them was traced); false when the time budget cut the search or the tracing short.
+	 */
+	provenBest?: boolean;
 	workers: number;
 	/**
 	 * Parts left out of this question and why, one entry per reason: no refractive index at the

@@ -23,12 +23,14 @@ const view = (p: CandidatePart[]): StockView => ({ key: `limits-${p.length}-${Ma
 
 function shardInput(extra: { deadline: number; cancel?: Int32Array | null }) {
 	const snap = buildElementSnapshot(parts, 587.6);
-	const params: SearchParams = { ...question, trackToleranceMm: 0, magnificationTolerance: 0.01, maxElements: 2 };
+	const params: SearchParams = { ...question, trackToleranceMm: 0, magnificationTolerance: 0.01, maxElements: 2, rankByBand: false, limit: 10 };
 	return {
 		packed: snap.packed,
 		seidel: snap.seidel,
 		partIndex: snap.partIndex,
 		untraceable: new Uint8Array(snap.elements.length),
+		rays: snap.rays,
+		coatOut: snap.coatOut,
 		partUnits: Int32Array.from(snap.parts.map(() => 3)),
 		candidates: Int32Array.from(snap.elements.map((_, i) => i)),
 		params,

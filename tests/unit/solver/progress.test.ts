@@ -35,7 +35,11 @@ describe('search progress', () => {
 		const r = await solveWithStock(stock, req, { onProgress: (p) => seen.push(p), progressEveryMs: 20 });
 		expect(seen.length).toBeGreaterThan(0);
 		for (let i = 1; i < seen.length; i++) expect(seen[i].fraction).toBeGreaterThanOrEqual(seen[i - 1].fraction);
-		expect(seen.at(-1)!.fraction).toBe(1);
+		// The whole bar when every pass ran to its end; short of it when the time budget stopped the bounding pass.
+		if (r.stats.truncated) {
+			expect(seen.at(-1)!.fraction).toBeLessThan(1);
+			expect(r.stats.provenBest).toBe(false);
+		} else expect(seen.at(-1)!.fraction).toBe(1);
 		const best = seen.at(-1)!.best;
 		expect(best).not.toBeNull();
 		for (const sku of best!.parts) expect(skus.has(sku)).toBe(true);

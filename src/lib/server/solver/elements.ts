@@ -17,7 +17,8 @@ import {
 } from '../../optics';
 import type { PartPlace } from '../../solver/types';
 import { SEIDEL_STRIDE, seidelPolynomial } from './seidel-poly';
-import { datasheetOnlyReason, exclusionReason } from './exclusions';
+import { coatingWarnings, datasheetOnlyReason, exclusionReason } from './exclusions';
+import { rayTable, type RayTable } from './rank-bound';
 
 /** A catalogue part as the solver sees it. */
 export interface CandidatePart {
@@ -71,6 +72,10 @@ export interface ElementSnapshot {
 	symmetricPart: boolean[];
 	/** 1 for an element without surfaces (black box: no real-ray trace). */
 	untraceable: Uint8Array;
+	/** The elements' surfaces as the rank bound traces them (rank-bound.ts). */
+	rays: RayTable;
+	/** 1 for an element whose part is used outside its coating band at this wavelength (a coating warning). */
+	coatOut: Uint8Array;
 	/** Parts that cannot be built at this wavelength, with the reason (grouped into `stats.partsExcluded`). */
 	skipped: { sku: string; reason: string; part: CandidatePart }[];
 }
@@ -163,6 +168,8 @@ export function buildElementSnapshot(parts: readonly CandidatePart[], wavelength
 		parts: kept,
 		symmetricPart: sym,
 		untraceable: Uint8Array.from(elements.map((e) => (e.surfaces === null ? 1 : 0))),
+		rays: rayTable(elements, partIdx.map((k) => kept[k].diameterMm)),
+		coatOut: Uint8Array.from(partIdx.map((k) => (coatingWarnings([kept[k]], wavelengthNm).length > 0 ? 1 : 0))),
 		skipped
 	};
 }

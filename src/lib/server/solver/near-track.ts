@@ -78,6 +78,8 @@ export function nearPairTracks(snap: ElementSnapshot, candidates: Int32Array, pa
 		seidel: snap.seidel,
 		partIndex: snap.partIndex,
 		untraceable: snap.untraceable,
+		rays: snap.rays,
+		coatOut: snap.coatOut,
 		partUnits,
 		candidates,
 		params: { ...searchParamsOf(req), trackToleranceMm: Math.min(NEAR_PAIR_WINDOW * req.trackMm, 1000), maxElements: 2 },

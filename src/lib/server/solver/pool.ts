@@ -12,6 +12,7 @@ import { Worker } from 'node:worker_threads';
 import { workerFileOf } from '$lib/server/worker-file';
 import os from 'node:os';
 import type { SearchParams } from './search-kernel';
+import type { RayTable } from './rank-bound';
 import type { SearchMessage, SnapshotMessage, WorkerReply } from './search-worker';
 import type { ModeSearchMessage } from './mode-shard';
 import type { BeamSearchParams } from './beam-kernel';
@@ -24,6 +25,8 @@ export interface PoolSnapshot {
 	seidel: Float64Array;
 	partIndex: Int32Array;
 	untraceable: Uint8Array;
+	rays: RayTable;
+	coatOut: Uint8Array;
 }
 
 export interface PoolSearch {
@@ -31,6 +34,8 @@ export interface PoolSearch {
 	partUnits: Int32Array;
 	params: SearchParams;
 	topK: number;
+	/** Keep only roots whose rank bound lies in this window (the second pass). */
+	boundRange?: { min: number; max: number } | null;
 	deadline: number;
 	signal?: AbortSignal;
 	/** A progress buffer (progress.ts) with a slot per worker: the shards write their progress into it. */
@@ -116,7 +121,9 @@ export async function searchOnPool(snapshot: PoolSnapshot, search: PoolSearch): 
 						packed: snapshot.packed,
 						seidel: snapshot.seidel,
 						partIndex: snapshot.partIndex,
-						untraceable: snapshot.untraceable
+						untraceable: snapshot.untraceable,
+						rays: snapshot.rays,
+						coatOut: snapshot.coatOut
 					};
 					slot.worker.postMessage(msg);
 					slot.keys.add(snapshot.key);
@@ -133,6 +140,7 @@ export async function searchOnPool(snapshot: PoolSnapshot, search: PoolSearch): 
 					shardIndex,
 					shardCount: list.length,
 					topK: search.topK,
+					boundRange: search.boundRange ?? null,
 					deadline: search.deadline,
 					cancel: cancelBuffer,
 					progress: search.progress ?? null

@@ -32,14 +32,9 @@ import {
 import type { ColourFigures } from '../../solver/types';
 import { partElement, type CandidatePart } from './elements';
 import type { EvalQuestion, PlacementChoice } from './evaluate';
+import { FAN_RAYS, edgeSpotAt, type EdgeTrace } from './field-edge';
 
-/** Rays (rings) of the axial spot of the final trace. */
-export const FAN_RAYS = 32;
-/** Rings and spokes (over the half plane, mirrored) of the field edge's sample of its passed cone: 60 rays standing for 120 (12 equal angles round the full circle integrate the squared terms of coma and astigmatism exactly). */
-const EDGE_RINGS = 10;
-const EDGE_SPOKES = 6;
-/** Cells across the square grid used when the field edge's passed rays do not surround a passing centre. */
-const EDGE_GRID = 16;
+export { FAN_RAYS, edgeTrace, type EdgeTrace } from './field-edge';
 
 /** The aperture stop as (part index, surface 1-based within the part). */
 export function stopOf(sys: TraceSystem, k: number): { partIndex: number; surface: number } {
@@ -47,46 +42,6 @@ export function stopOf(sys: TraceSystem, k: number): { partIndex: number; surfac
 	let first = k;
 	while (first > 0 && sys.elementIndex[first - 1] === e) first--;
 	return { partIndex: e, surface: k - first + 1 };
-}
-
-/** The field edge traced: its spot, the fraction of the requested cone lost, and how it was sampled. */
-export interface EdgeTrace {
-	rmsMm: number | null;
-	/** Centroid height of the edge spot, mm (NaN when no ray arrives). */
-	centroidMm: number;
-	lostFraction: number;
-	sinChief: number;
-	/** The passed part of the cone, sampled by `pupilSpot` (null: nothing passes, or the fallback grid was used). */
-	pupil: PupilEllipse | null;
-}
-
-/**
- * The field edge around its real chief ray (through the centre of the aperture stop): the passed
- * part of the requested cone (`edgePupil`) sampled by `pupilSpot`; when the passed rays do not
- * surround a passing centre, a square grid over the whole requested cone (`fieldGridSpot`);
- * when nothing passes, the field edge is blocked (all of its cone lost, no spot).
- */
-export function edgeTrace(sys: TraceSystem, h: number, na: number, stopSurface: number): EdgeTrace {
-	const sinChief = stopChiefSine(sys, h, stopSurface);
-	const pupil = edgePupil(sys, h, sinChief, na);
-	if (pupil) {
-		const spot = pupilSpot(sys, h, pupil, { rings: EDGE_RINGS, spokes: EDGE_SPOKES });
-		// Rounding in the share of a cone that passes whole (ellipse = the cone) is not a loss.
-		const lost = 1 - spot.passedShare;
-		if (spot.raysTraced > 0) return { rmsMm: spot.rmsAboutCentroidMm, centroidMm: spot.centroidMm, lostFraction: lost < 1e-12 ? 0 : lost, sinChief, pupil };
-	}
-	const grid = fieldGridSpot(sys, h, { sinChief, radiusSine: na, grid: EDGE_GRID });
-	return { rmsMm: grid.raysTraced > 0 ? grid.rmsAboutCentroidMm : null, centroidMm: grid.centroidMm, lostFraction: 1 - grid.passedFraction, sinChief, pupil: null };
-}
-
-/** The field edge's spot at another wavelength, sampled as `edgeTrace` sampled it. */
-function edgeSpotAt(sys: TraceSystem, h: number, na: number, e: EdgeTrace): { rmsAboutCentroidMm: number; centroidMm: number } | null {
-	if (e.pupil) {
-		const spot = pupilSpot(sys, h, e.pupil, { rings: EDGE_RINGS, spokes: EDGE_SPOKES });
-		return spot.raysTraced > 0 ? spot : null;
-	}
-	const grid = fieldGridSpot(sys, h, { sinChief: e.sinChief, radiusSine: na, grid: EDGE_GRID });
-	return grid.raysTraced > 0 ? grid : null;
 }
 
 /**

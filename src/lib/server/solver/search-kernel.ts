@@ -31,6 +31,8 @@ import {
 import { checkSinglePhysical, checkPairPhysical } from '../../optics/physical';
 import { evalSeidel } from './seidel-poly';
 import { offerBest, PG_FRACTION } from './progress';
+import { rankBound, boundUpper, BOUND_CHEAP, BOUND_FULL, type BoundQuestion, type RayTable } from './rank-bound';
+import { packRankParts, WORKING_DISTANCE_STEP_MM } from '../../solver/ranking';
 import type { ParsedImagingRequest } from '../../solver/request';
 
 /** Numbers per candidate record. */
@@ -43,7 +45,11 @@ export const REC_G = 3;
 export const REC_D = 4;
 export const REC_M = 5;
 export const REC_FLAGS = 6;
-/** Screen score: lower is better (third-order spot over Airy, times aperture penalties). */
+/**
+ * Lower is better. The screening pass: the screen score (third-order spot over Airy, times
+ * aperture penalties). The bounding pass (`boundRange` given): a lower bound of the answer's
+ * ranking key, packed (`packRankParts`; rank-bound.ts).
+ */
 export const REC_SCORE = 7;
 /** Largest paraxial marginal-ray height over clear semi-aperture. */
 export const REC_FILL_AXIAL = 8;
@@ -72,6 +78,10 @@ export interface SearchParams {
 	minWorkingDistanceMm: number;
 	maxElements: number;
 	wavelengthNm: number;
+	/** Ranked over the colour band (the spot bound is then 0). */
+	rankByBand: boolean;
+	/** Answers asked for (N): the bounding pass's bar is the N-th best key. */
+	limit: number;
 }
 
 /** The question as the search kernel reads it. */
@@ -86,7 +96,9 @@ export function searchParamsOf(req: ParsedImagingRequest): SearchParams {
 		minGapMm: req.minGapMm,
 		minWorkingDistanceMm: req.minWorkingDistanceMm,
 		maxElements: req.maxElements,
-		wavelengthNm: req.wavelengthNm
+		wavelengthNm: req.wavelengthNm,
+		rankByBand: req.rankBy === 'band',
+		limit: req.limit
 	};
 }
 
@@ -109,6 +121,10 @@ export interface ShardInput {
 	partIndex: Int32Array;
 	/** 1 for an element without surfaces. */
 	untraceable: Uint8Array;
+	/** The elements' surfaces for the rank bound's real rays. */
+	rays: RayTable;
+	/** 1 for an element whose part is used outside its coating band at the wavelength. */
+	coatOut: Uint8Array;
 	/** Units a setup may use of each part (a part may appear twice only with ≥ 2). */
 	partUnits: Int32Array;
 	/** Element indices allowed in this search. */
@@ -118,6 +134,11 @@ export interface ShardInput {
 	shardCount: number;
 	/** Keep this many best candidates (Infinity: keep every physical root, for tests). */
 	topK: number;
+	/**
+	 * Null: the screening pass, candidates ranked by the screen score. Else the bounding pass:
+	 * every physical root whose rank bound lies in [min, max], the best `topK` bounds kept.
+	 */
+	boundRange?: { min: number; max: number } | null;
 	/** Stop (truncated) after this time (Date.now() ms). */
 	deadline: number;
 	/** Stop when cancel[0] becomes non-zero (SharedArrayBuffer from the pool). */
@@ -315,31 +336,91 @@ function scoreOf(saMm: number, airyMm: number, fillA: number, fillE: number, unt
 const counters = new Float64Array(3);
 const rec = new Float64Array(REC_STRIDE);
 
-/** Screens one physical root (in `roots` at `base`) and offers it to the top-K. */
+/**
+ * Offers one physical root (in `roots` at `base`) to the top-K. Screening pass: by the screen
+ * score. Bounding pass: by its rank bound, the cheap bound first and the exact axial one only when
+ * the cheap one would be kept.
+ */
 function consider(ctx: ShardContext, i: number, j: number, base: number, untr: boolean, trackMm: number): void {
-	const { packed, seidel, p, top } = ctx;
+	const { packed, seidel, p, top, rays, coatOut, boundQ, range } = ctx;
 	const s = roots[base + ROOT_OBJECT_DISTANCE],
 		g = roots[base + ROOT_GAP],
+		d = roots[base + ROOT_BACK_DISTANCE],
 		mAch = roots[base + ROOT_MAGNIFICATION];
-	screen(packed, seidel, i, j, s, g, p);
-	const airy = airyForMagnification(p.wavelengthNm, p.objectNA, mAch);
-	const score = scoreOf(screenOut[2], airy, screenOut[0], screenOut[1], untr);
-	if (!top.admits(score)) return;
+	let key: number;
+	if (range === null) {
+		screen(packed, seidel, i, j, s, g, p);
+		key = scoreOf(screenOut[2], airyForMagnification(p.wavelengthNm, p.objectNA, mAch), screenOut[0], screenOut[1], untr);
+		if (!top.admits(key)) return;
+	} else {
+		const coat = coatOut[i] | (j >= 0 ? coatOut[j] : 0);
+		// The cheap tier, then (when it may still rank) the full one; a black box's key is exact at once.
+		key = rankBound(rays, packed, boundQ, i, j, s, g, d, mAch, untr, coat, BOUND_CHEAP, ctx.bar);
+		if (!untr && key <= ctx.bar && top.admits(key)) key = rankBound(rays, packed, boundQ, i, j, s, g, d, mAch, untr, coat, BOUND_FULL);
+		if (key > ctx.bar || key < range.min || !top.admits(key)) return;
+		if (boundUpper[0] < ctx.bar && answerCheck(packed, i, j, s, g, d, p.magnification)) lowerBar(ctx, boundUpper[0]);
+		screen(packed, seidel, i, j, s, g, p);
+	}
 	rec[REC_I] = i;
 	rec[REC_J] = j;
 	rec[REC_S] = s;
 	rec[REC_G] = g;
-	rec[REC_D] = roots[base + ROOT_BACK_DISTANCE];
+	rec[REC_D] = d;
 	rec[REC_M] = mAch;
 	rec[REC_FLAGS] = roots[base + ROOT_FLAGS];
-	rec[REC_SCORE] = score;
+	rec[REC_SCORE] = key;
 	rec[REC_FILL_AXIAL] = screenOut[0];
 	rec[REC_FILL_EDGE] = screenOut[1];
 	rec[REC_SA_MM] = screenOut[2];
 	rec[REC_UNTRACEABLE] = untr ? 1 : 0;
 	rec[REC_TRACK] = trackMm;
 	top.push(rec);
-	offerBest(progressOut, i, j, score);
+	offerBest(progressOut, i, j, key);
+}
+
+/**
+ * True when the placement is surely an answer: the evaluation's matrix check (evaluate.ts,
+ * VERIFY_B_TOL_MM and VERIFY_A_TOL) passes with half its tolerance, so rounding in the product's
+ * order cannot fail it there. Pairs must hit the magnification asked; a single only focuses.
+ */
+function answerCheck(packed: Float64Array, i: number, j: number, s: number, g: number, d: number, m: number): boolean {
+	let o = i * ELEMENT_STRIDE;
+	// Element i after the object distance: [A B; C D] = E_i · P(s).
+	let A = packed[o + EL_A],
+		B = packed[o + EL_A] * s + packed[o + EL_B],
+		C = packed[o + EL_C],
+		D = packed[o + EL_C] * s + packed[o + EL_D];
+	if (j >= 0) {
+		A += g * C;
+		B += g * D;
+		o = j * ELEMENT_STRIDE;
+		const a = packed[o + EL_A],
+			b = packed[o + EL_B],
+			c = packed[o + EL_C],
+			dd = packed[o + EL_D];
+		const A2 = a * A + b * C,
+			B2 = a * B + b * D;
+		C = c * A + dd * C;
+		D = c * B + dd * D;
+		A = A2;
+		B = B2;
+	}
+	A += d * C;
+	B += d * D;
+	if (!(Math.abs(B) <= 0.5e-6)) return false;
+	return j < 0 || Math.abs(A - m) <= 0.5e-6 * Math.max(1, Math.abs(A));
+}
+
+/** Counts an answer's upper key towards the shard's N best and lowers the bar to the N-th of them. */
+function lowerBar(ctx: ShardContext, upper: number): void {
+	const b = ctx.barKeys;
+	const n = ctx.p.limit;
+	let k = b.length;
+	while (k > 0 && b[k - 1] > upper) k--;
+	if (k >= n) return;
+	b.splice(k, 0, upper);
+	if (b.length > n) b.pop();
+	if (b.length === n) ctx.bar = Math.min(ctx.bar, b[n - 1]);
 }
 
 /** Every single element of the candidates. */
@@ -417,8 +498,21 @@ function toSoa(packed: Float64Array): Soa {
  * What every step of one shard's search reads, built once per shard (`shardContext`): the
  * snapshot's arrays, the question, the top-K and the matrices as separate arrays.
  */
-interface ShardContext extends Pick<ShardInput, 'packed' | 'seidel' | 'partIndex' | 'untraceable' | 'partUnits' | 'candidates'> {
+interface ShardContext extends Pick<ShardInput, 'packed' | 'seidel' | 'partIndex' | 'untraceable' | 'partUnits' | 'candidates' | 'rays' | 'coatOut'> {
 	p: SearchParams;
+	/** The question as the rank bound reads it. */
+	boundQ: BoundQuestion;
+	/** The bounding pass's window of bounds (null: the screening pass). */
+	range: { min: number; max: number } | null;
+	/**
+	 * Bounding pass: no root with a bound above this can rank among the first N: the window's top,
+	 * lowered to the N-th best key of the answers this shard has fully bounded (`lowerBar`).
+	 */
+	bar: number;
+	/** Upper keys of this shard's best answers (at most `limit`), ascending. */
+	barKeys: number[];
+	/** Slack added to the prefilter's approximate working distance, mm (its roots are approximate). */
+	wdSlack: number;
 	top: TopK;
 	/** The matrices as separate arrays; null when the question asks for single parts only. */
 	soa: Soa | null;
@@ -432,7 +526,7 @@ interface ShardContext extends Pick<ShardInput, 'packed' | 'seidel' | 'partIndex
 }
 
 function shardContext(input: ShardInput, top: TopK): ShardContext {
-	const { packed, seidel, partIndex, untraceable, partUnits, candidates, params: p } = input;
+	const { packed, seidel, partIndex, untraceable, partUnits, candidates, rays, coatOut, params: p } = input;
 	const soa = p.maxElements >= 2 ? toSoa(packed) : null;
 	const m = p.magnification;
 	const slack = 1e-6 * (Math.abs(p.trackMm) + 1);
@@ -443,7 +537,14 @@ function shardContext(input: ShardInput, top: TopK): ShardContext {
 		untraceable,
 		partUnits,
 		candidates,
+		rays,
+		coatOut,
 		p,
+		boundQ: { objectNA: p.objectNA, objectHeightMm: p.objectHeightMm, wavelengthNm: p.wavelengthNm, byBand: p.rankByBand },
+		range: input.boundRange ?? null,
+		bar: input.boundRange ? input.boundRange.max : Infinity,
+		barKeys: [],
+		wdSlack: 1e-6 * (Math.abs(p.trackMm) + 1),
 		top,
 		soa,
 		im: 1 / m,
@@ -517,13 +618,14 @@ function anyPhysicalPair(ctx: ShardContext, i: number, j: number, k: number): bo
 
 /** Every ordered pair with element i first. */
 function pairRow(ctx: ShardContext, i: number): void {
-	const { packed, seidel, partIndex, untraceable, partUnits, candidates, p, top, mu, im, minS, minG, airyPair, u0 } = ctx;
+	const { packed, seidel, partIndex, untraceable, partUnits, candidates, coatOut, p, top, range, mu, im, minS, minG, wdSlack, airyPair, u0 } = ctx;
 	const soa = ctx.soa as Soa;
 	const n = candidates.length;
 	const m = p.magnification;
 	const pi = partIndex[i];
 	const tol = p.trackToleranceMm;
 	const ui = untraceable[i] === 1;
+	const ci = coatOut[i];
 	const sa = soa.a,
 		sb = soa.b,
 		sc = soa.c,
@@ -589,9 +691,17 @@ function pairRow(ctx: ShardContext, i: number): void {
 					}
 					const lim = kC * kC * minS;
 					if (!((im - kD) * kC >= lim && (m - kA) * kC >= lim)) continue;
-					// Lower bound of the screen score (aperture penalties only raise it).
-					const bound = sphericalRms(packed, seidel, i, j, (im - kD) / kC, g, u0) / airyPair;
-					need = top.admits((ui || untraceable[j] === 1 ? UNTRACEABLE_OFFSET + bound : bound) * (1 - 1e-9));
+					if (range === null) {
+						// Lower bound of the screen score (aperture penalties only raise it).
+						const bound = sphericalRms(packed, seidel, i, j, (im - kD) / kC, g, u0) / airyPair;
+						need = top.admits((ui || untraceable[j] === 1 ? UNTRACEABLE_OFFSET + bound : bound) * (1 - 1e-9));
+					} else {
+						// Lower bound of the rank bound from what is exact without rays: coating, the
+						// working-distance step (of the approximate root, with a slack) and part count.
+						const wd = Math.min((im - kD) / kC, (m - kA) / kC) + wdSlack;
+						const low = packRankParts(0, ci | coatOut[j], 0, -Math.floor(wd / WORKING_DISTANCE_STEP_MM), 2, 0);
+						need = low <= ctx.bar && top.admits(low);
+					}
 				}
 				if (!need) continue;
 			}

@@ -6,6 +6,7 @@
  */
 import { isMainThread, parentPort, workerData } from 'node:worker_threads';
 import { searchShard, type SearchParams } from './search-kernel';
+import type { RayTable } from './rank-bound';
 import { runModeShard, type ModeSearchMessage } from './mode-shard';
 import { progressSlot } from './progress';
 
@@ -22,6 +23,8 @@ export interface SnapshotMessage {
 	seidel: Float64Array;
 	partIndex: Int32Array;
 	untraceable: Uint8Array;
+	rays: RayTable;
+	coatOut: Uint8Array;
 }
 
 export interface SearchMessage {
@@ -34,6 +37,7 @@ export interface SearchMessage {
 	shardIndex: number;
 	shardCount: number;
 	topK: number;
+	boundRange?: { min: number; max: number } | null;
 	deadline: number;
 	cancel: SharedArrayBuffer;
 	progress?: SharedArrayBuffer | null;
@@ -79,12 +83,15 @@ function startLoop(): void {
 				seidel: snap.seidel,
 				partIndex: snap.partIndex,
 				untraceable: snap.untraceable,
+				rays: snap.rays,
+				coatOut: snap.coatOut,
 				partUnits: msg.partUnits,
 				candidates: msg.candidates,
 				params: msg.params,
 				shardIndex: msg.shardIndex,
 				shardCount: msg.shardCount,
 				topK: msg.topK,
+				boundRange: msg.boundRange ?? null,
 				deadline: msg.deadline,
 				cancel: new Int32Array(msg.cancel),
 				progress: progressSlot(msg.progress, msg.shardIndex)

@@ -28,6 +28,7 @@ import {
 } from './search-kernel';
 import { searchOnPool, workerCount } from './pool';
 import { evaluatePlacement, rankKey, compareKeys, type PlacementChoice } from './evaluate';
+import { packRankKey } from '../../solver/ranking';
 import { coatingExclusionReason, coatingWarnings, groupExcluded, outsideCoating } from './exclusions';
 
 /** The answer with its coating warnings (parts in the order light meets them); none → no `warnings` key change. */
@@ -36,10 +37,14 @@ export function withCoatingWarnings<S extends { warnings?: Solution['warnings'] 
 	return { ...s, warnings: [...(s.warnings ?? []).filter((x) => x.code !== 'coating-out-of-band'), ...w] };
 }
 
-/** Candidates each shard keeps for the final stage. */
+/** Candidates each shard keeps in the screening pass. */
 export const TOP_K_PER_SHARD = 400;
-/** Candidates traced with real rays after the merge. */
+/** Candidates of the screening pass traced with real rays after the merge. */
 export const TRACE_COUNT = 480;
+/** Share of the progress bar the screening pass fills (the bounding passes fill the rest). */
+const SCREEN_SHARE = 0.4;
+/** Roots a shard keeps in a bounding pass (best bounds first); another pass fetches the rest if it fills. */
+export const BOUND_PASS_K = 20000;
 
 /** The stock the solver works on: a key that changes whenever it does, and its parts. */
 export interface StockView {
@@ -148,13 +153,29 @@ export async function solveWithStock(stock: StockView, req: ParsedImagingRequest
 	const { key, snapshot: snap } = snapshotFor(stock, req.wavelengthNm);
 	const { candidates, partUnits, parts, excluded } = candidateFilter(snap, req);
 	const tSearch = performance.now();
-	const { shards, workers } = await searchShards(key, snap, candidates, partUnits, req, options);
+	const deadline = Date.now() + req.timeBudgetMs;
+	// Progress: the screening pass fills the first 40 % of the bar, the bounding passes the rest.
+	let shown = 0;
+	const stage = (from: number, to: number): SolveOptions => {
+		const tell = options.onProgress;
+		if (!tell) return options;
+		return { ...options, onProgress: (p) => tell({ ...p, fraction: (shown = Math.max(shown, from + (to - from) * p.fraction)) }) };
+	};
+	const search = (boundRange: BoundRange | null) =>
+		searchShards(key, snap, candidates, partUnits, req, boundRange ? stage(SCREEN_SHARE, 1) : stage(0, options.keepAll ? 1 : SCREEN_SHARE), deadline, boundRange);
+	// The screening pass: the candidates the paraxial screen likes best, traced; they set the N-th answer's key.
+	const screened = await search(null);
+	const limit = options.keepAll ? Infinity : req.limit;
+	const bb = new BranchAndBound(snap, req, limit, deadline);
+	bb.traceAll(mergeShards(screened.shards).slice(0, options.keepAll ? undefined : TRACE_COUNT));
+	// The bounding pass proves it (or finds what beats it): every root whose rank bound does not exceed that key.
+	const proof = options.keepAll ? { proven: true, truncated: false, physicalRoots: null } : await prove(bb, search, deadline, options.signal);
 	const searchMs = performance.now() - tSearch;
 	if (options.signal?.aborted) throw new DomainError(499, 'cancelled', 'The request was cancelled.');
-
-	const toTrace = mergeShards(shards, options.keepAll ? Infinity : TRACE_COUNT);
-	const solutions = rankTraced(toTrace, snap, req, options.keepAll ? Infinity : req.limit);
-
+	const solutions = bb.result();
+	const shards = screened.shards;
+	const truncated = shards.some((s) => s.truncated) || proof.truncated;
+	const { workers } = screened;
 	const sum = (f: (s: ShardResult) => number) => shards.reduce((a, s) => a + f(s), 0);
 	return {
 		request: req,
@@ -165,11 +186,12 @@ export async function solveWithStock(stock: StockView, req: ParsedImagingRequest
 			elementsConsidered: candidates.length,
 			configurationsEvaluated: sum((s) => s.configurationsEvaluated),
 			rootsFound: sum((s) => s.rootsFound),
-			physicalRoots: sum((s) => s.physicalRoots),
-			traced: toTrace.length,
+			physicalRoots: proof.physicalRoots ?? sum((s) => s.physicalRoots),
+			traced: bb.traced,
 			elapsedMs: Math.round((performance.now() - t0) * 10) / 10,
 			searchMs: Math.round(searchMs * 10) / 10,
-			truncated: shards.some((s) => s.truncated),
+			truncated,
+			provenBest: !truncated && proof.proven,
 			workers,
 			partsExcluded: excluded
 		}
@@ -184,59 +206,175 @@ async function searchShards(
 	candidates: Int32Array,
 	partUnits: Int32Array,
 	req: ParsedImagingRequest,
-	options: SolveOptions
-): Promise<{ shards: ShardResult[]; workers: number }> {
+	options: SolveOptions,
+	deadline: number,
+	boundRange: BoundRange | null
+): Promise<{ shards: KeptShard[]; workers: number }> {
 	const params = searchParamsOf(req);
-	const deadline = Date.now() + req.timeBudgetMs;
-	const { packed, seidel, partIndex, untraceable } = snap;
+	const { packed, seidel, partIndex, untraceable, rays, coatOut } = snap;
+	const topK = options.keepAll ? Infinity : boundRange ? BOUND_PASS_K : TOP_K_PER_SHARD;
 	if (options.inline) {
-		const topK = options.keepAll ? Infinity : TOP_K_PER_SHARD;
-		return { shards: [searchShard({ packed, seidel, partIndex, untraceable, partUnits, candidates, params, shardIndex: 0, shardCount: 1, topK, deadline })], workers: 0 };
+		const input = { packed, seidel, partIndex, untraceable, rays, coatOut, partUnits, candidates, params, shardIndex: 0, shardCount: 1, topK, boundRange, deadline };
+		return { shards: [{ ...searchShard(input), kept: topK }], workers: 0 };
 	}
 	const workers = workerCount();
 	const watch = watchProgress(options, workers, ({ i, j }) => ({ parts: (j < 0 ? [i] : [i, j]).map((e) => snap.parts[snap.partIndex[e]].sku) }));
 	try {
 		const shards = await searchOnPool(
-			{ key, packed, seidel, partIndex, untraceable },
-			{ candidates, partUnits, params, topK: TOP_K_PER_SHARD, deadline, signal: options.signal, progress: watch.buffer }
+			{ key, packed, seidel, partIndex, untraceable, rays, coatOut },
+			{ candidates, partUnits, params, topK, boundRange, deadline, signal: options.signal, progress: watch.buffer }
 		);
-		return { shards, workers };
+		return { shards: shards.map((sh) => ({ ...sh, kept: topK })), workers };
 	} finally {
 		watch.stop();
 	}
 }
 
-/** Merge: every shard's records, best screen score first, the first `count` of them. */
-function mergeShards(shards: ShardResult[], count: number): Float64Array[] {
-	const all: { rec: Float64Array; score: number }[] = [];
-	for (const sh of shards) {
-		for (let k = 0; k < sh.count; k++) {
-			const rec = sh.records.subarray(k * REC_STRIDE, (k + 1) * REC_STRIDE);
-			all.push({ rec, score: rec[REC_SCORE] });
-		}
+/**
+ * The bounding passes: roots with a rank bound up to the N-th answer's key, traced best bound
+ * first; when a shard filled its buffer, another pass fetches the bounds above its last kept one.
+ * `proven`: every root that could rank among the first N was traced.
+ */
+async function prove(
+	bb: BranchAndBound,
+	search: (range: BoundRange | null) => Promise<{ shards: KeptShard[] }>,
+	deadline: number,
+	signal: AbortSignal | undefined
+): Promise<{ proven: boolean; truncated: boolean; physicalRoots: number | null }> {
+	let range: BoundRange | null = { min: -Infinity, max: bb.bar };
+	let physicalRoots: number | null = null;
+	while (range !== null) {
+		if (Date.now() > deadline || signal?.aborted) return { proven: false, truncated: true, physicalRoots };
+		const { shards } = await search(range);
+		physicalRoots ??= shards.reduce((a, sh) => a + sh.physicalRoots, 0);
+		bb.trace(mergeShards(shards));
+		if (shards.some((sh) => sh.truncated) || bb.cutShort) return { proven: false, truncated: true, physicalRoots };
+		const next = bb.openWindow(shards);
+		// Ties at the last kept bound would repeat the same pass: stop (not proven).
+		if (next !== null && !(next.min > range.min)) return { proven: false, truncated: false, physicalRoots };
+		range = next;
 	}
-	all.sort((a, b) => a.score - b.score);
-	return (Number.isFinite(count) ? all.slice(0, count) : all).map((x) => x.rec);
+	return { proven: true, truncated: false, physicalRoots };
+}
+
+/** A window of rank bounds (packed keys, both ends included) a second pass keeps. */
+type BoundRange = { min: number; max: number };
+/** A shard's result with how many records it could keep (its K). */
+type KeptShard = ShardResult & { kept: number };
+
+/** Merge: every shard's records, best rank bound first. */
+function mergeShards(shards: ShardResult[]): Float64Array[] {
+	const all: Float64Array[] = [];
+	for (const sh of shards) for (let k = 0; k < sh.count; k++) all.push(sh.records.subarray(k * REC_STRIDE, (k + 1) * REC_STRIDE));
+	return all.sort((a, b) => a[REC_SCORE] - b[REC_SCORE]);
+}
+
+/** One traced answer: its figures, ranking key (and packed), and how to evaluate it again in full. */
+interface TracedAnswer {
+	s: Omit<Solution, 'rank'>;
+	key: number[];
+	packed: number;
+	/** The root's identity (elements, placement): ties are ordered by it, and a root is traced once. */
+	id: string;
+	again: () => Omit<Solution, 'rank'>;
 }
 
 /**
- * Every candidate with the figures that rank (the colour band only when it ranks), ranked; the first `limit`
- * answers are evaluated again in full (drawing rays, tolerance view, colour band): the same figures, so the same order.
+ * The exact top-N by branch and bound: roots are traced best rank bound first (each record's
+ * REC_SCORE is a lower bound of its answer's key, rank-bound.ts) until the next bound is above the
+ * N-th answer's key. A root whose bound is above it cannot rank among the first N; nor can any root
+ * a shard dropped, once the shard's last kept bound is above it (`openWindow` says when a second
+ * pass must fetch the rest). Figures of the ranking only (and the colour band when it ranks); the
+ * first N are evaluated again in full (the same figures, so the same order).
  */
-function rankTraced(toTrace: Float64Array[], snap: ElementSnapshot, req: ParsedImagingRequest, limit: number): Solution[] {
-	const evaluated: { s: Omit<Solution, 'rank'>; again: () => Omit<Solution, 'rank'> }[] = [];
-	const rankOnly = { colour: req.rankBy === 'band', details: false };
-	for (const rec of toTrace) {
+class BranchAndBound {
+	readonly answers: TracedAnswer[] = [];
+	/** Packed keys of the best `limit` answers so far, ascending. */
+	private best: number[] = [];
+	private seen = new Set<string>();
+	traced = 0;
+	/** The tracing stopped at the time budget with roots left that could still rank. */
+	cutShort = false;
+
+	constructor(
+		private readonly snap: ElementSnapshot,
+		private readonly req: ParsedImagingRequest,
+		private readonly limit: number,
+		private readonly deadline: number
+	) {}
+
+	/** The N-th answer's packed key (Infinity while there are fewer than N). */
+	get bar(): number {
+		return this.best.length >= this.limit ? this.best[this.limit - 1] : Infinity;
+	}
+
+	/** Traces every one of `records` (the screening pass's best). */
+	traceAll(records: Float64Array[]): void {
+		this.trace(records, false);
+	}
+
+	/** Traces `records` (best bound first) until the next bound cannot beat the N-th answer. */
+	trace(records: Float64Array[], bounded = true): void {
+		for (const rec of records) {
+			if (bounded && rec[REC_SCORE] > this.bar) return;
+			const id = `${rec[REC_I]},${rec[REC_J]},${rec[REC_S]},${rec[REC_G]},${rec[REC_TRACK]}`;
+			if (this.seen.has(id)) continue;
+			if (this.answers.length >= this.limit && Date.now() > this.deadline) {
+				this.cutShort = true;
+				return;
+			}
+			this.seen.add(id);
+			this.traced++;
+			const a = this.evaluate(rec, id);
+			if (a) this.add(a);
+		}
+	}
+
+	private add(a: TracedAnswer): void {
+		this.answers.push(a);
+		if (!Number.isFinite(this.limit)) return;
+		const b = this.best;
+		let k = b.length;
+		while (k > 0 && b[k - 1] > a.packed) k--;
+		if (k < this.limit) {
+			b.splice(k, 0, a.packed);
+			if (b.length > this.limit) b.pop();
+		}
+	}
+
+	private evaluate(rec: Float64Array, id: string): TracedAnswer | null {
+		const { snap, req } = this;
 		const { choice, symmetric, trackMm } = placementOf(rec, snap, req);
 		const asked = trackMm === req.trackMm ? req : { ...req, trackMm };
-		const ev = evaluatePlacement(choice, asked, symmetric, rankOnly);
+		const ev = evaluatePlacement(choice, asked, symmetric, { colour: req.rankBy === 'band', details: false });
+		if (!ev.verified) return null;
 		// The answer with the track it uses and its coating warnings.
 		const finish = (sol: Omit<Solution, 'rank'>) => ({ ...withCoatingWarnings(sol, choice.parts, req.wavelengthNm), trackOffsetMm: trackMm - req.trackMm });
-		if (ev.verified) evaluated.push({ s: finish(ev.solution), again: () => finish(evaluatePlacement(choice, asked, symmetric).solution) });
+		const s = finish(ev.solution);
+		const key = rankKey(s, req.rankBy);
+		return { s, key, packed: packRankKey(key), id, again: () => finish(evaluatePlacement(choice, asked, symmetric).solution) };
 	}
-	const keyed = evaluated.map((e) => ({ e, k: rankKey(e.s, req.rankBy) }));
-	keyed.sort((a, b) => compareKeys(a.k, b.k));
-	return keyed.slice(0, limit).map(({ e }, n) => ({ rank: n + 1, ...e.again() }));
+
+	/**
+	 * The window of bounds a second pass must fetch, or null when none: from the lowest last-kept
+	 * bound of a shard that was full (it may have dropped roots bounded by that or more) up to the
+	 * N-th answer's key, when that lowest bound does not exceed it.
+	 */
+	openWindow(shards: readonly KeptShard[]): BoundRange | null {
+		let min = Infinity;
+		for (const sh of shards) {
+			if (sh.count < sh.kept || sh.count === 0) continue;
+			min = Math.min(min, sh.records[(sh.count - 1) * REC_STRIDE + REC_SCORE]);
+		}
+		const max = this.bar;
+		return Number.isFinite(min) && min <= max ? { min, max } : null;
+	}
+
+	/** The first N answers by the ranking key (ties by the root's identity), evaluated again in full. */
+	result(): Solution[] {
+		const sorted = [...this.answers].sort((a, b) => compareKeys(a.key, b.key) || (a.id < b.id ? -1 : a.id > b.id ? 1 : 0));
+		return sorted.slice(0, this.limit).map((a, n) => ({ rank: n + 1, ...a.again() }));
+	}
 }
 
 /** A search record as the evaluation reads it: the parts and elements in order, the placement, the track it uses. */

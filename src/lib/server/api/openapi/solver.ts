@@ -79,6 +79,7 @@ export const solverPaths: OpenApiPaths = {
 							configurationsEvaluated: int,
 							elapsedMs: z.number(),
 							truncated: z.boolean(),
+							provenBest: z.boolean().optional().describe('imaging: every root that could rank among the answers was traced (the best N are proven); false when the time budget cut it short'),
 							partsExcluded: z
 								.array(z.looseObject({ reason: z.string(), count: int, skus: z.array(z.string()) }))
 								.describe('parts left out and why, one entry per reason (no index at the wavelength, outside the coating band when asked)')

@@ -1,0 +1,267 @@
+/**
+ * A lower bound of an imaging answer's ranking key (`rankKey` in solver/ranking.ts), in three tiers
+ * of cost, so that the search can bound every physical root it finds: the solver then traces the
+ * roots best bound first until no root left can beat the N-th answer (branch and bound, solve.ts).
+ * Safe by construction, component by component:
+ *
+ * - coating class, working-distance step and part count: exact (they follow from the parts and
+ *   the placement the root already gives);
+ * - BOUND_CHEAP: the rim ray, then the rays of the axial fan from the outside in until the bound
+ *   exceeds the bar it is given. The evaluation ranks by max(axial RMS, edge RMS) / Airy, and the
+ *   axial RMS is the RMS of the FAN_RAYS fan heights that reach the target (`axialSpot`, pupil radii
+ *   √((k − ½)/K)): the sum over some of them divided by FAN_RAYS is at most its square; the whole
+ *   fan gives it exactly. When the rim is cut, the first steps of `axialCone`'s own bisection show whether the
+ *   cone it will find loses more than the tolerance (vignetting class 2 or 3), else the bound is 0;
+ * - BOUND_AXIAL: the axial figures exactly (the same `axialCone` and `axialSpot` calls);
+ * - BOUND_FULL: with the field edge's `edgeTrace` too: the monochromatic key itself but for the
+ *   rounding of the Airy radius (the root's magnification instead of the matrix's, equal to about
+ *   1e-12; the bound is lowered by 1e-9 of the ratio, and `boundUpper` raised by as much).
+ *
+ * The rays run through a trace system built as the evaluation builds it (traceSystemFromLayout:
+ * the same numbers, the same sums in the same order), so they are the same rays. Ranked by the
+ * colour band, the spot part of the bound is 0 (the band's spots are other rays).
+ *
+ * Pure and allocation-free in the cheap tier (scratch buffers per module; one search per thread at a time).
+ */
+import { axialCone, axialSpot, airyRadiusMm, workingFNumber, imageSideNA, CONE_TOP, CONE_STEPS } from '../../optics/spot';
+import { startRay, traceRay, heightAtPlane, RAY_STRIDE, TRACE_OK, type TraceSystem } from '../../optics/raytrace';
+import { ELEMENT_STRIDE, EL_THICKNESS } from '../../optics/snapshot';
+import type { ThickElement } from '../../optics/element';
+import { packRankParts as pack, spotBand, EDGE_BLOCKED_RATIO, VIGNETTING_TOLERANCE, WORKING_DISTANCE_STEP_MM } from '../../solver/ranking';
+import { FAN_RAYS, edgeTrace } from './field-edge';
+
+/** Numbers per surface in the ray table: vertex offset in the element, curvature, index after, semi-aperture. */
+const SURFACE_NUMBERS = 4;
+
+/** Per element: its surfaces as the trace system needs them (see `rayTable`). */
+export interface RayTable {
+	/** Numbers per element: 1 + SURFACE_NUMBERS · maxSurfaces. */
+	stride: number;
+	/** Per element: [surface count, then per surface: vertexMm, curvature, indexAfter, semiApertureMm]. */
+	data: Float64Array;
+}
+
+/**
+ * The ray table of oriented elements: for each, the numbers `traceSystemFromLayout` puts in the
+ * trace system (curvature 1/R, 0 for flat; the semi-aperture as the smaller of half the clear
+ * aperture and half the part's outer diameter). Black boxes have 0 surfaces.
+ */
+export function rayTable(elements: readonly ThickElement[], outerDiametersMm: readonly (number | null)[]): RayTable {
+	const maxSurfaces = Math.max(1, ...elements.map((e) => e.surfaces?.length ?? 0));
+	const stride = 1 + SURFACE_NUMBERS * maxSurfaces;
+	const data = new Float64Array(elements.length * stride);
+	elements.forEach((e, k) => {
+		const o = k * stride;
+		const surfaces = e.surfaces ?? [];
+		data[o] = surfaces.length;
+		const outer = outerDiametersMm[k] ?? null;
+		const semi = Math.min(e.clearApertureMm === null ? Infinity : e.clearApertureMm / 2, outer === null ? Infinity : outer / 2);
+		surfaces.forEach((s, q) => {
+			const p = o + 1 + q * SURFACE_NUMBERS;
+			data[p] = s.vertexMm;
+			data[p + 1] = s.radiusMm === null ? 0 : 1 / s.radiusMm;
+			data[p + 2] = s.indexAfter;
+			data[p + 3] = semi;
+		});
+	});
+	return { stride, data };
+}
+
+/** What the bound reads of the question. */
+export interface BoundQuestion {
+	objectNA: number;
+	/** Field edge height, mm (0: axis only). */
+	objectHeightMm: number;
+	wavelengthNm: number;
+	/** Ranked by the colour band: no spot bound. */
+	byBand: boolean;
+}
+
+/** A trace system whose arrays are refilled for each placement. */
+interface ScratchSystem {
+	count: number;
+	zMm: Float64Array;
+	curvaturePerMm: Float64Array;
+	indexAfter: Float64Array;
+	semiApertureMm: Float64Array;
+	elementIndex: Int32Array;
+	imageZMm: number;
+}
+
+let scratch: ScratchSystem = newScratch(8);
+const ray = new Float64Array(RAY_STRIDE);
+/**
+ * The Airy radius uses the matrix's magnification in the evaluation and the root's here (equal
+ * to about 1e-12): the spot bound is lowered by this much so that it stays below.
+ */
+const AIRY_LOW = 1 - 1e-9;
+const AIRY_HIGH = 1 + 1e-9;
+
+function newScratch(n: number): ScratchSystem {
+	return {
+		count: 0,
+		zMm: new Float64Array(n),
+		curvaturePerMm: new Float64Array(n),
+		indexAfter: new Float64Array(n),
+		semiApertureMm: new Float64Array(n),
+		elementIndex: new Int32Array(n),
+		imageZMm: 0
+	};
+}
+
+/** Writes element e's surfaces with its first vertex at z = vertex into the scratch system from surface k on; returns the next k. */
+function place(table: RayTable, e: number, element: number, vertex: number, k: number): number {
+	const o = e * table.stride;
+	const n = table.data[o];
+	for (let q = 0; q < n; q++) {
+		const p = o + 1 + q * SURFACE_NUMBERS;
+		scratch.zMm[k] = vertex + table.data[p];
+		scratch.curvaturePerMm[k] = table.data[p + 1];
+		scratch.indexAfter[k] = table.data[p + 2];
+		scratch.semiApertureMm[k] = table.data[p + 3];
+		scratch.elementIndex[k] = element;
+		k++;
+	}
+	return k;
+}
+
+/**
+ * The trace system of element i at object distance s (then a gap g and element j; j < 0: i
+ * alone) and back distance d, with the same arithmetic as `traceSystemFromLayout`.
+ */
+function buildSystem(table: RayTable, packed: Float64Array, i: number, j: number, s: number, g: number, d: number): TraceSystem {
+	const need = table.data[i * table.stride] + (j >= 0 ? table.data[j * table.stride] : 0);
+	if (need > scratch.zMm.length) scratch = newScratch(need);
+	const ti = packed[i * ELEMENT_STRIDE + EL_THICKNESS];
+	let k = place(table, i, 0, s, 0);
+	let image = s + d + ti;
+	if (j >= 0) {
+		const tj = packed[j * ELEMENT_STRIDE + EL_THICKNESS];
+		k = place(table, j, 1, s + ti + g, k);
+		image = image + tj + g;
+	}
+	scratch.count = k;
+	scratch.imageZMm = image;
+	return scratch;
+}
+
+/** True when the axial ray at direction sine u passes every aperture (as axialCone tests it). */
+function passes(sys: TraceSystem, u: number): boolean {
+	return startRay(ray, 0, u) && traceRay(sys, ray) === TRACE_OK;
+}
+
+/**
+ * The bound of a root whose rim ray is cut: the first steps of `axialCone`'s own bisection (from
+ * [0, CONE_TOP], the same midpoints) until its upper end shows a loss beyond the tolerance
+ * (vignetting class 2 at least) or it has run as many steps as axialCone does; else nothing
+ * beyond the exact parts of the key.
+ */
+function coneCutBound(sys: TraceSystem, na: number, coat: number, wdStep: number, count: number): number {
+	const keep = (1 - VIGNETTING_TOLERANCE) * (1 - 1e-12);
+	let lo = 0,
+		hi = CONE_TOP;
+	for (let k = 0; k < CONE_STEPS; k++) {
+		if ((hi / na) * (hi / na) < keep) return pack(2, coat, 0, wdStep, count, 0);
+		const mid = 0.5 * (lo + hi);
+		if (passes(sys, mid)) lo = mid;
+		else hi = mid;
+	}
+	return pack(0, coat, 0, wdStep, count, 0);
+}
+
+/** How much of the answer's figures the bound traces (each tier costs more and bounds tighter). */
+export const BOUND_CHEAP = 0;
+/** The axial figures exactly (`axialCone`, the whole fan). */
+export const BOUND_AXIAL = 1;
+/** The axial figures and the field edge (`edgeTrace`) exactly: the key itself, but for rounding. */
+export const BOUND_FULL = 2;
+
+/**
+ * After `rankBound` with BOUND_FULL (monochromatic ranking only): an upper bound of the key, for
+ * a root that is an answer (the search counts it towards its own N-th key). Else Infinity.
+ */
+export const boundUpper = new Float64Array(1);
+
+/**
+ * The packed lower bound (`packRankParts`) of the ranking key of the answer a root gives: element
+ * i at object distance s (then gap g and element j; j < 0 for a single), back distance d,
+ * magnification m; `untraceable` when an element is a black box, `coat` 1 when a part is used
+ * outside its coating band; `tier` how much to trace (BOUND_*). The cheap tier stops tracing as
+ * soon as its bound exceeds `bar` (the bound returned is then above it, but not the tightest).
+ */
+export function rankBound(
+	table: RayTable,
+	packed: Float64Array,
+	q: BoundQuestion,
+	i: number,
+	j: number,
+	s: number,
+	g: number,
+	d: number,
+	m: number,
+	untraceable: boolean,
+	coat: number,
+	tier: number,
+	bar = Infinity
+): number {
+	boundUpper[0] = Infinity;
+	const wdStep = -Math.floor(Math.min(s, d) / WORKING_DISTANCE_STEP_MM);
+	const count = j < 0 ? 1 : 2;
+	// A black box is not traced: its answer's key is known (no vignetting figures, untraced spot).
+	if (untraceable) return pack(0, coat, spotBand(null), wdStep, count, 1e9);
+	const sys = buildSystem(table, packed, i, j, s, g, d);
+	const na = q.objectNA;
+	if (tier === BOUND_CHEAP) {
+		// As axialCone finds it: when the rim (or the CONE_TOP ray) passes, the whole cone counts.
+		if (!passes(sys, na) && !passes(sys, CONE_TOP)) return coneCutBound(sys, na, coat, wdStep, count);
+		if (q.byBand) return pack(0, coat, 0, wdStep, count, 0);
+		// The fan from the outside in (spherical aberration grows outwards), stopping as soon as the
+		// rays so far put the bound above `bar`; the whole fan gives the axial RMS itself.
+		const airy = airyAt(q, na, m);
+		let sum = 0,
+			traced = 0,
+			low = 0;
+		for (let k = FAN_RAYS; k >= 1; k--) {
+			if (!passes(sys, Math.sqrt((k - 0.5) / FAN_RAYS) * na)) continue;
+			const y = heightAtPlane(ray, sys.imageZMm);
+			if (y === null) continue;
+			sum += y * y;
+			traced++;
+			const ratio = (Math.sqrt(sum / FAN_RAYS) / airy) * AIRY_LOW;
+			low = pack(0, coat, spotBand(ratio), wdStep, count, ratio);
+			if (low > bar) return low;
+		}
+		if (traced === 0) return pack(0, coat, spotBand(null), wdStep, count, 1e9);
+		const ratio = (Math.sqrt(sum / traced) / airy) * AIRY_LOW;
+		return pack(0, coat, spotBand(ratio), wdStep, count, ratio);
+	}
+	// As realRayFigures and evaluatePlacement (evaluate.ts) compute them.
+	const cone = axialCone(sys, na);
+	const passed = cone.passedSine,
+		axialLost = cone.lostFraction;
+	const axial = passed > 0 ? axialSpot(sys, { na: passed, rays: FAN_RAYS }) : null;
+	const axialRms = axial ? axial.rmsAboutCentroidMm : null;
+	const h = q.objectHeightMm;
+	const full = tier === BOUND_FULL;
+	const edge = full && h > 0 ? edgeTrace(sys, h, na, cone.stopSurface) : null;
+	const edgeRms = edge ? edge.rmsMm : axialRms;
+	const edgeLost = edge ? edge.lostFraction : 0;
+	let cls = axialLost > VIGNETTING_TOLERANCE ? 2 : 0;
+	if (full) {
+		const blocked = h > 0 && 1 - edgeLost < EDGE_BLOCKED_RATIO * (1 - axialLost);
+		cls = blocked ? 3 : cls === 2 ? 2 : h > 0 && edgeLost > VIGNETTING_TOLERANCE ? 1 : 0;
+	}
+	if (axialRms === null) {
+		if (full) boundUpper[0] = pack(cls, coat, spotBand(null), wdStep, count, 1e9);
+		return pack(cls, coat, spotBand(null), wdStep, count, 1e9);
+	}
+	if (q.byBand) return pack(cls, coat, 0, wdStep, count, 0);
+	const ratio = Math.max(axialRms, edgeRms ?? axialRms) / airyAt(q, passed, m);
+	if (full) boundUpper[0] = pack(cls, coat, spotBand(ratio * AIRY_HIGH), wdStep, count, ratio * AIRY_HIGH);
+	return pack(cls, coat, spotBand(ratio * AIRY_LOW), wdStep, count, ratio * AIRY_LOW);
+}
+
+/** The Airy radius at the target for the cone `sine` and magnification m (as the evaluation computes it). */
+function airyAt(q: BoundQuestion, sine: number, m: number): number {
+	return airyRadiusMm(q.wavelengthNm, workingFNumber(imageSideNA(sine, m)));
+}
