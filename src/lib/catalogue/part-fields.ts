@@ -74,15 +74,7 @@ export interface PartFieldSpec {
 
 /** The fields, in Part JSON and CSV column order. */
 export const PART_FIELD = {
-	sku: {
-		type: 'text',
-		label: 'SKU',
-		required: true,
-		maxLength: 40,
-		headers: ['stockcode', 'ourcode', 'internalcode'],
-		editors: STOCK_EDITORS,
-		section: 'part'
-	},
+	sku: { type: 'text', label: 'SKU', required: true, maxLength: 40, headers: ['stockcode', 'ourcode', 'internalcode'], editors: STOCK_EDITORS, section: 'part' },
 	name: {
 		type: 'text',
 		label: 'Name',
@@ -190,16 +182,7 @@ export const PART_FIELD = {
 	leadTimeDays: { type: 'integer', unit: 'days', label: 'Lead time', optional: true, headers: ['leadtime'], editors: PART_PATCHERS, section: 'supply' },
 	reorderPoint: { type: 'integer', label: 'Reorder point', default: 0, editors: PART_PATCHERS, section: 'supply' },
 	reorderQuantity: { type: 'integer', label: 'Reorder quantity', default: 0, editors: PART_PATCHERS, section: 'supply' },
-	notes: {
-		type: 'text',
-		label: 'Notes',
-		optional: true,
-		maxLength: 5000,
-		headers: ['comment', 'remarks'],
-		editors: STOCK_EDITORS,
-		section: 'supply',
-		multiline: true
-	}
+	notes: { type: 'text', label: 'Notes', optional: true, maxLength: 5000, headers: ['comment', 'remarks'], editors: STOCK_EDITORS, section: 'supply', multiline: true }
 } as const satisfies Record<string, PartFieldSpec>;
 
 export type PartFieldName = keyof typeof PART_FIELD;

@@ -192,7 +192,7 @@ describe('the part field descriptor', () => {
 		const bodyOf = (path: string, method: string) => Object.keys(doc.paths[path][method].requestBody!.content['application/json'].schema.properties);
 		expect(bodyOf('/parts', 'post')).toEqual(NAMES);
 		expect(bodyOf('/parts/{id}', 'patch')).toEqual(NAMES);
-		const kind = z.toJSONSchema(partJson.shape.kind) as { enum: string[] };
+		const kind = z.toJSONSchema((partJson.shape as Record<string, z.ZodType>).kind) as { enum: string[] };
 		expect(kind.enum).toEqual([...PART_KINDS]);
 		expect(parts.kind.enumValues).toEqual([...PART_KINDS]);
 	});
