@@ -69,8 +69,9 @@ async function supplierIdFor(tx: DbOrTx, name: string | null | undefined, actor:
  * Fields stored as the parts column of the same name and value; the others are stored otherwise:
  * the surfaces in their own table, the supplier by id, the price in cents.
  */
-const PLAIN_COLUMN_FIELDS = PART_FIELD_NAMES.filter((f) => f !== 'surfaces' && f !== 'supplier' && f !== 'unitPrice') as readonly PlainColumnField[];
-type PlainColumnField = Exclude<PartFieldName, 'surfaces' | 'supplier' | 'unitPrice'>;
+const STORED_OTHERWISE = ['surfaces', 'supplier', 'unitPrice'] as const;
+type PlainColumnField = Exclude<PartFieldName, (typeof STORED_OTHERWISE)[number]>;
+const PLAIN_COLUMN_FIELDS = PART_FIELD_NAMES.filter((f) => !(STORED_OTHERWISE as readonly string[]).includes(f)) as readonly PlainColumnField[];
 type PlainColumns = { [K in PlainColumnField]-?: Exclude<PartInput[K], undefined> };
 
 /** The parts row of a validated input (without the derived EFL columns); also used by CSV imports. */
