@@ -2,7 +2,7 @@
  * How pages write dates, times and part kinds: one format everywhere, so that the imports, the ledger
  * and the requests read alike ("2 Dec 2026, 04:46").
  */
-import type { PartKind } from '$lib/server/db/schema';
+import type { PartKind } from '$lib/catalogue/part-fields';
 
 type When = string | number | Date;
 

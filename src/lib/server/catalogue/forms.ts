@@ -3,6 +3,8 @@
  * parse; anything else is passed on as typed so zod's message names the field. Empty
  * inputs become null (optional fields) and are dropped when `dropEmpty` lists them.
  */
+import { isNumericType, MAX_SURFACES, PART_FIELD, SCALAR_PART_FIELDS, type PartFieldSpec } from '$lib/catalogue/part-fields';
+
 export function toNumber(v: FormDataEntryValue | null): number | string | null {
 	if (v === null) return null;
 	const s = String(v).trim().replace(',', '.');
@@ -40,22 +42,20 @@ export function formStrings(form: FormData): Record<string, string> {
 	return out;
 }
 
-const OPTIONAL_PART_FIELDS = ['clearApertureMm', 'eflMm', 'bflMm', 'centerThicknessMm', 'unitPrice', 'leadTimeDays', 'coating', 'supplier', 'supplierPartNumber', 'notes'];
+const NUMBER_PART_FIELDS = SCALAR_PART_FIELDS.filter((f) => isNumericType(f.type)).map((f) => f.name);
+const TEXT_PART_FIELDS = SCALAR_PART_FIELDS.filter((f) => !isNumericType(f.type)).map((f) => f.name);
+const OPTIONAL_PART_FIELDS = SCALAR_PART_FIELDS.filter((f) => f.optional).map((f) => f.name);
 
-/** Part form → part input: scalar fields plus `surfaces.<i>.radiusMm|thicknessMm|material` rows. */
+/** Part form → part input: the descriptor's scalar fields plus `surfaces.<i>.radiusMm|thicknessMm|material` rows. */
 export function readPartForm(form: FormData, opts: { clearEmpty?: boolean } = {}): Record<string, unknown> {
-	const input = readForm(
-		form,
-		['diameterMm', 'clearApertureMm', 'eflMm', 'bflMm', 'centerThicknessMm', 'designWavelengthNm', 'unitPrice', 'leadTimeDays', 'reorderPoint', 'reorderQuantity'],
-		['sku', 'name', 'kind', 'coating', 'supplier', 'supplierPartNumber', 'currency', 'notes']
-	);
+	const input = readForm(form, NUMBER_PART_FIELDS, TEXT_PART_FIELDS);
 	// On edit an emptied optional field clears the stored value.
 	if (opts.clearEmpty) {
 		for (const k of OPTIONAL_PART_FIELDS) if (!(k in input) && form.has(k)) input[k] = null;
 	}
 	const count = Number(form.get('surfaceCount') ?? 0);
 	const surfaces: Record<string, unknown>[] = [];
-	for (let i = 0; i < Math.min(count, 12); i++) {
+	for (let i = 0; i < Math.min(count, MAX_SURFACES); i++) {
 		const last = i === count - 1;
 		const s: Record<string, unknown> = { radiusMm: toNumber(form.get(`surfaces.${i}.radiusMm`)) };
 		if (!last) {
@@ -68,6 +68,8 @@ export function readPartForm(form: FormData, opts: { clearEmpty?: boolean } = {}
 	return input;
 }
 
+const isPrice = (k: string) => Object.hasOwn(PART_FIELD, k) && (PART_FIELD as Record<string, PartFieldSpec>)[k].unit === 'currency';
+
 /** A stored part as the part form's string values (the price with two decimals). */
 export function partFormValues(input: {
 	[k: string]: unknown;
@@ -76,7 +78,7 @@ export function partFormValues(input: {
 	const out: Record<string, string> = {};
 	for (const [k, v] of Object.entries(input)) {
 		if (k === 'surfaces' || v === null || v === undefined) continue;
-		out[k] = k === 'unitPrice' ? Number(v).toFixed(2) : String(v);
+		out[k] = isPrice(k) ? Number(v).toFixed(2) : String(v);
 	}
 	out.surfaceCount = String(input.surfaces.length);
 	input.surfaces.forEach((s, i) => {

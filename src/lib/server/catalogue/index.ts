@@ -9,6 +9,7 @@ export type { PartInput, PartPatch } from './part-input';
 export {
 	archivePart,
 	columnsOf,
+	PART_COLUMNS,
 	createPart,
 	findPartIdBySku,
 	getPart,

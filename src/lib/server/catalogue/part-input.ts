@@ -2,14 +2,17 @@
  * Validation of part input (API bodies, the part form, CSV import rows): one zod schema
  * with the surfaces, checked against the optics core so a stored prescription always
  * builds into a lens. Field messages are keyed by dotted path (`surfaces.1.radiusMm`).
+ * The fields, their defaults, text lengths and who may edit them come from the descriptor
+ * (`$lib/catalogue/part-fields`); this module adds each field's checks and messages.
  */
 import { z } from 'zod';
 import { text } from '$lib/input';
 import { isWholeCents } from '$lib/money';
-import { buildElement, DEFAULT_WAVELENGTH_NM, resolveMaterial, thicknessesAtHeight } from '$lib/optics';
+import { buildElement, resolveMaterial, thicknessesAtHeight } from '$lib/optics';
 import { toSurfaceSpecs } from './derived';
 import { parseCoatingBand } from '$lib/coating';
-import { PART_KINDS } from '$lib/server/db/schema';
+import { MAX_SURFACES, PART_FIELD, PART_FIELDS, PART_KINDS, type DefaultedPartField, type PartFieldName } from '$lib/catalogue/part-fields';
+import { PURCHASING_FIELDS_ONLY } from '$lib/roles';
 
 const optionalNumber = (schema: z.ZodNumber) => schema.nullable().optional();
 const optionalText = (max: number) =>
@@ -33,35 +36,33 @@ export const surfaceInputSchema = z
 	})
 	.strict();
 
-/** Fields a purchaser may change (see `assertPatchAllowed`). */
-export const PURCHASING_FIELDS = [
-	'supplier',
-	'supplierPartNumber',
-	'unitPrice',
-	'currency',
-	'leadTimeDays',
-	'reorderPoint',
-	'reorderQuantity'
-] as const;
+/** Fields a purchaser may change (see `assertPatchAllowed`): those the descriptor lets purchasers edit. */
+export const PURCHASING_FIELDS: readonly PartFieldName[] = PART_FIELDS.filter((f) => PURCHASING_FIELDS_ONLY.every((r) => f.editors.includes(r))).map((f) => f.name);
+
+/** The longest text of a field (the descriptor's `maxLength`). */
+const maxOf = (name: keyof typeof PART_FIELD) => (PART_FIELD[name] as { maxLength: number }).maxLength;
 
 const fields = {
 	sku: text()
 		.trim()
 		.min(1, 'Enter a SKU.')
-		.max(40, 'At most 40 characters.')
+		.max(maxOf('sku'), `At most ${maxOf('sku')} characters.`)
 		.regex(/^[A-Za-z0-9][A-Za-z0-9._/-]*$/, 'Use letters, digits and . _ / - only, starting with a letter or digit.'),
-	name: text().trim().min(1, 'Enter a name.').max(200, 'At most 200 characters.'),
+	name: text()
+		.trim()
+		.min(1, 'Enter a name.')
+		.max(maxOf('name'), `At most ${maxOf('name')} characters.`),
 	kind: z.enum(PART_KINDS, { error: 'Choose a kind.' }),
 	diameterMm: z.number({ error: 'Enter the diameter in mm.' }).positive('The diameter must be more than 0 mm.').max(1000),
 	clearApertureMm: optionalNumber(z.number().positive('The clear aperture must be more than 0 mm.').max(1000)),
-	surfaces: z.array(surfaceInputSchema).max(12, 'At most 12 surfaces.'),
+	surfaces: z.array(surfaceInputSchema).max(MAX_SURFACES, `At most ${MAX_SURFACES} surfaces.`),
 	eflMm: optionalNumber(z.number().refine((v) => v !== 0 && Math.abs(v) <= 1e6, 'Enter a non-zero EFL in mm.')),
 	bflMm: optionalNumber(z.number().min(-1e6).max(1e6)),
 	centerThicknessMm: optionalNumber(z.number().min(0, 'The thickness cannot be negative.').max(1000)),
 	designWavelengthNm: z.number().min(200, 'Between 200 and 20000 nm.').max(20000, 'Between 200 and 20000 nm.'),
-	coating: optionalText(80),
-	supplier: optionalText(120),
-	supplierPartNumber: optionalText(80),
+	coating: optionalText(maxOf('coating')),
+	supplier: optionalText(maxOf('supplier')),
+	supplierPartNumber: optionalText(maxOf('supplierPartNumber')),
 	/** Unit price in currency units of `currency` (38.50), at most two decimals; stored as cents. */
 	unitPrice: optionalNumber(
 		z
@@ -76,20 +77,19 @@ const fields = {
 	leadTimeDays: optionalNumber(z.number().int('Whole days.').min(0).max(3650)),
 	reorderPoint: z.number().int('A whole number.').min(0).max(1e6),
 	reorderQuantity: z.number().int('A whole number.').min(0).max(1e6),
-	notes: optionalText(5000)
-};
+	notes: optionalText(maxOf('notes'))
+} satisfies Record<PartFieldName, z.ZodType>;
+
+type Fields = typeof fields;
+/** The fields with the descriptor's defaults applied (a field left out takes its default). */
+function withDefaults(f: Fields) {
+	const out: Record<string, z.ZodType> = {};
+	for (const { name, default: d } of PART_FIELDS) out[name] = d === undefined ? f[name] : (f[name] as z.ZodType).default(d as never);
+	return out as { [K in PartFieldName]: K extends DefaultedPartField ? z.ZodDefault<Fields[K]> : Fields[K] };
+}
 
 /** The fields of a part as the API and the form take them (Part JSON without computed fields). */
-export const partFieldsSchema = z
-	.object({
-		...fields,
-		surfaces: fields.surfaces.default([]),
-		designWavelengthNm: fields.designWavelengthNm.default(DEFAULT_WAVELENGTH_NM),
-		currency: fields.currency.default('EUR'),
-		reorderPoint: fields.reorderPoint.default(0),
-		reorderQuantity: fields.reorderQuantity.default(0)
-	})
-	.strict();
+export const partFieldsSchema = z.object(withDefaults(fields)).strict();
 
 export type PartFields = z.infer<typeof partFieldsSchema>;
 

@@ -21,13 +21,14 @@ import { DomainError, NotFound } from '$lib/server/errors';
 import { recordAudit } from '$lib/server/audit';
 import { changeStock } from '$lib/server/stock/version';
 import { opticsPartOf, paraxialColumns, type MeasuredEfl } from './derived';
-import { partInputSchema, partPatchSchema, PURCHASING_FIELDS, toSurfaceSpecs, type PartInput, type PartPatch } from './part-input';
+import { partInputSchema, partPatchSchema, toSurfaceSpecs, type PartInput, type PartPatch } from './part-input';
+import { PART_FIELD, PART_FIELD_NAMES, type PartFieldName } from '$lib/catalogue/part-fields';
 import { partsJson, type PartJson } from './part-json';
 import { getDefaultWavelengthNm } from './settings';
 import { toMajor, toMinor } from '$lib/money';
 import { parseCoatingBand } from '$lib/coating';
 import { syncLabMaterials } from './lab-materials';
-import { inSet, PURCHASING_FIELDS_ONLY, STOCK_EDITORS } from '$lib/roles';
+import { inSet, PART_PATCHERS } from '$lib/roles';
 
 export { partInputSchema, partPatchSchema, partFieldsSchema, PURCHASING_FIELDS } from './part-input';
 export type { PartInput, PartPatch } from './part-input';
@@ -64,36 +65,34 @@ async function supplierIdFor(tx: DbOrTx, name: string | null | undefined, actor:
 	return id;
 }
 
+/**
+ * Fields stored as the parts column of the same name and value; the others are stored otherwise:
+ * the surfaces in their own table, the supplier by id, the price in cents.
+ */
+const STORED_OTHERWISE = ['surfaces', 'supplier', 'unitPrice'] as const;
+type PlainColumnField = Exclude<PartFieldName, (typeof STORED_OTHERWISE)[number]>;
+const PLAIN_COLUMN_FIELDS = PART_FIELD_NAMES.filter((f) => !(STORED_OTHERWISE as readonly string[]).includes(f)) as readonly PlainColumnField[];
+type PlainColumns = { [K in PlainColumnField]-?: Exclude<PartInput[K], undefined> };
+
 /** The parts row of a validated input (without the derived EFL columns); also used by CSV imports. */
 export function columnsOf(input: PartInput, supplierId: number | null) {
 	// The schema's check refused a text whose band cannot be read, so a failed parse here is no band.
 	const coating = parseCoatingBand(input.coating);
 	const band = coating.ok ? coating.band : null;
 	const firstGlass = input.surfaces.find((s, i) => i < input.surfaces.length - 1 && s.material)?.material ?? null;
+	const plain = Object.fromEntries(PLAIN_COLUMN_FIELDS.map((f) => [f, input[f] ?? null])) as PlainColumns;
 	return {
-		sku: input.sku,
-		name: input.name,
-		kind: input.kind,
-		diameterMm: input.diameterMm,
-		clearApertureMm: input.clearApertureMm ?? null,
-		eflMm: input.eflMm ?? null,
-		bflMm: input.bflMm ?? null,
-		centerThicknessMm: input.centerThicknessMm ?? null,
-		designWavelengthNm: input.designWavelengthNm,
+		...plain,
 		primaryMaterial: firstGlass ? firstGlass.toLowerCase() : null,
-		coating: input.coating ?? null,
 		coatingMinNm: band?.minNm ?? null,
 		coatingMaxNm: band?.maxNm ?? null,
 		supplierId,
-		supplierPartNumber: input.supplierPartNumber ?? null,
-		unitPriceMinor: input.unitPrice == null ? null : toMinor(input.unitPrice),
-		currency: input.currency,
-		leadTimeDays: input.leadTimeDays ?? null,
-		reorderPoint: input.reorderPoint,
-		reorderQuantity: input.reorderQuantity,
-		notes: input.notes ?? null
+		unitPriceMinor: input.unitPrice == null ? null : toMinor(input.unitPrice)
 	};
 }
+
+/** Every column `columnsOf` writes (a batch insert names them). */
+export const PART_COLUMNS = [...PLAIN_COLUMN_FIELDS, 'primaryMaterial', 'coatingMinNm', 'coatingMaxNm', 'supplierId', 'unitPriceMinor'] as const satisfies readonly (keyof ReturnType<typeof columnsOf>)[];
 
 async function assertUnique(tx: DbOrTx, cols: ReturnType<typeof columnsOf>, exceptId: number | null) {
 	const [sku] = await tx.select({ id: parts.id }).from(parts).where(eq(parts.sku, cols.sku)).limit(1);
@@ -178,46 +177,28 @@ export async function createPart(db: DbOrTx, input: unknown, actor: Actor): Prom
 export function toInput(record: PartRecord): PartInput {
 	const p = record.part;
 	const specs = [...record.surfaces].sort((a, b) => a.position - b.position);
+	const plain = Object.fromEntries(PLAIN_COLUMN_FIELDS.map((f) => [f, p[f]])) as PlainColumns;
 	return {
-		sku: p.sku,
-		name: p.name,
-		kind: p.kind,
-		diameterMm: p.diameterMm,
-		clearApertureMm: p.clearApertureMm,
+		...plain,
 		surfaces: specs.map((s, i) =>
 			i === specs.length - 1 ? { radiusMm: s.radiusMm } : { radiusMm: s.radiusMm, thicknessMm: s.thicknessMm ?? 0, material: s.materialCode }
 		),
-		eflMm: p.eflMm,
-		bflMm: p.bflMm,
-		centerThicknessMm: p.centerThicknessMm,
-		designWavelengthNm: p.designWavelengthNm,
-		coating: p.coating,
 		supplier: record.supplierName,
-		supplierPartNumber: p.supplierPartNumber,
-		unitPrice: toMajor(p.unitPriceMinor),
-		currency: p.currency,
-		leadTimeDays: p.leadTimeDays,
-		reorderPoint: p.reorderPoint,
-		reorderQuantity: p.reorderQuantity,
-		notes: p.notes
+		unitPrice: toMajor(p.unitPriceMinor)
 	};
 }
 
 /**
- * Field-level rule of PATCH: stock editors (admin, stockroom) may change any field; a
- * purchaser only the purchasing fields (supplier, supplier part number, price, currency,
- * lead time, reorder point and quantity). Anything else is 403.
+ * Field-level rule of PATCH: each field names who may change it (`editors` in the descriptor):
+ * stock editors (admin, stockroom) any field, a purchaser only the purchasing fields (supplier,
+ * supplier part number, price, currency, lead time, reorder point and quantity). Anything else is 403.
  */
 export function assertPatchAllowed(role: Role | undefined, patch: PartPatch) {
-	if (inSet(role, STOCK_EDITORS)) return;
-	if (inSet(role, PURCHASING_FIELDS_ONLY)) {
-		const other = Object.keys(patch).filter((k) => !(PURCHASING_FIELDS as readonly string[]).includes(k));
-		if (other.length) {
-			throw new DomainError(403, 'forbidden', `A purchaser may change only the purchasing fields, not: ${other.join(', ')}.`);
-		}
-		return;
+	if (!inSet(role, PART_PATCHERS)) throw new DomainError(403, 'forbidden', 'Your role may not change parts.');
+	const other = (Object.keys(patch) as PartFieldName[]).filter((k) => !inSet(role, PART_FIELD[k].editors));
+	if (other.length) {
+		throw new DomainError(403, 'forbidden', `A purchaser may change only the purchasing fields, not: ${other.join(', ')}.`);
 	}
-	throw new DomainError(403, 'forbidden', 'Your role may not change parts.');
 }
 
 /**

@@ -1,36 +1,19 @@
 /**
  * The columns of a Glasscrib CSV: the Part JSON field names (DESIGN.md), with the surfaces
  * flattened as r1Mm, t1Mm, material1, r2Mm, ... The export writes exactly these headers, so an
- * exported file imports without any mapping; a supplier's list is mapped onto them.
+ * exported file imports without any mapping; a supplier's list is mapped onto them. The fields,
+ * their types, units, labels and header words come from the descriptor (`$lib/catalogue/part-fields`).
  */
 import { unit } from 'mathjs';
+import { MAX_SURFACES, PART_FIELD, SCALAR_PART_FIELDS, isNumericType, mappingLabel, surfaceColumns, type PartFieldSpec, type ScalarPartFieldName } from '$lib/catalogue/part-fields';
 
-/** Surfaces a CSV row may describe (the part schema allows 12). */
-export const MAX_SURFACES = 12;
+/** Surfaces a CSV row may describe (the part schema allows as many). */
+export { MAX_SURFACES };
 
-export const SCALAR_FIELDS = [
-	'sku',
-	'name',
-	'kind',
-	'diameterMm',
-	'clearApertureMm',
-	'eflMm',
-	'bflMm',
-	'centerThicknessMm',
-	'designWavelengthNm',
-	'coating',
-	'supplier',
-	'supplierPartNumber',
-	'unitPrice',
-	'currency',
-	'leadTimeDays',
-	'reorderPoint',
-	'reorderQuantity',
-	'notes'
-] as const;
-export type ScalarField = (typeof SCALAR_FIELDS)[number];
+export const SCALAR_FIELDS = SCALAR_PART_FIELDS.map((f) => f.name as ScalarPartFieldName);
+export type ScalarField = ScalarPartFieldName;
 
-export const surfaceFields = (k: number) => [`r${k}Mm`, `t${k}Mm`, `material${k}`] as const;
+export const surfaceFields = surfaceColumns;
 
 /** Every importable field, in the export's column order. */
 export const IMPORT_FIELDS: readonly string[] = [
@@ -40,22 +23,16 @@ export const IMPORT_FIELDS: readonly string[] = [
 const FIELD_SET = new Set(IMPORT_FIELDS);
 export const isImportField = (f: string) => FIELD_SET.has(f);
 
-const NUMERIC = new Set<string>([
-	'diameterMm',
-	'clearApertureMm',
-	'eflMm',
-	'bflMm',
-	'centerThicknessMm',
-	'designWavelengthNm',
-	'unitPrice',
-	'leadTimeDays',
-	'reorderPoint',
-	'reorderQuantity'
-]);
-export const isNumericField = (f: string) => NUMERIC.has(f) || /^[rt]\d+Mm$/.test(f);
+const specOf = (f: string): PartFieldSpec | undefined => (f !== 'surfaces' && Object.hasOwn(PART_FIELD, f) ? (PART_FIELD as Record<string, PartFieldSpec>)[f] : undefined);
+const SURFACE_CELL = /^[rt]\d+Mm$/;
+
+export const isNumericField = (f: string) => (specOf(f) ? isNumericType(specOf(f)!.type) : SURFACE_CELL.test(f));
 
 /** Fields holding a length: the file may give them in mm or inches. */
-export const isLengthField = (f: string) => ['diameterMm', 'clearApertureMm', 'eflMm', 'bflMm', 'centerThicknessMm'].includes(f) || /^[rt]\d+Mm$/.test(f);
+export const isLengthField = (f: string) => specOf(f)?.unit === 'mm' || SURFACE_CELL.test(f);
+
+/** Fields that take their default when the cell is blank (the others are cleared). */
+export const hasDefault = (f: string) => specOf(f)?.default !== undefined;
 
 export const LENGTH_UNITS = ['mm', 'in'] as const;
 export type LengthUnit = (typeof LENGTH_UNITS)[number];
@@ -102,27 +79,8 @@ export const MM_PER: Record<LengthUnit, number> = {
 
 /** Human labels for the mapping screen. */
 export function fieldLabel(f: string): string {
-	const labels: Record<string, string> = {
-		sku: 'SKU',
-		name: 'Name',
-		kind: 'Kind',
-		diameterMm: 'Diameter',
-		clearApertureMm: 'Clear aperture',
-		eflMm: 'EFL (datasheet)',
-		bflMm: 'BFL (datasheet)',
-		centerThicknessMm: 'Centre thickness (no prescription)',
-		designWavelengthNm: 'Design wavelength (nm)',
-		coating: 'Coating',
-		supplier: 'Supplier',
-		supplierPartNumber: 'Supplier part number',
-		unitPrice: 'Unit price',
-		currency: 'Currency',
-		leadTimeDays: 'Lead time (days)',
-		reorderPoint: 'Reorder point',
-		reorderQuantity: 'Reorder quantity',
-		notes: 'Notes'
-	};
-	if (labels[f]) return labels[f];
+	const spec = specOf(f);
+	if (spec) return mappingLabel(spec);
 	const m = /^(r|t|material)(\d+)(Mm)?$/.exec(f);
 	if (m) return `${m[1] === 'r' ? 'Radius' : m[1] === 't' ? 'Thickness after' : 'Material after'} surface ${m[2]}`;
 	return f;
@@ -134,79 +92,21 @@ const norm = (s: string) =>
 		.replace(/\(.*?\)|\[.*?\]/g, ' ')
 		.replace(/[^a-z0-9]+/g, '');
 
-/** Header words (normalised: lower case, letters and digits only, bracketed units dropped) → field. */
-const SYNONYMS: Record<string, string> = {
-	sku: 'sku',
-	stockcode: 'sku',
-	ourcode: 'sku',
-	internalcode: 'sku',
-	name: 'name',
-	description: 'name',
-	title: 'name',
-	productname: 'name',
-	kind: 'kind',
-	type: 'kind',
-	lenstype: 'kind',
-	shape: 'kind',
-	diameter: 'diameterMm',
-	diametermm: 'diameterMm',
-	dia: 'diameterMm',
-	od: 'diameterMm',
-	outerdiameter: 'diameterMm',
-	clearaperture: 'clearApertureMm',
-	clearaperturemm: 'clearApertureMm',
-	ca: 'clearApertureMm',
-	efl: 'eflMm',
-	eflmm: 'eflMm',
-	focallength: 'eflMm',
-	effectivefocallength: 'eflMm',
-	f: 'eflMm',
-	bfl: 'bflMm',
-	bflmm: 'bflMm',
-	backfocallength: 'bflMm',
-	centerthickness: 'centerThicknessMm',
-	centrethickness: 'centerThicknessMm',
-	centerthicknessmm: 'centerThicknessMm',
-	ct: 'centerThicknessMm',
-	designwavelength: 'designWavelengthNm',
-	designwavelengthnm: 'designWavelengthNm',
-	wavelength: 'designWavelengthNm',
-	coating: 'coating',
-	arcoating: 'coating',
-	supplier: 'supplier',
-	vendor: 'supplier',
-	manufacturer: 'supplier',
-	supplierpartnumber: 'supplierPartNumber',
-	partnumber: 'supplierPartNumber',
-	partno: 'supplierPartNumber',
-	pn: 'supplierPartNumber',
-	catalognumber: 'supplierPartNumber',
-	cataloguenumber: 'supplierPartNumber',
-	itemnumber: 'supplierPartNumber',
-	itemno: 'supplierPartNumber',
-	article: 'supplierPartNumber',
-	unitprice: 'unitPrice',
-	unitpriceminor: 'unitPrice',
-	price: 'unitPrice',
-	currency: 'currency',
-	leadtime: 'leadTimeDays',
-	leadtimedays: 'leadTimeDays',
-	reorderpoint: 'reorderPoint',
-	reorderquantity: 'reorderQuantity',
-	notes: 'notes',
-	comment: 'notes',
-	remarks: 'notes',
-	glass: 'material1',
-	material: 'material1',
-	substrate: 'material1'
-};
+/**
+ * Header words (normalised: lower case, letters and digits only, bracketed units dropped) → field:
+ * each field's own name and the descriptor's header words, and the words for the first glass.
+ */
+const SYNONYMS: Record<string, string> = Object.fromEntries([
+	...SCALAR_PART_FIELDS.flatMap((f) => [norm(f.name), ...(f.headers ?? [])].map((h) => [h, f.name])),
+	...['glass', 'material', 'substrate'].map((h) => [h, 'material1'])
+]);
 
 /** The field a header cell most likely means, or null. */
 export function suggestField(header: string): string | null {
 	const h = header.trim();
 	if (isImportField(h)) return h; // the export's own names
 	const n = norm(h);
-	if (SYNONYMS[n]) return SYNONYMS[n];
+	if (Object.hasOwn(SYNONYMS, n)) return SYNONYMS[n];
 	let m = /^(?:r|radius|roc|radiusofcurvature)(\d{1,2})(?:mm)?$/.exec(n);
 	if (m && Number(m[1]) >= 1 && Number(m[1]) <= MAX_SURFACES) return `r${Number(m[1])}Mm`;
 	m = /^(?:t|thickness|d)(\d{1,2})(?:mm)?$/.exec(n);

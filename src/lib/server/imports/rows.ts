@@ -4,7 +4,7 @@
  * reads cells: numbers (decimal comma allowed in ;- and tab-separated files), units, blanks.
  */
 import { unit } from 'mathjs';
-import { isLengthField, isNumericField, MAX_SURFACES, MM_PER, SCALAR_FIELDS, surfaceFields, type LengthUnit } from './fields';
+import { hasDefault, isLengthField, isNumericField, MAX_SURFACES, MM_PER, SCALAR_FIELDS, surfaceFields, type LengthUnit } from './fields';
 import { unescapeFormula, type Delimiter } from './csv';
 import { isWholeCents } from '$lib/money';
 
@@ -127,7 +127,7 @@ export function readRow(record: readonly string[], cm: CompiledMapping): ReadRow
 		const v = value(field);
 		if (v === undefined) continue;
 		// Blank cells of fields with a default take the default; others become null (cleared).
-		if (v === null && ['designWavelengthNm', 'currency', 'reorderPoint', 'reorderQuantity'].includes(field)) continue;
+		if (v === null && hasDefault(field)) continue;
 		input[field] = v;
 	}
 	if (cm.surfaceCount > 0) {

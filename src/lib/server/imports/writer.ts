@@ -11,7 +11,7 @@ import { desc, sql } from 'drizzle-orm';
 import type { Tx } from '$lib/server/db';
 import { measurements, partSurfaces, parts, suppliers } from '$lib/server/db/schema';
 import { recordAudit } from '$lib/server/audit';
-import { columnsOf, paraxialColumns, toSurfaceSpecs, type MeasuredEfl, type OpticsPart, type PartInput } from '$lib/server/catalogue';
+import { columnsOf, PART_COLUMNS, paraxialColumns, toSurfaceSpecs, type MeasuredEfl, type OpticsPart, type PartInput } from '$lib/server/catalogue';
 import { inList, insertRows } from './bulk-sql';
 
 /**
@@ -118,32 +118,8 @@ async function resolveSuppliers(tx: Tx, inputs: readonly PartInput[], ctx: { sup
 	for (const input of inputs) if (input.supplier && ctx.suppliers.known(input.supplier) === null) await ctx.suppliers.resolve(tx, input.supplier, ctx.actorId);
 }
 
-/** Every written column of a parts row (columnsOf plus the derived EFL columns). */
-const PART_KEYS = [
-	'sku',
-	'name',
-	'kind',
-	'diameterMm',
-	'clearApertureMm',
-	'eflMm',
-	'bflMm',
-	'centerThicknessMm',
-	'designWavelengthNm',
-	'primaryMaterial',
-	'coating',
-	'coatingMinNm',
-	'coatingMaxNm',
-	'supplierId',
-	'supplierPartNumber',
-	'unitPriceMinor',
-	'currency',
-	'leadTimeDays',
-	'reorderPoint',
-	'reorderQuantity',
-	'notes',
-	'paraxialEflMm',
-	'eflSource'
-] as const satisfies readonly (keyof ReturnType<typeof columnsOf> | 'paraxialEflMm' | 'eflSource')[];
+/** Every written column of a parts row (the catalogue's columnsOf plus the derived EFL columns). */
+const PART_KEYS = [...PART_COLUMNS, 'paraxialEflMm', 'eflSource'] as const;
 const SURFACE_KEYS = ['partId', 'position', 'radiusMm', 'thicknessMm', 'materialCode'] as const;
 
 /** Writes one batch: `creates` are new parts, `updates` carry the id of the part they replace. */

@@ -1,7 +1,8 @@
 /** OpenAPI paths of the catalogue and stock: parts, measurements, movements, stock operations, locations, reservations. */
 import { z } from 'zod';
-import { CONDITIONS, MOVEMENT_KINDS, PART_KINDS } from '$lib/server/db/schema';
-import { partInputSchema, partPatchSchema } from '$lib/server/catalogue/part-input';
+import { CONDITIONS, MOVEMENT_KINDS } from '$lib/server/db/schema';
+import { PART_FIELDS, PART_KINDS, type PartField, type PartFieldType } from '$lib/catalogue/part-fields';
+import { partInputSchema, partPatchSchema, PURCHASING_FIELDS } from '$lib/server/catalogue/part-input';
 import { listQuerySchema } from '$lib/server/catalogue/list';
 import { measurementInputSchema } from '$lib/server/catalogue/measurements';
 import { adjustSchema, conditionSchema, issueSchema, movementQuerySchema, moveSchema, receiveSchema, returnSchema, scrapSchema } from '$lib/server/stock/operations';
@@ -22,27 +23,16 @@ const surface = z.object({
 	material: nstr.optional()
 });
 
+/** Part JSON's shape of a descriptor field: its type, null when it may be empty, the descriptor's note. */
+function fieldJson(f: PartField): z.ZodType {
+	const types: Record<PartFieldType, z.ZodType> = { text: z.string(), kind: z.enum(PART_KINDS), number: z.number(), integer: int, surfaces: z.array(surface) };
+	const type = f.optional ? types[f.type].nullable() : types[f.type];
+	return f.note ? type.describe(f.note) : type;
+}
+
 export const partJson = z.looseObject({
 	id: int,
-	sku: z.string(),
-	name: z.string(),
-	kind: z.enum(PART_KINDS),
-	diameterMm: z.number(),
-	clearApertureMm: nnum.describe('null = 90 % of the diameter'),
-	surfaces: z.array(surface),
-	eflMm: nnum.describe('datasheet EFL at designWavelengthNm'),
-	bflMm: nnum,
-	centerThicknessMm: nnum,
-	designWavelengthNm: z.number(),
-	coating: nstr,
-	supplier: nstr,
-	supplierPartNumber: nstr,
-	unitPrice: nnum.describe('currency units of `currency`, at most two decimals (38.50); the same in the CSV export and import'),
-	currency: z.string().describe('ISO 4217'),
-	leadTimeDays: nint,
-	reorderPoint: int,
-	reorderQuantity: int,
-	notes: nstr,
+	...Object.fromEntries(PART_FIELDS.map((f) => [f.name, fieldJson(f)])),
 	onHand: int.describe('usable units in all locations'),
 	available: int.describe('on hand − active unexpired reservations'),
 	coatingBandNm: z
@@ -143,7 +133,7 @@ export const cataloguePaths: OpenApiPaths = {
 		patch: {
 			summary: 'Change some fields of a part',
 			description:
-				'Admin and stockroom may change any field; a purchaser only supplier, supplierPartNumber, unitPrice, currency, leadTimeDays, reorderPoint, reorderQuantity (else 403). `surfaces` replaces all surfaces.',
+				`Admin and stockroom may change any field; a purchaser only ${PURCHASING_FIELDS.join(', ')} (else 403). \`surfaces\` replaces all surfaces.`,
 			requestBody: jsonBody(partPatchSchema),
 			responses: { '200': jsonResponse('The part', partJson), ...errors(400, 401, 403, 404, 409, 415) }
 		},

@@ -15,20 +15,11 @@ import {
 import { id, ref } from './columns';
 import { users } from './auth';
 import { DEFAULT_WAVELENGTH_NM } from '../../../optics/materials';
+import { PART_KINDS } from '../../../catalogue/part-fields';
 
 
-/** Kinds of catalogue part; each fills a sensible surface template in the part form. */
-export const PART_KINDS = [
-	'plano-convex',
-	'biconvex',
-	'plano-concave',
-	'biconcave',
-	'positive-meniscus',
-	'negative-meniscus',
-	'achromatic-doublet',
-	'other'
-] as const;
-export type PartKind = (typeof PART_KINDS)[number];
+/** Kinds of catalogue part: the part field descriptor holds them (the API, the form and the import read them there). */
+export { PART_KINDS, type PartKind } from '../../../catalogue/part-fields';
 
 /**
  * Optical materials. `code` is what a part surface refers to: an open material name with a
