@@ -77,7 +77,7 @@ describe('Build pages in the browser', () => {
 		await page.goto(appUrl(QUESTION));
 		const answers = page.getByTestId('solution-row');
 		await expect(answers).not.toHaveCount(0, SOLVED);
-		expect(await answers.count()).toBeGreaterThan(1);
+		await expect.poll(() => answers.count()).toBeGreaterThan(1);
 		// Each code and each drawer is one line high.
 		const lines = await nowrapLines(page);
 		expect(lines.length).toBeGreaterThan(4);
@@ -132,7 +132,7 @@ describe('Build pages in the browser', () => {
 			// the table scrolls too, and its codes and drawers still do not break
 			for (const n of await nowrapLines(page)) expect(n).toBeLessThan(1.5);
 			// what is wider than the phone scrolls in its own box: the page itself does not
-			expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(390);
+			await expect.poll(() => page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(390);
 			await screenshot(page, 'build-phone');
 		} finally {
 			await page.setViewportSize({ width: 1280, height: 860 });

@@ -74,7 +74,7 @@ describe('stock take, labels and scan in Chromium', () => {
 			await page.getByRole('link', { name: 'Count this drawer' }).click();
 			await expect(page).toHaveURL(new RegExp(`/stock-take/${drawer.id}$`));
 			await expect(page.getByTestId('drawer-count')).toBeVisible();
-			expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(390);
+			await expect.poll(() => page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(390);
 			// both parts of the drawer are listed to count; only the condenser is counted
 			await expect(page.getByRole('textbox', { name: `${fx.tag}-FIELD` })).toBeVisible();
 			await page.getByRole('textbox', { name: tag }).fill('3');
@@ -134,7 +134,7 @@ describe('stock take, labels and scan in Chromium', () => {
 			await page.goto(appUrl(`/labels?location=${drawer.id}&skus=${tag}`));
 			await page.emulateMedia({ media: 'print' });
 			await expect(page.getByRole('banner')).toBeHidden();
-			expect(await sheet.evaluate((e) => getComputedStyle(e).gridTemplateColumns.split(' ').length)).toBe(3);
+			await expect.poll(() => sheet.evaluate((e) => getComputedStyle(e).gridTemplateColumns.split(' ').length)).toBe(3);
 			await screenshot(page, 'labels-print');
 		} finally {
 			await b.close();
