@@ -3,6 +3,7 @@
  * would): parts, drawers and stock with names of this file's own (`tag`), so that a test asserts on what it made
  * and never counts or names the demo data. `cleanup()` archives the parts again (DELETE /api/v1/parts/:id).
  */
+import type { APIRequestContext } from 'playwright-core';
 import { testEnv } from './env';
 import { DEMO_PASSWORD } from './browser';
 
@@ -89,3 +90,23 @@ export class Fixtures {
 
 const origin = () => new URL(testEnv('APP_URL')).origin;
 const url = (path: string) => new URL(path, testEnv('APP_URL')).toString();
+
+/**
+ * The parts of a saved setup and the drawers holding them, read through the API with the page's session
+ * (`page.request`): what its build sheet must name, whatever the stock's naming.
+ */
+export async function setupParts(request: APIRequestContext, setupId: number): Promise<{ skus: string[]; drawers: string[] }> {
+	const get = async <T>(path: string): Promise<T> => {
+		const res = await request.get(url(path));
+		if (!res.ok()) throw new Error(`GET ${path} gave ${res.status()}: ${await res.text()}`);
+		return (await res.json()) as T;
+	};
+	const setup = await get<{ solution: { elements: { partId: number }[] } }>(`/api/v1/setups/${setupId}`);
+	const skus: string[] = [];
+	const drawers = new Set<string>();
+	for (const { partId } of setup.solution.elements) {
+		skus.push((await get<{ sku: string }>(`/api/v1/parts/${partId}`)).sku);
+		for (const row of (await get<{ items: { code: string; condition: string }[] }>(`/api/v1/stock?partId=${partId}`)).items) if (row.condition === 'usable') drawers.add(row.code);
+	}
+	return { skus, drawers: [...drawers] };
+}

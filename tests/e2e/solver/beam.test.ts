@@ -12,6 +12,7 @@ import { afterAll, beforeAll, describe, it } from 'vitest';
 import { and, eq, inArray } from 'drizzle-orm';
 import type { Page } from 'playwright-core';
 import { appUrl, expect, openBrowser, screenshot, signIn, tableRows } from '../../support/browser';
+import { setupParts } from '../../support/fixtures';
 import { testDb } from '../../support/env';
 import { reservations } from '../../../src/lib/server/db/schema';
 
@@ -226,7 +227,8 @@ describe('Shape and expand a laser beam in the browser', () => {
 		await page.getByLabel('Setup name').fill('E2E focus for the cutting bench');
 		await page.getByRole('button', { name: 'Save as setup' }).click();
 		await expect(page).toHaveURL(/\/build\/\d+$/);
-		savedSetups.push(Number(new URL(page.url()).pathname.split('/').pop()));
+		const setupId = Number(new URL(page.url()).pathname.split('/').pop());
+		savedSetups.push(setupId);
 		await expect(page.getByRole('heading', { level: 1 })).toContainText('E2E focus for the cutting bench');
 		await expect(page.getByTestId('setup-question')).toHaveText(/Shape a beam .* Ø 20\.0 µm at z = 150\.0 mm/);
 		await expectEnvelope(page, ['output']);
@@ -239,8 +241,12 @@ describe('Shape and expand a laser beam in the browser', () => {
 		await page.getByRole('link', { name: 'Build sheet' }).click();
 		await expect(page).toHaveURL(/\/sheet$/);
 		const sheet = page.getByTestId('build-sheet');
-		await expect(sheet).toContainText(/TW-/);
-		await expect(sheet).toContainText(/A\d-D\d|B\d-D\d/);
+		// the sheet names every part of the setup and a drawer that holds it
+		const { skus, drawers } = await setupParts(page.request, setupId);
+		expect(skus.length).toBeGreaterThan(0);
+		for (const sku of skus) await expect(sheet).toContainText(sku);
+		expect(drawers.length).toBeGreaterThan(0);
+		await expect(sheet).toContainText(new RegExp(drawers.map((d) => d.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')).join('|')));
 		await expect(sheet).toContainText(/Target waist/);
 		// bench words for a beam: the incoming beam, never an object
 		const words = page.locator('td[data-testid=orientation]');
