@@ -1,8 +1,8 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, describe, it } from 'vitest';
 import type { Page } from 'playwright-core';
 import { eq, like } from 'drizzle-orm';
 import { Secret } from 'otpauth';
-import { appUrl, openBrowser, screenshot, signIn } from '../../support/browser';
+import { appUrl, expect, fillSignIn, openBrowser, screenshot, signIn } from '../../support/browser';
 import { testDb } from '../../support/env';
 import { signinFailures, users } from '../../../src/lib/server/db/schema';
 import { hashPassword } from '../../../src/lib/server/auth/password';
@@ -39,23 +39,23 @@ describe('two-step sign-in in Chromium', () => {
 		await signIn(page, EMAIL, PASSWORD);
 		const res = await page.goto(appUrl('/admin/users'));
 		expect(res?.status()).toBe(403);
-		await expect(page.locator('[data-testid=two-step-needed] h1').innerText()).resolves.toBe('Two-step sign-in needed');
+		await expect(page.getByTestId('two-step-needed').getByRole('heading', { level: 1 })).toHaveText('Two-step sign-in needed');
 		// guidance, not a red error (issue 16)
-		expect(await page.locator('body').innerText()).not.toMatch(/Error 403|403/);
+		await expect(page.locator('body')).not.toContainText(/Error 403|403/);
 		await screenshot(page, 'two-step-admin-needs-it');
 		await page.setViewportSize({ width: 390, height: 844 });
 		await screenshot(page, 'two-step-admin-needs-it-phone');
 		await page.setViewportSize({ width: 1280, height: 860 });
-		await Promise.all([page.waitForURL((u) => u.pathname === '/account'), page.click('a:has-text("Set up two-step sign-in")')]);
-		await expect(page.locator('[data-testid=two-step-state]').innerText()).resolves.toBe('off');
+		await page.getByRole('link', { name: 'Set up two-step sign-in' }).click();
+		await expect(page).toHaveURL(/\/account(#two-step)?$/);
+		await expect(page.getByTestId('two-step-state')).toHaveText('off');
 	});
 
 	it('sets it up from the QR code’s key and a code, and then opens the admin pages', async () => {
-		await page.click('button:has-text("Set up two-step sign-in")');
-		await page.waitForSelector('[data-testid=two-step-qr]');
-		const src = await page.locator('[data-testid=two-step-qr]').getAttribute('src');
-		expect(src).toMatch(/^data:image\/png;base64,/);
-		const key = (await page.locator('[data-testid=two-step-secret]').innerText()).replace(/\s/g, '');
+		await page.getByRole('button', { name: 'Set up two-step sign-in' }).click();
+		const qr = page.getByRole('img', { name: /^QR code that adds Glasscrib/ });
+		await expect(qr).toHaveAttribute('src', /^data:image\/png;base64,/);
+		const key = (await page.getByTestId('two-step-secret').innerText()).replace(/\s/g, '');
 		expect(key).toMatch(/^[A-Z2-7]{32}$/); // 20 bytes in base32
 		secret = new Uint8Array(Secret.fromBase32(key).bytes);
 		await screenshot(page, 'two-step-setup');
@@ -63,41 +63,42 @@ describe('two-step sign-in in Chromium', () => {
 		await screenshot(page, 'two-step-setup-phone');
 		await page.setViewportSize({ width: 1280, height: 860 });
 
-		await page.fill('#two-step-code', '000000' === codeAt(secret, Date.now()) ? '111111' : '000000');
-		await page.click('button:has-text("Turn on")');
-		await page.waitForSelector('#two-step-code-error');
-		expect(await page.locator('#two-step-code-error').innerText()).toContain('not right');
+		const code = page.getByLabel('Code', { exact: true });
+		await code.fill('000000' === codeAt(secret, Date.now()) ? '111111' : '000000');
+		await page.getByRole('button', { name: 'Turn on' }).click();
+		await expect(code).toHaveAccessibleDescription(/not right/);
+		await expect(page.getByTestId('two-step-state')).not.toHaveText('on');
 
-		await page.fill('#two-step-code', codeAt(secret, Date.now()));
-		await page.click('button:has-text("Turn on")');
-		await page.waitForSelector('[data-testid=two-step-done]');
-		await expect(page.locator('[data-testid=two-step-state]').innerText()).resolves.toBe('on');
+		await code.fill(codeAt(secret, Date.now()));
+		await page.getByRole('button', { name: 'Turn on' }).click();
+		await expect(page.getByTestId('two-step-done')).toBeVisible();
+		await expect(page.getByTestId('two-step-state')).toHaveText('on');
 		await screenshot(page, 'two-step-on');
 		const res = await page.goto(appUrl('/admin/users'));
 		expect(res?.status()).toBe(200);
-		expect(await page.locator('[data-testid=user-row][data-email="' + EMAIL + '"] [data-testid=two-step-cell]').innerText()).toBe('on');
+		await expect(page.getByTestId("user-table").getByRole("row").filter({ hasText: EMAIL }).getByTestId("two-step-cell")).toHaveText("on");
 	});
 
 	it('asks for the code at the next sign-in, and goes on where the person wanted to go', async () => {
-		await page.click('button:has-text("Sign out")');
-		await page.waitForURL((u) => u.pathname === '/signin');
+		await page.getByRole('banner').getByRole('button', { name: 'Sign out' }).click();
+		await expect(page).toHaveURL(/\/signin$/);
 		await page.goto(appUrl('/admin/outbox'));
-		await page.fill('input[name=email]', EMAIL);
-		await page.fill('input[name=password]', PASSWORD);
-		await Promise.all([page.waitForURL((u) => u.pathname === '/signin/code'), page.click('button:has-text("Sign in")')]);
+		await fillSignIn(page, EMAIL, PASSWORD);
+		await expect(page).toHaveURL(/\/signin\/code\?/);
 		expect(new URL(page.url()).searchParams.get('redirectTo')).toBe('/admin/outbox');
-		await expect(page.locator('nav[aria-label=Main]').count()).resolves.toBe(0);
+		await expect(page.getByRole('navigation', { name: 'Main' })).toHaveCount(0);
 		await screenshot(page, 'two-step-signin-code');
 		await page.setViewportSize({ width: 390, height: 844 });
 		await screenshot(page, 'two-step-signin-code-phone');
 		await page.setViewportSize({ width: 1280, height: 860 });
 		// Anything else sends back to the code page.
 		await page.goto(appUrl('/parts'));
-		expect(new URL(page.url()).pathname).toBe('/signin/code');
+		await expect(page).toHaveURL(/\/signin\/code(\?|$)/);
 		// The code of the set-up was spent: the next step's code (accepted within ±1 step) signs in.
-		await page.fill('input[name=code]', codeAt(secret, Date.now() + 30_000));
-		await Promise.all([page.waitForURL((u) => u.pathname === '/parts'), page.click('button:has-text("Continue")')]);
+		await page.getByLabel('Code', { exact: true }).fill(codeAt(secret, Date.now() + 30_000));
+		await page.getByRole('button', { name: 'Continue' }).click();
+		await expect(page).toHaveURL(/\/parts(\?|$)/);
 		await page.goto(appUrl('/admin/outbox'));
-		await page.waitForSelector('[data-testid=outbox-table]');
+		await expect(page.getByTestId('outbox-table')).toBeVisible();
 	});
 });

@@ -1,10 +1,10 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, describe, it } from 'vitest';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { inArray, like } from 'drizzle-orm';
 import type { Page } from 'playwright-core';
-import { appUrl, openBrowser, screenshot, signIn } from '../../support/browser';
+import { appUrl, expect, openBrowser, screenshot, signIn } from '../../support/browser';
 import { testDb } from '../../support/env';
 import * as t from '../../../src/lib/server/db/schema';
 
@@ -36,31 +36,36 @@ describe('the import wizard in Chromium', () => {
 	it('uploads, maps, checks and commits a CSV with the progress bar shown', async () => {
 		await signIn(page, 'stockroom@tarnwell.example');
 		await page.goto(appUrl('/imports/new'));
-		await page.setInputFiles('input[name=file]', file);
-		await page.selectOption('select[name=supplierId]', { label: 'Kestrelmoor Optics' });
+		await page.getByLabel('CSV file', { exact: true }).setInputFiles(file);
+		await page.getByLabel('Supplier of this list', { exact: true }).selectOption({ label: 'Kestrelmoor Optics' });
 		await screenshot(page, 'imports-new');
-		await Promise.all([page.waitForURL(/\/imports\/\d+$/), page.click('button:has-text("Upload and map columns")')]);
+		await page.getByRole('button', { name: 'Upload and map columns' }).click();
+		await expect(page).toHaveURL(/\/imports\/\d+$/);
+		const importPath = new URL(page.url()).pathname;
 
 		// Suggested mapping from the header names, inch unit from "Dia (in)".
-		await expect(page.locator('select[name="map.sku"]').inputValue()).resolves.toBe('SKU');
-		await expect(page.locator('select[name="map.diameterMm"]').inputValue()).resolves.toBe('Dia (in)');
-		await expect(page.locator('select[name="unit.diameterMm"]').inputValue()).resolves.toBe('in');
-		await expect(page.locator('select[name="map.r1Mm"]').inputValue()).resolves.toBe('R1');
+		await expect(page.getByLabel(/^SKU$/)).toHaveValue('SKU');
+		await expect(page.getByLabel(/^Diameter\b/)).toHaveValue('Dia (in)');
+		await expect(page.getByLabel(/^Unit of Diameter\b/)).toHaveValue('in');
+		await expect(page.getByLabel(/^Radius surface 1$/)).toHaveValue('R1');
 		await screenshot(page, 'imports-mapping');
 
-		await page.click('button:has-text("Check every row")');
-		await page.locator('[data-testid=import-summary]').waitFor({ timeout: 60_000 });
-		await expect(page.locator('[data-testid=count-created]').innerText()).resolves.toBe('6000');
-		await expect(page.locator('[data-testid=count-rejected]').innerText()).resolves.toBe('0');
+		await page.getByRole('button', { name: /^Check every row/ }).click();
+		await expect(page.getByTestId('import-summary')).toBeVisible({ timeout: 60_000 });
+		await expect(page.getByTestId('count-created')).toHaveText('6000');
+		await expect(page.getByTestId('count-rejected')).toHaveText('0');
 		await screenshot(page, 'imports-checked');
 
-		await page.click('button:has-text("Write 6000 parts")');
-		await page.locator('[data-testid=import-progress] progress').waitFor({ timeout: 20_000 });
+		await page.getByRole('button', { name: 'Write 6000 parts to the catalogue' }).click();
+		// The progress bar while it writes, or straight the end when the writing was quicker than the page.
+		const progress = page.getByRole('progressbar', { name: 'Rows handled' });
+		const done = page.getByTestId('import-status').filter({ hasText: 'In the catalogue' });
+		await expect(progress.or(done)).toBeVisible({ timeout: 20_000 });
 		await screenshot(page, 'imports-progress');
 		// The page survives a reload while it runs (or after it finished).
 		await page.reload();
-		await page.locator('[data-testid=import-status]:has-text("In the catalogue")').waitFor({ timeout: 60_000 });
-		await expect(page.locator('[data-testid=count-created]').innerText()).resolves.toBe('6000');
+		await expect(done).toBeVisible({ timeout: 60_000 });
+		await expect(page.getByTestId('count-created')).toHaveText('6000');
 		await screenshot(page, 'imports-committed');
 
 		const stored = await db.select({ d: t.parts.diameterMm }).from(t.parts).where(like(t.parts.sku, `${tag}-%`));
@@ -68,7 +73,10 @@ describe('the import wizard in Chromium', () => {
 		expect(stored.every((s) => Math.abs(s.d - 25.4) < 1e-12)).toBe(true);
 
 		await page.goto(appUrl('/imports'));
-		await expect(page.locator('[data-testid=imports-table]').innerText()).resolves.toContain('kestrelmoor-list.csv');
+		// this import's row: its file name links to its page, and it is in the catalogue
+		const row = page.getByTestId('imports-table').getByRole('row').filter({ has: page.locator(`a[href="${importPath}"]`) });
+		await expect(row.getByRole('link', { name: 'kestrelmoor-list.csv' })).toBeVisible();
+		await expect(row.getByTestId('import-status')).toHaveText('In the catalogue');
 		await screenshot(page, 'imports-history');
 	});
 });

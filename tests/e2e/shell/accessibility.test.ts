@@ -9,9 +9,10 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
 import { AxeBuilder } from '@axe-core/playwright';
-import { desc, inArray, isNull } from 'drizzle-orm';
+import { desc, inArray } from 'drizzle-orm';
 import { appUrl, openBrowser, signIn } from '../../support/browser';
 import { testDb } from '../../support/env';
+import { Fixtures } from '../../support/fixtures';
 import * as t from '../../../src/lib/server/db/schema';
 
 const { db, pool } = testDb();
@@ -19,7 +20,7 @@ const ROLES = ['admin', 'stockroom', 'engineer', 'purchaser'] as const;
 const tag = `AX${Date.now().toString(36).toUpperCase()}`;
 
 /** Every page of the app, with the ids of this run's fixtures filled in. */
-function pages(ids: { part: number; setup: number; importId: number; request: number; outbox: number; location: string }): string[] {
+function pages(ids: { part: number; setup: number; importId: number; request: number; outbox: number; location: number }): string[] {
 	return [
 		'/',
 		'/account',
@@ -32,7 +33,7 @@ function pages(ids: { part: number; setup: number; importId: number; request: nu
 		'/labels',
 		'/scan',
 		'/stock-take',
-		`/stock-take/${encodeURIComponent(ids.location)}`,
+		`/stock-take/${ids.location}`,
 		'/build',
 		'/build?mode=beam',
 		'/build?mode=afocal',
@@ -67,13 +68,17 @@ describe('accessibility (axe-core) of every page for every role', () => {
 	let page: Page;
 	const made = { setups: [] as number[], requests: [] as number[], outbox: [] as number[], imports: [] as number[] };
 	let ids: Parameters<typeof pages>[0];
+	let fx: Fixtures;
 
 	beforeAll(async () => {
 		browser = await openBrowser();
 		page = browser.page;
 		const origin = new URL(appUrl('/')).origin;
-		const [part] = await db.select({ id: t.parts.id }).from(t.parts).where(isNull(t.parts.archivedAt)).orderBy(t.parts.id).limit(1);
-		const [location] = await db.select({ code: t.locations.code }).from(t.locations).orderBy(t.locations.id).limit(1);
+		// A part with stock in a drawer, both of this file's own (the stockroom makes them through the API).
+		fx = await Fixtures.open('AX');
+		const location = await fx.location('D1', 'Accessibility check drawer');
+		const part = await fx.part('LENS', { name: 'Accessibility check lens', kind: 'plano-convex', diameterMm: 25.4, eflMm: 100 });
+		await fx.receive(part.id, location.id, 2);
 
 		// A saved setup, as an engineer saves one.
 		await signIn(page, 'engineer@tarnwell.example');
@@ -111,7 +116,7 @@ describe('accessibility (axe-core) of every page for every role', () => {
 		const [mail] = await db.insert(t.outboxMessages).values({ fromAddress: 'glasscrib@tarnwell.example', toAddresses: 'engineer@tarnwell.example', subject: `${tag} check`, textBody: 'A message for the accessibility check.', sizeBytes: 40, receivedAt: new Date() }).$returningId();
 		made.outbox.push(mail.id);
 
-		ids = { part: part.id, setup: made.setups[0], importId: imp.id, request: made.requests[0], outbox: mail.id, location: location.code };
+		ids = { part: part.id, setup: made.setups[0], importId: imp.id, request: made.requests[0], outbox: mail.id, location: location.id };
 	}, 120_000);
 
 	afterAll(async () => {
@@ -122,6 +127,7 @@ describe('accessibility (axe-core) of every page for every role', () => {
 			await db.delete(t.purchaseRequests).where(inArray(t.purchaseRequests.id, made.requests));
 		}
 		if (made.outbox.length) await db.delete(t.outboxMessages).where(inArray(t.outboxMessages.id, made.outbox));
+		await fx?.cleanup();
 		await pool.end();
 	});
 

@@ -1,10 +1,10 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, describe, it } from 'vitest';
 import type { Page } from 'playwright-core';
-import { and, count, desc, eq, inArray, isNull } from 'drizzle-orm';
-import { appUrl, openBrowser, screenshot, signIn } from '../../support/browser';
+import { count, desc, eq, inArray, isNull } from 'drizzle-orm';
+import { appUrl, expect, openBrowser, screenshot, signIn } from '../../support/browser';
 import { testDb } from '../../support/env';
+import { Fixtures } from '../../support/fixtures';
 import { parts, purchaseRequests, setups, users } from '../../../src/lib/server/db/schema';
-import { demoParts } from '../../../seed/demo-data';
 
 const { db, pool } = testDb();
 
@@ -22,23 +22,30 @@ describe('app shell in Chromium', () => {
 
 	it('sends an anonymous visitor to the sign-in page', async () => {
 		await page.goto(appUrl('/'));
-		expect(new URL(page.url()).pathname).toBe('/signin');
-		await expect(page.locator('h1').textContent()).resolves.toContain('Sign in');
+		await expect(page).toHaveURL(/\/signin(\?|$)/);
+		await expect(page.getByRole('heading', { level: 1 })).toContainText('Sign in');
 	});
 
-	it('shows the overview with the demo numbers and the bundled Lato font after sign-in', async () => {
+	it('shows the overview with the live part count and the bundled Lato font after sign-in', async () => {
 		await signIn(page, 'engineer@tarnwell.example');
-		expect(new URL(page.url()).pathname).toBe('/');
-		const summary = await page.locator('[data-testid=summary]').innerText();
-		// All 90 demo parts are in the catalogue, and the page shows the live count of unarchived parts,
-		// which equals 90 only if every earlier test file archived the parts it made: read it, so that
-		// one file's leftover does not fail this test too.
-		const seeded = demoParts().map((p) => p.sku);
-		expect(seeded).toHaveLength(90);
-		const [demo] = await db.select({ n: count() }).from(parts).where(and(isNull(parts.archivedAt), inArray(parts.sku, seeded)));
-		expect(demo.n).toBe(90);
-		const [live] = await db.select({ n: count() }).from(parts).where(isNull(parts.archivedAt));
-		expect(summary).toMatch(new RegExp(`Parts in the catalogue\\s+${live.n}\\b`, 'i'));
+		await expect(page).toHaveURL(appUrl('/'));
+		const summary = page.getByTestId('summary');
+		// The count of unarchived parts, as the database has it now (whatever other files left behind) ...
+		const live = async () => (await db.select({ n: count() }).from(parts).where(isNull(parts.archivedAt)))[0].n;
+		const before = await live();
+		await expect(summary).toHaveText(new RegExp(`Parts in the catalogue\\s+${before}\\b`, 'i'));
+		// ... and it follows a part this file adds and archives again.
+		const fx = await Fixtures.open('E2E-SHELL');
+		try {
+			await fx.part('ONE');
+			expect(await live()).toBe(before + 1);
+			await page.reload();
+			await expect(summary).toHaveText(new RegExp(`Parts in the catalogue\\s+${before + 1}\\b`, 'i'));
+		} finally {
+			await fx.cleanup();
+		}
+		await page.reload();
+		await expect(summary).toHaveText(new RegExp(`Parts in the catalogue\\s+${before}\\b`, 'i'));
 		const font = await page.evaluate(() => getComputedStyle(document.body).fontFamily);
 		expect(font).toContain('Lato');
 		const loaded = await page.evaluate(async () => {
@@ -68,15 +75,15 @@ describe('app shell in Chromium', () => {
 		const setup = (await saved.json()) as { id: number };
 		try {
 			await page.goto(appUrl('/'));
-			const section = page.locator('[data-testid=overview-setups]');
-			await expect(section.locator('h2').innerText()).resolves.toBe('Your saved setups');
-			await expect(section.locator(`a[href="/build/${setup.id}"]`).innerText()).resolves.toBe(name);
+			const section = page.getByTestId('overview-setups');
+			await expect(section.getByRole('heading', { level: 2 })).toHaveText('Your saved setups');
+			await expect(section.getByRole('link', { name, exact: true })).toHaveAttribute('href', `/build/${setup.id}`);
 			const [me] = await db.select({ id: users.id }).from(users).where(eq(users.email, 'engineer@tarnwell.example'));
 			const mine = await db.select({ id: setups.id }).from(setups).where(eq(setups.userId, me.id)).orderBy(desc(setups.id)).limit(5);
 			const links = await section.locator('a[href^="/build/"]').evaluateAll((as) => as.map((a) => a.getAttribute('href')));
 			expect(links.filter((h) => /^\/build\/\d+$/.test(h ?? ''))).toEqual(mine.map((m) => `/build/${m.id}`));
-			await expect(page.locator('[data-testid=overview-purchasing]').count()).resolves.toBe(0);
-			await expect(page.locator('.caution').innerText()).resolves.toContain('laser safety officer');
+			await expect(page.getByTestId('overview-purchasing')).toHaveCount(0);
+			await expect(page.locator('.caution')).toContainText('laser safety officer');
 		} finally {
 			await db.delete(setups).where(eq(setups.id, setup.id));
 		}
@@ -85,10 +92,10 @@ describe('app shell in Chromium', () => {
 	it('answers an unknown address with the error page and a helpful sentence', async () => {
 		const res = await page.goto(appUrl('/no-such-page'));
 		expect(res?.status()).toBe(404);
-		const text = await page.locator('[data-testid=error-page]').innerText();
-		expect(text).toContain('Nothing here');
-		expect(text).toContain('There is no page at /no-such-page.');
-		expect(text).not.toContain('Not Found');
+		const text = page.getByTestId('error-page');
+		await expect(text).toContainText('Nothing here');
+		await expect(text).toContainText('There is no page at /no-such-page.');
+		await expect(text).not.toContainText('Not Found');
 	});
 
 	it('loads nothing from outside the app, fonts only as files, and logs no console errors (CSP included)', async () => {
@@ -110,7 +117,8 @@ describe('app shell in Chromium', () => {
 		page.on('pageerror', (e) => consoleErrors.push(`${page.url()}: ${e.message}`));
 		for (const path of ['/', '/parts', '/stock']) {
 			await page.goto(appUrl(path));
-			await page.waitForLoadState('networkidle');
+			// every font the page uses has loaded (or failed, which the console shows)
+			await expect.poll(() => page.evaluate(() => document.fonts.status)).toBe('loaded');
 			await page.evaluate(() => document.fonts.ready.then(() => undefined));
 		}
 		expect(external).toEqual([]);
@@ -125,14 +133,16 @@ describe('app shell in Chromium', () => {
 		try {
 			await signIn(other.page, 'purchaser@tarnwell.example');
 			await other.page.goto(appUrl('/'));
-			const flagged = Number(await other.page.locator('[data-testid=overview-flagged]').innerText());
+			const flaggedLink = other.page.getByTestId('overview-flagged');
+			await expect(flaggedLink).toHaveText(/^\d+$/);
+			const flagged = Number(await flaggedLink.innerText());
 			const open = await db.select({ n: count() }).from(purchaseRequests).where(inArray(purchaseRequests.status, ['draft', 'requested', 'ordered', 'partly-received']));
-			await expect(other.page.locator('[data-testid=overview-open-requests]').innerText()).resolves.toBe(String(open[0].n));
-			await expect(other.page.locator('[data-testid=overview-setups]').count()).resolves.toBe(0);
-			await Promise.all([other.page.waitForURL((u) => u.pathname === '/reorder'), other.page.click('[data-testid=overview-flagged]')]);
-			await other.page.waitForFunction(() => document.documentElement.dataset.ready === '1');
-			await expect(other.page.locator('#board-show').inputValue()).resolves.toBe('flagged');
-			await expect(other.page.locator('[data-testid=reorder-row]').count()).resolves.toBe(flagged);
+			await expect(other.page.getByTestId('overview-open-requests')).toHaveText(String(open[0].n));
+			await expect(other.page.getByTestId('overview-setups')).toHaveCount(0);
+			await flaggedLink.click();
+			await expect(other.page).toHaveURL(/\/reorder\?show=flagged$/);
+			await expect(other.page.getByLabel('Show', { exact: true })).toHaveValue('flagged');
+			await expect(other.page.getByTestId('reorder-row')).toHaveCount(flagged);
 		} finally {
 			await other.close();
 		}

@@ -7,31 +7,34 @@
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, describe, it } from 'vitest';
 import { and, eq } from 'drizzle-orm';
 import { Jimp } from 'jimp';
 import jsQR from 'jsqr';
-import { appUrl, openBrowser, screenshot, signIn } from '../../support/browser';
+import { appUrl, expect, openBrowser, screenshot, signIn } from '../../support/browser';
 import { testDb } from '../../support/env';
+import { Fixtures, type LocationFixture } from '../../support/fixtures';
 import * as t from '../../../src/lib/server/db/schema';
-import * as parts from '../../../src/lib/server/catalogue/parts';
-import * as ops from '../../../src/lib/server/stock/operations';
 
 const { db, pool } = testDb();
-const tag = `E2E-ST-${Date.now().toString(36).toUpperCase()}`;
+let fx: Fixtures;
+let tag = '';
 let partId = 0;
-let drawer = { id: 0, code: '' };
+let drawer: LocationFixture = { id: 0, code: '' };
 const tmp = fs.mkdtempSync(path.join(os.tmpdir(), 'glasscrib-scan-'));
 
 beforeAll(async () => {
-	const [stockroom] = await db.select().from(t.users).where(eq(t.users.email, 'stockroom@tarnwell.example'));
-	const [loc] = await db.select().from(t.locations).where(eq(t.locations.code, 'B2-D1'));
-	drawer = { id: loc.id, code: loc.code };
-	({ id: partId } = await parts.createPart(db, { sku: tag, name: 'Browser stock take condenser', kind: 'other', diameterMm: 25, eflMm: 40 }, { id: stockroom.id }));
-	await ops.receive(db, { partId, quantity: 4, locationId: loc.id }, { id: stockroom.id });
+	// A drawer of this file's own holding two parts of its own: one is counted, the other left uncounted.
+	fx = await Fixtures.open('E2E-ST');
+	drawer = await fx.location('D1', 'Stock take test drawer');
+	let other = 0;
+	({ id: partId, sku: tag } = await fx.part('COND', { name: 'Browser stock take condenser', kind: 'other', diameterMm: 25, eflMm: 40 }));
+	({ id: other } = await fx.part('FIELD', { name: 'Browser stock take field lens', kind: 'other', diameterMm: 25, eflMm: 60 }));
+	await fx.receive(partId, drawer.id, 4);
+	await fx.receive(other, drawer.id, 2);
 });
 afterAll(async () => {
-	await db.update(t.parts).set({ archivedAt: new Date() }).where(eq(t.parts.id, partId));
+	await fx?.cleanup();
 	fs.rmSync(tmp, { recursive: true, force: true });
 	await pool.end();
 });
@@ -68,21 +71,25 @@ describe('stock take, labels and scan in Chromium', () => {
 			await page.setViewportSize({ width: 390, height: 844 });
 			await signIn(page, 'stockroom@tarnwell.example');
 			await page.goto(appUrl(`/stock?locationId=${drawer.id}`));
-			await Promise.all([page.waitForURL((u) => u.pathname === `/stock-take/${drawer.id}`), page.click('[data-testid=count-drawer]')]);
-			await page.waitForSelector('[data-testid=drawer-count]');
-			expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(390);
-			await page.fill(`input[data-sku="${tag}"]`, '3');
-			await page.click('[data-testid=drawer-check]');
-			await page.waitForSelector('[data-testid=stock-take-result]');
-			const line = page.locator(`[data-testid=take-line][data-sku="${tag}"]`);
-			await expect(line.locator('[data-testid=take-difference]').innerText()).resolves.toBe('-1');
-			expect(await page.locator('[data-testid=take-line]').count()).toBe(1); // only the line counted
+			await page.getByRole('link', { name: 'Count this drawer' }).click();
+			await expect(page).toHaveURL(new RegExp(`/stock-take/${drawer.id}$`));
+			await expect(page.getByTestId('drawer-count')).toBeVisible();
+			await expect.poll(() => page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(390);
+			// both parts of the drawer are listed to count; only the condenser is counted
+			await expect(page.getByRole('textbox', { name: `${fx.tag}-FIELD` })).toBeVisible();
+			await page.getByRole('textbox', { name: tag }).fill('3');
+			await page.getByRole('button', { name: 'Check the count' }).click();
+			const result = page.getByTestId('stock-take-result');
+			await expect(result).toBeVisible();
+			const line = result.getByRole('row').filter({ hasText: tag });
+			await expect(line.getByTestId('take-difference')).toHaveText('-1');
+			await expect(page.getByTestId('take-line')).toHaveCount(1); // only the line counted
 			await screenshot(page, 'stock-take-drawer-390');
 			const before = await db.select().from(t.movements).where(and(eq(t.movements.partId, partId), eq(t.movements.reason, 'stock take')));
 			expect(before).toHaveLength(0);
-			await page.click('[data-testid=stock-take-confirm]');
-			await page.waitForSelector('text=Written to the ledger');
-			await expect(page.locator('[data-testid=stock-take-summary]').innerText()).resolves.toMatch(/1 adjustment written with the reason “stock take”/);
+			await page.getByRole('button', { name: 'Confirm: write 1 adjustment' }).click();
+			await expect(page.getByRole('heading', { name: 'Written to the ledger' })).toBeVisible();
+			await expect(page.getByTestId('stock-take-summary')).toHaveText(/1 adjustment written with the reason “stock take”/);
 			await screenshot(page, 'stock-take-done-390');
 			const written = await db.select().from(t.movements).where(and(eq(t.movements.partId, partId), eq(t.movements.reason, 'stock take')));
 			expect(written.map((m) => [m.kind, m.quantity, m.fromLocationId])).toEqual([['adjust', 1, drawer.id]]);
@@ -99,12 +106,15 @@ describe('stock take, labels and scan in Chromium', () => {
 			const { page } = b;
 			await signIn(page, 'stockroom@tarnwell.example');
 			await page.goto(appUrl('/labels'));
-			await page.check(`input[name=location][value="${drawer.id}"]`);
-			await page.fill('#label-skus', `${tag} NO-SUCH-PART`);
-			await Promise.all([page.waitForURL((u) => u.pathname === '/labels' && u.search.includes('skus')), page.click('button:has-text("Make labels")')]);
-			await page.waitForSelector('[data-testid=label-sheet]');
-			await expect(page.locator('[role=alert]').innerText()).resolves.toContain('NO-SUCH-PART');
-			const labels = await page.$$eval('[data-testid=label]', (els) => els.map((e) => ({ kind: e.getAttribute('data-kind'), url: e.getAttribute('data-url'), src: e.querySelector('img')!.getAttribute('src')! })));
+			await page.getByRole('group', { name: 'Drawers' }).getByRole('checkbox', { name: new RegExp(`^${drawer.code} `) }).check();
+			await page.getByLabel('Parts (SKUs, separated by spaces, commas or lines)').fill(`${tag} NO-SUCH-PART`);
+			await page.getByRole('button', { name: 'Make labels' }).click();
+			await expect(page).toHaveURL(/\/labels\?.*skus=/);
+			const sheet = page.getByRole('region', { name: 'Label sheet' });
+			await expect(sheet).toBeVisible();
+			await expect(page.getByRole('alert')).toContainText('NO-SUCH-PART');
+			await expect(sheet.getByTestId('label')).toHaveCount(2);
+			const labels = await sheet.getByTestId('label').evaluateAll((els) => els.map((e) => ({ kind: e.getAttribute('data-kind'), url: e.getAttribute('data-url'), src: e.querySelector('img')!.getAttribute('src')! })));
 			expect(labels.map((l) => [l.kind, new URL(l.url!).pathname + new URL(l.url!).search])).toEqual([
 				['drawer', `/stock?locationId=${drawer.id}`],
 				['part', `/parts/${partId}`]
@@ -115,13 +125,16 @@ describe('stock take, labels and scan in Chromium', () => {
 				if (l.kind === 'part') labelPng = png;
 			}
 			// each code really opens its page
-			await page.goto(labels[1].url!);
-			await expect(page.locator('h1').innerText()).resolves.toContain(tag);
+			for (const l of labels) {
+				await page.goto(l.url!);
+				if (l.kind === 'part') await expect(page.getByRole('heading', { level: 1 })).toContainText(tag);
+				else await expect(page.getByRole('heading', { level: 2, name: drawer.code })).toBeVisible();
+			}
 			// the printed sheet: no header, three labels a row
 			await page.goto(appUrl(`/labels?location=${drawer.id}&skus=${tag}`));
 			await page.emulateMedia({ media: 'print' });
-			expect(await page.locator('header').first().isVisible()).toBe(false);
-			expect(await page.$eval('[data-testid=label-sheet]', (e) => getComputedStyle(e).gridTemplateColumns.split(' ').length)).toBe(3);
+			await expect(page.getByRole('banner')).toBeHidden();
+			await expect.poll(() => sheet.evaluate((e) => getComputedStyle(e).gridTemplateColumns.split(' ').length)).toBe(3);
 			await screenshot(page, 'labels-print');
 		} finally {
 			await b.close();
@@ -142,14 +155,14 @@ describe('stock take, labels and scan in Chromium', () => {
 			const res = await page.goto(appUrl('/scan'));
 			expect(res?.status(), (await page.locator('body').innerText()).slice(0, 400)).toBe(200);
 			expect(res?.headers()['permissions-policy']).toContain('camera=(self)');
-			await page.click('[data-testid=scan-start]', { timeout: 10_000 });
-			await page.waitForSelector('[data-testid=scan-result]', { timeout: 20_000 });
-			await expect(page.locator('[data-testid=scan-result]').innerText()).resolves.toContain(tag);
-			expect(await page.locator('[data-testid=scan-result]').getAttribute('data-kind')).toBe('part');
+			await page.getByRole('button', { name: 'Start the camera' }).click();
+			const found = page.getByTestId('scan-result');
+			await expect(found).toContainText(tag, { timeout: 20_000 });
+			await expect(found).toHaveAttribute('data-kind', 'part');
 			await screenshot(page, 'scan-found-390');
-			await Promise.all([page.waitForURL((u) => u.pathname === `/parts/${partId}`), page.click('[data-testid=scan-issue]')]);
-			await page.waitForSelector('[role=tab][aria-selected=true]');
-			await expect(page.locator('[role=tab][aria-selected=true]').innerText()).resolves.toBe('issue');
+			await found.getByRole('link', { name: 'Issue', exact: true }).click();
+			await expect(page).toHaveURL(new RegExp(`/parts/${partId}\\?op=issue`));
+			await expect(page.getByRole('tab', { selected: true })).toHaveText('issue');
 		} finally {
 			await b.close();
 		}

@@ -3,28 +3,28 @@
  * phone width: screenshots for a person to look at (SCREENSHOT_DIR or TEST_TMP/screenshots), and the
  * checks every page must pass: no page wider than the phone, headers in the case they are written.
  */
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { eq } from 'drizzle-orm';
-import { appUrl, openBrowser, screenshot, signIn } from '../../support/browser';
-import { testDb } from '../../support/env';
-import * as t from '../../../src/lib/server/db/schema';
+import { afterAll, beforeAll, describe, it } from 'vitest';
+import { appUrl, expect, openBrowser, screenshot, signIn } from '../../support/browser';
+import { Fixtures } from '../../support/fixtures';
 
-const { db, pool } = testDb();
+let fx: Fixtures;
 let partId = 0;
+let sku = '';
 let drawerId = 0;
 
 beforeAll(async () => {
-	// a demo part with units in quarantine (the seed puts some on the inspection shelf)
-	const [qc] = await db.select().from(t.stock).where(eq(t.stock.condition, 'quarantine')).limit(1);
-	partId = qc.partId;
-	const [d] = await db.select().from(t.locations).where(eq(t.locations.code, 'B1-D2'));
-	drawerId = d.id;
+	// a part of this file's own in a drawer of its own, with units usable and in quarantine
+	fx = await Fixtures.open('E2E-WALK');
+	({ id: drawerId } = await fx.location('D1', 'Walk test drawer, achromatic doublets 25.4 mm'));
+	({ id: partId, sku } = await fx.part('ACH100', { name: `${fx.tag} achromatic doublet f 100`, kind: 'other', diameterMm: 25.4, eflMm: 100 }));
+	await fx.receive(partId, drawerId, 3);
+	await fx.receive(partId, drawerId, 1, 'scratch seen at goods-in', 'quarantine');
 });
-afterAll(() => pool.end());
+afterAll(() => fx?.cleanup());
 
 describe('walk through the stockroom pages', () => {
 	for (const [who, pages] of [
-		['stockroom', () => ['/parts?q=doublet%20100', `/parts/${partId}`, '/', '/stock-take', `/stock-take/${drawerId}`, `/labels?location=${drawerId}&skus=TW-B1D2-05`, '/scan', `/stock?locationId=${drawerId}`]],
+		['stockroom', () => [`/parts?q=${encodeURIComponent(`${fx.tag} doublet 100`)}`, `/parts/${partId}`, '/', '/stock-take', `/stock-take/${drawerId}`, `/labels?location=${drawerId}&skus=${sku}`, '/scan', `/stock?locationId=${drawerId}`]],
 		['purchaser', () => ['/reorder']]
 	] as const) {
 		it(`as ${who}`, async () => {
@@ -36,7 +36,8 @@ describe('walk through the stockroom pages', () => {
 					for (const p of pages()) {
 						const res = await b.page.goto(appUrl(p));
 						expect(res?.status(), p).toBe(200);
-						expect(await b.page.evaluate(() => document.documentElement.scrollWidth), `${p} at ${width}`).toBeLessThanOrEqual(width);
+						await expect(b.page.getByRole('main')).toBeVisible();
+						await expect.poll(() => b.page.evaluate(() => document.documentElement.scrollWidth), { message: `${p} at ${width}` }).toBeLessThanOrEqual(width);
 						const transformed = await b.page.$$eval('th', (ths) => ths.filter((th) => getComputedStyle(th).textTransform === 'uppercase' || getComputedStyle(th.querySelector('button') ?? th).textTransform === 'uppercase').length);
 						expect(transformed, p).toBe(0);
 						await screenshot(b.page, `walk-${who}-${p.replace(/[^a-z0-9]+/gi, '_').replace(/^_|_$/g, '') || 'overview'}-${width}`);
