@@ -227,6 +227,8 @@ export interface ToleranceRow {
  */
 export interface SolveProgress {
 	fraction: number;
+	/** Imaging: 'screening' while the first pass finds good answers, 'proving' while the bounding passes check that none better exists. */
+	stage?: 'screening' | 'proving';
 	best: { parts: string[]; efficiency?: number } | null;
 }
 
@@ -249,6 +251,8 @@ export interface SolveStats {
 	 * could rank among them was traced); false when the time budget cut the search or the tracing short.
 	 */
 	provenBest?: boolean;
+	/** Imaging: of searchMs, the bounding passes (the proof), ms. */
+	provingMs?: number;
 	workers: number;
 	/**
 	 * Parts left out of this question and why, one entry per reason: no refractive index at the

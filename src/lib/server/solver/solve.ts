@@ -156,21 +156,32 @@ export async function solveWithStock(stock: StockView, req: ParsedImagingRequest
 	const deadline = Date.now() + req.timeBudgetMs;
 	// Progress: the screening pass fills the first 40 % of the bar, the bounding passes the rest.
 	let shown = 0;
-	const stage = (from: number, to: number): SolveOptions => {
+	const stage = (name: SolveProgress['stage'], from: number, to: number): SolveOptions => {
 		const tell = options.onProgress;
 		if (!tell) return options;
-		return { ...options, onProgress: (p) => tell({ ...p, fraction: (shown = Math.max(shown, from + (to - from) * p.fraction)) }) };
+		return { ...options, onProgress: (p) => tell({ ...p, stage: name, fraction: (shown = Math.max(shown, from + (to - from) * p.fraction)) }) };
 	};
 	const search = (boundRange: BoundRange | null) =>
-		searchShards(key, snap, candidates, partUnits, req, boundRange ? stage(SCREEN_SHARE, 1) : stage(0, options.keepAll ? 1 : SCREEN_SHARE), deadline, boundRange);
+		searchShards(
+			key,
+			snap,
+			candidates,
+			partUnits,
+			req,
+			boundRange ? stage('proving', SCREEN_SHARE, 1) : stage('screening', 0, options.keepAll ? 1 : SCREEN_SHARE),
+			deadline,
+			boundRange
+		);
 	// The screening pass: the candidates the paraxial screen likes best, traced; they set the N-th answer's key.
 	const screened = await search(null);
 	const limit = options.keepAll ? Infinity : req.limit;
 	const bb = new BranchAndBound(snap, req, limit, deadline);
 	bb.traceAll(mergeShards(screened.shards).slice(0, options.keepAll ? undefined : TRACE_COUNT));
 	// The bounding pass proves it (or finds what beats it): every root whose rank bound does not exceed that key.
+	const tProof = performance.now();
 	const proof = options.keepAll ? { proven: true, truncated: false, physicalRoots: null } : await prove(bb, search, deadline, options.signal);
 	const searchMs = performance.now() - tSearch;
+	const provingMs = performance.now() - tProof;
 	if (options.signal?.aborted) throw new DomainError(499, 'cancelled', 'The request was cancelled.');
 	const solutions = bb.result();
 	const shards = screened.shards;
@@ -192,6 +203,7 @@ export async function solveWithStock(stock: StockView, req: ParsedImagingRequest
 			searchMs: Math.round(searchMs * 10) / 10,
 			truncated,
 			provenBest: !truncated && proof.proven,
+			provingMs: Math.round(provingMs * 10) / 10,
 			workers,
 			partsExcluded: excluded
 		}

@@ -56,7 +56,7 @@ export const solverPaths: OpenApiPaths = {
 		post: {
 			summary: 'Build from stock: one- and two-part setups from usable, unreserved stock for an imaging, beam-shaping or beam-expanding question',
 			description:
-				'With `Accept: application/x-ndjson` the answer is a stream of JSON lines: {"type":"progress","fraction" (0–1, share searched),"best" ({parts: [sku], efficiency?} ' +
+				'With `Accept: application/x-ndjson` the answer is a stream of JSON lines: {"type":"progress","fraction" (0–1, share searched),"stage" (imaging: "screening", then "proving" while it checks that no better setup exists),"best" ({parts: [sku], efficiency?} ' +
 				'or null: the best candidate so far, before its final check)} a few times a second while the search runs, then one {"type":"result","result" (the answer below)} ' +
 				'or {"type":"error","status","error"}. Bad input (400) and a busy solver (429) are refused before the stream starts; closing the connection cancels the search.',
 			requestBody: jsonBody(question),
