@@ -253,6 +253,8 @@ export interface SolveStats {
 	provenBest?: boolean;
 	/** Imaging: of searchMs, the bounding passes (the proof), ms. */
 	provingMs?: number;
+	/** Imaging, streamed only: these are the screening pass's answers, sent while the proof still runs (the result follows). */
+	provisional?: boolean;
 	workers: number;
 	/**
 	 * Parts left out of this question and why, one entry per reason: no refractive index at the

@@ -5,11 +5,12 @@
  */
 import { describe, expect, it } from 'vitest';
 import { syntheticStock } from '../../bench/_synthetic-stock';
-import { solveWithStock, type StockView } from '../../../src/lib/server/solver/solve';
+import { solveWithStock, PROVISIONAL_AFTER_MS, type StockView } from '../../../src/lib/server/solver/solve';
+import { compareKeys, rankKey } from '../../../src/lib/solver/ranking';
 import { solveBeamWithStock } from '../../../src/lib/server/solver/beam-solve';
 import { solveRequestSchema, type ParsedBeamRequest, type ParsedImagingRequest } from '../../../src/lib/solver/request';
 import { progressBuffer, progressSlot, offerBest, readProgress, PG_FRACTION } from '../../../src/lib/server/solver/progress';
-import type { SolveProgress } from '../../../src/lib/solver/types';
+import type { SolveProgress, SolveResponse } from '../../../src/lib/solver/types';
 
 const stock: StockView = { key: 'progress-3000', parts: syntheticStock(3000) };
 const skus = new Set(stock.parts.map((p) => p.sku));
@@ -32,7 +33,8 @@ describe('search progress', () => {
 	it('imaging: fractions count up to 1 and the best so far names stock parts', async () => {
 		const seen: SolveProgress[] = [];
 		const req = solveRequestSchema.parse({ trackMm: 600, magnification: -0.3, objectNA: 0.01, objectHeightMm: 0.5, wavelengthNm: 1064, limit: 5 }) as ParsedImagingRequest;
-		const r = await solveWithStock(stock, req, { onProgress: (p) => seen.push(p), progressEveryMs: 20 });
+		let provisional: SolveResponse | null = null;
+		const r = await solveWithStock(stock, req, { onProgress: (p) => seen.push(p), progressEveryMs: 20, onProvisional: (x) => (provisional = x) });
 		expect(seen.length).toBeGreaterThan(0);
 		for (let i = 1; i < seen.length; i++) expect(seen[i].fraction).toBeGreaterThanOrEqual(seen[i - 1].fraction);
 		// The whole bar when every pass ran to its end; short of it when the time budget stopped the bounding pass.
@@ -44,6 +46,18 @@ describe('search progress', () => {
 		expect(best).not.toBeNull();
 		for (const sku of best!.parts) expect(skus.has(sku)).toBe(true);
 		expect(r.solutions.length).toBeGreaterThan(0);
+		// Proving the answers best on 3,000 parts takes seconds: the screening pass's answers come first, marked
+		// provisional, and the final ones rank each place at least as well.
+		expect(seen.some((p) => p.stage === 'screening') && seen.some((p) => p.stage === 'proving')).toBe(true);
+		expect(r.stats.provingMs!).toBeGreaterThan(PROVISIONAL_AFTER_MS);
+		const early = provisional as SolveResponse | null;
+		expect(early).not.toBeNull();
+		expect(early!.stats.provisional).toBe(true);
+		expect(early!.stats.provenBest).toBe(false);
+		expect(r.stats.provisional).toBeUndefined();
+		for (let k = 0; k < Math.min(early!.solutions.length, r.solutions.length); k++) {
+			expect(compareKeys(rankKey(r.solutions[k]), rankKey(early!.solutions[k]))).toBeLessThanOrEqual(0);
+		}
 	}, 120_000);
 
 	it('beam: the best so far carries its efficiency; an aborted search ends as cancelled', async () => {

@@ -44,7 +44,11 @@ export function admit(user: { id: number }): () => void {
 }
 
 /** Solves an already validated request (the caller has admitted it). */
-export async function solveParsed(db: DbOrTx, req: ParsedSolveRequest, options: { signal?: AbortSignal; onProgress?: (p: SolveProgress) => void } = {}): Promise<AnySolveResponse> {
+export async function solveParsed(
+	db: DbOrTx,
+	req: ParsedSolveRequest,
+	options: { signal?: AbortSignal; onProgress?: (p: SolveProgress) => void; onProvisional?: (r: AnySolveResponse) => void } = {}
+): Promise<AnySolveResponse> {
 	const stock = await stockView(db);
 	if (req.mode === 'beam') return solveBeamWithStock(stock, req, options);
 	if (req.mode === 'afocal') return solveAfocalWithStock(stock, req, options);

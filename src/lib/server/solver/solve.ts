@@ -7,7 +7,7 @@
 import { DomainError } from '../errors';
 import { ROOT_DOUBLE, ROOT_FAMILY } from '../../optics/imaging';
 import type { ParsedImagingRequest } from '../../solver/request';
-import type { PartsExcluded, Solution, SolveProgress, SolveResponse } from '../../solver/types';
+import type { PartsExcluded, Solution, SolveProgress, SolveResponse, SolveStats } from '../../solver/types';
 import { progressBuffer, readProgress } from './progress';
 import { imagingNoAnswer } from './near-track';
 import { buildElementSnapshot, wavelengthCoveredByAnyMaterial, type CandidatePart, type ElementSnapshot } from './elements';
@@ -41,6 +41,8 @@ export function withCoatingWarnings<S extends { warnings?: Solution['warnings'] 
 export const TOP_K_PER_SHARD = 400;
 /** Candidates of the screening pass traced with real rays after the merge. */
 export const TRACE_COUNT = 480;
+/** How long the proof may run before a listener gets the screening pass's answers, ms. */
+export const PROVISIONAL_AFTER_MS = 400;
 /** Share of the progress bar the screening pass fills (the bounding passes fill the rest). */
 const SCREEN_SHARE = 0.4;
 /** Roots a shard keeps in a bounding pass (best bounds first); another pass fetches the rest if it fills. */
@@ -79,6 +81,8 @@ export interface SolveOptions {
 	onProgress?: (p: SolveProgress) => void;
 	/** How often onProgress is called, ms (default 250). */
 	progressEveryMs?: number;
+	/** Imaging: called once with the screening pass's answers (stats.provisional) when the proof runs longer than PROVISIONAL_AFTER_MS. */
+	onProvisional?: (r: SolveResponse) => void;
 }
 
 /**
@@ -174,21 +178,12 @@ export async function solveWithStock(stock: StockView, req: ParsedImagingRequest
 		);
 	// The screening pass: the candidates the paraxial screen likes best, traced; they set the N-th answer's key.
 	const screened = await search(null);
+	const shards = screened.shards;
 	const limit = options.keepAll ? Infinity : req.limit;
 	const bb = new BranchAndBound(snap, req, limit, deadline);
-	bb.traceAll(mergeShards(screened.shards).slice(0, options.keepAll ? undefined : TRACE_COUNT));
-	// The bounding pass proves it (or finds what beats it): every root whose rank bound does not exceed that key.
-	const tProof = performance.now();
-	const proof = options.keepAll ? { proven: true, truncated: false, physicalRoots: null } : await prove(bb, search, deadline, options.signal);
-	const searchMs = performance.now() - tSearch;
-	const provingMs = performance.now() - tProof;
-	if (options.signal?.aborted) throw new DomainError(499, 'cancelled', 'The request was cancelled.');
-	const solutions = bb.result();
-	const shards = screened.shards;
-	const truncated = shards.some((s) => s.truncated) || proof.truncated;
-	const { workers } = screened;
+	bb.traceAll(mergeShards(shards).slice(0, options.keepAll ? undefined : TRACE_COUNT));
 	const sum = (f: (s: ShardResult) => number) => shards.reduce((a, s) => a + f(s), 0);
-	return {
+	const answer = (solutions: Solution[], tail: Pick<SolveStats, 'physicalRoots' | 'truncated' | 'provenBest' | 'provingMs' | 'provisional'>): SolveResponse => ({
 		request: req,
 		solutions,
 		noAnswer: solutions.length === 0 ? imagingNoAnswer(snap, candidates, partUnits, req) : null,
@@ -197,19 +192,40 @@ export async function solveWithStock(stock: StockView, req: ParsedImagingRequest
 			elementsConsidered: candidates.length,
 			configurationsEvaluated: sum((s) => s.configurationsEvaluated),
 			rootsFound: sum((s) => s.rootsFound),
-			physicalRoots: proof.physicalRoots ?? sum((s) => s.physicalRoots),
 			traced: bb.traced,
 			elapsedMs: Math.round((performance.now() - t0) * 10) / 10,
-			searchMs: Math.round(searchMs * 10) / 10,
-			truncated,
-			provenBest: !truncated && proof.proven,
-			provingMs: Math.round(provingMs * 10) / 10,
-			workers,
-			partsExcluded: excluded
+			searchMs: Math.round((performance.now() - tSearch) * 10) / 10,
+			workers: screened.workers,
+			partsExcluded: excluded,
+			...tail
 		}
-	};
+	});
+	// The bounding passes prove them (or find what beats them): every root whose rank bound does not exceed that key.
+	// A listener gets the screening pass's answers first when the proof takes a while.
+	const tProof = performance.now();
+	const tell = options.onProvisional;
+	const early =
+		tell && !options.keepAll
+			? setTimeout(() => {
+					if (!options.signal?.aborted) tell(answer(bb.result(), { physicalRoots: sum((s) => s.physicalRoots), truncated: false, provenBest: false, provisional: true }));
+				}, PROVISIONAL_AFTER_MS)
+			: null;
+	let proof: Awaited<ReturnType<typeof prove>>;
+	try {
+		proof = options.keepAll ? { proven: true, truncated: false, physicalRoots: null } : await prove(bb, search, deadline, options.signal);
+	} finally {
+		if (early) clearTimeout(early);
+	}
+	const provingMs = performance.now() - tProof;
+	if (options.signal?.aborted) throw new DomainError(499, 'cancelled', 'The request was cancelled.');
+	const truncated = shards.some((s) => s.truncated) || proof.truncated;
+	return answer(bb.result(), {
+		physicalRoots: proof.physicalRoots ?? sum((s) => s.physicalRoots),
+		truncated,
+		provenBest: !truncated && proof.proven,
+		provingMs: Math.round(provingMs * 10) / 10
+	});
 }
-
 
 /** The search within the question's time budget: one shard on this thread (inline), else a shard per worker of the pool. */
 async function searchShards(

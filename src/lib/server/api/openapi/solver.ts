@@ -57,7 +57,8 @@ export const solverPaths: OpenApiPaths = {
 			summary: 'Build from stock: one- and two-part setups from usable, unreserved stock for an imaging, beam-shaping or beam-expanding question',
 			description:
 				'With `Accept: application/x-ndjson` the answer is a stream of JSON lines: {"type":"progress","fraction" (0–1, share searched),"stage" (imaging: "screening", then "proving" while it checks that no better setup exists),"best" ({parts: [sku], efficiency?} ' +
-				'or null: the best candidate so far, before its final check)} a few times a second while the search runs, then one {"type":"result","result" (the answer below)} ' +
+				'or null: the best candidate so far, before its final check)} a few times a second while the search runs; for imaging, when proving the answers best takes a while, ' +
+				'one {"type":"provisional","result" (the screening pass\'s answers, stats.provisional true)}; then one {"type":"result","result" (the answer below)} ' +
 				'or {"type":"error","status","error"}. Bad input (400) and a busy solver (429) are refused before the stream starts; closing the connection cancels the search.',
 			requestBody: jsonBody(question),
 			responses: {
@@ -79,6 +80,7 @@ export const solverPaths: OpenApiPaths = {
 							configurationsEvaluated: int,
 							elapsedMs: z.number(),
 							truncated: z.boolean(),
+							provisional: z.boolean().optional().describe('only on a streamed provisional line: the screening pass\'s answers, sent while the proof runs'),
 							provenBest: z.boolean().optional().describe('imaging: every root that could rank among the answers was traced (the best N are proven); false when the time budget cut it short'),
 							partsExcluded: z
 								.array(z.looseObject({ reason: z.string(), count: int, skus: z.array(z.string()) }))

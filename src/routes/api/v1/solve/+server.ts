@@ -12,7 +12,8 @@ const NDJSON = 'application/x-ndjson';
 /**
  * Build from stock: the question → ranked, traced solutions and stats (see DESIGN.md "The solver").
  * With `Accept: application/x-ndjson` the answer is a stream of JSON lines: `{"type":"progress","fraction",
- * "best"}` a few times a second while the search runs, then one `{"type":"result","result"}` (the plain answer)
+ * "stage","best"}` a few times a second while the search runs, for imaging a `{"type":"provisional","result"}`
+ * (the screening pass's answers) when proving them best takes a while, then one `{"type":"result","result"}` (the plain answer)
  * or `{"type":"error","status","error"}`. Bad input and a busy solver are refused before the stream starts (plain
  * 400 / 429). Closing the connection cancels the search.
  */
@@ -38,7 +39,11 @@ export const POST = endpoint(async (event) => {
 				}
 			};
 			try {
-				const result = await solver.solveParsed(db, req, { signal: abort.signal, onProgress: (p) => send({ type: 'progress', ...p }) });
+				const result = await solver.solveParsed(db, req, {
+					signal: abort.signal,
+					onProgress: (p) => send({ type: 'progress', ...p }),
+					onProvisional: (r) => send({ type: 'provisional', result: r })
+				});
 				send({ type: 'result', result });
 			} catch (err) {
 				let res: Response;
