@@ -9,6 +9,7 @@
  * level is a double (touching) root and is reported once. Nothing is sampled, so no root is
  * missed between grid points. Coefficients are in ascending order: c[0] + c[1]·x + ….
  */
+import { TOUCH_TOL } from './tolerances';
 
 /** p(x) by Horner's rule. */
 export function polyValue(c: ArrayLike<number>, x: number): number {
@@ -91,8 +92,6 @@ function bracketRoot(c: Float64Array, deg: number, a: number, b: number, fa: num
 	return Math.abs(fa) < Math.abs(fb) ? a : b;
 }
 
-/** Relative size of |p(x)| against its terms below which a critical point counts as a (double) root. */
-const TOUCH_TOL = 1e-11;
 
 /** Highest degree the allocation-free search takes. */
 export const MAX_ROOT_DEGREE = 12;

@@ -1,13 +1,10 @@
 /**
- * Internal to the kernels (not re-exported from index.ts): tolerances and the
- * cancellation-free real quadratic solver with its module-level scratch.
+ * Internal to the kernels (not re-exported from index.ts): the cancellation-free real quadratic
+ * solver with its module-level scratch. Its tolerances come from tolerances.ts (re-exported here for the kernels).
  */
-/** Relative tolerance of the full-matrix verification. */
-export const VERIFY_TOL = 1e-9;
-/** Relative size of a discriminant treated as zero (roots closer than ~1e-6 of the scale merge). */
-export const DOUBLE_TOL = 1e-12;
-/** |C|·length below this (dimensionless) counts as afocal at a root. */
-export const AFOCAL_TOL = 1e-10;
+import { DOUBLE_TOL } from './tolerances';
+
+export { VERIFY_TOL, DOUBLE_TOL, AFOCAL_TOL } from './tolerances';
 
 /** solveQuadratic: no real root. */
 export const QUAD_NONE = 0;

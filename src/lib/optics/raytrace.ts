@@ -14,6 +14,7 @@
 import { type Result, ok, fail, NoPrescriptionError } from './errors';
 import type { Layout } from './system';
 import { firstVertexPositionsMm, trackLengthMm } from './system';
+import { BEHIND_TOL_MM } from './tolerances';
 
 /** A layout's surfaces in absolute position, ready to trace (struct of arrays). */
 export interface TraceSystem {
@@ -88,11 +89,6 @@ export const TRACE_TIR = 2;
 export const TRACE_CLIPPED = 3;
 /** Trace status: the ray would meet the surface behind the point where it left the previous one. */
 export const TRACE_BEHIND = 4;
-/**
- * How far behind its start a surface hit may lie and still count as ahead, mm: rounding only
- * (a ray starting on a surface and meeting the next one at the same point, e.g. a cemented rim).
- */
-const BEHIND_TOL_MM = 1e-9;
 
 /**
  * Traces the ray in `ray` ([z, y, dirZ, dirY] with a unit direction, in air before the

@@ -43,9 +43,7 @@ import { clearApertureOf, type CandidatePart } from './elements';
 import { FAN_RAYS, colourFigures, edgeTrace, rimOffset, stopOf, type EdgeTrace } from './real-ray-figures';
 import { colourBandFor } from '../../optics/colour';
 
-/** Tolerance of the independent matrix check of a returned solution (|B| in mm, |A − m| relative). */
-export const VERIFY_B_TOL_MM = 1e-6;
-export const VERIFY_A_TOL = 1e-6;
+import { VERIFY_A_TOL, VERIFY_B_TOL_MM } from '../../optics/tolerances';
 
 /** A placement to evaluate: which elements (already oriented) and where. */
 export interface PlacementChoice {

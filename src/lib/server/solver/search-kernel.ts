@@ -33,6 +33,7 @@ import { evalSeidel } from './seidel-poly';
 import { offerBest, PG_FRACTION } from './progress';
 import { rankBound, boundUpper, BOUND_CHEAP, BOUND_FULL, type BoundQuestion, type RayTable } from './rank-bound';
 import { packRankParts, WORKING_DISTANCE_STEP_MM } from '../../solver/ranking';
+import { VERIFY_A_TOL, VERIFY_B_TOL_MM } from '../../optics/tolerances';
 import type { ParsedImagingRequest } from '../../solver/request';
 
 /** Numbers per candidate record. */
@@ -380,7 +381,7 @@ function consider(ctx: ShardContext, i: number, j: number, base: number, untr: b
 
 /**
  * True when the placement is surely an answer: the evaluation's matrix check (evaluate.ts,
- * VERIFY_B_TOL_MM and VERIFY_A_TOL) passes with half its tolerance, so rounding in the product's
+ * VERIFY_B_TOL_MM and VERIFY_A_TOL from optics/tolerances.ts) passes with half its tolerance, so rounding in the product's
  * order cannot fail it there. Pairs must hit the magnification asked; a single only focuses.
  */
 function answerCheck(packed: Float64Array, i: number, j: number, s: number, g: number, d: number, m: number): boolean {
@@ -407,8 +408,8 @@ function answerCheck(packed: Float64Array, i: number, j: number, s: number, g: n
 	}
 	A += d * C;
 	B += d * D;
-	if (!(Math.abs(B) <= 0.5e-6)) return false;
-	return j < 0 || Math.abs(A - m) <= 0.5e-6 * Math.max(1, Math.abs(A));
+	if (!(Math.abs(B) <= 0.5 * VERIFY_B_TOL_MM)) return false;
+	return j < 0 || Math.abs(A - m) <= 0.5 * VERIFY_A_TOL * Math.max(1, Math.abs(A));
 }
 
 /** Counts an answer's upper key towards the shard's N best and lowers the bar to the N-th of them. */
