@@ -181,13 +181,21 @@ export const BOUND_FULL = 2;
  * a root that is an answer (the search counts it towards its own N-th key). Else Infinity.
  */
 export const boundUpper = new Float64Array(1);
+/**
+ * After `rankBound` with BOUND_CHEAP: the axial RMS (mm) when it traced the whole fan with the rim
+ * passing (−1: every fan ray lost), else NaN. Pass it to the BOUND_FULL call of the same root as
+ * `fanRms` (those rays are not traced again).
+ */
+export const boundFan = new Float64Array(1);
 
 /**
  * The packed lower bound (`packRankParts`) of the ranking key of the answer a root gives: element
  * i at object distance s (then gap g and element j; j < 0 for a single), back distance d,
  * magnification m; `untraceable` when an element is a black box, `coat` 1 when a part is used
  * outside its coating band; `tier` how much to trace (BOUND_*). The cheap tier stops tracing as
- * soon as its bound exceeds `bar` (the bound returned is then above it, but not the tightest).
+ * soon as its bound exceeds `bar` (the bound returned is then above it, but not the tightest);
+ * when it traced the whole fan it says so in `boundFan`, and on axis only (no field edge) its
+ * bound is the key itself (`boundUpper` set).
  */
 export function rankBound(
 	table: RayTable,
@@ -202,9 +210,11 @@ export function rankBound(
 	untraceable: boolean,
 	coat: number,
 	tier: number,
-	bar = Infinity
+	bar = Infinity,
+	fanRms = -1
 ): number {
 	boundUpper[0] = Infinity;
+	boundFan[0] = NaN;
 	const wdStep = -Math.floor(Math.min(s, d) / WORKING_DISTANCE_STEP_MM);
 	const count = j < 0 ? 1 : 2;
 	// A black box is not traced: its answer's key is known (no vignetting figures, untraced spot).
@@ -231,16 +241,22 @@ export function rankBound(
 			low = pack(0, coat, spotBand(ratio), wdStep, count, ratio);
 			if (low > bar) return low;
 		}
+		// The whole fan with the rim passing: the axial RMS itself (axialSpot's sum, added in another order).
+		boundFan[0] = traced === 0 ? -1 : Math.sqrt(sum / traced);
 		if (traced === 0) return pack(0, coat, spotBand(null), wdStep, count, 1e9);
-		const ratio = (Math.sqrt(sum / traced) / airy) * AIRY_LOW;
-		return pack(0, coat, spotBand(ratio), wdStep, count, ratio);
+		const ratio = Math.sqrt(sum / traced) / airy;
+		// On axis only (no field edge), nothing else ranks: the key itself.
+		if (q.objectHeightMm === 0) boundUpper[0] = pack(0, coat, spotBand(ratio * AIRY_HIGH), wdStep, count, ratio * AIRY_HIGH);
+		return pack(0, coat, spotBand(ratio * AIRY_LOW), wdStep, count, ratio * AIRY_LOW);
 	}
 	// As realRayFigures and evaluatePlacement (evaluate.ts) compute them.
 	const cone = axialCone(sys, na);
 	const passed = cone.passedSine,
 		axialLost = cone.lostFraction;
-	const axial = passed > 0 ? axialSpot(sys, { na: passed, rays: FAN_RAYS }) : null;
-	const axialRms = axial ? axial.rmsAboutCentroidMm : null;
+	// The cheap tier's whole fan, when it traced one for this root with the whole cone passing (the same rays).
+	const known = fanRms >= 0 && passed === na ? fanRms : NaN;
+	const axial = known === known || !(passed > 0) ? null : axialSpot(sys, { na: passed, rays: FAN_RAYS });
+	const axialRms = known === known ? known : axial ? axial.rmsAboutCentroidMm : null;
 	const h = q.objectHeightMm;
 	const full = tier === BOUND_FULL;
 	const edge = full && h > 0 ? edgeTrace(sys, h, na, cone.stopSurface) : null;

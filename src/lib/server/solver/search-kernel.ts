@@ -31,7 +31,7 @@ import {
 import { checkSinglePhysical, checkPairPhysical } from '../../optics/physical';
 import { evalSeidel } from './seidel-poly';
 import { offerBest, PG_FRACTION } from './progress';
-import { rankBound, boundUpper, BOUND_CHEAP, BOUND_FULL, type BoundQuestion, type RayTable } from './rank-bound';
+import { rankBound, boundUpper, boundFan, BOUND_CHEAP, BOUND_FULL, type BoundQuestion, type RayTable } from './rank-bound';
 import { packRankParts, WORKING_DISTANCE_STEP_MM } from '../../solver/ranking';
 import { VERIFY_A_TOL, VERIFY_B_TOL_MM } from '../../optics/tolerances';
 import type { ParsedImagingRequest } from '../../solver/request';
@@ -357,7 +357,8 @@ function consider(ctx: ShardContext, i: number, j: number, base: number, untr: b
 		const coat = coatOut[i] | (j >= 0 ? coatOut[j] : 0);
 		// The cheap tier, then (when it may still rank) the full one; a black box's key is exact at once.
 		key = rankBound(rays, packed, boundQ, i, j, s, g, d, mAch, untr, coat, BOUND_CHEAP, ctx.bar);
-		if (!untr && key <= ctx.bar && top.admits(key)) key = rankBound(rays, packed, boundQ, i, j, s, g, d, mAch, untr, coat, BOUND_FULL);
+		const exact = untr || boundUpper[0] !== Infinity;
+		if (!exact && key <= ctx.bar && top.admits(key)) key = rankBound(rays, packed, boundQ, i, j, s, g, d, mAch, untr, coat, BOUND_FULL, Infinity, boundFan[0]);
 		if (key > ctx.bar || key < range.min || !top.admits(key)) return;
 		if (boundUpper[0] < ctx.bar && answerCheck(packed, i, j, s, g, d, p.magnification)) lowerBar(ctx, boundUpper[0]);
 		screen(packed, seidel, i, j, s, g, p);
