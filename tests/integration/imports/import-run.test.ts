@@ -193,6 +193,7 @@ describe('a failure in the middle of a commit', () => {
 		const { id, actorId } = await upload(csv);
 		const suppliersBefore = (await db.select({ n: count() }).from(t.suppliers))[0].n;
 		const out = await importsService.runNow(db, store, id, 'commit', actorId, {
+			batchRows: 1000,
 			hooks: {
 				afterBatch: ({ batch }) => {
 					if (batch === 2) throw new Error('injected failure after batch 2');
