@@ -1,7 +1,7 @@
 /**
- * Planning one batch of an import: read its cells (`readBatch`), find the parts its rows refer to (`planBatch`), validate each
- * row with the catalogue's `partInputSchema` and classify it (new, update, unchanged, rejected).
- * Writes nothing to the catalogue; the plan is applied by run.ts.
+ * Planning one batch of an import: read its cells (`readBatch`), then (`planBatch`) find the parts
+ * its rows refer to, validate each row with the catalogue's `partInputSchema` and classify it (new,
+ * update, unchanged, rejected). Writes nothing to the catalogue; the plan is applied by run.ts.
  *
  * Rows are keyed by (supplier, supplier part number) first, then by SKU, and matched against the
  * catalogue as committed (read on the pool, never through the commit's transaction, so a commit
