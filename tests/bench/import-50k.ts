@@ -85,6 +85,7 @@ try {
 	const schema = await import('../../src/lib/server/db/schema');
 	const { objectStoreFromEnv } = await import('../../src/lib/server/files/s3');
 	const importsService = await import('../../src/lib/server/imports/service');
+	const { BATCH_ROWS } = await import('../../src/lib/server/imports/run');
 	const { db, pool } = createDb(env.DATABASE_URL, 5);
 	const store = objectStoreFromEnv(env);
 	const [{ id: actorId }] = await db.select({ id: schema.users.id }).from(schema.users).where(eq(schema.users.role, 'stockroom')).limit(1);
@@ -101,7 +102,7 @@ try {
 	await importsService.saveMapping(db, created.id, { mapping: created.suggestion.mapping, units: created.suggestion.units, skuPrefix: '', skipRejected: false });
 
 	const results: Record<string, { ms: number; rowsPerSecond: number; mem: ReturnType<ReturnType<typeof sampler>['stop']>; retainedMb: number[]; probeMs: number }> = {};
-	const batches = Math.ceil(ROWS / 1000);
+	const batches = Math.ceil(ROWS / BATCH_ROWS);
 	// BENCH_IMPORT_GC_PROBE=0 leaves the probes out (the peaks then show when V8 collects on its own).
 	const probeAt = new Set(process.env.BENCH_IMPORT_GC_PROBE === '0' ? [] : [1, 2, 3, 4].map((q) => Math.max(1, Math.round((batches * q) / 4))));
 	for (const mode of ['check', 'commit'] as const) {

@@ -4,7 +4,7 @@
  *   without one is replicated row by row with full scans, or not safely at all);
  * - no LOCK TABLES / GET_LOCK (neither is replicated: they lock only the local node);
  * - auto-increment values are spaced by the cluster size on every node, and the import's block of
- *   new ids (`writer.InsertIds`) is still right then.
+ *   new ids (INSERT ... RETURNING, `bulk-sql.insertReturning`) are still right then.
  * (MariaDB Knowledge Base, "Galera Cluster Known Limitations" and "wsrep_auto_increment_control",
  * from memory.)
  */
@@ -13,7 +13,7 @@ import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { inArray, like, sql } from 'drizzle-orm';
 import * as t from '../../src/lib/server/db/schema';
-import { InsertIds } from '../../src/lib/server/imports/writer';
+import { insertReturning } from '../../src/lib/server/imports/bulk-sql';
 import { nodeDb, nodeUrls } from './support';
 
 const nodes = nodeUrls.map((_, i) => nodeDb(i + 1, 2));
@@ -77,18 +77,19 @@ describe('the import’s new ids with an auto-increment step of 3', () => {
 		await nodes[0].db.delete(t.parts).where(like(t.parts.sku, `${tag}%`));
 	});
 
-	it('InsertIds gives each row the id MariaDB gave it (multi-row INSERT on node 2)', async () => {
+	it('INSERT ... RETURNING gives each row the id MariaDB gave it (multi-row INSERT on node 2)', async () => {
 		const { db } = nodes[1];
 		const skus = Array.from({ length: 7 }, (_, i) => `${tag}-${i}`);
 		const ids = await db.transaction(async (tx) => {
-			const [header] = (await tx.execute(
-				sql`insert into parts (sku, name, kind, diameter_mm) values ${sql.join(
-					skus.map((s) => sql`(${s}, ${'Id check ' + s}, 'other', 25)`),
-					sql`, `
-				)}`
-			)) as unknown as [{ insertId: number; affectedRows: number }];
-			expect(header.affectedRows).toBe(7);
-			return new InsertIds().of(tx, header, skus);
+			const back = await insertReturning(
+				tx,
+				t.parts,
+				['sku', 'name', 'kind', 'diameterMm'],
+				skus.map((s) => ({ sku: s, name: 'Id check ' + s, kind: 'other', diameterMm: 25 })),
+				['id', 'sku']
+			);
+			expect(back.map((r) => r.sku).sort()).toEqual([...skus].sort());
+			return skus.map((s) => Number(back.find((r) => r.sku === s)!.id));
 		});
 		const rows = await db.select({ id: t.parts.id, sku: t.parts.sku }).from(t.parts).where(inArray(t.parts.sku, skus));
 		const bySku = new Map(rows.map((r) => [r.sku, r.id]));

@@ -5,8 +5,7 @@ import * as importsService from '../../../src/lib/server/imports/service';
 import { DomainError } from '../../../src/lib/server/errors';
 import { refractiveIndex } from '../../../src/lib/optics';
 import { csvLine } from '../../../src/lib/server/imports/csv';
-import { insertRows } from '../../../src/lib/server/imports/bulk-sql';
-import { InsertIds } from '../../../src/lib/server/imports/writer';
+import { insertReturning } from '../../../src/lib/server/imports/bulk-sql';
 import { countParts, db, deleteParts, enc, pcxRow, PCX_HEADER, pool, stockroomId, store, upload } from './helpers';
 
 const tag = `IM${Date.now().toString(36).toUpperCase()}`;
@@ -194,6 +193,7 @@ describe('a failure in the middle of a commit', () => {
 		const { id, actorId } = await upload(csv);
 		const suppliersBefore = (await db.select({ n: count() }).from(t.suppliers))[0].n;
 		const out = await importsService.runNow(db, store, id, 'commit', actorId, {
+			batchRows: 1000,
 			hooks: {
 				afterBatch: ({ batch }) => {
 					if (batch === 2) throw new Error('injected failure after batch 2');
@@ -311,18 +311,15 @@ describe('batched writes store exactly what the file says', () => {
 });
 
 describe('ids of a multi-row insert', () => {
-	it('takes the consecutive block when both ends check out, and reads the ids by SKU otherwise', async () => {
+	it('gives each inserted row the id MariaDB gave it (INSERT ... RETURNING)', async () => {
 		const prefix = `${tag}-IDS-`;
 		const skus = [0, 1, 2].map((i) => `${prefix}${i}`);
 		await db.transaction(async (tx) => {
 			const row = (sku: string) => ({ sku, name: 'Id check', kind: 'other' as const, diameterMm: 10 });
-			const header = await insertRows(tx, t.parts, ['sku', 'name', 'kind', 'diameterMm'], skus.map(row));
+			const back = await insertReturning(tx, t.parts, ['sku', 'name', 'kind', 'diameterMm'], skus.map(row), ['id', 'sku']);
 			const stored = await tx.select({ id: t.parts.id, sku: t.parts.sku }).from(t.parts).where(like(t.parts.sku, `${prefix}%`));
-			const expected = skus.map((s) => stored.find((r) => r.sku === s)!.id);
-			expect(await new InsertIds().of(tx, header, skus)).toEqual(expected);
-			// A block that does not match (as on a server that interleaves ids): read back by SKU.
-			expect(await new InsertIds().of(tx, { insertId: header.insertId + 1, affectedRows: 3 }, skus)).toEqual(expected);
-			expect(await new InsertIds().of(tx, { insertId: header.insertId, affectedRows: 2 }, skus)).toEqual(expected);
+			expect(stored).toHaveLength(3);
+			expect(back.map((r) => [Number(r.id), r.sku])).toEqual(skus.map((s) => [stored.find((r) => r.sku === s)!.id, s]));
 			tx.rollback();
 		}).catch((err) => {
 			if (!(err instanceof TransactionRollbackError)) throw err;

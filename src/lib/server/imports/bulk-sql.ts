@@ -1,5 +1,5 @@
 /**
- * SQL for the import's hot path: multi-row INSERT statements and long `IN (...)` lists. Drizzle's
+ * SQL for the import's hot path: multi-row INSERT statements (with RETURNING for new ids) and long `IN (...)` lists. Drizzle's
  * builder turns every value into its own SQL chunk (about 20,000 for a 1000-row insert, 1000 for
  * the lookup of a batch's SKUs), which cost more than the database itself in the import
  * benchmark; here the text is built in one pass with mysql2's own escaping (`escape`, the function
@@ -31,8 +31,35 @@ export async function insertRows<T extends MySqlTable, K extends keyof T['_']['c
 	rows: readonly { [P in NoInfer<K>]: Cell }[],
 	updateKeys: readonly NoInfer<K>[] = []
 ): Promise<InsertHeader> {
-	const columns = getTableColumns(table) as Record<string, { name: string }>;
-	const name = (k: K) => '`' + columns[k].name + '`';
+	let text = insertText(table, keys, rows);
+	if (updateKeys.length) text += ` on duplicate key update ${updateKeys.map((k) => `${columnName(table, k)} = values(${columnName(table, k)})`).join(', ')}`;
+	const [header] = (await tx.execute(sql.raw(text))) as unknown as [InsertHeader];
+	return header;
+}
+
+/**
+ * `INSERT INTO t (cols) VALUES (...),(...) RETURNING r1, r2`: one statement that gives back the
+ * `returning` columns of every inserted row (MariaDB's INSERT ... RETURNING), e.g. the new ids.
+ */
+export async function insertReturning<T extends MySqlTable, K extends keyof T['_']['columns'] & string, R extends keyof T['_']['columns'] & string>(
+	tx: Tx,
+	table: T,
+	keys: readonly K[],
+	rows: readonly { [P in NoInfer<K>]: Cell }[],
+	returning: readonly R[]
+): Promise<{ [P in R]: Cell }[]> {
+	const text = `${insertText(table, keys, rows)} returning ${returning.map((k) => `${columnName(table, k)} as \`${k}\``).join(', ')}`;
+	const [out] = (await tx.execute(sql.raw(text))) as unknown as [{ [P in R]: Cell }[]];
+	return out;
+}
+
+/** A column's name in SQL, from the Drizzle table. */
+function columnName(table: MySqlTable, key: string): string {
+	return '`' + (getTableColumns(table) as Record<string, { name: string }>)[key].name + '`';
+}
+
+/** The text of `INSERT INTO t (cols) VALUES (...),(...)`, values escaped in one pass. */
+function insertText(table: MySqlTable, keys: readonly string[], rows: readonly Record<string, Cell>[]): string {
 	const parts: string[] = [];
 	for (const row of rows) {
 		let tuple = '(';
@@ -44,10 +71,7 @@ export async function insertRows<T extends MySqlTable, K extends keyof T['_']['c
 		}
 		parts.push(tuple + ')');
 	}
-	let text = `insert into \`${getTableName(table)}\` (${keys.map(name).join(', ')}) values ${parts.join(',')}`;
-	if (updateKeys.length) text += ` on duplicate key update ${updateKeys.map((k) => `${name(k)} = values(${name(k)})`).join(', ')}`;
-	const [header] = (await tx.execute(sql.raw(text))) as unknown as [InsertHeader];
-	return header;
+	return `insert into \`${getTableName(table)}\` (${keys.map((k) => columnName(table, k)).join(', ')}) values ${parts.join(',')}`;
 }
 
 /** `column IN (values)` as one chunk for Drizzle's `where` (values escaped here); `false` for no values. */

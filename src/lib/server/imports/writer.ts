@@ -1,18 +1,18 @@
 /**
- * Batched writes of validated part inputs: one multi-row insert of new parts and one of their
- * surfaces per batch, one multi-row upsert (by id) of changed parts. The rules stay the
- * catalogue's: rows arrive already validated by `partInputSchema`, the parts row is the
- * catalogue's `columnsOf`, and the stored EFL columns come from its `paraxialColumns` (the same
- * computation as `refreshDerived`), so an imported part is stored exactly as the part form would
- * store it. The statements are built by `insertRows` (bulk-sql.ts), not Drizzle's insert builder,
- * which was the hot spot of the import benchmark.
+ * Batched writes of validated part inputs: one multi-row insert of new parts (their ids come back
+ * from the insert itself, INSERT ... RETURNING) and one of their surfaces per batch, one multi-row
+ * upsert (by id) of changed parts. The rules stay the catalogue's: rows arrive already validated
+ * by `partInputSchema`, the parts row is the catalogue's `columnsOf`, and the stored EFL columns
+ * come from its `paraxialColumns` (the same computation as `refreshDerived`), so an imported part
+ * is stored exactly as the part form would store it. The statements are built in bulk-sql.ts, not
+ * by Drizzle's insert builder, which was the hot spot of the import benchmark.
  */
-import { desc, sql } from 'drizzle-orm';
+import { desc } from 'drizzle-orm';
 import type { Tx } from '$lib/server/db';
 import { measurements, partSurfaces, parts, suppliers } from '$lib/server/db/schema';
 import { recordAudit } from '$lib/server/audit';
 import { columnsOf, PART_COLUMNS, paraxialColumns, toSurfaceSpecs, type MeasuredEfl, type OpticsPart, type PartInput } from '$lib/server/catalogue';
-import { inList, insertRows } from './bulk-sql';
+import { inList, insertReturning, insertRows } from './bulk-sql';
 
 /**
  * The derived EFL columns by optics input: a file lists the same prescription many times (one
@@ -82,37 +82,6 @@ export class SupplierIds {
 	}
 }
 
-/**
- * The ids a multi-row INSERT of new parts gave, in row order. MariaDB hands a multi-row
- * INSERT ... VALUES one consecutive block of auto-increment values when innodb_autoinc_lock_mode
- * is 0 or 1 (1 is the default) and auto_increment_increment is 1; that is checked once per run,
- * and each block is checked at both ends (two rows by primary key). Otherwise, or when a check
- * fails, the ids are read back by SKU (unique).
- */
-export class InsertIds {
-	private consecutive: boolean | null = null;
-
-	async of(tx: Tx, header: { insertId: number; affectedRows: number }, skus: readonly string[]): Promise<number[]> {
-		if (this.consecutive === null) {
-			const [rows] = (await tx.execute(sql`select @@innodb_autoinc_lock_mode as mode, @@auto_increment_increment as step`)) as unknown as [{ mode: unknown; step: unknown }[]];
-			this.consecutive = [0, 1].includes(Number(rows[0]?.mode)) && Number(rows[0]?.step) === 1;
-		}
-		const n = skus.length;
-		if (this.consecutive && header.affectedRows === n && header.insertId > 0) {
-			const first = header.insertId;
-			const ends = await tx
-				.select({ id: parts.id, sku: parts.sku })
-				.from(parts)
-				.where(inList(parts.id, [first, first + n - 1]));
-			const skuOf = new Map(ends.map((e) => [e.id, e.sku]));
-			if (skuOf.get(first) === skus[0] && skuOf.get(first + n - 1) === skus[n - 1]) return skus.map((_, i) => first + i);
-		}
-		const found = await tx.select({ id: parts.id, sku: parts.sku }).from(parts).where(inList(parts.sku, skus));
-		const idBySku = new Map(found.map((r) => [r.sku.toLowerCase(), r.id]));
-		return skus.map((sku) => idBySku.get(sku.toLowerCase())!);
-	}
-}
-
 /** Creates the suppliers named by `inputs` that do not exist yet, in the order the rows name them. */
 async function resolveSuppliers(tx: Tx, inputs: readonly PartInput[], ctx: { suppliers: SupplierIds; actorId: number }) {
 	for (const input of inputs) if (input.supplier && ctx.suppliers.known(input.supplier) === null) await ctx.suppliers.resolve(tx, input.supplier, ctx.actorId);
@@ -122,12 +91,16 @@ async function resolveSuppliers(tx: Tx, inputs: readonly PartInput[], ctx: { sup
 const PART_KEYS = [...PART_COLUMNS, 'paraxialEflMm', 'eflSource'] as const;
 const SURFACE_KEYS = ['partId', 'position', 'radiusMm', 'thicknessMm', 'materialCode'] as const;
 
+/** What the writer keeps for a run: suppliers by name, the lab's wavelength, who writes, derived EFLs. */
+export interface WriteContext {
+	suppliers: SupplierIds;
+	defaultWavelengthNm: number;
+	actorId: number;
+	derived: DerivedCache;
+}
+
 /** Writes one batch: `creates` are new parts, `updates` carry the id of the part they replace. */
-export async function writeBatch(
-	tx: Tx,
-	batch: { creates: PartInput[]; updates: { id: number; input: PartInput }[] },
-	ctx: { suppliers: SupplierIds; defaultWavelengthNm: number; actorId: number; derived: DerivedCache; insertIds: InsertIds }
-) {
+export async function writeBatch(tx: Tx, batch: { creates: PartInput[]; updates: { id: number; input: PartInput }[] }, ctx: WriteContext) {
 	const wl = ctx.defaultWavelengthNm;
 	if (batch.creates.length) {
 		await resolveSuppliers(tx, batch.creates, ctx);
@@ -135,12 +108,11 @@ export async function writeBatch(
 			const cols = columnsOf(input, ctx.suppliers.known(input.supplier));
 			return { ...cols, ...derivedFor(input, cols, wl, null, ctx.derived) };
 		});
-		const header = await insertRows(tx, parts, PART_KEYS, rows);
-		const ids = await ctx.insertIds.of(
-			tx,
-			header,
-			rows.map((r) => r.sku)
-		);
+		// The new ids, as MariaDB gave them (INSERT ... RETURNING; matched by SKU, which is unique).
+		const back = await insertReturning(tx, parts, PART_KEYS, rows, ['id', 'sku']);
+		if (back.length !== rows.length) throw new Error(`the insert of ${rows.length} parts gave back ${back.length} ids`);
+		const idBySku = new Map(back.map((r) => [String(r.sku).toLowerCase(), Number(r.id)]));
+		const ids = rows.map((r) => idBySku.get(r.sku.toLowerCase())!);
 		const surfaces = batch.creates.flatMap((input, i) => surfaceRows(ids[i], input));
 		if (surfaces.length) await insertRows(tx, partSurfaces, SURFACE_KEYS, surfaces);
 	}
