@@ -2,12 +2,16 @@
  * The brute-force pair search's row: element i first, against many elements j, for one
  * (track, magnification) question, keeping only the roots that can be built. It gives
  * exactly what `solvePairKernel` followed by `checkPairPhysical` gives for each pair (the
- * same roots, bit for bit, in the same order, and the same count of roots found), but
- * does the work in the cheapest order: per-i work once per row, no stores for a root
- * that fails, the sign and limit tests on s, g and d before the full-matrix verification,
- * and the sag check last. Rare cases (a part without power, a double root, a root near
- * afocal) go through `solvePairKernel` and `checkPairPhysical` themselves.
- * Allocation-free: writes into caller-owned arrays. See tests/bench/optics-pair-kernel.ts.
+ * same roots, bit for bit, in the same order, and the same count of roots found: the same
+ * floating-point expressions, evaluated in the same order), but does the work in the
+ * cheapest order: per-i work once per row; no real root → next pair before the rounding
+ * scale is formed; a smaller root that the signs show is ≤ 0 is skipped before any
+ * division; the sign and limit tests on g, s and d before the full-matrix verification;
+ * the sag check last; nothing stored for a root that fails. Rare cases (a part without
+ * power, a double root, a root near afocal) go through `solvePairKernel` and
+ * `checkPairPhysical` themselves. Allocation-free: writes into caller-owned arrays.
+ * Measured by tests/bench/optics-pair-kernel.ts; tests/unit/optics/pair-row.test.ts holds
+ * it to the pair path on random lenses.
  */
 import { solvePairKernel } from './pair-kernel';
 import { checkPairPhysical } from './physical';
@@ -17,6 +21,8 @@ export const pairRowRootsFound = new Float64Array(1);
 
 /** Scratch for the rare pairs handed to `solvePairKernel` (two roots of 6 numbers). */
 const fallback = new Float64Array(12);
+/** Scratch of `rarePair`: [roots the kernel found]. */
+const rareFound = new Float64Array(1);
 
 /**
  * Pairs (i, columns[w]) for w < count, at `trackMm` and `magnification` (finite, ≠ 0).
@@ -81,76 +87,120 @@ export function solvePairRow(
 		const qc = mu - A0 - D0 - C0 * lam;
 		const disc = qb * qb - 4 * C1 * qc;
 		// The kernel's tests of the discriminant against its rounding noise, split on the
-		// sign first (most pairs with no real root leave at once; the noise decides only
-		// between none and a double root). Rare: a part with no power, a double root.
-		let rare: boolean;
+		// sign first: most pairs with no real root leave here, and the noise only tells
+		// them from a double root (rare, as is a part with no power).
 		if (disc < 0) {
 			const scaleB = Math.abs(C0) + Math.abs(A1) + Math.abs(D1) + Math.abs(C1 * lam);
 			const scaleC = Math.abs(mu) + Math.abs(A0) + Math.abs(D0) + Math.abs(C0 * lam);
 			const noise = 1e-12 * (scaleB * scaleB + 4 * Math.abs(C1) * scaleC);
 			if (C1 !== 0 && disc < -noise) continue;
-			rare = true;
-		} else {
-			const scaleB = Math.abs(C0) + Math.abs(A1) + Math.abs(D1) + Math.abs(C1 * lam);
-			const scaleC = Math.abs(mu) + Math.abs(A0) + Math.abs(D0) + Math.abs(C0 * lam);
-			const noise = 1e-12 * (scaleB * scaleB + 4 * Math.abs(C1) * scaleC);
-			rare = C1 === 0 || disc <= noise;
+			written = rarePair(snapshot, i, j, trackMm, m, minS, minG, out, outColumns, written);
+			found += rareFound[0];
+			continue;
 		}
-		let g0 = 0,
-			g1 = 0,
-			kC0 = 0,
-			kC1 = 0,
-			ta0 = 0,
-			ta1 = 0;
-		if (!rare) {
-			const sq = Math.sqrt(disc);
-			const q = -0.5 * (qb + (qb >= 0 ? sq : -sq));
-			const r0 = q / C1,
-				r1 = qc / q;
-			g0 = r0 < r1 ? r0 : r1;
-			g1 = r0 < r1 ? r1 : r0;
-			ta0 = a1 + g0 * c1;
-			ta1 = a1 + g1 * c1;
-			kC0 = c2 * ta0 + d2 * c1;
-			kC1 = c2 * ta1 + d2 * c1;
-			// |kC|·(|s + d| + |kB| + 1e-3) ≤ 1e-10 is the kernel's afocal test; the factor
-			// is at least 1e-3, so |kC|·1e-3 > 1e-10 rules it out exactly.
-			const ak0 = kC0 < 0 ? -kC0 : kC0,
-				ak1 = kC1 < 0 ? -kC1 : kC1;
-			rare = !(ak0 * 1e-3 > 1e-10 && ak1 * 1e-3 > 1e-10);
+		const scaleB = Math.abs(C0) + Math.abs(A1) + Math.abs(D1) + Math.abs(C1 * lam);
+		const scaleC = Math.abs(mu) + Math.abs(A0) + Math.abs(D0) + Math.abs(C0 * lam);
+		const noise = 1e-12 * (scaleB * scaleB + 4 * Math.abs(C1) * scaleC);
+		if (C1 === 0 || disc <= noise) {
+			written = rarePair(snapshot, i, j, trackMm, m, minS, minG, out, outColumns, written);
+			found += rareFound[0];
+			continue;
 		}
-		if (rare) {
-			const k = solvePairKernel(snapshot, i, j, trackMm, m, fallback, 0);
-			found += k;
-			for (let r = 0; r < k; r++) {
-				const f = r * 6;
-				if ((fallback[f + 4] & 60) !== 0) continue; // ROOT_NON_PHYSICAL
-				if (checkPairPhysical(snapshot, i, j, fallback[f], fallback[f + 1], fallback[f + 2], minS, minG) !== 0) continue;
-				const o = written * 6;
-				for (let x = 0; x < 6; x++) out[o + x] = fallback[f + x];
-				outColumns[written++] = j;
-			}
+		const sq = Math.sqrt(disc);
+		const q = -0.5 * (qb + (qb >= 0 ? sq : -sq));
+		const r0 = q / C1,
+			r1 = qc / q;
+		// Ascending, as the kernel orders them.
+		const g0 = r0 < r1 ? r0 : r1;
+		const g1 = r0 < r1 ? r1 : r0;
+		const ta0 = a1 + g0 * c1;
+		const ta1 = a1 + g1 * c1;
+		const kC0 = c2 * ta0 + d2 * c1;
+		const kC1 = c2 * ta1 + d2 * c1;
+		// The kernel's afocal test is |kC|·(|s + d| + |kB| + 1e-3) ≤ 1e-10; that factor is
+		// at least 1e-3, so |kC|·1e-3 > 1e-10 at both roots rules it out exactly.
+		const ak0 = kC0 < 0 ? -kC0 : kC0,
+			ak1 = kC1 < 0 ? -kC1 : kC1;
+		if (!(ak0 * 1e-3 > 1e-10 && ak1 * 1e-3 > 1e-10)) {
+			written = rarePair(snapshot, i, j, trackMm, m, minS, minG, out, outColumns, written);
+			found += rareFound[0];
 			continue;
 		}
 		found += 2;
-		// qc/C1 (the product of the roots) ≤ 0: the smaller root is ≤ 0 and never physical
-		// (the air-gap test below wants g > 0). Decided from signs, before the divisions.
-		for (let r = (qc < 0) !== (C1 < 0) ? 1 : 0; r < 2; r++) {
-			const g = r === 0 ? g0 : g1;
+		// The two roots, smaller first, written out twice (a loop over them measured 10 %
+		// slower); a root that fails a test leaves its block. When qc/C1, the product of the
+		// roots, is ≤ 0 by the signs, the smaller root is ≤ 0 and never physical (the air-gap
+		// test wants g > 0): skipped before its division.
+		if ((qc < 0) === (C1 < 0)) {
+			root0: {
+				const g = g0;
+				// Negative gap (flag) or below the minimum gap (physical filter).
+				if (g < 0 || !(g >= minG)) break root0;
+				const kC = kC0;
+				const ta = ta0;
+				const tb = b1 + g * d1;
+				const kA = a2 * ta + b2 * c1,
+					kD = c2 * tb + d2 * d1;
+				const ic = 1 / kC;
+				const s = (im - kD) * ic;
+				if (s < 0 || !(s >= minS) || !(s + objectClear > 0)) break root0;
+				const d = (m - kA) * ic;
+				if (d < 0 || !(d >= minS)) break root0;
+				const backSag2 = snapshot[o2 + 12];
+				if (!(d - (backSag2 > 0 ? backSag2 : 0) > 0)) break root0;
+				// The full-matrix verification (ROOT_UNVERIFIED in the kernel).
+				const kB = a2 * tb + b2 * d1;
+				const fD = kC * s + kD;
+				const fA = kA + d * kC;
+				const fB = kA * s + kB + d * fD;
+				const absB = Math.abs(fB);
+				if (
+					!(absB <= 1e-9 * (Math.abs(kA * s) + Math.abs(kB) + Math.abs(d * fD) + 1e-3)) ||
+					!(Math.abs(fA - m) <= tolA) ||
+					!(Math.abs(s + d + g - lam) <= 1e-9 * (Math.abs(s) + Math.abs(d) + Math.abs(g) + Math.abs(lam) + 1e-3))
+				) {
+					break root0;
+				}
+				// Air between the facing surfaces out to the smaller glass edge (checkPairPhysical).
+				const h2 = snapshot[o2 + 10];
+				if (h1 === h2) {
+					if (!(g > 0 && g + snapshot[o2 + 11] - backSagEdge1 > 0)) break root0;
+				} else {
+					const h = h1 < h2 ? h1 : h2;
+					const cf = snapshot[o2 + 5];
+					const qB = 1 - cb * cb * h * h,
+						qF = 1 - cf * cf * h * h;
+					if (qB < -1e-12 || qF < -1e-12) break root0;
+					const sagBack = (cb * h * h) / (1 + Math.sqrt(qB > 0 ? qB : 0)),
+						sagFront = (cf * h * h) / (1 + Math.sqrt(qF > 0 ? qF : 0));
+					if (!(g > 0 && g + sagFront - sagBack > 0)) break root0;
+				}
+				const o = written * 6;
+				out[o] = s;
+				out[o + 1] = g;
+				out[o + 2] = d;
+				out[o + 3] = fA;
+				out[o + 4] = 0;
+				out[o + 5] = absB;
+				outColumns[written++] = j;
+			}
+		}
+		root1: {
+			const g = g1;
 			// Negative gap (flag) or below the minimum gap (physical filter).
-			if (g < 0 || !(g >= minG)) continue;
-			const kC = r === 0 ? kC0 : kC1;
-			const ta = r === 0 ? ta0 : ta1;
+			if (g < 0 || !(g >= minG)) break root1;
+			const kC = kC1;
+			const ta = ta1;
 			const tb = b1 + g * d1;
 			const kA = a2 * ta + b2 * c1,
 				kD = c2 * tb + d2 * d1;
 			const ic = 1 / kC;
 			const s = (im - kD) * ic;
-			if (s < 0 || !(s >= minS) || !(s + objectClear > 0)) continue;
+			if (s < 0 || !(s >= minS) || !(s + objectClear > 0)) break root1;
 			const d = (m - kA) * ic;
-			if (d < 0 || !(d >= minS)) continue;
+			if (d < 0 || !(d >= minS)) break root1;
 			const backSag2 = snapshot[o2 + 12];
-			if (!(d - (backSag2 > 0 ? backSag2 : 0) > 0)) continue;
+			if (!(d - (backSag2 > 0 ? backSag2 : 0) > 0)) break root1;
 			// The full-matrix verification (ROOT_UNVERIFIED in the kernel).
 			const kB = a2 * tb + b2 * d1;
 			const fD = kC * s + kD;
@@ -162,21 +212,21 @@ export function solvePairRow(
 				!(Math.abs(fA - m) <= tolA) ||
 				!(Math.abs(s + d + g - lam) <= 1e-9 * (Math.abs(s) + Math.abs(d) + Math.abs(g) + Math.abs(lam) + 1e-3))
 			) {
-				continue;
+				break root1;
 			}
 			// Air between the facing surfaces out to the smaller glass edge (checkPairPhysical).
 			const h2 = snapshot[o2 + 10];
 			if (h1 === h2) {
-				if (!(g > 0 && g + snapshot[o2 + 11] - backSagEdge1 > 0)) continue;
+				if (!(g > 0 && g + snapshot[o2 + 11] - backSagEdge1 > 0)) break root1;
 			} else {
 				const h = h1 < h2 ? h1 : h2;
 				const cf = snapshot[o2 + 5];
 				const qB = 1 - cb * cb * h * h,
 					qF = 1 - cf * cf * h * h;
-				if (qB < -1e-12 || qF < -1e-12) continue;
+				if (qB < -1e-12 || qF < -1e-12) break root1;
 				const sagBack = (cb * h * h) / (1 + Math.sqrt(qB > 0 ? qB : 0)),
 					sagFront = (cf * h * h) / (1 + Math.sqrt(qF > 0 ? qF : 0));
-				if (!(g > 0 && g + sagFront - sagBack > 0)) continue;
+				if (!(g > 0 && g + sagFront - sagBack > 0)) break root1;
 			}
 			const o = written * 6;
 			out[o] = s;
@@ -191,3 +241,33 @@ export function solvePairRow(
 	pairRowRootsFound[0] = found;
 	return written;
 }
+
+/**
+ * A rare pair through the pair kernel and the physical filter themselves: its physical roots
+ * appended at `written` (returns the new count), the roots found in rareFound[0].
+ */
+function rarePair(
+	snapshot: Float64Array,
+	i: number,
+	j: number,
+	trackMm: number,
+	m: number,
+	minS: number,
+	minG: number,
+	out: Float64Array,
+	outColumns: Int32Array,
+	written: number
+): number {
+	const k = solvePairKernel(snapshot, i, j, trackMm, m, fallback, 0);
+	rareFound[0] = k;
+	for (let r = 0; r < k; r++) {
+		const f = r * 6;
+		if ((fallback[f + 4] & 60) !== 0) continue; // ROOT_NON_PHYSICAL
+		if (checkPairPhysical(snapshot, i, j, fallback[f], fallback[f + 1], fallback[f + 2], minS, minG) !== 0) continue;
+		const o = written * 6;
+		for (let x = 0; x < 6; x++) out[o + x] = fallback[f + x];
+		outColumns[written++] = j;
+	}
+	return written;
+}
+
