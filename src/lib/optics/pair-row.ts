@@ -61,6 +61,9 @@ export function solvePairRow(
 	const tolA = 1e-9 * (absM > 1 ? absM : 1);
 	const minS = minWorkingDistanceMm,
 		minG = minGapMm;
+	// x ≥ lo is exactly "not negative (the kernel's flag) and at least the minimum".
+	const loS = minS > 0 ? minS : minS === minS ? 0 : NaN,
+		loG = minG > 0 ? minG : minG === minG ? 0 : NaN;
 	// The physical filter's per-i terms.
 	const frontSag1 = snapshot[o1 + 11];
 	const objectClear = frontSag1 < 0 ? frontSag1 : 0;
@@ -135,7 +138,7 @@ export function solvePairRow(
 			root0: {
 				const g = g0;
 				// Negative gap (flag) or below the minimum gap (physical filter).
-				if (g < 0 || !(g >= minG)) break root0;
+				if (!(g >= loG)) break root0;
 				const kC = kC0;
 				const ta = ta0;
 				const tb = b1 + g * d1;
@@ -143,9 +146,9 @@ export function solvePairRow(
 					kD = c2 * tb + d2 * d1;
 				const ic = 1 / kC;
 				const s = (im - kD) * ic;
-				if (s < 0 || !(s >= minS) || !(s + objectClear > 0)) break root0;
+				if (!(s >= loS) || !(s + objectClear > 0)) break root0;
 				const d = (m - kA) * ic;
-				if (d < 0 || !(d >= minS)) break root0;
+				if (!(d >= loS)) break root0;
 				const backSag2 = snapshot[o2 + 12];
 				if (!(d - (backSag2 > 0 ? backSag2 : 0) > 0)) break root0;
 				// The full-matrix verification (ROOT_UNVERIFIED in the kernel).
@@ -188,7 +191,7 @@ export function solvePairRow(
 		root1: {
 			const g = g1;
 			// Negative gap (flag) or below the minimum gap (physical filter).
-			if (g < 0 || !(g >= minG)) break root1;
+			if (!(g >= loG)) break root1;
 			const kC = kC1;
 			const ta = ta1;
 			const tb = b1 + g * d1;
@@ -196,9 +199,9 @@ export function solvePairRow(
 				kD = c2 * tb + d2 * d1;
 			const ic = 1 / kC;
 			const s = (im - kD) * ic;
-			if (s < 0 || !(s >= minS) || !(s + objectClear > 0)) break root1;
+			if (!(s >= loS) || !(s + objectClear > 0)) break root1;
 			const d = (m - kA) * ic;
-			if (d < 0 || !(d >= minS)) break root1;
+			if (!(d >= loS)) break root1;
 			const backSag2 = snapshot[o2 + 12];
 			if (!(d - (backSag2 > 0 ? backSag2 : 0) > 0)) break root1;
 			// The full-matrix verification (ROOT_UNVERIFIED in the kernel).
