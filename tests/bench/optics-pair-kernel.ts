@@ -13,7 +13,7 @@
  *   must find the same roots and physical roots as the row;
  * - bare: the same thick-element gap quadratic and its real roots only (no s and d, no
  *   verification, no physical filter), written out here: a floor for the machine's speed.
- * CPU time of this thread (`process.cpuUsage`), the loops alternating in every round
+ * CPU time of this process (`process.cpuUsage`; the loops run on one thread), alternating in every round
  * (order swapped each round), each measured over ≥ 150 ms per round; medians over the
  * rounds, and the ratio row/bare as the median of the per-round ratios, which is what
  * stays stable on a noisy shared machine.
