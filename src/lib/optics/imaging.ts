@@ -3,7 +3,7 @@
  * plane is imaged onto a target plane a track L away. Reads the snapshot
  * (`snapshot.ts`), writes roots laid out as in `roots.ts` into a caller-owned
  * Float64Array, allocates nothing and never throws. The pair kernel is in
- * `pair-kernel.ts`.
+ * `pair-kernel.ts`, its row form with the physical filter (brute-force search) in `pair-row.ts`.
  */
 import { ELEMENT_STRIDE, EL_A, EL_B, EL_C, EL_D, EL_THICKNESS } from './snapshot';
 import {
@@ -25,6 +25,7 @@ import { VERIFY_TOL, QUAD_NONE, QUAD_ALL, QUAD_DOUBLE, QUAD_TWO, quadRoots, solv
 // `./imaging` is the one entry point of both kernels and their output layout.
 export * from './roots';
 export { solvePairKernel } from './pair-kernel';
+export { solvePairRow, pairRowRootsFound } from './pair-row';
 
 /**
  * Single element i of `snapshot`: the object distances s that image the object plane
