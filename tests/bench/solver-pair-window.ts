@@ -86,11 +86,10 @@ for (const q of questions) {
 			if (round === 0) {
 				configs[name].brute += got.brute.configurationsEvaluated;
 				configs[name].window += got.window.configurationsEvaluated;
-				line.push(
-					`${name} ${ms.brute.toFixed(0)} → ${ms.window.toFixed(0)} ms CPU (round 1), configurations ${got.brute.configurationsEvaluated.toLocaleString('en')} → ${got.window.configurationsEvaluated.toLocaleString('en')}`
-				);
+				line.push(`${name}: configurations ${got.brute.configurationsEvaluated.toLocaleString('en')} → ${got.window.configurationsEvaluated.toLocaleString('en')}`);
 			}
 		}
+		line[line.length - 1] += `, ${ms.brute.toFixed(0)} → ${ms.window.toFixed(0)} ms CPU (mean of ${ROUNDS})`;
 		total[name].brute += ms.brute;
 		total[name].window += ms.window;
 	}

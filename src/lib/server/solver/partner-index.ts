@@ -429,6 +429,9 @@ function pieceRange(ix: PartnerIndex, b: number, sa: number, sb: number): boolea
 		fLo = Math.max(fLo, Math.min(v1, v2, v3, v4));
 		fHi = Math.min(fHi, Math.max(v1, v2, v3, v4));
 	}
+	// A bound lost to rounding (NaN) bounds nothing.
+	if (fLo !== fLo) fLo = -Infinity;
+	if (fHi !== fHi) fHi = Infinity;
 	fLo -= WIDEN * Math.abs(fLo) + 1e-15;
 	fHi += WIDEN * Math.abs(fHi) + 1e-15;
 	if (!(fLo <= fHi) || fHi < pLo || fLo > pHi) return false;
