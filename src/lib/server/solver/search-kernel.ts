@@ -34,6 +34,7 @@ import { offerBest, PG_FRACTION } from './progress';
 import { rankBound, boundUpper, boundFan, BOUND_CHEAP, BOUND_FULL, type BoundQuestion, type RayTable } from './rank-bound';
 import { packRankParts, WORKING_DISTANCE_STEP_MM } from '../../solver/ranking';
 import { VERIFY_A_TOL, VERIFY_B_TOL_MM } from '../../optics/tolerances';
+import { partnerIndex, partnerRanges, type PartnerIndex } from './partner-index';
 import type { ParsedImagingRequest } from '../../solver/request';
 
 /** Numbers per candidate record. */
@@ -146,6 +147,11 @@ export interface ShardInput {
 	cancel?: Int32Array | null;
 	/** This shard's progress slot (progress.ts): rows done and the best candidate so far. */
 	progress?: Float64Array | null;
+	/**
+	 * Visit every partner of every row (tests and benchmarks): without it, a row visits only the
+	 * partners whose power can give a physical root (partner-index.ts). The roots are the same.
+	 */
+	bruteForce?: boolean;
 }
 
 /** The running shard's progress slot (one shard at a time per thread). */
@@ -518,6 +524,10 @@ interface ShardContext extends Pick<ShardInput, 'packed' | 'seidel' | 'partIndex
 	top: TopK;
 	/** The matrices as separate arrays; null when the question asks for single parts only. */
 	soa: Soa | null;
+	/** The partners sorted by power (partner-index.ts); null for the brute-force search or single parts only. */
+	partners: PartnerIndex | null;
+	/** The brute-force search's one range [0, candidates.length). */
+	everyPartner: Int32Array;
 	/** The prefilter's constants of the question: 1/m, m + 1/m, the limits less a slack, the Airy radius at m, the marginal slope. */
 	im: number;
 	mu: number;
@@ -549,6 +559,8 @@ function shardContext(input: ShardInput, top: TopK): ShardContext {
 		wdSlack: 1e-6 * (Math.abs(p.trackMm) + 1),
 		top,
 		soa,
+		partners: soa !== null && !input.bruteForce ? partnerIndex(packed, candidates) : null,
+		everyPartner: Int32Array.of(0, candidates.length),
 		im: 1 / m,
 		mu: m + 1 / m,
 		minS: p.minWorkingDistanceMm - slack,
@@ -622,7 +634,6 @@ function anyPhysicalPair(ctx: ShardContext, i: number, j: number, k: number): bo
 function pairRow(ctx: ShardContext, i: number): void {
 	const { packed, seidel, partIndex, untraceable, partUnits, candidates, coatOut, p, top, range, mu, im, minS, minG, wdSlack, airyPair, u0 } = ctx;
 	const soa = ctx.soa as Soa;
-	const n = candidates.length;
 	const m = p.magnification;
 	const pi = partIndex[i];
 	const tol = p.trackToleranceMm;
@@ -640,75 +651,84 @@ function pairRow(ctx: ShardContext, i: number): void {
 		d1 = sd[i];
 	const rc1 = src[i];
 	const lam1 = p.trackMm - st[i];
+	// The partners to visit: ranges of the order by power that can give a physical root
+	// (partner-index.ts), or every candidate for the brute-force search.
+	const ix = ctx.partners;
+	const order = ix === null ? candidates : ix.order;
+	const ranges = ix === null ? ctx.everyPartner : ix.ranges;
+	const nRanges = ix === null ? 1 : partnerRanges(ix, p, a1, b1, c1, d1, st[i]);
 	let evaluated = 0;
-	for (let w = 0; w < n; w++) {
-		const j = candidates[w];
-		if (partIndex[j] === pi && partUnits[pi] < 2) continue;
-		evaluated++;
-		// Conservative prefilter, the same algebra as solvePairKernel (optics/imaging.ts):
-		// skip the pair only when its gap quadratic clearly has no real root, or every
-		// root clearly has a gap or a working distance below the minimum. Near a limit,
-		// a double root or an afocal root the optics core's kernel decides. Measured hot
-		// path (tests/bench/solver-3000.ts): most pairs never reach the full kernel, and
-		// the test avoids divisions (one reciprocal per pair).
-		const a2 = sa[j],
-			b2 = sb[j],
-			c2 = sc[j],
-			d2 = sd[j];
-		const lam = lam1 - st[j];
-		const A0 = a2 * a1 + b2 * c1,
-			A1 = a2 * c1,
-			C0 = c2 * a1 + d2 * c1,
-			C1 = c2 * c1,
-			D0 = c2 * b1 + d2 * d1,
-			D1 = c2 * d1;
-		const qb = C0 - A1 - D1 - C1 * lam;
-		const qc = mu - A0 - D0 - C0 * lam;
-		let track = p.trackMm;
-		if (C1 !== 0) {
-			const disc = qb * qb - 4 * C1 * qc;
-			const scale = qb * qb + 4 * Math.abs(C1 * qc);
-			if (disc < -1e-6 * scale) {
-				// No real root at the track asked: with a track tolerance, the nearest track that has one.
-				if (!(tol > 0)) continue;
-				track = toleranceTrack(qb, C0, C1, disc, tol, p.trackMm);
-				if (track !== track) continue; // NaN: none within the tolerance
-			} else if (disc > 1e-6 * scale) {
-				const sq = Math.sqrt(disc);
-				const qq = -0.5 * (qb + (qb >= 0 ? sq : -sq));
-				// Roots g₀ = qq/C₁ = qq·(1/c₁)(1/c₂) and g₁ = qc/qq. A root that may be
-				// physical is screened right here with its approximate (s, g): the full kernel
-				// and the physical check run only when the top-K would keep it.
-				let need = false;
-				for (let r = 0; r < 2 && !need; r++) {
-					const g = r === 0 ? qq * rc1 * src[j] : qc / qq;
-					if (!(g >= minG)) continue;
-					const kC = C0 + g * C1,
-						kA = A0 + g * A1,
-						kD = D0 + g * D1;
-					const size = Math.abs(kA) + Math.abs(kD) + Math.abs(m) + Math.abs(im);
-					if (!(Math.abs(kC) > 1e-9 * size)) {
-						need = true; // nearly afocal: the kernel handles it
-						break;
+	for (let rg = 0; rg < nRanges; rg++) {
+		const end = ranges[2 * rg + 1];
+		for (let w = ranges[2 * rg]; w < end; w++) {
+			const j = order[w];
+			if (partIndex[j] === pi && partUnits[pi] < 2) continue;
+			evaluated++;
+			// Conservative prefilter, the same algebra as solvePairKernel (optics/imaging.ts):
+			// skip the pair only when its gap quadratic clearly has no real root, or every
+			// root clearly has a gap or a working distance below the minimum. Near a limit,
+			// a double root or an afocal root the optics core's kernel decides. Measured hot
+			// path (tests/bench/solver-3000.ts): most pairs never reach the full kernel, and
+			// the test avoids divisions (one reciprocal per pair).
+			const a2 = sa[j],
+				b2 = sb[j],
+				c2 = sc[j],
+				d2 = sd[j];
+			const lam = lam1 - st[j];
+			const A0 = a2 * a1 + b2 * c1,
+				A1 = a2 * c1,
+				C0 = c2 * a1 + d2 * c1,
+				C1 = c2 * c1,
+				D0 = c2 * b1 + d2 * d1,
+				D1 = c2 * d1;
+			const qb = C0 - A1 - D1 - C1 * lam;
+			const qc = mu - A0 - D0 - C0 * lam;
+			let track = p.trackMm;
+			if (C1 !== 0) {
+				const disc = qb * qb - 4 * C1 * qc;
+				const scale = qb * qb + 4 * Math.abs(C1 * qc);
+				if (disc < -1e-6 * scale) {
+					// No real root at the track asked: with a track tolerance, the nearest track that has one.
+					if (!(tol > 0)) continue;
+					track = toleranceTrack(qb, C0, C1, disc, tol, p.trackMm);
+					if (track !== track) continue; // NaN: none within the tolerance
+				} else if (disc > 1e-6 * scale) {
+					const sq = Math.sqrt(disc);
+					const qq = -0.5 * (qb + (qb >= 0 ? sq : -sq));
+					// Roots g₀ = qq/C₁ = qq·(1/c₁)(1/c₂) and g₁ = qc/qq. A root that may be
+					// physical is screened right here with its approximate (s, g): the full kernel
+					// and the physical check run only when the top-K would keep it.
+					let need = false;
+					for (let r = 0; r < 2 && !need; r++) {
+						const g = r === 0 ? qq * rc1 * src[j] : qc / qq;
+						if (!(g >= minG)) continue;
+						const kC = C0 + g * C1,
+							kA = A0 + g * A1,
+							kD = D0 + g * D1;
+						const size = Math.abs(kA) + Math.abs(kD) + Math.abs(m) + Math.abs(im);
+						if (!(Math.abs(kC) > 1e-9 * size)) {
+							need = true; // nearly afocal: the kernel handles it
+							break;
+						}
+						const lim = kC * kC * minS;
+						if (!((im - kD) * kC >= lim && (m - kA) * kC >= lim)) continue;
+						if (range === null) {
+							// Lower bound of the screen score (aperture penalties only raise it).
+							const bound = sphericalRms(packed, seidel, i, j, (im - kD) / kC, g, u0) / airyPair;
+							need = top.admits((ui || untraceable[j] === 1 ? UNTRACEABLE_OFFSET + bound : bound) * (1 - 1e-9));
+						} else {
+							// Lower bound of the rank bound from what is exact without rays: coating, the
+							// working-distance step (of the approximate root, with a slack) and part count.
+							const wd = Math.min((im - kD) / kC, (m - kA) / kC) + wdSlack;
+							const low = packRankParts(0, ci | coatOut[j], 0, -Math.floor(wd / WORKING_DISTANCE_STEP_MM), 2, 0);
+							need = low <= ctx.bar && top.admits(low);
+						}
 					}
-					const lim = kC * kC * minS;
-					if (!((im - kD) * kC >= lim && (m - kA) * kC >= lim)) continue;
-					if (range === null) {
-						// Lower bound of the screen score (aperture penalties only raise it).
-						const bound = sphericalRms(packed, seidel, i, j, (im - kD) / kC, g, u0) / airyPair;
-						need = top.admits((ui || untraceable[j] === 1 ? UNTRACEABLE_OFFSET + bound : bound) * (1 - 1e-9));
-					} else {
-						// Lower bound of the rank bound from what is exact without rays: coating, the
-						// working-distance step (of the approximate root, with a slack) and part count.
-						const wd = Math.min((im - kD) / kC, (m - kA) / kC) + wdSlack;
-						const low = packRankParts(0, ci | coatOut[j], 0, -Math.floor(wd / WORKING_DISTANCE_STEP_MM), 2, 0);
-						need = low <= ctx.bar && top.admits(low);
-					}
+					if (!need) continue;
 				}
-				if (!need) continue;
 			}
+			offerPair(ctx, i, j, track);
 		}
-		offerPair(ctx, i, j, track);
 	}
 	counters[0] += evaluated;
 }
