@@ -9,7 +9,7 @@
  */
 import { syntheticStock } from './_synthetic-stock';
 import { solveWithStock, snapshotFor, BOUND_PASS_K, TOP_K_PER_SHARD, type StockView } from '../../src/lib/server/solver/solve';
-import { searchShard, searchParamsOf, REC_STRIDE, type ShardInput, type ShardResult } from '../../src/lib/server/solver/search-kernel';
+import { searchShard, searchParamsOf, REC_STRIDE, type ShardInput, type ShardResult } from '../../src/lib/solver/search/search-kernel';
 import { imagingRequestSchema } from '../../src/lib/solver/request';
 import { packRankKey, rankKey } from '../../src/lib/solver/ranking';
 

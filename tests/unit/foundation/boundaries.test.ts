@@ -54,4 +54,19 @@ describe('module boundaries', () => {
 		expect(imports.filter((f) => internal.test(read(f)))).toEqual([]);
 		expect(imports.some((f) => /from\s+'\$lib\/server\/catalogue'/.test(read(f)))).toBe(true);
 	});
+
+	it('the pure search code (lib/solver/search) imports neither the server, the framework, node nor $lib', () => {
+		const search = SRC.filter((f) => f.startsWith('src/lib/solver/search/'));
+		expect(search).toContain('src/lib/solver/search/search-kernel.ts');
+		expect(search).toContain('src/lib/solver/search/seidel-poly.ts');
+		expect(search.filter((f) => /from\s+'(\$lib|\$app|@sveltejs|node:|[^'.][^']*)'|from\s+'[^']*\/server\//.test(read(f)))).toEqual([]);
+		expect(SRC.filter((f) => f.startsWith('src/lib/server/solver/') && /search-kernel|seidel-poly/.test(path.basename(f)))).toEqual([]);
+	});
+
+	it('the optics core and solver take their numerical tolerances from optics/tolerances.ts', () => {
+		const home = 'src/lib/optics/tolerances.ts';
+		const defined = /^(export )?const (VERIFY_TOL|DOUBLE_TOL|AFOCAL_TOL|TOUCH_TOL|BEHIND_TOL_MM|VERIFY_B_TOL_MM|VERIFY_A_TOL)\b/m;
+		expect(offenders(SRC, defined, [home])).toEqual([]);
+		expect(defined.test(read(home))).toBe(true);
+	});
 });

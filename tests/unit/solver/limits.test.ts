@@ -8,7 +8,7 @@
 import { describe, expect, it, vi } from 'vitest';
 import { imagingRequestSchema as solveRequestSchema } from '../../../src/lib/solver/request';
 import { buildElementSnapshot, type CandidatePart } from '../../../src/lib/server/solver/elements';
-import { searchShard, type SearchParams } from '../../../src/lib/server/solver/search-kernel';
+import { searchShard, type SearchParams } from '../../../src/lib/solver/search/search-kernel';
 import { solveWithStock, type StockView } from '../../../src/lib/server/solver/solve';
 import { syntheticStock } from '../../bench/_synthetic-stock';
 

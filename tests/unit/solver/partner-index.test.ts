@@ -10,8 +10,8 @@
  */
 import { describe, expect, it } from 'vitest';
 import { buildElementSnapshot, type CandidatePart } from '../../../src/lib/server/solver/elements';
-import { searchShard, REC_STRIDE, REC_SCORE, type SearchParams, type ShardInput, type ShardResult } from '../../../src/lib/server/solver/search-kernel';
-import { partnerIndex, partnerRanges } from '../../../src/lib/server/solver/partner-index';
+import { searchShard, REC_STRIDE, REC_SCORE, type SearchParams, type ShardInput, type ShardResult } from '../../../src/lib/solver/search/search-kernel';
+import { partnerIndex, partnerRanges } from '../../../src/lib/solver/search/partner-index';
 import { mulberry32 } from '../../../src/lib/prng';
 import { syntheticStock } from '../../bench/_synthetic-stock';
 

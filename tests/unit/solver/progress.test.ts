@@ -9,7 +9,7 @@ import { solveWithStock, PROVISIONAL_AFTER_MS, type StockView } from '../../../s
 import { compareKeys, rankKey } from '../../../src/lib/solver/ranking';
 import { solveBeamWithStock } from '../../../src/lib/server/solver/beam-solve';
 import { solveRequestSchema, type ParsedBeamRequest, type ParsedImagingRequest } from '../../../src/lib/solver/request';
-import { progressBuffer, progressSlot, offerBest, readProgress, PG_FRACTION } from '../../../src/lib/server/solver/progress';
+import { progressBuffer, progressSlot, offerBest, readProgress, PG_FRACTION } from '../../../src/lib/solver/search/progress';
 import type { SolveProgress, SolveResponse } from '../../../src/lib/solver/types';
 
 const stock: StockView = { key: 'progress-3000', parts: syntheticStock(3000) };

@@ -7,7 +7,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { buildElement, placeSingle, placementLayout, traceSystemFromLayout, startRay, traceRay, heightAtPlane, RAY_STRIDE, TRACE_OK } from '../../../src/lib/optics';
-import { seidelPolynomial, evalSeidel, SEIDEL_STRIDE } from '../../../src/lib/server/solver/seidel-poly';
+import { seidelPolynomial, evalSeidel, SEIDEL_STRIDE } from '../../../src/lib/solver/search/seidel-poly';
 
 function check(surfaces: Parameters<typeof buildElement>[0], trackMm: number) {
 	const el = buildElement(surfaces, 587.6, { clearApertureMm: 20 });

@@ -25,7 +25,7 @@ import { ELEMENT_STRIDE, EL_A, EL_B, EL_C, EL_D, EL_THICKNESS, EL_SEMI_APERTURE 
 import { thinEquivalent, middleRayleighRange, bestSinglePlacement, pairMatchRoots, type MatchBeams, type MatchPart, type ThinEquivalent } from '../../optics/beam-match';
 import { checkSinglePhysical, checkPairPhysical, PHYS_OBJECT_PLANE } from '../../optics/physical';
 import { overlapFromQ } from '../../optics/coupling';
-import { offerBest, PG_FRACTION } from './progress';
+import { offerBest, PG_FRACTION } from '../../solver/search/progress';
 
 /** Numbers per beam record. */
 export const BREC_STRIDE = 8;

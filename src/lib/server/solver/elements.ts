@@ -16,9 +16,9 @@ import {
 	type SurfaceSpec
 } from '../../optics';
 import type { PartPlace } from '../../solver/types';
-import { SEIDEL_STRIDE, seidelPolynomial } from './seidel-poly';
+import { SEIDEL_STRIDE, seidelPolynomial } from '../../solver/search/seidel-poly';
 import { coatingWarnings, datasheetOnlyReason, exclusionReason } from './exclusions';
-import { rayTable, type RayTable } from './rank-bound';
+import { rayTable, type RayTable } from '../../solver/search/rank-bound';
 
 /** A catalogue part as the solver sees it. */
 export interface CandidatePart {

@@ -5,7 +5,7 @@
  */
 import { beamShard, type BeamSearchParams } from './beam-kernel';
 import { afocalShard, type AfocalSearchParams } from './afocal-kernel';
-import { progressSlot } from './progress';
+import { progressSlot } from '../../solver/search/progress';
 
 export type ModeSearchMessage = {
 	type: 'mode-search';

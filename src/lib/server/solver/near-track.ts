@@ -13,7 +13,7 @@ import { EL_C, ELEMENT_STRIDE } from '../../optics/snapshot';
 import type { ParsedImagingRequest } from '../../solver/request';
 import type { NearTrack, SolveResponse } from '../../solver/types';
 import type { ElementSnapshot } from './elements';
-import { searchShard, searchParamsOf, REC_STRIDE, REC_I, REC_J, REC_S, REC_D, REC_M, REC_TRACK } from './search-kernel';
+import { searchShard, searchParamsOf, REC_STRIDE, REC_I, REC_J, REC_S, REC_D, REC_M, REC_TRACK } from '../../solver/search/search-kernel';
 
 /** Pairs are looked for only in stocks of at most this many oriented elements (the search runs on the request's thread). */
 export const NEAR_PAIR_MAX_ELEMENTS = 400;

@@ -11,8 +11,8 @@
 import { Worker } from 'node:worker_threads';
 import { workerFileOf } from '$lib/server/worker-file';
 import os from 'node:os';
-import type { SearchParams } from './search-kernel';
-import type { RayTable } from './rank-bound';
+import type { SearchParams } from '../../solver/search/search-kernel';
+import type { RayTable } from '../../solver/search/rank-bound';
 import type { SearchMessage, SnapshotMessage, WorkerReply } from './search-worker';
 import type { ModeSearchMessage } from './mode-shard';
 import type { BeamSearchParams } from './beam-kernel';

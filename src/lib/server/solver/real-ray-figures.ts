@@ -32,9 +32,9 @@ import {
 import type { ColourFigures } from '../../solver/types';
 import { partElement, type CandidatePart } from './elements';
 import type { EvalQuestion, PlacementChoice } from './evaluate';
-import { FAN_RAYS, edgeSpotAt, type EdgeTrace } from './field-edge';
+import { FAN_RAYS, edgeSpotAt, type EdgeTrace } from '../../solver/search/field-edge';
 
-export { FAN_RAYS, edgeTrace, type EdgeTrace } from './field-edge';
+export { FAN_RAYS, edgeTrace, type EdgeTrace } from '../../solver/search/field-edge';
 
 /** The aperture stop as (part index, surface 1-based within the part). */
 export function stopOf(sys: TraceSystem, k: number): { partIndex: number; surface: number } {

@@ -5,10 +5,10 @@
  * only), so its bundled chunk can run alone in a worker.
  */
 import { isMainThread, parentPort, workerData } from 'node:worker_threads';
-import { searchShard, type SearchParams } from './search-kernel';
-import type { RayTable } from './rank-bound';
+import { searchShard, type SearchParams } from '../../solver/search/search-kernel';
+import type { RayTable } from '../../solver/search/rank-bound';
 import { runModeShard, type ModeSearchMessage } from './mode-shard';
-import { progressSlot } from './progress';
+import { progressSlot } from '../../solver/search/progress';
 
 /** URL of this module (in the built app: its own chunk). */
 export const selfUrl = import.meta.url;

@@ -8,7 +8,7 @@ import { DomainError } from '../errors';
 import { ROOT_DOUBLE, ROOT_FAMILY } from '../../optics/imaging';
 import type { ParsedImagingRequest } from '../../solver/request';
 import type { PartsExcluded, Solution, SolveProgress, SolveResponse, SolveStats } from '../../solver/types';
-import { progressBuffer, readProgress } from './progress';
+import { progressBuffer, readProgress } from '../../solver/search/progress';
 import { imagingNoAnswer } from './near-track';
 import { buildElementSnapshot, wavelengthCoveredByAnyMaterial, type CandidatePart, type ElementSnapshot } from './elements';
 import {
@@ -25,7 +25,7 @@ import {
 	REC_TRACK,
 	searchParamsOf,
 	type ShardResult
-} from './search-kernel';
+} from '../../solver/search/search-kernel';
 import { searchOnPool, workerCount } from './pool';
 import { evaluatePlacement, rankKey, compareKeys, type PlacementChoice } from './evaluate';
 import { packRankKey } from '../../solver/ranking';

@@ -32,10 +32,10 @@ import { checkSinglePhysical, checkPairPhysical } from '../../optics/physical';
 import { evalSeidel } from './seidel-poly';
 import { offerBest, PG_FRACTION } from './progress';
 import { rankBound, boundUpper, boundFan, BOUND_CHEAP, BOUND_FULL, type BoundQuestion, type RayTable } from './rank-bound';
-import { packRankParts, WORKING_DISTANCE_STEP_MM } from '../../solver/ranking';
+import { packRankParts, WORKING_DISTANCE_STEP_MM } from '../ranking';
 import { VERIFY_A_TOL, VERIFY_B_TOL_MM } from '../../optics/tolerances';
 import { partnerIndex, partnerRanges, type PartnerIndex } from './partner-index';
-import type { ParsedImagingRequest } from '../../solver/request';
+import type { ParsedImagingRequest } from '../request';
 
 /** Numbers per candidate record. */
 export const REC_STRIDE = 13;

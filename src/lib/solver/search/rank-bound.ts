@@ -27,7 +27,7 @@ import { axialCone, axialSpot, airyRadiusMm, workingFNumber, imageSideNA, CONE_T
 import { startRay, traceRay, heightAtPlane, RAY_STRIDE, TRACE_OK, type TraceSystem } from '../../optics/raytrace';
 import { ELEMENT_STRIDE, EL_THICKNESS } from '../../optics/snapshot';
 import type { ThickElement } from '../../optics/element';
-import { packRankParts as pack, spotBand, EDGE_BLOCKED_RATIO, VIGNETTING_TOLERANCE, WORKING_DISTANCE_STEP_MM } from '../../solver/ranking';
+import { packRankParts as pack, spotBand, EDGE_BLOCKED_RATIO, VIGNETTING_TOLERANCE, WORKING_DISTANCE_STEP_MM } from '../ranking';
 import { FAN_RAYS, edgeTrace } from './field-edge';
 
 /** Numbers per surface in the ray table: vertex offset in the element, curvature, index after, semi-aperture. */
