@@ -3,9 +3,12 @@
  * to-scale diagram, saves a setup, reserves its parts and opens the build sheet.
  */
 import { afterAll, beforeAll, describe, it } from 'vitest';
+import { and, eq, inArray } from 'drizzle-orm';
 import type { Page } from 'playwright-core';
 import { appUrl, expect, openBrowser, screenshot, signIn } from '../../support/browser';
 import { setupParts } from '../../support/fixtures';
+import { testDb } from '../../support/env';
+import { reservations } from '../../../src/lib/server/db/schema';
 
 /** A field of the question form by its label (which names its unit). */
 const field = (page: Page, label: string) => page.getByLabel(new RegExp(`^${label} \\(`));
@@ -15,12 +18,26 @@ const SOLVED = { timeout: 30_000 };
 describe('Build from stock in the browser', () => {
 	let browser: Awaited<ReturnType<typeof openBrowser>>;
 	let page: Page;
+	const { db, pool } = testDb();
+	const savedSetups: number[] = [];
 	beforeAll(async () => {
 		browser = await openBrowser();
 		page = browser.page;
 		await signIn(page, 'engineer@tarnwell.example');
 	});
-	afterAll(async () => browser?.close());
+	afterAll(async () => {
+		// Release what the test reserved, through the API as the engineer would, so later files find the stock free.
+		if (savedSetups.length && page) {
+			const held = await db
+				.select({ id: reservations.id })
+				.from(reservations)
+				.where(and(inArray(reservations.setupId, savedSetups), eq(reservations.status, 'active')));
+			const origin = new URL(appUrl('/')).origin;
+			for (const r of held) expect((await page.request.delete(appUrl(`/api/v1/reservations/${r.id}`), { headers: { origin } })).ok()).toBe(true);
+		}
+		await browser?.close();
+		await pool.end();
+	});
 
 	it('answers a question without a page reload and draws the selected setup', async () => {
 		await page.goto(appUrl('/build'));
@@ -94,6 +111,7 @@ describe('Build from stock in the browser', () => {
 		await page.getByRole('button', { name: 'Save as setup' }).click();
 		await expect(page).toHaveURL(/\/build\/\d+$/);
 		const setupId = Number(new URL(page.url()).pathname.split('/').pop());
+		savedSetups.push(setupId);
 		await expect(page.getByRole('heading', { level: 1 })).toContainText(name);
 		await expect(page.getByTestId('setup-layout')).toBeVisible();
 		await screenshot(page, 'setup-page');
