@@ -9,7 +9,7 @@
  */
 import { syntheticStock } from './_synthetic-stock';
 import { solveWithStock, snapshotFor, BOUND_PASS_K, TOP_K_PER_SHARD, type StockView } from '../../src/lib/server/solver/solve';
-import { searchShard, searchParamsOf, REC_STRIDE, type ShardInput, type ShardResult } from '../../src/lib/solver/search/search-kernel';
+import { searchShard, searchParamsOf, REC_STRIDE, type ShardInput, type ShardResult, snapshotArrays } from '../../src/lib/solver/search/search-kernel';
 import { imagingRequestSchema } from '../../src/lib/solver/request';
 import { packRankKey, rankKey } from '../../src/lib/solver/ranking';
 
@@ -50,12 +50,7 @@ for (const q of questions) {
 	const nth = solved.solutions[q.limit - 1];
 	const bar = nth ? packRankKey(rankKey(nth)) : Infinity;
 	const base = {
-		packed: snap.packed,
-		seidel: snap.seidel,
-		partIndex: snap.partIndex,
-		untraceable: snap.untraceable,
-		rays: snap.rays,
-		coatOut: snap.coatOut,
+		...snapshotArrays(snap),
 		partUnits,
 		candidates,
 		params: searchParamsOf(q),

@@ -10,7 +10,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { buildElementSnapshot, type CandidatePart } from '../../../src/lib/server/solver/elements';
-import { searchShard, REC_STRIDE, REC_SCORE, type SearchParams, type ShardInput, type ShardResult } from '../../../src/lib/solver/search/search-kernel';
+import { searchShard, REC_STRIDE, REC_SCORE, type SearchParams, type ShardInput, type ShardResult, snapshotArrays } from '../../../src/lib/solver/search/search-kernel';
 import { partnerIndex, partnerRanges } from '../../../src/lib/solver/search/partner-index';
 import { mulberry32 } from '../../../src/lib/prng';
 import { syntheticStock } from '../../bench/_synthetic-stock';
@@ -38,12 +38,7 @@ function inputOf(parts: CandidatePart[], seed: number, params: SearchParams): Om
 	const r = mulberry32(seed * 31);
 	const snap = buildElementSnapshot(parts, params.wavelengthNm);
 	return {
-		packed: snap.packed,
-		seidel: snap.seidel,
-		partIndex: snap.partIndex,
-		untraceable: snap.untraceable,
-		rays: snap.rays,
-		coatOut: snap.coatOut,
+		...snapshotArrays(snap),
 		// Some parts with one unit only (the same part cannot be used twice).
 		partUnits: Int32Array.from(snap.parts.map(() => 1 + Math.floor(r() * 3))),
 		candidates: Int32Array.from(snap.elements.map((_, e) => e)),

@@ -7,7 +7,8 @@
 import { DomainError } from '../errors';
 import type { ParsedAfocalRequest, ParsedBeamRequest } from '../../solver/request';
 import type { AfocalSolution, AfocalSolveResponse, BeamSolution, BeamSolveResponse, SolveStats } from '../../solver/types';
-import { wavelengthCoveredByAnyMaterial, type ElementSnapshot } from './elements';
+import { wavelengthCoveredByAnyMaterial } from './elements';
+import { snapshotArrays, type SnapshotArrays } from '../../solver/search/search-kernel';
 import { snapshotFor, candidateFilter, watchProgress, withCoatingWarnings, type StockView, type SolveOptions } from './solve';
 import { outsideCoating } from './exclusions';
 import { coatingClass } from '../../solver/ranking';
@@ -36,7 +37,7 @@ function checkWavelength(stock: StockView, wavelengthNm: number): void {
 
 async function runShards(
 	key: string,
-	snap: Pick<ElementSnapshot, 'packed' | 'seidel' | 'partIndex' | 'untraceable' | 'rays' | 'coatOut'> & { parts: { sku: string }[] },
+	snap: SnapshotArrays & { parts: { sku: string }[] },
 	task: Omit<ModeShardTask, 'shardIndex' | 'shardCount'>,
 	options: SolveOptions
 ): Promise<{ shards: ModeShardResult[]; workers: number }> {
@@ -56,7 +57,7 @@ async function runShards(
 	}));
 	try {
 		const shards = await searchModeOnPool(
-			{ key, packed: snap.packed, seidel: snap.seidel, partIndex: snap.partIndex, untraceable: snap.untraceable, rays: snap.rays, coatOut: snap.coatOut },
+			{ key, ...snapshotArrays(snap) },
 			{ ...task, signal: options.signal, progress: watch.buffer } as Parameters<typeof searchModeOnPool>[1]
 		);
 		return { shards, workers };

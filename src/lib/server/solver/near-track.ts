@@ -13,7 +13,7 @@ import { EL_C, ELEMENT_STRIDE } from '../../optics/snapshot';
 import type { ParsedImagingRequest } from '../../solver/request';
 import type { NearTrack, SolveResponse } from '../../solver/types';
 import type { ElementSnapshot } from './elements';
-import { searchShard, searchParamsOf, REC_STRIDE, REC_I, REC_J, REC_S, REC_D, REC_M, REC_TRACK } from '../../solver/search/search-kernel';
+import { searchShard, searchParamsOf, snapshotArrays, REC_STRIDE, REC_I, REC_J, REC_S, REC_D, REC_M, REC_TRACK } from '../../solver/search/search-kernel';
 
 /** Pairs are looked for only in stocks of at most this many oriented elements (the search runs on the request's thread). */
 export const NEAR_PAIR_MAX_ELEMENTS = 400;
@@ -74,12 +74,7 @@ export function nearSingleTracks(snap: ElementSnapshot, candidates: Int32Array, 
 export function nearPairTracks(snap: ElementSnapshot, candidates: Int32Array, partUnits: Int32Array, req: ParsedImagingRequest, count = NEAR_TRACK_COUNT): NearTrack[] {
 	if (req.maxElements < 2 || candidates.length > NEAR_PAIR_MAX_ELEMENTS) return [];
 	const r = searchShard({
-		packed: snap.packed,
-		seidel: snap.seidel,
-		partIndex: snap.partIndex,
-		untraceable: snap.untraceable,
-		rays: snap.rays,
-		coatOut: snap.coatOut,
+		...snapshotArrays(snap),
 		partUnits,
 		candidates,
 		params: { ...searchParamsOf(req), trackToleranceMm: Math.min(NEAR_PAIR_WINDOW * req.trackMm, 1000), maxElements: 2 },

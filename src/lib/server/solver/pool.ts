@@ -11,23 +11,14 @@
 import { Worker } from 'node:worker_threads';
 import { workerFileOf } from '$lib/server/worker-file';
 import os from 'node:os';
-import type { SearchParams } from '../../solver/search/search-kernel';
-import type { RayTable } from '../../solver/search/rank-bound';
+import { snapshotArrays, type SearchParams, type SnapshotArrays } from '../../solver/search/search-kernel';
 import type { SearchMessage, SnapshotMessage, WorkerReply } from './search-worker';
 import type { ModeSearchMessage } from './mode-shard';
 import type { BeamSearchParams } from './beam-kernel';
 import type { AfocalSearchParams } from './afocal-kernel';
 
-/** What the pool needs of a snapshot. */
-export interface PoolSnapshot {
-	key: string;
-	packed: Float64Array;
-	seidel: Float64Array;
-	partIndex: Int32Array;
-	untraceable: Uint8Array;
-	rays: RayTable;
-	coatOut: Uint8Array;
-}
+/** What the pool needs of a snapshot: its key and its arrays. */
+export type PoolSnapshot = SnapshotArrays & { key: string };
 
 export interface PoolSearch {
 	candidates: Int32Array;
@@ -94,6 +85,15 @@ function pool(): Promise<Slot[]> {
 	return slots;
 }
 
+/** Sends the snapshot's arrays to a worker that does not hold them yet (it keeps the last four keys). */
+function sendSnapshot(slot: Slot, snapshot: PoolSnapshot): void {
+	if (slot.keys.has(snapshot.key)) return;
+	const msg: SnapshotMessage = { type: 'snapshot', key: snapshot.key, ...snapshotArrays(snapshot) };
+	slot.worker.postMessage(msg);
+	slot.keys.add(snapshot.key);
+	if (slot.keys.size > 4) slot.keys.delete(slot.keys.values().next().value as string);
+}
+
 /** Starts the workers ahead of the first solve (optional). */
 export async function warmUp(): Promise<number> {
 	return (await pool()).length;
@@ -114,21 +114,7 @@ export async function searchOnPool(snapshot: PoolSnapshot, search: PoolSearch): 
 	try {
 		return await Promise.all(
 			list.map((slot, shardIndex) => {
-				if (!slot.keys.has(snapshot.key)) {
-					const msg: SnapshotMessage = {
-						type: 'snapshot',
-						key: snapshot.key,
-						packed: snapshot.packed,
-						seidel: snapshot.seidel,
-						partIndex: snapshot.partIndex,
-						untraceable: snapshot.untraceable,
-						rays: snapshot.rays,
-						coatOut: snapshot.coatOut
-					};
-					slot.worker.postMessage(msg);
-					slot.keys.add(snapshot.key);
-					if (slot.keys.size > 4) slot.keys.delete(slot.keys.values().next().value as string);
-				}
+				sendSnapshot(slot, snapshot);
 				const taskId = nextTask++;
 				const msg: SearchMessage = {
 					type: 'search',
@@ -174,12 +160,7 @@ export async function searchModeOnPool(snapshot: PoolSnapshot, search: PoolModeS
 	try {
 		return await Promise.all(
 			list.map((slot, shardIndex) => {
-				if (!slot.keys.has(snapshot.key)) {
-					const msg: SnapshotMessage = { type: 'snapshot', ...snapshot };
-					slot.worker.postMessage(msg);
-					slot.keys.add(snapshot.key);
-					if (slot.keys.size > 4) slot.keys.delete(slot.keys.values().next().value as string);
-				}
+				sendSnapshot(slot, snapshot);
 				const taskId = nextTask++;
 				const common = {
 					type: 'mode-search' as const,

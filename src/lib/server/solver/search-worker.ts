@@ -5,8 +5,7 @@
  * only), so its bundled chunk can run alone in a worker.
  */
 import { isMainThread, parentPort, workerData } from 'node:worker_threads';
-import { searchShard, type SearchParams } from '../../solver/search/search-kernel';
-import type { RayTable } from '../../solver/search/rank-bound';
+import { searchShard, snapshotArrays, type SearchParams, type SnapshotArrays } from '../../solver/search/search-kernel';
 import { runModeShard, type ModeSearchMessage } from './mode-shard';
 import { progressSlot } from '../../solver/search/progress';
 
@@ -16,16 +15,7 @@ export const selfUrl = import.meta.url;
 /** Marker in workerData that starts the loop. */
 export const WORKER_MARK = 'glasscrib-solver-worker';
 
-export interface SnapshotMessage {
-	type: 'snapshot';
-	key: string;
-	packed: Float64Array;
-	seidel: Float64Array;
-	partIndex: Int32Array;
-	untraceable: Uint8Array;
-	rays: RayTable;
-	coatOut: Uint8Array;
-}
+export type SnapshotMessage = { type: 'snapshot'; key: string } & SnapshotArrays;
 
 export interface SearchMessage {
 	type: 'search';
@@ -79,12 +69,7 @@ function startLoop(): void {
 				return;
 			}
 			const r = searchShard({
-				packed: snap.packed,
-				seidel: snap.seidel,
-				partIndex: snap.partIndex,
-				untraceable: snap.untraceable,
-				rays: snap.rays,
-				coatOut: snap.coatOut,
+				...snapshotArrays(snap),
 				partUnits: msg.partUnits,
 				candidates: msg.candidates,
 				params: msg.params,

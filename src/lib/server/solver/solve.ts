@@ -24,6 +24,7 @@ import {
 	REC_SA_MM,
 	REC_TRACK,
 	searchParamsOf,
+	snapshotArrays,
 	type ShardResult
 } from '../../solver/search/search-kernel';
 import { searchOnPool, workerCount } from './pool';
@@ -239,17 +240,17 @@ async function searchShards(
 	boundRange: BoundRange | null
 ): Promise<{ shards: KeptShard[]; workers: number }> {
 	const params = searchParamsOf(req);
-	const { packed, seidel, partIndex, untraceable, rays, coatOut } = snap;
+	const arrays = snapshotArrays(snap);
 	const topK = options.keepAll ? Infinity : boundRange ? BOUND_PASS_K : TOP_K_PER_SHARD;
 	if (options.inline) {
-		const input = { packed, seidel, partIndex, untraceable, rays, coatOut, partUnits, candidates, params, shardIndex: 0, shardCount: 1, topK, boundRange, deadline };
+		const input = { ...arrays, partUnits, candidates, params, shardIndex: 0, shardCount: 1, topK, boundRange, deadline };
 		return { shards: [{ ...searchShard(input), kept: topK }], workers: 0 };
 	}
 	const workers = workerCount();
 	const watch = watchProgress(options, workers, ({ i, j }) => ({ parts: (j < 0 ? [i] : [i, j]).map((e) => snap.parts[snap.partIndex[e]].sku) }));
 	try {
 		const shards = await searchOnPool(
-			{ key, packed, seidel, partIndex, untraceable, rays, coatOut },
+			{ key, ...arrays },
 			{ candidates, partUnits, params, topK, boundRange, deadline, signal: options.signal, progress: watch.buffer }
 		);
 		return { shards: shards.map((sh) => ({ ...sh, kept: topK })), workers };

@@ -116,7 +116,8 @@ export interface ShardResult {
 }
 
 /** Inputs of `searchShard`. */
-export interface ShardInput {
+/** The element snapshot's arrays every search reads (elements.ts builds them; the pool sends them to each worker once per key). */
+export interface SnapshotArrays {
 	packed: Float64Array;
 	seidel: Float64Array;
 	/** Part index of each element. */
@@ -127,6 +128,14 @@ export interface ShardInput {
 	rays: RayTable;
 	/** 1 for an element whose part is used outside its coating band at the wavelength. */
 	coatOut: Uint8Array;
+}
+
+/** Only the arrays of a snapshot (never its element objects: this is what is posted to a worker). */
+export function snapshotArrays(s: SnapshotArrays): SnapshotArrays {
+	return { packed: s.packed, seidel: s.seidel, partIndex: s.partIndex, untraceable: s.untraceable, rays: s.rays, coatOut: s.coatOut };
+}
+
+export interface ShardInput extends SnapshotArrays {
 	/** Units a setup may use of each part (a part may appear twice only with ≥ 2). */
 	partUnits: Int32Array;
 	/** Element indices allowed in this search. */
@@ -506,7 +515,7 @@ function toSoa(packed: Float64Array): Soa {
  * What every step of one shard's search reads, built once per shard (`shardContext`): the
  * snapshot's arrays, the question, the top-K and the matrices as separate arrays.
  */
-interface ShardContext extends Pick<ShardInput, 'packed' | 'seidel' | 'partIndex' | 'untraceable' | 'partUnits' | 'candidates' | 'rays' | 'coatOut'> {
+interface ShardContext extends SnapshotArrays, Pick<ShardInput, 'partUnits' | 'candidates'> {
 	p: SearchParams;
 	/** The question as the rank bound reads it. */
 	boundQ: BoundQuestion;
