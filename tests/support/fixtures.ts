@@ -3,9 +3,9 @@
  * would): parts, drawers and stock with names of this file's own (`tag`), so that a test asserts on what it made
  * and never counts or names the demo data. `cleanup()` archives the parts again (DELETE /api/v1/parts/:id).
  */
-import type { APIRequestContext } from 'playwright-core';
+import type { APIRequestContext, Locator, Page } from 'playwright-core';
 import { testEnv } from './env';
-import { DEMO_PASSWORD } from './browser';
+import { DEMO_PASSWORD, expect } from './browser';
 
 export interface PartFixture {
 	id: number;
@@ -96,11 +96,7 @@ const url = (path: string) => new URL(path, testEnv('APP_URL')).toString();
  * (`page.request`): what its build sheet must name, whatever the stock's naming.
  */
 export async function setupParts(request: APIRequestContext, setupId: number): Promise<{ skus: string[]; drawers: string[] }> {
-	const get = async <T>(path: string): Promise<T> => {
-		const res = await request.get(url(path));
-		if (!res.ok()) throw new Error(`GET ${path} gave ${res.status()}: ${await res.text()}`);
-		return (await res.json()) as T;
-	};
+	const get = <T>(path: string) => getJson<T>(request, path);
 	const setup = await get<{ solution: { elements: { partId: number }[] } }>(`/api/v1/setups/${setupId}`);
 	const skus: string[] = [];
 	const drawers = new Set<string>();
@@ -109,4 +105,42 @@ export async function setupParts(request: APIRequestContext, setupId: number): P
 		for (const row of (await get<{ items: { code: string; condition: string }[] }>(`/api/v1/stock?partId=${partId}`)).items) if (row.condition === 'usable') drawers.add(row.code);
 	}
 	return { skus, drawers: [...drawers] };
+}
+
+/** GET through the API with the page's session; a refusal throws, naming the path. */
+async function getJson<T>(request: APIRequestContext, path: string): Promise<T> {
+	const res = await request.get(url(path));
+	if (!res.ok()) throw new Error(`GET ${path} gave ${res.status()}: ${await res.text()}`);
+	return (await res.json()) as T;
+}
+
+/**
+ * On a saved setup's page: reserves all its parts, opens its build sheet and checks that the sheet names every part
+ * of the setup and a drawer that holds it (`setupParts`). Returns the sheet.
+ */
+export async function reserveAndOpenSheet(page: Page, setupId: number): Promise<Locator> {
+	await page.getByRole('button', { name: 'Reserve all parts' }).click();
+	await expect(page.getByTestId('reserve-ok')).toBeVisible();
+	await expect(page.getByTestId('reserve-error')).toHaveCount(0);
+	await expect(page.getByTestId('reservations').getByRole('listitem')).not.toHaveCount(0);
+	await page.getByRole('link', { name: 'Build sheet' }).click();
+	await expect(page).toHaveURL(/\/sheet$/);
+	const sheet = page.getByTestId('build-sheet');
+	const { skus, drawers } = await setupParts(page.request, setupId);
+	expect(skus.length).toBeGreaterThan(0);
+	for (const sku of skus) await expect(sheet).toContainText(sku);
+	expect(drawers.length).toBeGreaterThan(0);
+	await expect(sheet).toContainText(new RegExp(drawers.map((d) => d.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')).join('|')));
+	return sheet;
+}
+
+/** Releases the active reservations of these setups through the API with the page's session, as the engineer would. */
+export async function releaseSetups(request: APIRequestContext, setupIds: readonly number[]): Promise<void> {
+	for (const id of setupIds) {
+		const setup = await getJson<{ reservations: { id: number }[] }>(request, `/api/v1/setups/${id}`);
+		for (const r of setup.reservations) {
+			const res = await request.delete(url(`/api/v1/reservations/${r.id}`), { headers: { origin: origin() } });
+			if (!res.ok()) throw new Error(`DELETE reservation ${r.id} gave ${res.status()}: ${await res.text()}`);
+		}
+	}
 }

@@ -9,12 +9,9 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, it } from 'vitest';
-import { and, eq, inArray } from 'drizzle-orm';
 import type { Page } from 'playwright-core';
 import { appUrl, expect, openBrowser, screenshot, signIn, tableRows } from '../../support/browser';
-import { setupParts } from '../../support/fixtures';
-import { testDb } from '../../support/env';
-import { reservations } from '../../../src/lib/server/db/schema';
+import { releaseSetups, reserveAndOpenSheet } from '../../support/fixtures';
 
 const PHONE = { width: 390, height: 844 };
 const DESKTOP = { width: 1280, height: 860 };
@@ -77,7 +74,6 @@ async function shotOf(page: Page, testId: string, name: string) {
 describe('Shape and expand a laser beam in the browser', () => {
 	let browser: Awaited<ReturnType<typeof openBrowser>>;
 	let page: Page;
-	const { db, pool } = testDb();
 	const savedSetups: number[] = [];
 
 	beforeAll(async () => {
@@ -86,17 +82,9 @@ describe('Shape and expand a laser beam in the browser', () => {
 		await signIn(page, 'engineer@tarnwell.example');
 	});
 	afterAll(async () => {
-		// Release what the test reserved, through the API as the engineer would.
-		if (savedSetups.length && page) {
-			const held = await db
-				.select({ id: reservations.id })
-				.from(reservations)
-				.where(and(inArray(reservations.setupId, savedSetups), eq(reservations.status, 'active')));
-			const origin = new URL(appUrl('/')).origin;
-			for (const r of held) await page.request.delete(appUrl(`/api/v1/reservations/${r.id}`), { headers: { origin } });
-		}
+		// Release what the test reserved, so that later files find the stock free.
+		if (page) await releaseSetups(page.request, savedSetups);
 		await browser?.close();
-		await pool.end();
 	});
 
 	it('focuses a 2 mm beam to a 20 µm spot 150 mm away, with the irradiance at the focus for 0.5 W', async () => {
@@ -234,19 +222,8 @@ describe('Shape and expand a laser beam in the browser', () => {
 		await expectEnvelope(page, ['output']);
 		await expectBeamCaution(page);
 		await screenshot(page, 'beam-setup-page');
-		await page.getByRole('button', { name: 'Reserve all parts' }).click();
-		await expect(page.getByTestId('reserve-ok')).toBeVisible();
-		await expect(page.getByTestId('reserve-error')).toHaveCount(0);
-		await expect(page.getByTestId('reservations').getByRole('listitem')).not.toHaveCount(0);
-		await page.getByRole('link', { name: 'Build sheet' }).click();
-		await expect(page).toHaveURL(/\/sheet$/);
-		const sheet = page.getByTestId('build-sheet');
-		// the sheet names every part of the setup and a drawer that holds it
-		const { skus, drawers } = await setupParts(page.request, setupId);
-		expect(skus.length).toBeGreaterThan(0);
-		for (const sku of skus) await expect(sheet).toContainText(sku);
-		expect(drawers.length).toBeGreaterThan(0);
-		await expect(sheet).toContainText(new RegExp(drawers.map((d) => d.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')).join('|')));
+		// reserved, and the sheet names every part of the setup and a drawer that holds it
+		const sheet = await reserveAndOpenSheet(page, setupId);
 		await expect(sheet).toContainText(/Target waist/);
 		// bench words for a beam: the incoming beam, never an object
 		const words = page.locator('td[data-testid=orientation]');

@@ -3,12 +3,9 @@
  * to-scale diagram, saves a setup, reserves its parts and opens the build sheet.
  */
 import { afterAll, beforeAll, describe, it } from 'vitest';
-import { and, eq, inArray } from 'drizzle-orm';
 import type { Page } from 'playwright-core';
 import { appUrl, expect, openBrowser, screenshot, signIn } from '../../support/browser';
-import { setupParts } from '../../support/fixtures';
-import { testDb } from '../../support/env';
-import { reservations } from '../../../src/lib/server/db/schema';
+import { releaseSetups, reserveAndOpenSheet } from '../../support/fixtures';
 
 /** A field of the question form by its label (which names its unit). */
 const field = (page: Page, label: string) => page.getByLabel(new RegExp(`^${label} \\(`));
@@ -18,7 +15,6 @@ const SOLVED = { timeout: 30_000 };
 describe('Build from stock in the browser', () => {
 	let browser: Awaited<ReturnType<typeof openBrowser>>;
 	let page: Page;
-	const { db, pool } = testDb();
 	const savedSetups: number[] = [];
 	beforeAll(async () => {
 		browser = await openBrowser();
@@ -26,17 +22,9 @@ describe('Build from stock in the browser', () => {
 		await signIn(page, 'engineer@tarnwell.example');
 	});
 	afterAll(async () => {
-		// Release what the test reserved, through the API as the engineer would, so later files find the stock free.
-		if (savedSetups.length && page) {
-			const held = await db
-				.select({ id: reservations.id })
-				.from(reservations)
-				.where(and(inArray(reservations.setupId, savedSetups), eq(reservations.status, 'active')));
-			const origin = new URL(appUrl('/')).origin;
-			for (const r of held) expect((await page.request.delete(appUrl(`/api/v1/reservations/${r.id}`), { headers: { origin } })).ok()).toBe(true);
-		}
+		// Release what the test reserved, so that later files find the stock free.
+		if (page) await releaseSetups(page.request, savedSetups);
 		await browser?.close();
-		await pool.end();
 	});
 
 	it('answers a question without a page reload and draws the selected setup', async () => {
@@ -115,19 +103,8 @@ describe('Build from stock in the browser', () => {
 		await expect(page.getByRole('heading', { level: 1 })).toContainText(name);
 		await expect(page.getByTestId('setup-layout')).toBeVisible();
 		await screenshot(page, 'setup-page');
-		await page.getByRole('button', { name: 'Reserve all parts' }).click();
-		await expect(page.getByTestId('reserve-ok')).toBeVisible();
-		await expect(page.getByTestId('reserve-error')).toHaveCount(0);
-		await expect(page.getByTestId('reservations').getByRole('listitem')).not.toHaveCount(0);
-		await page.getByRole('link', { name: 'Build sheet' }).click();
-		await expect(page).toHaveURL(/\/sheet$/);
-		const sheet = page.getByTestId('build-sheet');
-		// the sheet names every part of the setup and a drawer that holds it
-		const { skus, drawers } = await setupParts(page.request, setupId);
-		expect(skus.length).toBeGreaterThan(0);
-		for (const sku of skus) await expect(sheet).toContainText(sku);
-		expect(drawers.length).toBeGreaterThan(0);
-		await expect(sheet).toContainText(new RegExp(drawers.map((d) => d.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')).join('|')));
+		// reserved, and the sheet names every part of the setup and a drawer that holds it
+		const sheet = await reserveAndOpenSheet(page, setupId);
 		await expect(sheet).toContainText(/face toward the object|either way round/);
 		await expect(sheet).not.toContainText(/surface \d faces/);
 		await expect(sheet).toContainText(/Never look into the beam/);
