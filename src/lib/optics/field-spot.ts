@@ -39,6 +39,20 @@ export interface GridOptions {
 
 const skew = new Float64Array(SKEW_STRIDE);
 
+/** Scratch: where `landing` found the ray (x, y), and a sample's direction sines (L, M). */
+const landed = new Float64Array(2);
+const dir = new Float64Array(2);
+
+/** Where the traced skew `ray` meets z = `zImg`, into landed[0..1]; false when it runs parallel to the plane. */
+function landing(ray: Float64Array, zImg: number): boolean {
+	const dz = ray[5];
+	if (!(Math.abs(dz) > 1e-15)) return false;
+	const t = (zImg - ray[2]) / dz;
+	landed[0] = ray[0] + t * ray[3];
+	landed[1] = ray[1] + t * ray[4];
+	return true;
+}
+
 /** Running sums over the rays that reach the evaluation plane: x², y and y² (x centroids are 0 by symmetry). */
 class Landings {
 	n = 0;
@@ -47,16 +61,16 @@ class Landings {
 	sy2 = 0;
 	/** Adds where the traced skew `ray` meets z = `zImg`; false (nothing added) when it runs parallel to the plane. */
 	add(ray: Float64Array, zImg: number): boolean {
-		const dz = ray[5];
-		if (!(Math.abs(dz) > 1e-15)) return false;
-		const t = (zImg - ray[2]) / dz;
-		const x = ray[0] + t * ray[3],
-			y = ray[1] + t * ray[4];
+		if (!landing(ray, zImg)) return false;
+		this.addAt(landed[0], landed[1]);
+		return true;
+	}
+	/** Adds a landing at (x, y). */
+	addAt(x: number, y: number): void {
 		this.n++;
 		this.sx2 += x * x;
 		this.sy += y;
 		this.sy2 += y * y;
-		return true;
 	}
 	/** Centroid height, mm (NaN without a ray). */
 	centroid(): number {
@@ -182,19 +196,24 @@ function extent(pass: (d: number) => boolean, max: number): number {
 	return lo;
 }
 
+/** Cells across the coarse grid `edgePupil` searches when the chief ray is lost (`fieldGridSpot`'s default grid). */
+export const PUPIL_SEARCH_GRID = 16;
+
 /**
  * Finds the passed part of the requested cone of the object point at `objectHeightMm`: from the
  * chief ray (or, when the chief ray is lost, from the mean direction of the rays of a coarse grid
  * that pass), the extents along M up and down and along L (the widest of three chords), each
- * by bisection and never beyond the requested cone. Null when nothing of the cone passes (the
- * field point is blocked) or the passed rays do not surround a passing centre.
+ * by bisection and never beyond the requested cone. 'blocked' when the chief ray and every ray
+ * of the coarse grid are lost: those are the rays `fieldGridSpot` traces with
+ * PUPIL_SEARCH_GRID cells and radius `requestedSine`, so it would find nothing passes either.
+ * Null when the passed rays do not surround a passing centre.
  */
-export function edgePupil(sys: TraceSystem, objectHeightMm: number, sinChief: number, requestedSine: number): PupilEllipse | null {
+export function edgePupil(sys: TraceSystem, objectHeightMm: number, sinChief: number, requestedSine: number): PupilEllipse | 'blocked' | null {
 	const h = objectHeightMm,
 		na = requestedSine;
 	let centre = sinChief;
 	if (!passesDirection(sys, h, 0, centre)) {
-		const n = 16,
+		const n = PUPIL_SEARCH_GRID,
 			step = 2 / n;
 		let sum = 0,
 			count = 0;
@@ -209,7 +228,7 @@ export function edgePupil(sys: TraceSystem, objectHeightMm: number, sinChief: nu
 				}
 			}
 		}
-		if (count === 0) return null;
+		if (count === 0) return 'blocked';
 		centre = sum / count;
 		if (!passesDirection(sys, h, 0, centre)) return null;
 	}
@@ -237,10 +256,47 @@ export interface PupilSpot {
 	readonly raysFailed: number;
 	/** Share of the requested cone (disc of radius requestedSine) that passes, 0–1. */
 	readonly passedShare: number;
+	/**
+	 * False when `stopAboveMm` stopped the trace early: the RMS is then a lower bound of the
+	 * spot's (and above `stopAboveMm`), the centroid that of the rays so far, and the ray counts
+	 * and passed share are not known (NaN).
+	 */
+	readonly complete: boolean;
 }
 
 /** Size of the sampled ellipse over the extents found (1: the outer ring sits at the midpoint, in area, of the last band inside the rim). */
 const PUPIL_MARGIN = 1;
+
+/** Options of `pupilSpot`. */
+export interface PupilSpotOptions {
+	/** Rings of equal area (default 12). */
+	rings?: number;
+	/** Spokes over the half plane (default 8). */
+	spokes?: number;
+	/** Evaluation plane (default: the system's image plane). */
+	imageZMm?: number;
+	/**
+	 * Stop as soon as the spot is surely larger than this RMS radius, mm (the solver's rank bound
+	 * asks so): the samples are then traced from the outer ring in, and the answer is a lower
+	 * bound with `complete` false. Unless it stops, the figures are the same, bit for bit, as
+	 * without this option (the landings are summed in the usual order).
+	 */
+	stopAboveMm?: number;
+}
+
+/**
+ * Relative margin of the early stop's lower bound, and the least spot (as a fraction of the
+ * centroid height) it stops on: the full figure's mean-square-less-centroid-square loses about
+ * 1e-16 · (centroid / RMS)² of itself to rounding, so above 3e-5 of the centroid height the
+ * margin covers it.
+ */
+const STOP_MARGIN = 1e-5;
+const STOP_MIN_SPREAD = 3e-5;
+
+/** Scratch of the early-stopping path of `pupilSpot`: per sample, 0 outside the cone, 1 landed (x, y), 2 lost. */
+let sampleState = new Uint8Array(0);
+let sampleX = new Float64Array(0);
+let sampleY = new Float64Array(0);
 
 /**
  * RMS spot of the object point at `objectHeightMm` over the ellipse `pupil` of direction sines:
@@ -251,30 +307,81 @@ const PUPIL_MARGIN = 1;
  * that are lost count against the passed share. Sampling the passed region itself, rather than
  * a square grid over the whole cone, keeps the rim of the stop on the rim of the samples.
  */
-export function pupilSpot(sys: TraceSystem, objectHeightMm: number, pupil: PupilEllipse, options: { rings?: number; spokes?: number; imageZMm?: number } = {}): PupilSpot {
+export function pupilSpot(sys: TraceSystem, objectHeightMm: number, pupil: PupilEllipse, options: PupilSpotOptions = {}): PupilSpot {
 	const K = options.rings ?? 12,
 		J = options.spokes ?? 8;
 	const zImg = options.imageZMm ?? sys.imageZMm;
 	const ax = pupil.halfWidthSine * PUPIL_MARGIN,
 		ay = pupil.halfHeightSine * PUPIL_MARGIN;
 	const na2 = pupil.requestedSine * pupil.requestedSine;
+	const share = (traced: number) => (na2 > 0 ? Math.min(1, (traced * ax * ay) / (K * J * na2)) : 0);
+	/** Sample (k, j)'s direction sines into dir[0], dir[1]; false when it lies outside the requested cone. */
+	const direction = (k: number, j: number): boolean => {
+		const rho = Math.sqrt((k - 0.5) / K);
+		const th = ((j + 0.5) * Math.PI) / J;
+		dir[0] = ax * rho * Math.sin(th);
+		dir[1] = pupil.centreSine + ay * rho * Math.cos(th);
+		return !(dir[0] * dir[0] + (dir[1] - pupil.chiefSine) ** 2 > na2);
+	};
 	let failed = 0;
 	const sums = new Landings();
-	for (let k = 1; k <= K; k++) {
-		const rho = Math.sqrt((k - 0.5) / K);
-		for (let j = 0; j < J; j++) {
-			const th = ((j + 0.5) * Math.PI) / J;
-			const L = ax * rho * Math.sin(th),
-				M = pupil.centreSine + ay * rho * Math.cos(th);
-			if (L * L + (M - pupil.chiefSine) ** 2 > na2) continue;
-			if (!passesDirection(sys, objectHeightMm, L, M)) {
-				failed++;
-				continue;
+	if (options.stopAboveMm === undefined) {
+		for (let k = 1; k <= K; k++) {
+			for (let j = 0; j < J; j++) {
+				if (!direction(k, j)) continue;
+				if (!passesDirection(sys, objectHeightMm, dir[0], dir[1])) {
+					failed++;
+					continue;
+				}
+				if (!sums.add(probe, zImg)) failed++;
 			}
-			if (!sums.add(probe, zImg)) failed++;
+		}
+		return { rmsAboutCentroidMm: sums.rmsAboutCentroid(), centroidMm: sums.centroid(), raysTraced: sums.n, raysFailed: failed, passedShare: share(sums.n), complete: true };
+	}
+	// Outer ring first (the aberrations grow outwards). The RMS over all the rays that land is at
+	// least √(S / n), with S the squared spread of the landed rays so far about their own centroid
+	// (the centroid minimises it) and n the samples inside the cone (at least the rays that land).
+	const stop = options.stopAboveMm;
+	if (sampleState.length < K * J) {
+		sampleState = new Uint8Array(K * J);
+		sampleX = new Float64Array(K * J);
+		sampleY = new Float64Array(K * J);
+	}
+	let inside = 0;
+	for (let k = 1; k <= K; k++) for (let j = 0; j < J; j++) if (direction(k, j)) inside++;
+	let n = 0,
+		x2 = 0,
+		dy = 0,
+		dy2 = 0,
+		y0 = 0;
+	for (let k = K; k >= 1; k--) {
+		for (let j = 0; j < J; j++) {
+			const q = (k - 1) * J + j;
+			sampleState[q] = 0;
+			if (!direction(k, j)) continue;
+			sampleState[q] = 2;
+			if (!passesDirection(sys, objectHeightMm, dir[0], dir[1]) || !landing(probe, zImg)) continue;
+			sampleState[q] = 1;
+			const x = (sampleX[q] = landed[0]),
+				y = (sampleY[q] = landed[1]);
+			if (n === 0) y0 = y;
+			n++;
+			x2 += x * x;
+			dy += y - y0;
+			dy2 += (y - y0) * (y - y0);
+			if (n < 2) continue;
+			const spread = Math.max(0, x2 + dy2 - (dy * dy) / n);
+			const low = Math.sqrt(spread / inside) * (1 - STOP_MARGIN);
+			const centroid = y0 + dy / n;
+			if (low > stop && low > STOP_MIN_SPREAD * Math.abs(centroid)) {
+				return { rmsAboutCentroidMm: low, centroidMm: centroid, raysTraced: n, raysFailed: NaN, passedShare: NaN, complete: false };
+			}
 		}
 	}
-	const traced = sums.n;
-	const passedShare = na2 > 0 ? Math.min(1, (traced * ax * ay) / (K * J * na2)) : 0;
-	return { rmsAboutCentroidMm: sums.rmsAboutCentroid(), centroidMm: sums.centroid(), raysTraced: traced, raysFailed: failed, passedShare };
+	// Not stopped: the landings summed in the usual order.
+	for (let q = 0; q < K * J; q++) {
+		if (sampleState[q] === 2) failed++;
+		else if (sampleState[q] === 1) sums.addAt(sampleX[q], sampleY[q]);
+	}
+	return { rmsAboutCentroidMm: sums.rmsAboutCentroid(), centroidMm: sums.centroid(), raysTraced: sums.n, raysFailed: failed, passedShare: share(sums.n), complete: true };
 }

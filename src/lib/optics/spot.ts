@@ -295,7 +295,7 @@ export interface AxialCone {
 
 /** The steepest axial ray `axialCone` tries (direction sine): when it passes, the whole cone asked for counts. */
 export const CONE_TOP = 0.999;
-/** Bisection steps of `axialCone` when the stop cuts the cone asked for (the limit to 2⁻³⁶ of a direction sine). */
+/** Bisection steps of `axialCone` when the stop cuts the cone asked for (the limit to 2⁻³⁶ of the sine asked for). */
 export const CONE_STEPS = 36;
 /** Bisection steps when the whole cone asked for passes: only which surface stops the cone as it opens further is wanted. */
 const STOP_STEPS = 16;
@@ -303,22 +303,32 @@ const STOP_STEPS = 16;
 /**
  * Finds the aperture stop and the axial cone it passes: the largest direction sine u whose
  * real ray from the axial object point passes every surface (clear apertures, glass edges,
- * no miss, nothing behind), by bisection on u in (0, 0.999); the surface that stops the ray
- * just beyond that limit is the aperture stop. The cone passed is min(requested, limit). It
- * assumes the rays that pass form one disc (no ray passes beyond the first that is stopped),
- * true for centred systems of lenses without a central obstruction.
+ * no miss, nothing behind). When the rim ray of the cone asked for passes, the whole cone
+ * counts, and a coarse bisection on u in (requested, 0.999) names the surface that stops the
+ * cone as it opens further (the aperture stop; −1 when nothing stops it below 0.999). Else a
+ * bisection on u in (0, requested) finds the limit, and the surface that stops the ray just
+ * beyond it is the stop. It assumes the rays that pass form one disc (no ray passes beyond
+ * the first that is stopped), true for centred systems of lenses without a central obstruction.
  */
 export function axialCone(sys: TraceSystem, requestedSine: number): AxialCone {
 	const ray = new Float64Array(RAY_STRIDE);
 	const passes = (u: number) => startRay(ray, 0, u) && traceRay(sys, ray) === TRACE_OK;
 	const top = CONE_TOP;
-	if (passes(top)) return { requestedSine, passedSine: requestedSine, stopSurface: -1, lostFraction: 0 };
-	let stopSurface = ray[5];
-	// When the whole cone asked for passes, only the stop's name is wanted: a coarse search above it will do.
-	const whole = requestedSine < top && passes(requestedSine);
-	let lo = whole ? requestedSine : 0,
-		hi = top;
-	for (let i = 0; i < (whole ? STOP_STEPS : CONE_STEPS); i++) {
+	const rim = Math.min(requestedSine, top);
+	if (passes(rim)) {
+		if (rim === top || passes(top)) return { requestedSine, passedSine: requestedSine, stopSurface: -1, lostFraction: 0 };
+		// The whole cone asked for passes: only the stop's name is wanted, a coarse search above it will do.
+		return { requestedSine, passedSine: requestedSine, stopSurface: bisectCone(passes, ray, rim, top, STOP_STEPS, ray[5]).stopSurface, lostFraction: 0 };
+	}
+	const cut = bisectCone(passes, ray, 0, rim, CONE_STEPS, ray[5]);
+	const passedSine = Math.min(requestedSine, cut.lo);
+	const ratio = passedSine / requestedSine;
+	return { requestedSine, passedSine, stopSurface: cut.stopSurface, lostFraction: Math.max(0, 1 - ratio * ratio) };
+}
+
+/** Bisection of `axialCone` on (lo, hi): the last sine that passed and the surface that stopped the last one that did not. */
+function bisectCone(passes: (u: number) => boolean, ray: Float64Array, lo: number, hi: number, steps: number, stopSurface: number): { lo: number; stopSurface: number } {
+	for (let i = 0; i < steps; i++) {
 		const mid = 0.5 * (lo + hi);
 		if (passes(mid)) lo = mid;
 		else {
@@ -326,9 +336,7 @@ export function axialCone(sys: TraceSystem, requestedSine: number): AxialCone {
 			stopSurface = ray[5];
 		}
 	}
-	const passedSine = Math.min(requestedSine, lo);
-	const ratio = passedSine / requestedSine;
-	return { requestedSine, passedSine, stopSurface, lostFraction: Math.max(0, 1 - ratio * ratio) };
+	return { lo, stopSurface };
 }
 
 /**

@@ -14,6 +14,8 @@ import {
 	traceRay,
 	startRay,
 	fieldGridSpot,
+	pupilSpot,
+	edgePupil,
 	axialCone,
 	stopChiefSine,
 	refractiveIndex,
@@ -32,6 +34,7 @@ import { imagingRequestSchema } from '../../../src/lib/solver/request';
 import type { Solution } from '../../../src/lib/solver/types';
 import { element, singlet } from './helpers';
 import { RELAY_QUESTION, relayParts } from '../solver/examples';
+import { edgeTrace, EDGE_GRID, EDGE_RINGS, EDGE_SPOKES } from '../../../src/lib/solver/search/field-edge';
 
 /** One surface of the independent model: vertex z, radius (null flat), index after, semi-aperture. */
 interface Surf {
@@ -370,5 +373,57 @@ describe('the aperture stop (geometry and Snell: height 100·tan θ + 5·tan θ�
 		startRay(ray, 3, u);
 		traceRay(two.value, ray, hts, false);
 		expect(Math.abs(hts[3])).toBeLessThan(1e-9);
+	});
+});
+
+describe('the field edge as the rank bound traces it (the same rays, stopped early or not traced twice)', () => {
+	/** A single part of the regression example imaging at 300 mm, traced with its field edge at h mm. */
+	function single(h: number) {
+		const part = { ...relayParts()[1], partId: 9, sku: 'EX-9' };
+		const built = partElement(part, 587.6);
+		if (!built.ok) throw new Error(built.reason);
+		const e = built.element;
+		const img = imageAfter(layoutMatrix(create(), { objectDistanceMm: 300, elements: [e], gapsMm: [], backDistanceMm: 0 }))!;
+		const sys = traceSystemFromLayout({ objectDistanceMm: 300, elements: [e], gapsMm: [], backDistanceMm: img.imageDistanceMm }, [part.diameterMm]);
+		if (!sys.ok) throw sys.error;
+		const cone = axialCone(sys.value, 0.03);
+		const sinChief = stopChiefSine(sys.value, h, cone.stopSurface);
+		return { sys: sys.value, cone, sinChief };
+	}
+
+	it('pupilSpot: unless it stops, the figures are the same bit for bit; when it stops, its RMS lies between the limit asked and the full spot', () => {
+		const { sys, sinChief } = single(8);
+		const pupil = edgePupil(sys, 8, sinChief, 0.03);
+		if (pupil === null || pupil === 'blocked') throw new Error('the edge should pass');
+		const opts = { rings: EDGE_RINGS, spokes: EDGE_SPOKES };
+		const full = pupilSpot(sys, 8, pupil, opts);
+		expect(full.complete).toBe(true);
+		expect(pupilSpot(sys, 8, pupil, { ...opts, stopAboveMm: 10 * full.rmsAboutCentroidMm })).toEqual(full);
+		for (const f of [0.2, 0.5, 0.8, 0.95]) {
+			const cut = pupilSpot(sys, 8, pupil, { ...opts, stopAboveMm: f * full.rmsAboutCentroidMm });
+			expect(cut.complete).toBe(false);
+			expect(cut.rmsAboutCentroidMm).toBeGreaterThan(f * full.rmsAboutCentroidMm);
+			expect(cut.rmsAboutCentroidMm).toBeLessThanOrEqual(full.rmsAboutCentroidMm);
+			expect(cut.raysTraced).toBeLessThan(full.raysTraced);
+		}
+	});
+
+	it('a blocked field edge: edgeTrace gives what the grid over its cone gives, without tracing that grid again', () => {
+		// Two windows (10 mm, then 4 mm clear 100 mm further on): the 4 mm one is the stop, and the chief
+		// ray of a point 20 mm off axis meets the first window at 20·(1 − 100/206) ≈ 10.3 mm, beyond its rim.
+		const win = element([{ radiusMm: null, thicknessMm: 5, material: '517642' }, { radiusMm: null }], 587.6, 10);
+		const small = element([{ radiusMm: null, thicknessMm: 1, material: '517642' }, { radiusMm: null }], 587.6, 4);
+		const two = traceSystemFromLayout({ objectDistanceMm: 100, elements: [win, small], gapsMm: [100], backDistanceMm: 50 });
+		if (!two.ok) throw two.error;
+		const cone = axialCone(two.value, 0.01);
+		const sinChief = stopChiefSine(two.value, 20, cone.stopSurface);
+		expect(edgePupil(two.value, 20, sinChief, 0.01)).toBe('blocked');
+		const grid = fieldGridSpot(two.value, 20, { sinChief, radiusSine: 0.01, grid: EDGE_GRID });
+		expect(grid.raysTraced).toBe(0);
+		const edge = edgeTrace(two.value, 20, 0.01, cone.stopSurface);
+		expect(edge).toEqual({ rmsMm: null, centroidMm: NaN, lostFraction: 1 - grid.passedFraction, sinChief, pupil: null, complete: true });
+		expect(edge.lostFraction).toBe(1);
+		// Nearer the axis the same windows pass part of the cone: no longer blocked.
+		expect(edgePupil(two.value, 2, stopChiefSine(two.value, 2, cone.stopSurface), 0.01)).not.toBe('blocked');
 	});
 });

@@ -15,7 +15,10 @@
  * - BOUND_AXIAL: the axial figures exactly (the same `axialCone` and `axialSpot` calls);
  * - BOUND_FULL: with the field edge's `edgeTrace` too: the monochromatic key itself but for the
  *   rounding of the Airy radius (the root's magnification instead of the matrix's, equal to about
- *   1e-12; the bound is lowered by 1e-9 of the ratio, and `boundUpper` raised by as much).
+ *   1e-12; the bound is lowered by 1e-9 of the ratio, and `boundUpper` raised by as much). Given
+ *   a bar, it stops early when the axis's exact parts already put the key above it, and the
+ *   field edge's spot stops as soon as it is surely large enough to (`pupilSpot`'s `stopAboveMm`:
+ *   the squared spread of the rays landed so far over all the samples is a lower bound).
  *
  * The rays run through a trace system built as the evaluation builds it (traceSystemFromLayout:
  * the same numbers, the same sums in the same order), so they are the same rays. Ranked by the
@@ -27,7 +30,7 @@ import { axialCone, axialSpot, airyRadiusMm, workingFNumber, imageSideNA, CONE_T
 import { startRay, traceRay, heightAtPlane, RAY_STRIDE, TRACE_OK, type TraceSystem } from '../../optics/raytrace';
 import { ELEMENT_STRIDE, EL_THICKNESS } from '../../optics/snapshot';
 import type { ThickElement } from '../../optics/element';
-import { packRankParts as pack, spotBand, EDGE_BLOCKED_RATIO, VIGNETTING_TOLERANCE, WORKING_DISTANCE_STEP_MM } from '../ranking';
+import { packRankParts as pack, spotBand, spotBandLimit, EDGE_BLOCKED_RATIO, VIGNETTING_TOLERANCE, WORKING_DISTANCE_STEP_MM } from '../ranking';
 import { FAN_RAYS, edgeTrace } from './field-edge';
 
 /** Numbers per surface in the ray table: vertex offset in the element, curvature, index after, semi-aperture. */
@@ -152,14 +155,14 @@ function passes(sys: TraceSystem, u: number): boolean {
 
 /**
  * The bound of a root whose rim ray is cut: the first steps of `axialCone`'s own bisection (from
- * [0, CONE_TOP], the same midpoints) until its upper end shows a loss beyond the tolerance
+ * [0, the sine asked for], the same midpoints) until its upper end shows a loss beyond the tolerance
  * (vignetting class 2 at least) or it has run as many steps as axialCone does; else nothing
  * beyond the exact parts of the key.
  */
 function coneCutBound(sys: TraceSystem, na: number, coat: number, wdStep: number, count: number): number {
 	const keep = (1 - VIGNETTING_TOLERANCE) * (1 - 1e-12);
 	let lo = 0,
-		hi = CONE_TOP;
+		hi = Math.min(na, CONE_TOP);
 	for (let k = 0; k < CONE_STEPS; k++) {
 		if ((hi / na) * (hi / na) < keep) return pack(2, coat, 0, wdStep, count, 0);
 		const mid = 0.5 * (lo + hi);
@@ -192,8 +195,8 @@ export const boundFan = new Float64Array(1);
  * The packed lower bound (`packRankParts`) of the ranking key of the answer a root gives: element
  * i at object distance s (then gap g and element j; j < 0 for a single), back distance d,
  * magnification m; `untraceable` when an element is a black box, `coat` 1 when a part is used
- * outside its coating band; `tier` how much to trace (BOUND_*). The cheap tier stops tracing as
- * soon as its bound exceeds `bar` (the bound returned is then above it, but not the tightest);
+ * outside its coating band; `tier` how much to trace (BOUND_*). Both tiers stop tracing as
+ * soon as the bound exceeds `bar` (the bound returned is then above it, but not the tightest);
  * when it traced the whole fan it says so in `boundFan`, and on axis only (no field edge) its
  * bound is the key itself (`boundUpper` set).
  */
@@ -222,8 +225,8 @@ export function rankBound(
 	const sys = buildSystem(table, packed, i, j, s, g, d);
 	const na = q.objectNA;
 	if (tier === BOUND_CHEAP) {
-		// As axialCone finds it: when the rim (or the CONE_TOP ray) passes, the whole cone counts.
-		if (!passes(sys, na) && !passes(sys, CONE_TOP)) return coneCutBound(sys, na, coat, wdStep, count);
+		// As axialCone finds it: when the rim ray passes, the whole cone counts.
+		if (!passes(sys, Math.min(na, CONE_TOP))) return coneCutBound(sys, na, coat, wdStep, count);
 		if (q.byBand) return pack(0, coat, 0, wdStep, count, 0);
 		// The fan from the outside in (spherical aberration grows outwards), stopping as soon as the
 		// rays so far put the bound above `bar`; the whole fan gives the axial RMS itself.
@@ -259,22 +262,47 @@ export function rankBound(
 	const axialRms = known === known ? known : axial ? axial.rmsAboutCentroidMm : null;
 	const h = q.objectHeightMm;
 	const full = tier === BOUND_FULL;
-	const edge = full && h > 0 ? edgeTrace(sys, h, na, cone.stopSurface) : null;
-	const edgeRms = edge ? edge.rmsMm : axialRms;
-	const edgeLost = edge ? edge.lostFraction : 0;
 	let cls = axialLost > VIGNETTING_TOLERANCE ? 2 : 0;
-	if (full) {
-		const blocked = h > 0 && 1 - edgeLost < EDGE_BLOCKED_RATIO * (1 - axialLost);
-		cls = blocked ? 3 : cls === 2 ? 2 : h > 0 && edgeLost > VIGNETTING_TOLERANCE ? 1 : 0;
-	}
 	if (axialRms === null) {
+		const edgeOnly = full && h > 0 ? edgeTrace(sys, h, na, cone.stopSurface) : null;
+		if (edgeOnly) cls = edgeClass(cls, h, axialLost, edgeOnly.lostFraction);
 		if (full) boundUpper[0] = pack(cls, coat, spotBand(null), wdStep, count, 1e9);
 		return pack(cls, coat, spotBand(null), wdStep, count, 1e9);
 	}
+	const airy = airyAt(q, passed, m);
+	// The field edge's spot may stop as soon as it puts the key above the bar (the edge's class,
+	// 1 or 3, is then not known: the bound keeps the axis's).
+	if (full && pack(cls, coat, 0, wdStep, count, 0) > bar) return pack(cls, coat, 0, wdStep, count, 0);
+	const stopAbove = full && h > 0 && !q.byBand ? edgeStop(bar, cls, coat, wdStep, count, airy) : Infinity;
+	const edge = full && h > 0 ? edgeTrace(sys, h, na, cone.stopSurface, stopAbove === Infinity ? undefined : stopAbove) : null;
+	if (edge && !edge.complete) {
+		const low = (Math.max(axialRms, edge.rmsMm ?? 0) / airy) * AIRY_LOW;
+		return pack(cls, coat, spotBand(low), wdStep, count, low);
+	}
+	const edgeRms = edge ? edge.rmsMm : axialRms;
+	if (full) cls = edgeClass(cls, h, axialLost, edge ? edge.lostFraction : 0);
 	if (q.byBand) return pack(cls, coat, 0, wdStep, count, 0);
-	const ratio = Math.max(axialRms, edgeRms ?? axialRms) / airyAt(q, passed, m);
+	const ratio = Math.max(axialRms, edgeRms ?? axialRms) / airy;
 	if (full) boundUpper[0] = pack(cls, coat, spotBand(ratio * AIRY_HIGH), wdStep, count, ratio * AIRY_HIGH);
 	return pack(cls, coat, spotBand(ratio * AIRY_LOW), wdStep, count, ratio * AIRY_LOW);
+}
+
+/** The vignetting class (ranking.ts) from the axis's class and the losses of axis and field edge. */
+function edgeClass(axialCls: number, h: number, axialLost: number, edgeLost: number): number {
+	const blocked = h > 0 && 1 - edgeLost < EDGE_BLOCKED_RATIO * (1 - axialLost);
+	return blocked ? 3 : axialCls === 2 ? 2 : h > 0 && edgeLost > VIGNETTING_TOLERANCE ? 1 : 0;
+}
+
+/**
+ * The RMS radius (mm) above which the field edge's spot puts the key above `bar`, whatever the
+ * rest: the upper edge of the last spot band whose key (with the exact parts) is still within
+ * the bar; Infinity when every band is.
+ */
+function edgeStop(bar: number, cls: number, coat: number, wdStep: number, count: number, airy: number): number {
+	for (let band = 0; band < 127; band++) {
+		if (pack(cls, coat, band, wdStep, count, 0) > bar) return band === 0 ? 0 : (spotBandLimit(band - 1) * airy) / AIRY_LOW;
+	}
+	return Infinity;
 }
 
 /** The Airy radius at the target for the cone `sine` and magnification m (as the evaluation computes it). */

@@ -373,7 +373,7 @@ function consider(ctx: ShardContext, i: number, j: number, base: number, untr: b
 		// The cheap tier, then (when it may still rank) the full one; a black box's key is exact at once.
 		key = rankBound(rays, packed, boundQ, i, j, s, g, d, mAch, untr, coat, BOUND_CHEAP, ctx.bar);
 		const exact = untr || boundUpper[0] !== Infinity;
-		if (!exact && key <= ctx.bar && top.admits(key)) key = rankBound(rays, packed, boundQ, i, j, s, g, d, mAch, untr, coat, BOUND_FULL, Infinity, boundFan[0]);
+		if (!exact && key <= ctx.bar && top.admits(key)) key = rankBound(rays, packed, boundQ, i, j, s, g, d, mAch, untr, coat, BOUND_FULL, ctx.bar, boundFan[0]);
 		if (key > ctx.bar || key < range.min || !top.admits(key)) return;
 		if (boundUpper[0] < ctx.bar && answerCheck(packed, i, j, s, g, d, p.magnification)) lowerBar(ctx, boundUpper[0]);
 		screen(packed, seidel, i, j, s, g, p);
