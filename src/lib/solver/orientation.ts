@@ -20,6 +20,13 @@ export interface OrientationInput {
 	surfaces: readonly { radiusMm: number | null }[] | null;
 }
 
+/** The wording of which way round a part goes (see `orientationParts`). */
+export interface Orientation {
+	way: string;
+	sides: string | null;
+	brief: string | null;
+}
+
 /** The question the part serves: imaging (object and image) or a laser beam (beam, afocal). */
 export type OrientationMode = 'imaging' | 'beam' | 'afocal';
 
@@ -57,16 +64,19 @@ function radiusText(radiusMm: number | null): string {
  * the object, flat face toward the image" or, for a cemented doublet, "more strongly curved face
  * toward the object, flatter face toward the image (both convex)"; `sides` says how that stands
  * to the catalogue listing, with the radii of the two outer faces ("turned round from the
- * catalogue listing; R 129 mm face toward the object, R 61.5 mm face toward the image"), or null.
+ * catalogue listing; R 129 mm face toward the object, R 61.5 mm face toward the image"), or null;
+ * `brief`, the start of `sides` that a results table shows beside `way` ("turned round from the
+ * catalogue listing"), or null when there is nothing to add (as listed, symmetric, no prescription).
  */
-export function orientationParts(e: OrientationInput, mode: OrientationMode = 'imaging'): { way: string; sides: string | null } {
+export function orientationParts(e: OrientationInput, mode: OrientationMode = 'imaging'): Orientation {
 	const { from, to } = sidesOf(mode);
-	if (e.symmetric) return { way: 'either way round (symmetric part: both faces alike)', sides: null };
+	if (e.symmetric) return { way: 'either way round (symmetric part: both faces alike)', sides: null, brief: null };
 	const s = e.surfaces;
 	if (s === null || s.length < 2) {
 		return {
 			way: e.reversed ? `datasheet's back face (as marked) toward ${from}` : `datasheet's front face (as marked) toward ${from}`,
-			sides: 'no prescription on file: go by the datasheet marking'
+			sides: 'no prescription on file: go by the datasheet marking',
+			brief: null
 		};
 	}
 	const rf = s[0].radiusMm,
@@ -94,7 +104,7 @@ export function orientationParts(e: OrientationInput, mode: OrientationMode = 'i
 			way = `both outer faces ${a} and nearly alike: go by the datasheet marking; the ${radiusText(rf)} face toward ${from}`;
 		}
 	}
-	return { way, sides };
+	return { way, sides, brief: e.reversed ? catalogue : null };
 }
 
 /** Both halves in one line: "curved (convex) face toward the object, flat face toward the image; as in the catalogue listing; …". */
@@ -109,6 +119,6 @@ export function orientationText(e: OrientationInput, mode: OrientationMode = 'im
  * `symmetric` was part of the answer carry only the old words, which began "either side" for a
  * symmetric part.
  */
-export function orientationOf(e: OrientationInput & { orientation?: string }, mode: OrientationMode = 'imaging'): { way: string; sides: string | null } {
+export function orientationOf(e: OrientationInput & { orientation?: string }, mode: OrientationMode = 'imaging'): Orientation {
 	return orientationParts({ ...e, symmetric: e.symmetric ?? e.orientation?.startsWith('either side') ?? false }, mode);
 }

@@ -22,6 +22,10 @@ describe('bench words', () => {
 		expect(b.way).toBe('flatter face toward the object, more strongly curved face toward the image (both convex)');
 		expect(a.sides).toBe('as in the catalogue listing; R 61.5 mm face toward the object, R 128.9 mm face toward the image');
 		expect(b.sides).toBe('turned round from the catalogue listing; R 128.9 mm face toward the object, R 61.5 mm face toward the image');
+		// The results table's short form: only a part turned round says so; the radii stay on the setup page.
+		expect(a.brief).toBeNull();
+		expect(b.brief).toBe('turned round from the catalogue listing');
+		expect(b.sides?.startsWith(`${b.brief}; `)).toBe(true);
 		for (const w of [orientationText({ reversed: false, surfaces: doublet }), orientationText({ reversed: true, surfaces: turned(doublet) })]) {
 			expect(w).not.toMatch(/surface \d/);
 		}
@@ -64,6 +68,8 @@ describe('bench words', () => {
 	it('symmetric parts, black boxes and windows', () => {
 		expect(orientationText({ reversed: false, symmetric: true, surfaces: [{ radiusMm: 100 }, { radiusMm: -100 }] })).toBe('either way round (symmetric part: both faces alike)');
 		expect(orientationParts({ reversed: true, surfaces: null }).way).toBe("datasheet's back face (as marked) toward the object");
+		expect(orientationParts({ reversed: true, surfaces: null }).brief).toBeNull();
+		expect(orientationParts({ reversed: true, symmetric: true, surfaces: [{ radiusMm: 100 }, { radiusMm: -100 }] }).brief).toBeNull();
 		expect(orientationParts({ reversed: false, surfaces: [{ radiusMm: null }, { radiusMm: null }, { radiusMm: null }] }).way).toMatch(/^both outer faces flat: go by the datasheet marking/);
 		// Setups saved with the first words of a symmetric part.
 		expect(orientationOf({ reversed: false, surfaces: [{ radiusMm: 100 }, { radiusMm: -100 }], orientation: 'either side (symmetric)' }).way).toMatch(/^either way round/);
