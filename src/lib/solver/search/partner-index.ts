@@ -211,9 +211,10 @@ const found = new Int32Array(2);
 
 /**
  * The ranges of `ix.order` that row i (matrix a₁ b₁ c₁ d₁, thickness t₁) must visit, written to
- * `ix.ranges` as [start, end) pairs, sorted and disjoint; returns how many. Allocation-free.
+ * `ix.ranges` as [start, end) pairs, sorted and disjoint; returns how many. With `sMax`, only
+ * partners that can give a root at an object distance up to sMax. Allocation-free.
  */
-export function partnerRanges(ix: PartnerIndex, q: PairWindowQuestion, a1: number, b1: number, c1: number, d1: number, t1: number): number {
+export function partnerRanges(ix: PartnerIndex, q: PairWindowQuestion, a1: number, b1: number, c1: number, d1: number, t1: number, sMax = Infinity): number {
 	const R = ix.ranges;
 	const all = ix.order.length;
 	const sorted = ix.sorted;
@@ -246,8 +247,8 @@ export function partnerRanges(ix: PartnerIndex, q: PairWindowQuestion, a1: numbe
 			lamHi = q.trackMm + q.trackToleranceMm - t1 - ix.tLo[b] + slack;
 		row[R_LAM_LO] = lamLo;
 		row[R_LAM_HI] = lamHi;
-		// s ≤ λ − g − d ≤ λ − g_min − w.
-		const sHi = lamHi - gMin - w + slack;
+		// s ≤ λ − g − d ≤ λ − g_min − w (and at most sMax: the caller wants no root beyond it).
+		const sHi = Math.min(lamHi - gMin - w + slack, sMax);
 		if (!(sHi >= sLo)) continue;
 		// Bisection of the range down to MAX_DEPTH: a piece out of reach is dropped with all its
 		// parts; a smallest piece that reaches the whole bucket ends the bucket.

@@ -309,3 +309,49 @@ function edgeStop(bar: number, cls: number, coat: number, wdStep: number, count:
 function airyAt(q: BoundQuestion, sine: number, m: number): number {
 	return airyRadiusMm(q.wavelengthNm, workingFNumber(imageSideNA(sine, m)));
 }
+
+/**
+ * Per element, the object distance beyond which the element, placed first, surely cuts the axial
+ * cone of sine `na` by more than VIGNETTING_TOLERANCE at its first surface (Infinity for a black
+ * box, or when no distance does): the search then knows such a root's vignetting class (2 at
+ * least) without a ray, and the bounding pass does not visit its partners at all.
+ *
+ * Why it is safe: the ray from the axial object point at sine u0 = na·√(1 − 1.0001·tolerance)
+ * meets a sphere (or plane) whose vertex lies at distance s at a height that grows with s and
+ * with u. So when that ray is stopped at the first surface at distance s₀, every ray at u ≥ u0 is
+ * stopped there at every s ≥ s₀: `axialCone` then finds no sine ≥ u0 that passes, and the cone it
+ * passes loses more than the tolerance. The distance is found by bisection with the trace itself
+ * and set 1e-6 beyond it, far above rounding.
+ */
+export function firstSurfaceCuts(table: RayTable, elements: Int32Array, na: number, out: Float64Array): void {
+	const u0 = na * Math.sqrt(1 - 1.0001 * VIGNETTING_TOLERANCE);
+	const one = newScratch(1);
+	one.count = 1;
+	const cut = (e: number, s: number): boolean => {
+		const o = e * table.stride;
+		one.zMm[0] = s + table.data[o + 1];
+		one.curvaturePerMm[0] = table.data[o + 2];
+		one.indexAfter[0] = table.data[o + 3];
+		one.semiApertureMm[0] = table.data[o + 4];
+		one.imageZMm = one.zMm[0] + 1;
+		return !(startRay(ray, 0, u0) && traceRay(one, ray) === TRACE_OK);
+	};
+	for (let k = 0; k < elements.length; k++) {
+		const e = elements[k];
+		out[e] = Infinity;
+		if (table.data[e * table.stride] === 0 || !(u0 > 0) || !(u0 < 1)) continue;
+		// A ray stopped even at the smallest distance tried, or passed at the largest, gives no cut.
+		let lo = 1e-3,
+			hi = 1e7;
+		if (cut(e, lo) || !cut(e, hi)) continue;
+		for (let it = 0; it < 80 && hi - lo > 1e-9 * hi; it++) {
+			const mid = 0.5 * (lo + hi);
+			if (cut(e, mid)) hi = mid;
+			else lo = mid;
+		}
+		out[e] = hi * (1 + 1e-6);
+	}
+}
+
+/** The smallest packed key of vignetting class 2 (every other component at its best). */
+export const CLASS_TWO_KEY = pack(2, 0, 0, -Infinity, 0, 0);

@@ -31,7 +31,7 @@ import {
 import { checkSinglePhysical, checkPairPhysical } from '../../optics/physical';
 import { evalSeidel } from './seidel-poly';
 import { offerBest, PG_FRACTION } from './progress';
-import { rankBound, boundUpper, boundFan, BOUND_CHEAP, BOUND_FULL, type BoundQuestion, type RayTable } from './rank-bound';
+import { rankBound, boundUpper, boundFan, firstSurfaceCuts, CLASS_TWO_KEY, BOUND_CHEAP, BOUND_FULL, type BoundQuestion, type RayTable } from './rank-bound';
 import { packRankParts, WORKING_DISTANCE_STEP_MM } from '../ranking';
 import { VERIFY_A_TOL, VERIFY_B_TOL_MM } from '../../optics/tolerances';
 import { partnerIndex, partnerRanges, type PartnerIndex } from './partner-index';
@@ -370,6 +370,8 @@ function consider(ctx: ShardContext, i: number, j: number, base: number, untr: b
 		if (!top.admits(key)) return;
 	} else {
 		const coat = coatOut[i] | (j >= 0 ? coatOut[j] : 0);
+		// Beyond its first-surface cut the first element loses the cone (class 2): no ray needed.
+		if (!untr && s > ctx.firstCut[i] && CLASS_TWO_KEY > ctx.bar) return;
 		// The cheap tier, then (when it may still rank) the full one; a black box's key is exact at once.
 		key = rankBound(rays, packed, boundQ, i, j, s, g, d, mAch, untr, coat, BOUND_CHEAP, ctx.bar);
 		const exact = untr || boundUpper[0] !== Infinity;
@@ -528,6 +530,13 @@ interface ShardContext extends SnapshotArrays, Pick<ShardInput, 'partUnits' | 'c
 	bar: number;
 	/** Upper keys of this shard's best answers (at most `limit`), ascending. */
 	barKeys: number[];
+	/**
+	 * Bounding pass: per element, the object distance beyond which it cuts the cone at its first
+	 * surface (`firstSurfaceCuts`); Infinity everywhere in the screening pass.
+	 */
+	firstCut: Float64Array;
+	/** Some candidate is a black box (its answers have no vignetting class: a pair with one is never cut). */
+	anyUntraceable: boolean;
 	/** Slack added to the prefilter's approximate working distance, mm (its roots are approximate). */
 	wdSlack: number;
 	top: TopK;
@@ -544,6 +553,13 @@ interface ShardContext extends SnapshotArrays, Pick<ShardInput, 'partUnits' | 'c
 	minG: number;
 	airyPair: number;
 	u0: number;
+}
+
+/** The first-surface cuts of the candidates for a bounding pass (`firstSurfaceCuts`); Infinity for the screening pass. */
+function firstCutsOf(input: ShardInput): Float64Array {
+	const out = new Float64Array(input.packed.length / ELEMENT_STRIDE).fill(Infinity);
+	if (input.boundRange) firstSurfaceCuts(input.rays, input.candidates, input.params.objectNA, out);
+	return out;
 }
 
 function shardContext(input: ShardInput, top: TopK): ShardContext {
@@ -565,6 +581,8 @@ function shardContext(input: ShardInput, top: TopK): ShardContext {
 		range: input.boundRange ?? null,
 		bar: input.boundRange ? input.boundRange.max : Infinity,
 		barKeys: [],
+		firstCut: firstCutsOf(input),
+		anyUntraceable: candidates.some((e) => untraceable[e] === 1),
 		wdSlack: 1e-6 * (Math.abs(p.trackMm) + 1),
 		top,
 		soa,
@@ -665,7 +683,9 @@ function pairRow(ctx: ShardContext, i: number): void {
 	const ix = ctx.partners;
 	const order = ix === null ? candidates : ix.order;
 	const ranges = ix === null ? ctx.everyPartner : ix.ranges;
-	const nRanges = ix === null ? 1 : partnerRanges(ix, p, a1, b1, c1, d1, st[i]);
+	// Bounding pass: no root beyond the first element's cut can rank (unless a black box is about).
+	const sMax = range !== null && !ctx.anyUntraceable && CLASS_TWO_KEY > ctx.bar ? ctx.firstCut[i] : Infinity;
+	const nRanges = ix === null ? 1 : partnerRanges(ix, p, a1, b1, c1, d1, st[i], sMax);
 	let evaluated = 0;
 	for (let rg = 0; rg < nRanges; rg++) {
 		const end = ranges[2 * rg + 1];
