@@ -95,36 +95,40 @@ export interface ReadRow {
 	/** The mapped fields in part input form (surfaces only when the file has surface columns). */
 	input: Record<string, unknown>;
 	errors: CellError[];
-	/** The raw cell of each mapped field (for error reports). */
-	cell: (field: string) => string;
+	/** The record the row was read from (`readCell` gives a mapped field's raw cell, for error reports). */
+	record: readonly string[];
+}
+
+/** The raw cell of a mapped field (trimmed, formula prefix stripped; '' when the field is not mapped). */
+export function readCell(record: readonly string[], cm: CompiledMapping, field: string): string {
+	const i = cm.index.get(field);
+	return i === undefined ? '' : unescapeFormula((record[i] ?? '').trim());
+}
+
+/** A mapped cell's value: null when blank, undefined when unreadable (its error is added to `errors`). */
+function cellValue(record: readonly string[], cm: CompiledMapping, field: string, errors: CellError[]): unknown {
+	const raw = readCell(record, cm, field);
+	if (raw === '') return null;
+	if (isNumericField(field)) {
+		const n = parseNumberCell(raw, field, cm.units[field] as LengthUnit, cm.delimiter);
+		if (typeof n === 'string') {
+			errors.push({ field, value: raw, message: n });
+			return undefined;
+		}
+		return n;
+	}
+	if (field === 'kind') return KIND_WORDS[raw.toLowerCase().replace(/[^a-z]/g, '')] ?? raw;
+	if (field === 'currency') return raw.toUpperCase();
+	return raw;
 }
 
 /** Reads the mapped cells of one record. */
 export function readRow(record: readonly string[], cm: CompiledMapping): ReadRow {
 	const errors: CellError[] = [];
 	const input: Record<string, unknown> = {};
-	const cell = (field: string) => {
-		const i = cm.index.get(field);
-		return i === undefined ? '' : unescapeFormula((record[i] ?? '').trim());
-	};
-	const value = (field: string): unknown => {
-		const raw = cell(field);
-		if (raw === '') return null;
-		if (isNumericField(field)) {
-			const n = parseNumberCell(raw, field, cm.units[field] as LengthUnit, cm.delimiter);
-			if (typeof n === 'string') {
-				errors.push({ field, value: raw, message: n });
-				return undefined;
-			}
-			return n;
-		}
-		if (field === 'kind') return KIND_WORDS[raw.toLowerCase().replace(/[^a-z]/g, '')] ?? raw;
-		if (field === 'currency') return raw.toUpperCase();
-		return raw;
-	};
 	for (const field of SCALAR_FIELDS) {
 		if (!cm.index.has(field)) continue;
-		const v = value(field);
+		const v = cellValue(record, cm, field, errors);
 		if (v === undefined) continue;
 		// Blank cells of fields with a default take the default; others become null (cleared).
 		if (v === null && hasDefault(field)) continue;
@@ -137,19 +141,19 @@ export function readRow(record: readonly string[], cm: CompiledMapping): ReadRow
 		let last = 0;
 		for (let k = 1; k <= Math.min(cm.surfaceCount + 1, MAX_SURFACES); k++) {
 			const [rf, tf, mf] = surfaceFields(k);
-			const r = cm.index.has(rf) ? value(rf) : null;
-			const t = cm.index.has(tf) ? value(tf) : null;
-			const m = cm.index.has(mf) ? value(mf) : null;
+			const r = cm.index.has(rf) ? cellValue(record, cm, rf, errors) : null;
+			const t = cm.index.has(tf) ? cellValue(record, cm, tf, errors) : null;
+			const m = cm.index.has(mf) ? cellValue(record, cm, mf, errors) : null;
 			const s: { radiusMm: number | null; thicknessMm?: number | null; material?: string | null } = { radiusMm: typeof r === 'number' ? r : null };
 			if (t !== null && t !== undefined) s.thicknessMm = t as number;
 			if (m !== null && m !== undefined) s.material = m as string;
 			surfaces.push(s);
-			if (cell(rf) !== '') last = Math.max(last, k);
-			if (cell(tf) !== '' || cell(mf) !== '') last = Math.max(last, Math.min(k + 1, MAX_SURFACES));
+			if (readCell(record, cm, rf) !== '') last = Math.max(last, k);
+			if (readCell(record, cm, tf) !== '' || readCell(record, cm, mf) !== '') last = Math.max(last, Math.min(k + 1, MAX_SURFACES));
 		}
 		input.surfaces = surfaces.slice(0, last);
 	}
-	return { input, errors, cell };
+	return { input, errors, record };
 }
 
 /** The surface-aware CSV field of a zod issue path (['surfaces', 1, 'radiusMm'] → 'r2Mm'). */

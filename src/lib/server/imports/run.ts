@@ -152,6 +152,7 @@ async function openContext(db: Db, rec: ImportRecord, actorId: number): Promise<
 		suppliers: ids,
 		supplierNames,
 		storedErrors: 0,
+		seenWrite: null,
 		write: { suppliers: ids, defaultWavelengthNm, actorId, derived: new DerivedCache() },
 		seen: await openSeenStore(db.$client)
 	};
@@ -220,6 +221,7 @@ async function passOverFile(ctx: Ctx, store: ObjectStore, run: Run, tx: Tx | nul
 			applying.catch(() => {}); // awaited above or below; not an unhandled rejection meanwhile
 		}
 		await applying;
+		await ctx.seenWrite; // the last batch's keys: a run whose duplicate-key store failed fails
 	} finally {
 		// Never leave the transaction while a batch still sends statements through it.
 		await applying?.catch(() => {});
