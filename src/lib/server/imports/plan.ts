@@ -186,10 +186,14 @@ const canonical = (p: PartInput) => JSON.stringify(withoutNulls(p));
 
 /** A copy without null properties (at any depth; array items stay): what a replacer dropping nulls gives, without a replacer's cost. */
 function withoutNulls(value: unknown): unknown {
-	if (Array.isArray(value)) return value.map(withoutNulls);
 	if (value === null || typeof value !== 'object') return value;
+	if (Array.isArray(value)) return value.map(withoutNulls);
 	const out: Record<string, unknown> = {};
-	for (const [k, v] of Object.entries(value)) if (v !== null) out[k] = withoutNulls(v);
+	// Object.keys, not Object.entries: the same keys in the same order, without a pair array per property.
+	for (const k of Object.keys(value)) {
+		const v = (value as Record<string, unknown>)[k];
+		if (v !== null) out[k] = withoutNulls(v);
+	}
 	return out;
 }
 
