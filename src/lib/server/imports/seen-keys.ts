@@ -128,7 +128,7 @@ export class BatchSeen {
 		return new BatchSeen(wanted.size ? await store.lookup([...wanted]) : new Map(), keysByRow);
 	}
 
-	private keysOf(k: RowKeys): string[] {
+	private keysFor(k: RowKeys): string[] {
 		return this.keysByRow.get(k) ?? keysOf(k);
 	}
 
@@ -138,7 +138,7 @@ export class BatchSeen {
 
 	/** The earlier row with any of these keys, tried in the order part, SKU, supplier part number. */
 	find(k: RowKeys): SeenRow | undefined {
-		for (const key of this.keysOf(k)) {
+		for (const key of this.keysFor(k)) {
 			const hit = this.get(key);
 			if (hit) return hit;
 		}
@@ -152,7 +152,7 @@ export class BatchSeen {
 
 	/** Records an accepted row under its keys and under the SKU it is stored with (`storedSku`). */
 	add(k: RowKeys, storedSku: string, row: SeenRow): void {
-		for (const key of this.keysOf(k)) if (key.length <= KEY_CHARS) this.pending.set(key, row);
+		for (const key of this.keysFor(k)) if (key.length <= KEY_CHARS) this.pending.set(key, row);
 		const stored = skuKey(storedSku);
 		if (stored.length <= KEY_CHARS) this.pending.set(stored, row);
 	}
