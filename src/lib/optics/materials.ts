@@ -306,6 +306,13 @@ export function parseGlassCode(code: string): { nd: number; vd: number } | null 
 }
 
 /**
+ * Glass-code models already made, by lower-cased name: a model is a pure function of its code (and read-only),
+ * and a catalogue or an import names the same few codes over and over (two look-ups per validated part).
+ * Bounded: cleared when full. Consulted after the open and lab materials, so those keep their precedence.
+ */
+const GLASS_CODE_MODELS = new Map<string, MaterialModel>();
+
+/**
  * Resolves a material name (case and surrounding blanks ignored) to its model.
  * Throws `UnknownMaterialError` for a name that is neither an open material nor a code.
  */
@@ -313,8 +320,15 @@ export function resolveMaterial(material: string): MaterialModel {
 	const key = material.trim().toLowerCase();
 	const known = BY_NAME.get(key) ?? LAB.get(key);
 	if (known) return known;
+	const cached = GLASS_CODE_MODELS.get(key);
+	if (cached) return cached;
 	const code = parseGlassCode(key);
-	if (code) return glassCodeModel(code.nd, code.vd, key.slice(0, 6));
+	if (code) {
+		const model = glassCodeModel(code.nd, code.vd, key.slice(0, 6));
+		if (GLASS_CODE_MODELS.size >= 1000) GLASS_CODE_MODELS.clear();
+		GLASS_CODE_MODELS.set(key, model);
+		return model;
+	}
 	if (/^\d{6}/.test(key)) throw new UnknownMaterialError(material, 'not a plausible glass code (vd < 10 or nd < 1.25)');
 	throw new UnknownMaterialError(material);
 }

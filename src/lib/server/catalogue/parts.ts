@@ -80,15 +80,16 @@ export function columnsOf(input: PartInput, supplierId: number | null) {
 	const coating = parseCoatingBand(input.coating);
 	const band = coating.ok ? coating.band : null;
 	const firstGlass = input.surfaces.find((s, i) => i < input.surfaces.length - 1 && s.material)?.material ?? null;
-	const plain = Object.fromEntries(PLAIN_COLUMN_FIELDS.map((f) => [f, input[f] ?? null])) as PlainColumns;
-	return {
-		...plain,
+	// One object filled in place (the import writes one per row: no entry arrays, no copy).
+	const row = {} as Record<PlainColumnField, unknown>;
+	for (const f of PLAIN_COLUMN_FIELDS) row[f] = input[f] ?? null;
+	return Object.assign(row as PlainColumns, {
 		primaryMaterial: firstGlass ? firstGlass.toLowerCase() : null,
 		coatingMinNm: band?.minNm ?? null,
 		coatingMaxNm: band?.maxNm ?? null,
 		supplierId,
 		unitPriceMinor: input.unitPrice == null ? null : toMinor(input.unitPrice)
-	};
+	});
 }
 
 /** Every column `columnsOf` writes (a batch insert names them). */

@@ -13,7 +13,7 @@ import { importRowErrors, partSurfaces, parts } from '$lib/server/db/schema';
 import { partInputSchema, toInput, type PartInput } from '$lib/server/catalogue';
 import { inList } from './bulk-sql';
 import { fieldLabel } from './fields';
-import { fieldOfPath, readRow, type CompiledMapping, type ReadRow } from './rows';
+import { fieldOfPath, readCell, readRow, type CompiledMapping, type ReadRow } from './rows';
 import { BatchSeen, type RowKeys, type SeenStore } from './seen-keys';
 import type { SupplierIds } from './writer';
 
@@ -49,6 +49,11 @@ export interface PlanContext {
 	seen: SeenStore;
 	/** Row errors stored so far (at most MAX_STORED_ERRORS). */
 	storedErrors: number;
+	/**
+	 * The store's write of the previous batch's keys, still going: the next batch's lookup goes after it on the
+	 * store's one connection, and the next batch awaits it before planning its rows (so its failure fails the run).
+	 */
+	seenWrite: Promise<void> | null;
 }
 
 /** What planning a batch decided: the writes, and the counts they add. */
@@ -77,8 +82,8 @@ interface TargetedRow {
 
 /**
  * Plans one read batch (`readBatch`) against the catalogue as committed and the file's earlier rows:
- * stores its row errors and the keys of the rows it accepts, and returns the writes. Writes nothing
- * to the catalogue.
+ * stores its row errors and the keys of the rows it accepts (that write still going when it returns:
+ * `PlanContext.seenWrite`), and returns the writes. Writes nothing to the catalogue.
  */
 export async function planBatch(ctx: PlanContext, read: ReadBatch): Promise<BatchPlan> {
 	const existing = await existingForBatch(ctx, read);
@@ -88,8 +93,11 @@ export async function planBatch(ctx: PlanContext, read: ReadBatch): Promise<Batc
 		ctx.seen,
 		targeted.map((x) => x.keys)
 	);
+	await ctx.seenWrite;
 	const { errors, counts, creates, updates } = planRows(ctx, targeted, seen);
-	await seen.flush(ctx.seen);
+	// Not awaited here: the write overlaps the apply of the batch before (see `seenWrite`).
+	ctx.seenWrite = seen.flush(ctx.seen);
+	ctx.seenWrite.catch(() => {});
 	await storeRowErrors(ctx, errors);
 	return { rows: read.length, creates, updates, counts };
 }
@@ -102,7 +110,7 @@ export function readBatch(ctx: PlanContext, batch: readonly { row: number; recor
 		if (!r.input.sku && ctx.skuPrefix && typeof r.input.supplierPartNumber === 'string') {
 			r.input.sku = `${ctx.skuPrefix}${r.input.supplierPartNumber}`;
 		}
-		return { row, ...r };
+		return Object.assign(r, { row });
 	});
 }
 
@@ -126,12 +134,12 @@ async function existingForBatch(ctx: PlanContext, read: ReadBatch): Promise<Exis
 async function existingFor(db: DbOrTx, skus: string[], pairs: Map<number, string[]>, supplierNames: Map<number, string>): Promise<ExistingParts> {
 	const bySku = new Map<string, Existing>();
 	const byPn = new Map<string, Existing>();
-	// Separate queries, so each uses its unique index (an OR of the two would scan the table).
+	// Separate queries, so each uses its unique index (an OR of the two would scan the table); sent together
+	// (on the pool, so on connections of their own), since none needs another's answer.
+	const queries = [...pairs].map(([sid, pns]) => db.select().from(parts).where(and(eq(parts.supplierId, sid), inList(parts.supplierPartNumber, pns))));
+	if (skus.length) queries.unshift(db.select().from(parts).where(inList(parts.sku, skus)));
 	const found = new Map<number, typeof parts.$inferSelect>();
-	if (skus.length) for (const p of await db.select().from(parts).where(inList(parts.sku, skus))) found.set(p.id, p);
-	for (const [sid, pns] of pairs) {
-		for (const p of await db.select().from(parts).where(and(eq(parts.supplierId, sid), inList(parts.supplierPartNumber, pns)))) found.set(p.id, p);
-	}
+	for (const result of await Promise.all(queries)) for (const p of result) found.set(p.id, p);
 	const rows = [...found.values()];
 	if (!rows.length) return { bySku, byPn };
 	const surf = await db
@@ -178,10 +186,14 @@ const canonical = (p: PartInput) => JSON.stringify(withoutNulls(p));
 
 /** A copy without null properties (at any depth; array items stay): what a replacer dropping nulls gives, without a replacer's cost. */
 function withoutNulls(value: unknown): unknown {
-	if (Array.isArray(value)) return value.map(withoutNulls);
 	if (value === null || typeof value !== 'object') return value;
+	if (Array.isArray(value)) return value.map(withoutNulls);
 	const out: Record<string, unknown> = {};
-	for (const [k, v] of Object.entries(value)) if (v !== null) out[k] = withoutNulls(v);
+	// Object.keys, not Object.entries: the same keys in the same order, without a pair array per property.
+	for (const k of Object.keys(value)) {
+		const v = (value as Record<string, unknown>)[k];
+		if (v !== null) out[k] = withoutNulls(v);
+	}
 	return out;
 }
 
@@ -225,7 +237,7 @@ function checkRow(ctx: PlanContext, t: TargetedRow, stored: PartInput | null): {
 		if (fieldsDone.has(field) || fieldsDone.has(field + issue.message)) continue;
 		fieldsDone.add(field + issue.message);
 		const message = field === 'sku' && !sku && !target ? 'Each new part needs a SKU (map a SKU column, or set a SKU prefix).' : issue.message;
-		rowErrors.push({ row: r.row, column: columnOf(ctx, field), value: r.cell(field), message });
+		rowErrors.push({ row: r.row, column: columnOf(ctx, field), value: readCell(r.record, ctx.cm, field), message });
 	}
 	return { data: null, rowErrors };
 }

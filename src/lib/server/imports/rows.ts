@@ -14,6 +14,14 @@ export interface CellError {
 	message: string;
 }
 
+/** How a mapped field's cell is read: its column, and the descriptor's facts about the field (looked up once per run). */
+interface FieldReader {
+	field: string;
+	column: number | undefined;
+	numeric: boolean;
+	defaulted: boolean;
+}
+
 /** A mapping resolved to column indexes, ready for fast row reading. */
 export interface CompiledMapping {
 	/** field → column index */
@@ -22,6 +30,14 @@ export interface CompiledMapping {
 	delimiter: Delimiter;
 	/** Highest surface number with any mapped column (0: surfaces are not in the file). */
 	surfaceCount: number;
+	/** The mapped scalar fields, in the descriptor's order. */
+	scalars: readonly FieldReader[];
+	/** Radius, thickness and material after it of surfaces 1 … surfaceCount + 1 (at most MAX_SURFACES). */
+	surfaces: readonly (readonly [FieldReader, FieldReader, FieldReader])[];
+}
+
+function fieldReader(field: string, index: Map<string, number>): FieldReader {
+	return { field, column: index.get(field), numeric: isNumericField(field), defaulted: hasDefault(field) };
 }
 
 export function compileMapping(header: readonly string[], mapping: Record<string, string>, units: Record<string, string>, delimiter: Delimiter): CompiledMapping {
@@ -34,7 +50,15 @@ export function compileMapping(header: readonly string[], mapping: Record<string
 		const m = /^(?:r|t|material)(\d+)/.exec(field);
 		if (m) surfaceCount = Math.max(surfaceCount, Number(m[1]));
 	}
-	return { index, units, delimiter, surfaceCount: Math.min(surfaceCount, MAX_SURFACES) };
+	surfaceCount = Math.min(surfaceCount, MAX_SURFACES);
+	const scalars = SCALAR_FIELDS.filter((f) => index.has(f)).map((f) => fieldReader(f, index));
+	const surfaces = surfaceCount
+		? Array.from({ length: Math.min(surfaceCount + 1, MAX_SURFACES) }, (_, k) => {
+				const [rf, tf, mf] = surfaceFields(k + 1);
+				return [fieldReader(rf, index), fieldReader(tf, index), fieldReader(mf, index)] as const;
+			})
+		: [];
+	return { index, units, delimiter, surfaceCount, scalars, surfaces };
 }
 
 // A number, optionally followed by a length unit: "25.4", "1 in", "25,4 mm" (the comma only when it cannot be the delimiter).
@@ -95,61 +119,70 @@ export interface ReadRow {
 	/** The mapped fields in part input form (surfaces only when the file has surface columns). */
 	input: Record<string, unknown>;
 	errors: CellError[];
-	/** The raw cell of each mapped field (for error reports). */
-	cell: (field: string) => string;
+	/** The record the row was read from (`readCell` gives a mapped field's raw cell, for error reports). */
+	record: readonly string[];
+}
+
+/** The raw cell of a mapped field (trimmed, formula prefix stripped; '' when the field is not mapped). */
+export function readCell(record: readonly string[], cm: CompiledMapping, field: string): string {
+	return cellAt(record, cm.index.get(field));
+}
+
+function cellAt(record: readonly string[], column: number | undefined): string {
+	return column === undefined ? '' : unescapeFormula((record[column] ?? '').trim());
+}
+
+/** A mapped cell's value from its raw text: null when blank, undefined when unreadable (its error is added to `errors`). */
+function cellValue(raw: string, f: FieldReader, cm: CompiledMapping, errors: CellError[]): unknown {
+	if (raw === '') return null;
+	const field = f.field;
+	if (f.numeric) {
+		const n = parseNumberCell(raw, field, cm.units[field] as LengthUnit, cm.delimiter);
+		if (typeof n === 'string') {
+			errors.push({ field, value: raw, message: n });
+			return undefined;
+		}
+		return n;
+	}
+	if (field === 'kind') return KIND_WORDS[raw.toLowerCase().replace(/[^a-z]/g, '')] ?? raw;
+	if (field === 'currency') return raw.toUpperCase();
+	return raw;
 }
 
 /** Reads the mapped cells of one record. */
 export function readRow(record: readonly string[], cm: CompiledMapping): ReadRow {
 	const errors: CellError[] = [];
 	const input: Record<string, unknown> = {};
-	const cell = (field: string) => {
-		const i = cm.index.get(field);
-		return i === undefined ? '' : unescapeFormula((record[i] ?? '').trim());
-	};
-	const value = (field: string): unknown => {
-		const raw = cell(field);
-		if (raw === '') return null;
-		if (isNumericField(field)) {
-			const n = parseNumberCell(raw, field, cm.units[field] as LengthUnit, cm.delimiter);
-			if (typeof n === 'string') {
-				errors.push({ field, value: raw, message: n });
-				return undefined;
-			}
-			return n;
-		}
-		if (field === 'kind') return KIND_WORDS[raw.toLowerCase().replace(/[^a-z]/g, '')] ?? raw;
-		if (field === 'currency') return raw.toUpperCase();
-		return raw;
-	};
-	for (const field of SCALAR_FIELDS) {
-		if (!cm.index.has(field)) continue;
-		const v = value(field);
+	for (const f of cm.scalars) {
+		const v = cellValue(cellAt(record, f.column), f, cm, errors);
 		if (v === undefined) continue;
 		// Blank cells of fields with a default take the default; others become null (cleared).
-		if (v === null && hasDefault(field)) continue;
-		input[field] = v;
+		if (v === null && f.defaulted) continue;
+		input[f.field] = v;
 	}
 	if (cm.surfaceCount > 0) {
 		// Surface k exists when any of its cells is filled, or when surface k-1 has a medium after it
 		// (thickness or material): a blank last surface is then a flat one.
 		const surfaces: { radiusMm: number | null; thicknessMm?: number | null; material?: string | null }[] = [];
 		let last = 0;
-		for (let k = 1; k <= Math.min(cm.surfaceCount + 1, MAX_SURFACES); k++) {
-			const [rf, tf, mf] = surfaceFields(k);
-			const r = cm.index.has(rf) ? value(rf) : null;
-			const t = cm.index.has(tf) ? value(tf) : null;
-			const m = cm.index.has(mf) ? value(mf) : null;
+		for (let k = 1; k <= cm.surfaces.length; k++) {
+			const [rf, tf, mf] = cm.surfaces[k - 1];
+			const rRaw = cellAt(record, rf.column);
+			const tRaw = cellAt(record, tf.column);
+			const mRaw = cellAt(record, mf.column);
+			const r = rf.column !== undefined ? cellValue(rRaw, rf, cm, errors) : null;
+			const t = tf.column !== undefined ? cellValue(tRaw, tf, cm, errors) : null;
+			const m = mf.column !== undefined ? cellValue(mRaw, mf, cm, errors) : null;
 			const s: { radiusMm: number | null; thicknessMm?: number | null; material?: string | null } = { radiusMm: typeof r === 'number' ? r : null };
 			if (t !== null && t !== undefined) s.thicknessMm = t as number;
 			if (m !== null && m !== undefined) s.material = m as string;
 			surfaces.push(s);
-			if (cell(rf) !== '') last = Math.max(last, k);
-			if (cell(tf) !== '' || cell(mf) !== '') last = Math.max(last, Math.min(k + 1, MAX_SURFACES));
+			if (rRaw !== '') last = Math.max(last, k);
+			if (tRaw !== '' || mRaw !== '') last = Math.max(last, Math.min(k + 1, MAX_SURFACES));
 		}
 		input.surfaces = surfaces.slice(0, last);
 	}
-	return { input, errors, cell };
+	return { input, errors, record };
 }
 
 /** The surface-aware CSV field of a zod issue path (['surfaces', 1, 'radiusMm'] → 'r2Mm'). */

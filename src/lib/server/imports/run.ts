@@ -88,6 +88,8 @@ interface Run {
 	counts: RunCounts;
 	batchRows: number;
 	hooks?: RunHooks;
+	/** The last progress write, still going while the next batch is applied (see `applyPlan`). */
+	progressWrite: Promise<void> | null;
 }
 
 async function runImportUnwatched(
@@ -100,7 +102,7 @@ async function runImportUnwatched(
 	const [rec] = await db.select().from(imports).where(eq(imports.id, importId));
 	if (!rec) throw new Error(`import ${importId} does not exist`);
 	const counts: RunCounts = { created: 0, updated: 0, unchanged: 0, rejected: 0, errorCount: 0, rows: 0 };
-	const run: Run = { importId, mode, counts, batchRows: opts.batchRows ?? BATCH_ROWS, hooks: opts.hooks };
+	const run: Run = { importId, mode, counts, batchRows: opts.batchRows ?? BATCH_ROWS, hooks: opts.hooks, progressWrite: null };
 	let message: string | null = null;
 	let status: 'checked' | 'committed' | 'failed' = mode === 'check' ? 'checked' : 'committed';
 	let seenStore: SeenStore | null = null;
@@ -152,6 +154,7 @@ async function openContext(db: Db, rec: ImportRecord, actorId: number): Promise<
 		suppliers: ids,
 		supplierNames,
 		storedErrors: 0,
+		seenWrite: null,
 		write: { suppliers: ids, defaultWavelengthNm, actorId, derived: new DerivedCache() },
 		seen: await openSeenStore(db.$client)
 	};
@@ -220,18 +223,29 @@ async function passOverFile(ctx: Ctx, store: ObjectStore, run: Run, tx: Tx | nul
 			applying.catch(() => {}); // awaited above or below; not an unhandled rejection meanwhile
 		}
 		await applying;
+		await ctx.seenWrite; // the last batch's keys: a run whose duplicate-key store failed fails
+		await run.progressWrite;
 	} finally {
-		// Never leave the transaction while a batch still sends statements through it.
+		// Never leave the transaction while a batch still sends statements through it, nor let a progress
+		// write land after the outcome.
 		await applying?.catch(() => {});
+		await run.progressWrite?.catch(() => {});
 	}
 }
 
-/** Writes one batch's plan (in a commit), adds its counts to the run's and reports progress. */
+/**
+ * Writes one batch's plan (in a commit), adds its counts to the run's and reports progress. The progress
+ * write (an autocommit on the pool) is not waited for: it goes while the next batch is written, and the
+ * next batch's progress waits for it (so they land in order, and a failed one fails the run one batch later,
+ * or at the end of the pass).
+ */
 async function applyPlan(ctx: Ctx, run: Run, tx: Tx | null, plan: BatchPlan, batchNo: number) {
 	if (tx && (plan.creates.length || plan.updates.length)) await writeBatch(tx, plan, ctx.write);
 	for (const k of ['created', 'updated', 'unchanged', 'rejected', 'errorCount'] as const) run.counts[k] += plan.counts[k];
 	run.counts.rows += plan.rows;
-	await progress(ctx.db, run.importId, run.counts, run.mode);
+	await run.progressWrite;
+	run.progressWrite = progress(ctx.db, run.importId, { ...run.counts }, run.mode);
+	run.progressWrite.catch(() => {}); // awaited by the next batch or at the end of the pass
 	await run.hooks?.afterBatch?.({ batch: batchNo, rowsDone: run.counts.rows });
 }
 

@@ -110,13 +110,26 @@ export class KeyFilter {
 /** The run's view of the keys for one batch: what earlier batches stored, plus this batch's own accepted rows. */
 export class BatchSeen {
 	private pending = new Map<string, SeenRow>();
-	private constructor(private readonly known: Map<string, SeenRow>) {}
+	private constructor(
+		private readonly known: Map<string, SeenRow>,
+		/** The keys of the batch's rows, made once (`find` and `add` take the same RowKeys objects). */
+		private readonly keysByRow: Map<RowKeys, string[]>
+	) {}
 
 	/** Loads the stored keys that the rows of a batch may hit (one query). */
 	static async load(store: SeenStore, rows: readonly RowKeys[]): Promise<BatchSeen> {
 		const wanted = new Set<string>();
-		for (const k of rows) for (const key of keysOf(k)) if (key.length <= KEY_CHARS && store.mayHave(key)) wanted.add(key);
-		return new BatchSeen(wanted.size ? await store.lookup([...wanted]) : new Map());
+		const keysByRow = new Map<RowKeys, string[]>();
+		for (const k of rows) {
+			const keys = keysOf(k);
+			keysByRow.set(k, keys);
+			for (const key of keys) if (key.length <= KEY_CHARS && store.mayHave(key)) wanted.add(key);
+		}
+		return new BatchSeen(wanted.size ? await store.lookup([...wanted]) : new Map(), keysByRow);
+	}
+
+	private keysFor(k: RowKeys): string[] {
+		return this.keysByRow.get(k) ?? keysOf(k);
 	}
 
 	private get(key: string): SeenRow | undefined {
@@ -125,7 +138,7 @@ export class BatchSeen {
 
 	/** The earlier row with any of these keys, tried in the order part, SKU, supplier part number. */
 	find(k: RowKeys): SeenRow | undefined {
-		for (const key of keysOf(k)) {
+		for (const key of this.keysFor(k)) {
 			const hit = this.get(key);
 			if (hit) return hit;
 		}
@@ -139,7 +152,9 @@ export class BatchSeen {
 
 	/** Records an accepted row under its keys and under the SKU it is stored with (`storedSku`). */
 	add(k: RowKeys, storedSku: string, row: SeenRow): void {
-		for (const key of [...keysOf(k), skuKey(storedSku)]) if (key.length <= KEY_CHARS) this.pending.set(key, row);
+		for (const key of this.keysFor(k)) if (key.length <= KEY_CHARS) this.pending.set(key, row);
+		const stored = skuKey(storedSku);
+		if (stored.length <= KEY_CHARS) this.pending.set(stored, row);
 	}
 
 	/** Writes this batch's accepted keys to the store. */

@@ -22,21 +22,44 @@ import { inList, insertReturning, insertRows } from './bulk-sql';
 export class DerivedCache {
 	private map = new Map<string, ReturnType<typeof paraxialColumns>>();
 	constructor(private readonly maxEntries = 5000) {}
-	get(part: OpticsPart, wl: number, measured: MeasuredEfl | null): ReturnType<typeof paraxialColumns> {
-		const key = JSON.stringify([part, wl, measured]);
+	/** The derived columns of `part` (built only when not cached; `key` is `opticsKey` of the same values). */
+	get(key: string, part: () => OpticsPart, wl: number, measured: MeasuredEfl | null): ReturnType<typeof paraxialColumns> {
 		let hit = this.map.get(key);
 		if (!hit) {
 			if (this.map.size >= this.maxEntries) this.map.clear();
-			hit = paraxialColumns(part, wl, measured);
+			hit = paraxialColumns(part(), wl, measured);
 			this.map.set(key, hit);
 		}
 		return hit;
 	}
 }
 
+/** A number or null as JSON writes it (finite numbers only reach here: the schema refused the rest). */
+const num = (x: number | null | undefined) => (x == null ? 'null' : String(x));
+/** A text or null as JSON writes it (quoted, so no text can pass for a separator or a number). */
+const str = (x: string | null | undefined) => (x == null ? 'null' : JSON.stringify(x));
+
+/**
+ * Every value `paraxialColumns` reads, as one string: the surfaces as `toSurfaceSpecs` gives them
+ * (the last without thickness or material), the part's numbers, the wavelength and the measurement.
+ * Equal strings mean equal inputs (each value is written as JSON, between fixed separators).
+ */
+function opticsKey(input: PartInput, cols: ReturnType<typeof columnsOf>, wl: number, measured: MeasuredEfl | null): string {
+	const s = input.surfaces;
+	let key = `${s.length}`;
+	for (let i = 0; i < s.length; i++) {
+		key += i === s.length - 1 ? `|${num(s[i].radiusMm)}` : `|${num(s[i].radiusMm)},${num(s[i].thicknessMm ?? 0)},${str(s[i].material)}`;
+	}
+	return (
+		`${key}|${num(cols.eflMm)},${num(cols.bflMm)},${num(cols.centerThicknessMm)},${num(cols.designWavelengthNm)},${num(cols.diameterMm)},` +
+		`${num(cols.clearApertureMm)},${str(cols.primaryMaterial)}|${num(wl)}|${measured ? `${num(measured.eflMm)},${num(measured.wavelengthNm)}` : 'null'}`
+	);
+}
+
 function derivedFor(input: PartInput, cols: ReturnType<typeof columnsOf>, wl: number, measured: MeasuredEfl | null, cache: DerivedCache) {
 	return cache.get(
-		{
+		opticsKey(input, cols, wl, measured),
+		() => ({
 			surfaces: toSurfaceSpecs(input.surfaces),
 			eflMm: cols.eflMm,
 			bflMm: cols.bflMm,
@@ -45,7 +68,7 @@ function derivedFor(input: PartInput, cols: ReturnType<typeof columnsOf>, wl: nu
 			diameterMm: cols.diameterMm,
 			clearApertureMm: cols.clearApertureMm,
 			primaryMaterial: cols.primaryMaterial
-		},
+		}),
 		wl,
 		measured
 	);
@@ -106,7 +129,7 @@ export async function writeBatch(tx: Tx, batch: { creates: PartInput[]; updates:
 		await resolveSuppliers(tx, batch.creates, ctx);
 		const rows = batch.creates.map((input) => {
 			const cols = columnsOf(input, ctx.suppliers.known(input.supplier));
-			return { ...cols, ...derivedFor(input, cols, wl, null, ctx.derived) };
+			return Object.assign(cols, derivedFor(input, cols, wl, null, ctx.derived));
 		});
 		// The new ids, as MariaDB gave them (INSERT ... RETURNING; matched by SKU, which is unique).
 		const back = await insertReturning(tx, parts, PART_KEYS, rows, ['id', 'sku']);
@@ -132,7 +155,7 @@ export async function writeBatch(tx: Tx, batch: { creates: PartInput[]; updates:
 		);
 		const rows = batch.updates.map((u) => {
 			const cols = columnsOf(u.input, ctx.suppliers.known(u.input.supplier));
-			return { id: u.id, ...cols, ...derivedFor(u.input, cols, wl, latest.get(u.id) ?? null, ctx.derived) };
+			return Object.assign(cols, { id: u.id }, derivedFor(u.input, cols, wl, latest.get(u.id) ?? null, ctx.derived));
 		});
 		// Rows carry their primary key, so ON DUPLICATE KEY turns each into an update of that part.
 		await insertRows(tx, parts, ['id', ...PART_KEYS], rows, PART_KEYS);
