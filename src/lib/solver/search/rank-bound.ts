@@ -223,35 +223,47 @@ export function rankBound(
 	// A black box is not traced: its answer's key is known (no vignetting figures, untraced spot).
 	if (untraceable) return pack(0, coat, spotBand(null), wdStep, count, 1e9);
 	const sys = buildSystem(table, packed, i, j, s, g, d);
+	return tier === BOUND_CHEAP ? cheapBound(sys, q, m, coat, wdStep, count, bar) : tracedBound(sys, q, m, coat, wdStep, count, tier === BOUND_FULL, bar, fanRms);
+}
+
+/**
+ * BOUND_CHEAP (see `rankBound`): the rim ray, then the axial fan from the outside in until the
+ * bound exceeds `bar`. The exact parts of the key (coat, wdStep, count) come in as numbers: no
+ * object per root on the hot path.
+ */
+function cheapBound(sys: TraceSystem, q: BoundQuestion, m: number, coat: number, wdStep: number, count: number, bar: number): number {
 	const na = q.objectNA;
-	if (tier === BOUND_CHEAP) {
-		// As axialCone finds it: when the rim ray passes, the whole cone counts.
-		if (!passes(sys, Math.min(na, CONE_TOP))) return coneCutBound(sys, na, coat, wdStep, count);
-		if (q.byBand) return pack(0, coat, 0, wdStep, count, 0);
-		// The fan from the outside in (spherical aberration grows outwards), stopping as soon as the
-		// rays so far put the bound above `bar`; the whole fan gives the axial RMS itself.
-		const airy = airyAt(q, na, m);
-		let sum = 0,
-			traced = 0,
-			low = 0;
-		for (let k = FAN_RAYS; k >= 1; k--) {
-			if (!passes(sys, Math.sqrt((k - 0.5) / FAN_RAYS) * na)) continue;
-			const y = heightAtPlane(ray, sys.imageZMm);
-			if (y === null) continue;
-			sum += y * y;
-			traced++;
-			const ratio = (Math.sqrt(sum / FAN_RAYS) / airy) * AIRY_LOW;
-			low = pack(0, coat, spotBand(ratio), wdStep, count, ratio);
-			if (low > bar) return low;
-		}
-		// The whole fan with the rim passing: the axial RMS itself (axialSpot's sum, added in another order).
-		boundFan[0] = traced === 0 ? -1 : Math.sqrt(sum / traced);
-		if (traced === 0) return pack(0, coat, spotBand(null), wdStep, count, 1e9);
-		const ratio = Math.sqrt(sum / traced) / airy;
-		// On axis only (no field edge), nothing else ranks: the key itself.
-		if (q.objectHeightMm === 0) boundUpper[0] = pack(0, coat, spotBand(ratio * AIRY_HIGH), wdStep, count, ratio * AIRY_HIGH);
-		return pack(0, coat, spotBand(ratio * AIRY_LOW), wdStep, count, ratio * AIRY_LOW);
+	// As axialCone finds it: when the rim ray passes, the whole cone counts.
+	if (!passes(sys, Math.min(na, CONE_TOP))) return coneCutBound(sys, na, coat, wdStep, count);
+	if (q.byBand) return pack(0, coat, 0, wdStep, count, 0);
+	// The fan from the outside in (spherical aberration grows outwards), stopping as soon as the
+	// rays so far put the bound above `bar`; the whole fan gives the axial RMS itself.
+	const airy = airyAt(q, na, m);
+	let sum = 0,
+		traced = 0,
+		low = 0;
+	for (let k = FAN_RAYS; k >= 1; k--) {
+		if (!passes(sys, Math.sqrt((k - 0.5) / FAN_RAYS) * na)) continue;
+		const y = heightAtPlane(ray, sys.imageZMm);
+		if (y === null) continue;
+		sum += y * y;
+		traced++;
+		const ratio = (Math.sqrt(sum / FAN_RAYS) / airy) * AIRY_LOW;
+		low = pack(0, coat, spotBand(ratio), wdStep, count, ratio);
+		if (low > bar) return low;
 	}
+	// The whole fan with the rim passing: the axial RMS itself (axialSpot's sum, added in another order).
+	boundFan[0] = traced === 0 ? -1 : Math.sqrt(sum / traced);
+	if (traced === 0) return pack(0, coat, spotBand(null), wdStep, count, 1e9);
+	const ratio = Math.sqrt(sum / traced) / airy;
+	// On axis only (no field edge), nothing else ranks: the key itself.
+	if (q.objectHeightMm === 0) boundUpper[0] = pack(0, coat, spotBand(ratio * AIRY_HIGH), wdStep, count, ratio * AIRY_HIGH);
+	return pack(0, coat, spotBand(ratio * AIRY_LOW), wdStep, count, ratio * AIRY_LOW);
+}
+
+/** BOUND_AXIAL or BOUND_FULL (`full`, see `rankBound`): the evaluation's own axial figures, and the field edge's. */
+function tracedBound(sys: TraceSystem, q: BoundQuestion, m: number, coat: number, wdStep: number, count: number, full: boolean, bar: number, fanRms: number): number {
+	const na = q.objectNA;
 	// As realRayFigures and evaluatePlacement (evaluate.ts) compute them.
 	const cone = axialCone(sys, na);
 	const passed = cone.passedSine,
@@ -261,7 +273,6 @@ export function rankBound(
 	const axial = known === known || !(passed > 0) ? null : axialSpot(sys, { na: passed, rays: FAN_RAYS });
 	const axialRms = known === known ? known : axial ? axial.rmsAboutCentroidMm : null;
 	const h = q.objectHeightMm;
-	const full = tier === BOUND_FULL;
 	let cls = axialLost > VIGNETTING_TOLERANCE ? 2 : 0;
 	if (axialRms === null) {
 		const edgeOnly = full && h > 0 ? edgeTrace(sys, h, na, cone.stopSurface) : null;
