@@ -277,9 +277,8 @@ export interface PupilSpotOptions {
 	imageZMm?: number;
 	/**
 	 * Stop as soon as the spot is surely larger than this RMS radius, mm (the solver's rank bound
-	 * asks so): the samples are then traced from the outer ring in, and the answer is a lower
-	 * bound with `complete` false. Unless it stops, the figures are the same, bit for bit, as
-	 * without this option (the landings are summed in the usual order).
+	 * asks so): the answer is then a lower bound with `complete` false. Unless it stops, the
+	 * figures are the same, bit for bit, as without this option.
 	 */
 	stopAboveMm?: number;
 }
@@ -293,7 +292,7 @@ export interface PupilSpotOptions {
 const STOP_MARGIN = 1e-5;
 const STOP_MIN_SPREAD = 3e-5;
 
-/** Scratch of the early-stopping path of `pupilSpot`: per sample, 0 outside the cone, 1 landed (x, y), 2 lost. */
+/** Scratch of `pupilSpot`: per sample, 0 outside the cone, 1 landed (x, y), 2 lost. */
 let sampleState = new Uint8Array(0);
 let sampleX = new Float64Array(0);
 let sampleY = new Float64Array(0);
@@ -323,32 +322,19 @@ export function pupilSpot(sys: TraceSystem, objectHeightMm: number, pupil: Pupil
 		dir[1] = pupil.centreSine + ay * rho * Math.cos(th);
 		return !(dir[0] * dir[0] + (dir[1] - pupil.chiefSine) ** 2 > na2);
 	};
-	let failed = 0;
-	const sums = new Landings();
-	if (options.stopAboveMm === undefined) {
-		for (let k = 1; k <= K; k++) {
-			for (let j = 0; j < J; j++) {
-				if (!direction(k, j)) continue;
-				if (!passesDirection(sys, objectHeightMm, dir[0], dir[1])) {
-					failed++;
-					continue;
-				}
-				if (!sums.add(probe, zImg)) failed++;
-			}
-		}
-		return { rmsAboutCentroidMm: sums.rmsAboutCentroid(), centroidMm: sums.centroid(), raysTraced: sums.n, raysFailed: failed, passedShare: share(sums.n), complete: true };
-	}
-	// Outer ring first (the aberrations grow outwards). The RMS over all the rays that land is at
-	// least √(S / n), with S the squared spread of the landed rays so far about their own centroid
-	// (the centroid minimises it) and n the samples inside the cone (at least the rays that land).
-	const stop = options.stopAboveMm;
+	// Outer ring first (the aberrations grow outwards), each landing kept and summed at the end in the
+	// usual order (rings inward out), so that the figures do not depend on the order traced. With
+	// `stopAboveMm`: the RMS over all the rays that land is at least √(S / n), with S the squared
+	// spread of the landed rays so far about their own centroid (the centroid minimises it) and n
+	// the samples inside the cone (at least the rays that land).
+	const stop = options.stopAboveMm ?? Infinity;
 	if (sampleState.length < K * J) {
 		sampleState = new Uint8Array(K * J);
 		sampleX = new Float64Array(K * J);
 		sampleY = new Float64Array(K * J);
 	}
 	let inside = 0;
-	for (let k = 1; k <= K; k++) for (let j = 0; j < J; j++) if (direction(k, j)) inside++;
+	if (stop < Infinity) for (let k = 1; k <= K; k++) for (let j = 0; j < J; j++) if (direction(k, j)) inside++;
 	let n = 0,
 		x2 = 0,
 		dy = 0,
@@ -369,7 +355,7 @@ export function pupilSpot(sys: TraceSystem, objectHeightMm: number, pupil: Pupil
 			x2 += x * x;
 			dy += y - y0;
 			dy2 += (y - y0) * (y - y0);
-			if (n < 2) continue;
+			if (n < 2 || stop === Infinity) continue;
 			const spread = Math.max(0, x2 + dy2 - (dy * dy) / n);
 			const low = Math.sqrt(spread / inside) * (1 - STOP_MARGIN);
 			const centroid = y0 + dy / n;
@@ -379,6 +365,8 @@ export function pupilSpot(sys: TraceSystem, objectHeightMm: number, pupil: Pupil
 		}
 	}
 	// Not stopped: the landings summed in the usual order.
+	let failed = 0;
+	const sums = new Landings();
 	for (let q = 0; q < K * J; q++) {
 		if (sampleState[q] === 2) failed++;
 		else if (sampleState[q] === 1) sums.addAt(sampleX[q], sampleY[q]);
