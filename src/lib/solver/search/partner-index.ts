@@ -380,15 +380,10 @@ function pieceRange(ix: PartnerIndex, b: number, sa: number, sb: number): boolea
 		const bPad = WIDEN * (Math.abs(ix.bLo[b]) + Math.abs(ix.bHi[b]));
 		const yLo = PLo + ix.bLo[b] - bPad,
 			yHi = PHi + ix.bHi[b] + bPad;
-		const r1 = yLo / eLo,
-			r2 = yLo / eHi,
-			r3 = yHi / eLo,
-			r4 = yHi / eHi;
-		const ddLo = Math.min(r1, r2, r3, r4),
-			ddHi = Math.max(r1, r2, r3, r4);
-		if (ddHi < dLo || ddLo > dHi) return false;
-		if (ddLo > dLo) dLo = ddLo;
-		if (ddHi < dHi) dHi = ddHi;
+		quotient(yLo, yHi, eLo, eHi);
+		if (span[1] < dLo || span[0] > dHi) return false;
+		if (span[0] > dLo) dLo = span[0];
+		if (span[1] < dHi) dHi = span[1];
 	}
 	// d = (a₂ − m₂)·P / N (R1 over R2) when N keeps one sign.
 	if (nLo > 0 || nHi < 0) {
@@ -396,39 +391,26 @@ function pieceRange(ix: PartnerIndex, b: number, sa: number, sb: number): boolea
 			p2 = xLo * PHi,
 			p3 = xHi * PLo,
 			p4 = xHi * PHi;
-		const yLo = Math.min(p1, p2, p3, p4),
-			yHi = Math.max(p1, p2, p3, p4);
-		const r1 = yLo / nLo,
-			r2 = yLo / nHi,
-			r3 = yHi / nLo,
-			r4 = yHi / nHi;
-		const ddLo = Math.min(r1, r2, r3, r4),
-			ddHi = Math.max(r1, r2, r3, r4);
-		if (ddHi < dLo || ddLo > dHi) return false;
-		if (ddLo > dLo) dLo = ddLo;
-		if (ddHi < dHi) dHi = ddHi;
+		quotient(Math.min(p1, p2, p3, p4), Math.max(p1, p2, p3, p4), nLo, nHi);
+		if (span[1] < dLo || span[0] > dHi) return false;
+		if (span[0] > dLo) dLo = span[0];
+		if (span[1] < dHi) dHi = span[1];
 	}
 	// φ₂ from R1 over that d (d > 0).
 	let fLo: number, fHi: number;
 	if (dLo > 0) {
-		const u1 = xLo / dLo,
-			u2 = xLo / dHi,
-			u3 = xHi / dLo,
-			u4 = xHi / dHi;
-		fLo = Math.min(u1, u2, u3, u4);
-		fHi = Math.max(u1, u2, u3, u4);
+		quotient(xLo, xHi, dLo, dHi);
+		fLo = span[0];
+		fHi = span[1];
 	} else {
 		fLo = xLo > 0 ? xLo / dHi : -Infinity;
 		fHi = xHi < 0 ? xHi / dHi : Infinity;
 	}
 	// φ₂ from R2 when P keeps one sign.
 	if (PLo > 0 || PHi < 0) {
-		const v1 = nLo / PLo,
-			v2 = nLo / PHi,
-			v3 = nHi / PLo,
-			v4 = nHi / PHi;
-		fLo = Math.max(fLo, Math.min(v1, v2, v3, v4));
-		fHi = Math.min(fHi, Math.max(v1, v2, v3, v4));
+		quotient(nLo, nHi, PLo, PHi);
+		fLo = Math.max(fLo, span[0]);
+		fHi = Math.min(fHi, span[1]);
 	}
 	// A bound lost to rounding (NaN) bounds nothing.
 	if (fLo !== fLo) fLo = -Infinity;
@@ -443,6 +425,22 @@ function pieceRange(ix: PartnerIndex, b: number, sa: number, sb: number): boolea
 	found[0] = k0;
 	found[1] = k1;
 	return k0 < k1;
+}
+
+/** Scratch of `quotient`: [lowest, highest]. */
+const span = new Float64Array(2);
+
+/**
+ * The range of y/e for y in [yLo, yHi] and e in [eLo, eHi] (an interval that keeps one sign),
+ * into span: the extremes of the four corner quotients.
+ */
+function quotient(yLo: number, yHi: number, eLo: number, eHi: number): void {
+	const r1 = yLo / eLo,
+		r2 = yLo / eHi,
+		r3 = yHi / eLo,
+		r4 = yHi / eHi;
+	span[0] = Math.min(r1, r2, r3, r4);
+	span[1] = Math.max(r1, r2, r3, r4);
 }
 
 /** Sorts a bucket's ranges by start, merges overlapping ones and appends them to R after `count` of them; returns the new count. */
