@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import {
 	traceSystemFromLayout,
 	traceRay,
+	traceRayPair,
 	startRay,
 	heightAtPlane,
 	axialCrossingMm,
@@ -21,6 +22,8 @@ import {
 	TRACE_OK,
 	TRACE_MISSED,
 	TRACE_TIR,
+	TRACE_CLIPPED,
+	TRACE_BEHIND,
 	type Layout,
 	type TraceSystem,
 	type ThickElement
@@ -94,6 +97,46 @@ describe("exact trace: Snell's law", () => {
 		const r = traceSystemFromLayout({ objectDistanceMm: 10, elements: [box.value], gapsMm: [], backDistanceMm: 10 });
 		expect(r.ok).toBe(false);
 		if (!r.ok) expect(r.error.code).toBe('no-prescription');
+	});
+});
+
+describe('two rays traced together (traceRayPair)', () => {
+	// The search's rank bound traces the rim ray and the fan's outermost ray together: each must
+	// come out exactly as traceRay leaves it (the bound's exactness rests on the same rays).
+	const same = (a: Float64Array, b: Float64Array) => expect(Array.from(a).map((v) => Object.is(v, 0) ? 0 : v)).toEqual(Array.from(b).map((v) => Object.is(v, 0) ? 0 : v));
+	const systems: TraceSystem[] = [
+		// a biconvex lens then a plano-convex one with small clear apertures: rays clip at either
+		sys({ objectDistanceMm: 60, elements: [element(singlet(50, -50, 5), LAMBDA, 12), element(singlet(40, null, 4, '785257'), LAMBDA, 9)], gapsMm: [8], backDistanceMm: 40 }),
+		// a strongly curved lens: steep rays miss its spheres or meet total internal reflection
+		sys({ objectDistanceMm: 4, elements: [element(singlet(6, -6, 5))], gapsMm: [], backDistanceMm: 20 }),
+		// flat entrance, exit sphere R = −10 centred on it: rays high up meet total internal reflection
+		sys({ objectDistanceMm: 5, elements: [element([{ radiusMm: null, thicknessMm: 10, material: '517642' }, { radiusMm: -10 }])], gapsMm: [], backDistanceMm: 30 })
+	];
+	const heights = [[0.3, -0.2], [0.3, -0.2], [9, -8.5]];
+	it('leaves each ray exactly as traceRay does, whichever of them passes, clips, misses, reflects or meets a surface behind it', () => {
+		const statuses = new Set<number>();
+		for (const [n, s] of systems.entries()) {
+			for (let a = -0.95; a <= 0.95; a += 0.05) {
+				for (let b = -0.95; b <= 0.95; b += 0.1) {
+					const one = new Float64Array(RAY_STRIDE),
+						two = new Float64Array(RAY_STRIDE),
+						pa = new Float64Array(RAY_STRIDE),
+						pb = new Float64Array(RAY_STRIDE);
+					startRay(one, heights[n][0], a);
+					startRay(two, heights[n][1], b);
+					pa.set(one);
+					pb.set(two);
+					traceRay(s, one);
+					traceRay(s, two);
+					traceRayPair(s, pa, pb);
+					same(pa, one);
+					same(pb, two);
+					statuses.add(one[4]).add(two[4]);
+				}
+			}
+		}
+		// Every way a ray can end was met (else the test would not show the pair handles it).
+		expect([...statuses].sort()).toEqual([TRACE_OK, TRACE_MISSED, TRACE_TIR, TRACE_CLIPPED, TRACE_BEHIND].sort());
 	});
 });
 

@@ -27,7 +27,7 @@
  * Pure and allocation-free in the cheap tier (scratch buffers per module; one search per thread at a time).
  */
 import { axialCone, axialSpot, airyRadiusMm, workingFNumber, imageSideNA, CONE_TOP, CONE_STEPS } from '../../optics/spot';
-import { startRay, traceRay, heightAtPlane, RAY_STRIDE, TRACE_OK, type TraceSystem } from '../../optics/raytrace';
+import { startRay, traceRay, traceRayPair, heightAtPlane, RAY_STRIDE, TRACE_OK, type TraceSystem } from '../../optics/raytrace';
 import { ELEMENT_STRIDE, EL_THICKNESS } from '../../optics/snapshot';
 import type { ThickElement } from '../../optics/element';
 import { packRankParts as pack, spotBand, spotBandLimit, EDGE_BLOCKED_RATIO, VIGNETTING_TOLERANCE, WORKING_DISTANCE_STEP_MM } from '../ranking';
@@ -93,6 +93,8 @@ interface ScratchSystem {
 
 let scratch: ScratchSystem = newScratch(8);
 const ray = new Float64Array(RAY_STRIDE);
+/** The fan's outermost ray, traced with the rim ray (`traceRayPair`). */
+const fanRay = new Float64Array(RAY_STRIDE);
 /**
  * The Airy radius uses the matrix's magnification in the evaluation and the root's here (equal
  * to about 1e-12): the spot bound is lowered by this much so that it stays below.
@@ -166,8 +168,25 @@ function coneCutBound(sys: TraceSystem, na: number, coat: number, wdStep: number
 	for (let k = 0; k < CONE_STEPS; k++) {
 		if ((hi / na) * (hi / na) < keep) return pack(2, coat, 0, wdStep, count, 0);
 		const mid = 0.5 * (lo + hi);
-		if (passes(sys, mid)) lo = mid;
-		else hi = mid;
+		if (k + 1 === CONE_STEPS) {
+			if (passes(sys, mid)) lo = mid;
+			else hi = mid;
+			continue;
+		}
+		// The midpoint and the next step's midpoint should it pass, traced together: when it does,
+		// that next step (hi unchanged, so the test above holds again) is already done.
+		const next = 0.5 * (mid + hi);
+		startRay(ray, 0, mid);
+		startRay(fanRay, 0, next);
+		traceRayPair(sys, ray, fanRay);
+		if (ray[4] !== TRACE_OK) {
+			hi = mid;
+			continue;
+		}
+		lo = mid;
+		k++;
+		if (fanRay[4] === TRACE_OK) lo = next;
+		else hi = next;
 	}
 	return pack(0, coat, 0, wdStep, count, 0);
 }
@@ -233,8 +252,12 @@ export function rankBound(
  */
 function cheapBound(sys: TraceSystem, q: BoundQuestion, m: number, coat: number, wdStep: number, count: number, bar: number): number {
 	const na = q.objectNA;
+	// The rim ray and the fan's outermost ray, traced together (the same rays as one by one).
+	const rim = Math.min(na, CONE_TOP);
+	const outer = startRay(ray, 0, rim) && startRay(fanRay, 0, Math.sqrt((FAN_RAYS - 0.5) / FAN_RAYS) * na);
+	if (outer) traceRayPair(sys, ray, fanRay);
 	// As axialCone finds it: when the rim ray passes, the whole cone counts.
-	if (!passes(sys, Math.min(na, CONE_TOP))) return coneCutBound(sys, na, coat, wdStep, count);
+	if (!(outer ? ray[4] === TRACE_OK : passes(sys, rim))) return coneCutBound(sys, na, coat, wdStep, count);
 	if (q.byBand) return pack(0, coat, 0, wdStep, count, 0);
 	// The fan from the outside in (spherical aberration grows outwards), stopping as soon as the
 	// rays so far put the bound above `bar`; the whole fan gives the axial RMS itself.
@@ -243,8 +266,9 @@ function cheapBound(sys: TraceSystem, q: BoundQuestion, m: number, coat: number,
 		traced = 0,
 		low = 0;
 	for (let k = FAN_RAYS; k >= 1; k--) {
-		if (!passes(sys, Math.sqrt((k - 0.5) / FAN_RAYS) * na)) continue;
-		const y = heightAtPlane(ray, sys.imageZMm);
+		const landed = k === FAN_RAYS && outer ? fanRay[4] === TRACE_OK : passes(sys, Math.sqrt((k - 0.5) / FAN_RAYS) * na);
+		if (!landed) continue;
+		const y = heightAtPlane(k === FAN_RAYS && outer ? fanRay : ray, sys.imageZMm);
 		if (y === null) continue;
 		sum += y * y;
 		traced++;
