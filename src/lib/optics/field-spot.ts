@@ -4,7 +4,7 @@
  * over the whole cone (`fieldGridSpot`); and the RMS radius over several wavelengths
  * (`combinedRmsMm`). The statistic is the RMS radius about the centroid of the rays that arrive.
  */
-import { type TraceSystem, SKEW_STRIDE, TRACE_OK, traceSkewRay } from './raytrace';
+import { type TraceSystem, SKEW_STRIDE, TRACE_OK, traceSkewRay, traceSkewRayPair } from './raytrace';
 import { landingHeight } from './spot';
 
 /** The field point's spot from a pupil grid of skew rays. */
@@ -182,22 +182,85 @@ function passesDirection(sys: TraceSystem, h: number, L: number, M: number): boo
 	return traceSkewRay(sys, probe) === TRACE_OK;
 }
 
-/** Largest d in [0, max] with pass(d), by bisection from a passing d = 0 (the region is taken to be connected). */
-function extent(pass: (d: number) => boolean, max: number): number {
+const probe2 = new Float64Array(SKEW_STRIDE);
+
+/**
+ * `passesDirection` of two directions at once (`traceSkewRayPair`: the same rays): bit 1 set when
+ * the first passes, bit 2 when the second does. The traced rays are left in `probe` and `probe2`.
+ */
+function passesTwo(sys: TraceSystem, h: number, L1: number, M1: number, L2: number, M2: number): number {
+	const n1 = 1 - L1 * L1 - M1 * M1,
+		n2 = 1 - L2 * L2 - M2 * M2;
+	if (!(n1 > 0) || !(n2 > 0)) return (passesDirection(sys, h, L1, M1) ? 1 : 0) | (passesDirection(sys, h, L2, M2) ? 2 : 0);
+	probe.set(ZERO_SKEW);
+	probe2.set(ZERO_SKEW);
+	probe[1] = h;
+	probe[3] = L1;
+	probe[4] = M1;
+	probe[5] = Math.sqrt(n1);
+	probe2[1] = h;
+	probe2[3] = L2;
+	probe2[4] = M2;
+	probe2[5] = Math.sqrt(n2);
+	traceSkewRayPair(sys, probe, probe2);
+	return (probe[6] === TRACE_OK ? 1 : 0) | (probe2[6] === TRACE_OK ? 2 : 0);
+}
+const ZERO_SKEW = new Float64Array(SKEW_STRIDE);
+
+/** Ways `extent` searches from a centre direction (L, M) = (0, base): up M, down M, or across L at M = base. */
+const UP = 0,
+	DOWN = 1,
+	ACROSS = 2;
+/** The direction at distance d from (0, base) the `way` given, into dir[0], dir[1] (the sums `edgePupil` always made). */
+function along(way: number, base: number, d: number): void {
+	dir[0] = way === ACROSS ? d : 0;
+	dir[1] = way === UP ? base + d : way === DOWN ? base - d : base;
+}
+
+/** Bisection steps of `extent`. */
+const EXTENT_STEPS = 22;
+
+/**
+ * Largest d in [0, max] whose direction (`along` the way given from (0, base)) passes, by
+ * bisection from a passing d = 0 (the region is taken to be connected). Each midpoint is traced
+ * together with the next step's midpoint should it pass (the same rays as one by one).
+ */
+function extent(sys: TraceSystem, h: number, way: number, base: number, max: number): number {
 	if (!(max > 0)) return 0;
-	if (pass(max)) return max;
+	along(way, base, max);
+	if (passesDirection(sys, h, dir[0], dir[1])) return max;
 	let lo = 0,
 		hi = max;
-	for (let i = 0; i < 22; i++) {
+	for (let i = 0; i < EXTENT_STEPS; i++) {
 		const mid = 0.5 * (lo + hi);
-		if (pass(mid)) lo = mid;
-		else hi = mid;
+		along(way, base, mid);
+		if (i + 1 === EXTENT_STEPS) {
+			if (passesDirection(sys, h, dir[0], dir[1])) lo = mid;
+			else hi = mid;
+			continue;
+		}
+		const L1 = dir[0],
+			M1 = dir[1];
+		const next = 0.5 * (mid + hi);
+		along(way, base, next);
+		const passed = passesTwo(sys, h, L1, M1, dir[0], dir[1]);
+		if ((passed & 1) === 0) {
+			hi = mid;
+			continue;
+		}
+		lo = mid;
+		i++;
+		if ((passed & 2) !== 0) lo = next;
+		else hi = next;
 	}
 	return lo;
 }
 
 /** Cells across the coarse grid `edgePupil` searches when the chief ray is lost (`fieldGridSpot`'s default grid). */
 export const PUPIL_SEARCH_GRID = 16;
+/** Scratch of `edgePupil`: the grid cells' direction sines (L, M). */
+const gridL = new Float64Array((PUPIL_SEARCH_GRID * PUPIL_SEARCH_GRID) / 2),
+	gridM = new Float64Array((PUPIL_SEARCH_GRID * PUPIL_SEARCH_GRID) / 2);
 
 /**
  * Finds the passed part of the requested cone of the object point at `objectHeightMm`: from the
@@ -217,29 +280,37 @@ export function edgePupil(sys: TraceSystem, objectHeightMm: number, sinChief: nu
 			step = 2 / n;
 		let sum = 0,
 			count = 0;
+		// The cells inside the disc, in order, traced two at a time (the same rays, summed in the same order).
+		let cells = 0;
 		for (let i = 0; i < n / 2; i++) {
 			for (let j = 0; j < n; j++) {
 				const px = (i + 0.5) * step,
 					py = -1 + (j + 0.5) * step;
 				if (px * px + py * py > 1) continue;
-				if (passesDirection(sys, h, na * px, sinChief + na * py)) {
-					sum += sinChief + na * py;
-					count++;
-				}
+				gridL[cells] = na * px;
+				gridM[cells++] = sinChief + na * py;
+			}
+		}
+		for (let c = 0; c < cells; c += 2) {
+			const passed = c + 1 < cells ? passesTwo(sys, h, gridL[c], gridM[c], gridL[c + 1], gridM[c + 1]) : passesDirection(sys, h, gridL[c], gridM[c]) ? 1 : 0;
+			for (let q = 0; q < 2 && c + q < cells; q++) {
+				if ((passed & (1 << q)) === 0) continue;
+				sum += gridM[c + q];
+				count++;
 			}
 		}
 		if (count === 0) return 'blocked';
 		centre = sum / count;
 		if (!passesDirection(sys, h, 0, centre)) return null;
 	}
-	const up = extent((d) => passesDirection(sys, h, 0, centre + d), sinChief + na - centre);
-	const down = extent((d) => passesDirection(sys, h, 0, centre - d), centre - (sinChief - na));
+	const up = extent(sys, h, UP, centre, sinChief + na - centre);
+	const down = extent(sys, h, DOWN, centre, centre - (sinChief - na));
 	const mid = centre + (up - down) / 2,
 		halfHeight = (up + down) / 2;
 	let halfWidth = 0;
 	for (const m of [mid - halfHeight / 2, mid, mid + halfHeight / 2]) {
 		const room = Math.sqrt(Math.max(0, na * na - (m - sinChief) ** 2));
-		if (passesDirection(sys, h, 0, m)) halfWidth = Math.max(halfWidth, extent((d) => passesDirection(sys, h, d, m), room));
+		if (passesDirection(sys, h, 0, m)) halfWidth = Math.max(halfWidth, extent(sys, h, ACROSS, m, room));
 	}
 	return { chiefSine: sinChief, requestedSine: na, centreSine: mid, halfWidthSine: halfWidth, halfHeightSine: halfHeight };
 }
@@ -296,6 +367,10 @@ const STOP_MIN_SPREAD = 3e-5;
 let sampleState = new Uint8Array(0);
 let sampleX = new Float64Array(0);
 let sampleY = new Float64Array(0);
+/** Scratch of `pupilSpot`: per sample, its direction sines (L, M); and the samples inside the cone in the order traced. */
+let sampleL = new Float64Array(0);
+let sampleM = new Float64Array(0);
+let sampleOrder = new Int32Array(0);
 
 /**
  * RMS spot of the object point at `objectHeightMm` over the ellipse `pupil` of direction sines:
@@ -332,21 +407,36 @@ export function pupilSpot(sys: TraceSystem, objectHeightMm: number, pupil: Pupil
 		sampleState = new Uint8Array(K * J);
 		sampleX = new Float64Array(K * J);
 		sampleY = new Float64Array(K * J);
+		sampleL = new Float64Array(K * J);
+		sampleM = new Float64Array(K * J);
+		sampleOrder = new Int32Array(K * J);
 	}
+	// The samples inside the cone in the order traced (outer ring first), with their directions.
 	let inside = 0;
-	if (stop < Infinity) for (let k = 1; k <= K; k++) for (let j = 0; j < J; j++) if (direction(k, j)) inside++;
-	let n = 0,
-		x2 = 0,
-		dy = 0,
-		dy2 = 0,
-		y0 = 0;
 	for (let k = K; k >= 1; k--) {
 		for (let j = 0; j < J; j++) {
 			const q = (k - 1) * J + j;
 			sampleState[q] = 0;
 			if (!direction(k, j)) continue;
 			sampleState[q] = 2;
-			if (!passesDirection(sys, objectHeightMm, dir[0], dir[1]) || !landing(probe, zImg)) continue;
+			sampleL[q] = dir[0];
+			sampleM[q] = dir[1];
+			sampleOrder[inside++] = q;
+		}
+	}
+	let n = 0,
+		x2 = 0,
+		dy = 0,
+		dy2 = 0,
+		y0 = 0;
+	// Two rays at a time (`passesTwo`: the same rays), each then taken in order as if traced alone.
+	for (let t = 0; t < inside; t += 2) {
+		const a = sampleOrder[t],
+			b = t + 1 < inside ? sampleOrder[t + 1] : -1;
+		const passed = b >= 0 ? passesTwo(sys, objectHeightMm, sampleL[a], sampleM[a], sampleL[b], sampleM[b]) : passesDirection(sys, objectHeightMm, sampleL[a], sampleM[a]) ? 1 : 0;
+		for (let w = 0; w < 2; w++) {
+			const q = w === 0 ? a : b;
+			if (q < 0 || (passed & (1 << w)) === 0 || !landing(w === 0 ? probe : probe2, zImg)) continue;
 			sampleState[q] = 1;
 			const x = (sampleX[q] = landed[0]),
 				y = (sampleY[q] = landed[1]);

@@ -311,16 +311,14 @@ export const SKEW_STRIDE = 8;
  * normal N = (−cX, −cY, 1 − cZ) (Z from the vertex).
  */
 export function traceSkewRay(sys: TraceSystem, ray: Float64Array): number {
-	let x = ray[0],
-		y = ray[1],
-		z = ray[2],
-		dx = ray[3],
-		dy = ray[4],
-		dz = ray[5];
-	let nBefore = 1;
+	return skewFrom(sys, ray, ray[0], ray[1], ray[2], ray[3], ray[4], ray[5], 1, 0);
+}
+
+/** `traceSkewRay` of a ray at (x, y, z) with direction (dx, dy, dz) in index nBefore, from surface k0 on. */
+function skewFrom(sys: TraceSystem, ray: Float64Array, x: number, y: number, z: number, dx: number, dy: number, dz: number, nBefore: number, k0: number): number {
 	let status = TRACE_OK,
 		at = -1;
-	for (let k = 0; k < sys.count; k++) {
+	for (let k = k0; k < sys.count; k++) {
 		if (!(dz > 0)) {
 			status = TRACE_MISSED;
 			at = k;
@@ -382,4 +380,103 @@ export function traceSkewRay(sys: TraceSystem, ray: Float64Array): number {
 	ray[6] = status;
 	ray[7] = at;
 	return status;
+}
+
+/**
+ * `traceSkewRay` of two rays at once: the same arithmetic ray by ray (the same results bit for
+ * bit), the two dependency chains interleaved as in `traceRayPair`. Sets each ray's state and
+ * status as `traceSkewRay` does.
+ */
+export function traceSkewRayPair(sys: TraceSystem, a: Float64Array, b: Float64Array): void {
+	let xa = a[0],
+		ya = a[1],
+		za = a[2],
+		dxa = a[3],
+		dya = a[4],
+		dza = a[5];
+	let xb = b[0],
+		yb = b[1],
+		zb = b[2],
+		dxb = b[3],
+		dyb = b[4],
+		dzb = b[5];
+	let nBefore = 1;
+	for (let k = 0; k < sys.count; k++) {
+		const c = sys.curvaturePerMm[k],
+			zk = sys.zMm[k];
+		let fail = !(dza > 0) || !(dzb > 0);
+		const t0a = (zk - za) / dza,
+			t0b = (zk - zb) / dzb;
+		const xta = xa + t0a * dxa,
+			yta = ya + t0a * dya,
+			xtb = xb + t0b * dxb,
+			ytb = yb + t0b * dyb;
+		const fa = c * (xta * xta + yta * yta),
+			fb = c * (xtb * xtb + ytb * ytb);
+		const ba = dza - c * (xta * dxa + yta * dya),
+			bb = dzb - c * (xtb * dxb + ytb * dyb);
+		const da = ba * ba - c * fa,
+			db = bb * bb - c * fb;
+		const dena = da >= 0 ? ba + Math.sqrt(da) : -1,
+			denb = db >= 0 ? bb + Math.sqrt(db) : -1;
+		fail = fail || !(dena > 0) || !(denb > 0);
+		const ta = fa / dena,
+			tb = fb / denb;
+		fail = fail || t0a + ta < -BEHIND_TOL_MM || t0b + tb < -BEHIND_TOL_MM;
+		const xha = xta + ta * dxa,
+			yha = yta + ta * dya,
+			zha = zk + ta * dza,
+			xhb = xtb + tb * dxb,
+			yhb = ytb + tb * dyb,
+			zhb = zk + tb * dzb;
+		const semi = sys.semiApertureMm[k];
+		fail = fail || xha * xha + yha * yha > semi * semi || xhb * xhb + yhb * yhb > semi * semi;
+		const nxa = -c * xha,
+			nya = -c * yha,
+			nza = 1 - c * (zha - zk),
+			nxb = -c * xhb,
+			nyb = -c * yhb,
+			nzb = 1 - c * (zhb - zk);
+		const cosIa = dxa * nxa + dya * nya + dza * nza,
+			cosIb = dxb * nxb + dyb * nyb + dzb * nzb;
+		const nAfter = sys.indexAfter[k];
+		const mu = nBefore / nAfter;
+		const k2a = 1 - mu * mu * (1 - cosIa * cosIa),
+			k2b = 1 - mu * mu * (1 - cosIb * cosIb);
+		if (fail || k2a < 0 || k2b < 0) {
+			// Either stops at this surface (or may): each goes on alone from before it (the same steps).
+			skewFrom(sys, a, xa, ya, za, dxa, dya, dza, nBefore, k);
+			skewFrom(sys, b, xb, yb, zb, dxb, dyb, dzb, nBefore, k);
+			return;
+		}
+		const ga = (cosIa >= 0 ? Math.sqrt(k2a) : -Math.sqrt(k2a)) - mu * cosIa,
+			gb = (cosIb >= 0 ? Math.sqrt(k2b) : -Math.sqrt(k2b)) - mu * cosIb;
+		xa = xha;
+		ya = yha;
+		za = zha;
+		xb = xhb;
+		yb = yhb;
+		zb = zhb;
+		dxa = mu * dxa + ga * nxa;
+		dya = mu * dya + ga * nya;
+		dza = mu * dza + ga * nza;
+		dxb = mu * dxb + gb * nxb;
+		dyb = mu * dyb + gb * nyb;
+		dzb = mu * dzb + gb * nzb;
+		nBefore = nAfter;
+	}
+	skewState(a, xa, ya, za, dxa, dya, dza);
+	skewState(b, xb, yb, zb, dxb, dyb, dzb);
+}
+
+/** Writes a skew ray's state after the last surface, passed (TRACE_OK). */
+function skewState(r: Float64Array, x: number, y: number, z: number, dx: number, dy: number, dz: number): void {
+	r[0] = x;
+	r[1] = y;
+	r[2] = z;
+	r[3] = dx;
+	r[4] = dy;
+	r[5] = dz;
+	r[6] = TRACE_OK;
+	r[7] = -1;
 }

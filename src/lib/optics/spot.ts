@@ -7,7 +7,7 @@
  * ray aims at the axial point of the pupil plane z = pupilZMm (default: the first
  * surface's vertex, right for a stop at or near the first part).
  */
-import { type TraceSystem, RAY_STRIDE, TRACE_OK, TRACE_MISSED, TRACE_BEHIND, traceRay, startRay, heightAtPlane } from './raytrace';
+import { type TraceSystem, RAY_STRIDE, TRACE_OK, TRACE_MISSED, TRACE_BEHIND, traceRay, traceRayPair, startRay, heightAtPlane } from './raytrace';
 
 /** Options shared by the spot and aperture functions. */
 export interface FanOptions {
@@ -40,6 +40,8 @@ export interface SpotResult {
 }
 
 const scratch = new Float64Array(RAY_STRIDE);
+/** A second ray state, for two rays traced together (`traceRayPair`). */
+const scratch2 = new Float64Array(RAY_STRIDE);
 
 function firstVertex(sys: TraceSystem): number {
 	return sys.count > 0 ? sys.zMm[0] : 0;
@@ -49,6 +51,11 @@ function firstVertex(sys: TraceSystem): number {
 export function landingHeight(sys: TraceSystem, objectYMm: number, sinAngle: number, zMm: number): number | null {
 	if (!startRay(scratch, objectYMm, sinAngle) || traceRay(sys, scratch) !== TRACE_OK) return null;
 	return heightAtPlane(scratch, zMm);
+}
+
+/** The landing height of a traced ray at the plane z = zMm (as `landingHeight`), null when it did not pass. */
+function landed(ray: Float64Array, zMm: number): number | null {
+	return ray[4] === TRACE_OK ? heightAtPlane(ray, zMm) : null;
 }
 
 /**
@@ -68,13 +75,18 @@ export function axialSpot(sys: TraceSystem, options: FanOptions): SpotResult | n
 	let sum2 = 0,
 		traced = 0,
 		failed = 0;
-	for (let k = 1; k <= K; k++) {
-		const rho = Math.sqrt((k - 0.5) / K);
-		const y = landingHeight(sys, 0, rho * options.na, zImg);
-		if (y === null) failed++;
-		else {
-			sum2 += y * y;
-			traced++;
+	// Two rays at a time (the same rays as one by one), summed in order k = 1 … K.
+	for (let k = 1; k <= K; k += 2) {
+		const u = Math.sqrt((k - 0.5) / K) * options.na;
+		const pair = k < K && startRay(scratch, 0, u) && startRay(scratch2, 0, Math.sqrt((k + 0.5) / K) * options.na);
+		if (pair) traceRayPair(sys, scratch, scratch2);
+		for (let q = 0; q < (k < K ? 2 : 1); q++) {
+			const y = pair ? landed(q === 0 ? scratch : scratch2, zImg) : landingHeight(sys, 0, q === 0 ? u : Math.sqrt((k + 0.5) / K) * options.na, zImg);
+			if (y === null) failed++;
+			else {
+				sum2 += y * y;
+				traced++;
+			}
 		}
 	}
 	if (traced === 0) return null;
@@ -298,7 +310,7 @@ export const CONE_TOP = 0.999;
 /** Bisection steps of `axialCone` when the stop cuts the cone asked for (the limit to 2⁻³⁶ of the sine asked for). */
 export const CONE_STEPS = 36;
 /** Bisection steps when the whole cone asked for passes: only which surface stops the cone as it opens further is wanted. */
-const STOP_STEPS = 16;
+export const STOP_STEPS = 16;
 
 /**
  * Finds the aperture stop and the axial cone it passes: the largest direction sine u whose
@@ -318,22 +330,39 @@ export function axialCone(sys: TraceSystem, requestedSine: number): AxialCone {
 	if (passes(rim)) {
 		if (rim === top || passes(top)) return { requestedSine, passedSine: requestedSine, stopSurface: -1, lostFraction: 0 };
 		// The whole cone asked for passes: only the stop's name is wanted, a coarse search above it will do.
-		return { requestedSine, passedSine: requestedSine, stopSurface: bisectCone(passes, ray, rim, top, STOP_STEPS, ray[5]).stopSurface, lostFraction: 0 };
+		return { requestedSine, passedSine: requestedSine, stopSurface: bisectCone(sys, rim, top, STOP_STEPS, ray[5]).stopSurface, lostFraction: 0 };
 	}
-	const cut = bisectCone(passes, ray, 0, rim, CONE_STEPS, ray[5]);
+	const cut = bisectCone(sys, 0, rim, CONE_STEPS, ray[5]);
 	const passedSine = Math.min(requestedSine, cut.lo);
 	const ratio = passedSine / requestedSine;
 	return { requestedSine, passedSine, stopSurface: cut.stopSurface, lostFraction: Math.max(0, 1 - ratio * ratio) };
 }
 
-/** Bisection of `axialCone` on (lo, hi): the last sine that passed and the surface that stopped the last one that did not. */
-function bisectCone(passes: (u: number) => boolean, ray: Float64Array, lo: number, hi: number, steps: number, stopSurface: number): { lo: number; stopSurface: number } {
+/**
+ * Bisection of `axialCone` on (lo, hi): the last sine that passed and the surface that stopped the
+ * last one that did not. Each midpoint is traced together with the next step's midpoint should it
+ * pass (`traceRayPair`: the same rays), so a passing step costs no trace of its own.
+ */
+function bisectCone(sys: TraceSystem, lo: number, hi: number, steps: number, stopSurface: number): { lo: number; stopSurface: number } {
 	for (let i = 0; i < steps; i++) {
 		const mid = 0.5 * (lo + hi);
-		if (passes(mid)) lo = mid;
-		else {
+		const next = 0.5 * (mid + hi);
+		const pair = i + 1 < steps && startRay(scratch, 0, mid) && startRay(scratch2, 0, next);
+		if (pair) traceRayPair(sys, scratch, scratch2);
+		else if (!startRay(scratch, 0, mid)) scratch[4] = TRACE_MISSED;
+		else traceRay(sys, scratch);
+		if (scratch[4] !== TRACE_OK) {
 			hi = mid;
-			stopSurface = ray[5];
+			stopSurface = scratch[5];
+			continue;
+		}
+		lo = mid;
+		if (!pair) continue;
+		i++;
+		if (scratch2[4] === TRACE_OK) lo = next;
+		else {
+			hi = next;
+			stopSurface = scratch2[5];
 		}
 	}
 	return { lo, stopSurface };

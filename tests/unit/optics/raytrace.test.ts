@@ -7,6 +7,10 @@ import {
 	heightAtPlane,
 	axialCrossingMm,
 	axialSpot,
+	axialCone,
+	CONE_STEPS,
+	CONE_TOP,
+	STOP_STEPS,
 	tangentialSpot,
 	apertureReport,
 	traceFan,
@@ -137,6 +141,50 @@ describe('two rays traced together (traceRayPair)', () => {
 		}
 		// Every way a ray can end was met (else the test would not show the pair handles it).
 		expect([...statuses].sort()).toEqual([TRACE_OK, TRACE_MISSED, TRACE_TIR, TRACE_CLIPPED, TRACE_BEHIND].sort());
+	});
+
+	it('axialCone and axialSpot, which trace two rays at a time, give the figures of one ray at a time', () => {
+		// The plain algorithms, one traceRay per sine: the bisection of the passed cone (and of the stop above a passing rim) and the fan's sum.
+		const passes = (s: TraceSystem, u: number, r: Float64Array) => startRay(r, 0, u) && traceRay(s, r) === TRACE_OK;
+		const bisect = (s: TraceSystem, lo: number, hi: number, steps: number, stop: number) => {
+			const r = new Float64Array(RAY_STRIDE);
+			for (let i = 0; i < steps; i++) {
+				const mid = 0.5 * (lo + hi);
+				if (passes(s, mid, r)) lo = mid;
+				else [hi, stop] = [mid, r[5]];
+			}
+			return { lo, stop };
+		};
+		const fan = (s: TraceSystem, na: number, K: number) => {
+			const r = new Float64Array(RAY_STRIDE);
+			let sum = 0,
+				n = 0;
+			for (let k = 1; k <= K; k++) {
+				if (!passes(s, Math.sqrt((k - 0.5) / K) * na, r)) continue;
+				sum += heightAtPlane(r, s.imageZMm)! ** 2;
+				n++;
+			}
+			return n === 0 ? null : Math.sqrt(sum / n);
+		};
+		let cut = 0;
+		for (const s of systems.slice(0, 2)) {
+			for (const na of [0.02, 0.08, 0.15, 0.3, 0.6]) {
+				const cone = axialCone(s, na);
+				const r = new Float64Array(RAY_STRIDE);
+				const rim = Math.min(na, CONE_TOP);
+				if (passes(s, rim, r)) {
+					const above = passes(s, CONE_TOP, r) ? -1 : bisect(s, rim, CONE_TOP, STOP_STEPS, r[5]).stop;
+					expect(cone).toEqual({ requestedSine: na, passedSine: na, stopSurface: rim === CONE_TOP ? -1 : above, lostFraction: 0 });
+				} else {
+					cut++;
+					const b = bisect(s, 0, rim, CONE_STEPS, r[5]);
+					expect(cone.passedSine).toBe(Math.min(na, b.lo));
+					expect(cone.stopSurface).toBe(b.stop);
+				}
+				for (const K of [31, 32]) expect(axialSpot(s, { na, rays: K })?.rmsAboutCentroidMm ?? null).toBe(fan(s, na, K));
+			}
+		}
+		expect(cut).toBeGreaterThan(2); // cones cut by the apertures were among them
 	});
 });
 

@@ -11,6 +11,7 @@ import { describe, expect, it } from 'vitest';
 import {
 	traceSystemFromLayout,
 	traceSkewRay,
+	traceSkewRayPair,
 	traceRay,
 	startRay,
 	fieldGridSpot,
@@ -24,6 +25,8 @@ import {
 	TRACE_OK,
 	TRACE_CLIPPED,
 	TRACE_BEHIND,
+	TRACE_MISSED,
+	TRACE_TIR,
 	type Layout
 } from '../../../src/lib/optics';
 import { solveWithStock } from '../../../src/lib/server/solver/solve';
@@ -182,6 +185,43 @@ describe('the product trace against the independent one, ray by ray', () => {
 		}
 		expect(arrived).toBeGreaterThan(20);
 		expect(lost).toBeGreaterThan(20);
+	});
+
+	it('two skew rays traced together (traceSkewRayPair) end exactly as each alone, whichever of them passes or is lost, and how', () => {
+		const sysOf = (layout: Layout) => {
+			const r = traceSystemFromLayout(layout);
+			if (!r.ok) throw r.error;
+			return r.value;
+		};
+		const systems = [
+			sysOf({ objectDistanceMm: 60, elements: [element(singlet(50, -50, 5), 587.6, 12), element(singlet(40, null, 4, '785257'), 587.6, 9)], gapsMm: [8], backDistanceMm: 40 }),
+			sysOf({ objectDistanceMm: 4, elements: [element(singlet(6, -6, 5))], gapsMm: [], backDistanceMm: 20 }),
+			sysOf({ objectDistanceMm: 5, elements: [element([{ radiusMm: null, thicknessMm: 10, material: '517642' }, { radiusMm: -10 }])], gapsMm: [], backDistanceMm: 30 })
+		];
+		const heights = [2, 0.5, 8.5];
+		const statuses = new Set<number>();
+		const start = (r: Float64Array, h: number, L: number, M: number) => r.set([0.3 * L, h, 0, L, M, Math.sqrt(1 - L * L - M * M), 0, 0]);
+		for (const [n, sys] of systems.entries()) {
+			for (let k = 0; k < 300; k++) {
+				const L = 0.7 * Math.cos(k * 2.39996) * Math.sqrt(k / 300),
+					M = 0.7 * Math.sin(k * 2.39996) * Math.sqrt(k / 300);
+				const one = new Float64Array(SKEW_STRIDE),
+					two = new Float64Array(SKEW_STRIDE),
+					pa = new Float64Array(SKEW_STRIDE),
+					pb = new Float64Array(SKEW_STRIDE);
+				start(one, heights[n], L, M);
+				start(two, -heights[n] * 0.9, -M * 0.8, L * 0.9);
+				pa.set(one);
+				pb.set(two);
+				traceSkewRay(sys, one);
+				traceSkewRay(sys, two);
+				traceSkewRayPair(sys, pa, pb);
+				expect(Array.from(pa)).toEqual(Array.from(one));
+				expect(Array.from(pb)).toEqual(Array.from(two));
+				statuses.add(one[6]).add(two[6]);
+			}
+		}
+		expect([...statuses].sort()).toEqual([TRACE_OK, TRACE_MISSED, TRACE_TIR, TRACE_CLIPPED, TRACE_BEHIND].sort());
 	});
 
 	it('a meridional skew ray (x = 0) agrees with the meridional trace; a clipped ray and a ray behind a surface are lost with their status', () => {

@@ -150,6 +150,11 @@ function buildSystem(table: RayTable, packed: Float64Array, i: number, j: number
 	return scratch;
 }
 
+/** Direction sine of the axial fan's ray k (1 … FAN_RAYS), as `axialSpot` samples it: pupil radius √((k − ½)/K). */
+function fanSine(k: number, na: number): number {
+	return Math.sqrt((k - 0.5) / FAN_RAYS) * na;
+}
+
 /** True when the axial ray at direction sine u passes every aperture (as axialCone tests it). */
 function passes(sys: TraceSystem, u: number): boolean {
 	return startRay(ray, 0, u) && traceRay(sys, ray) === TRACE_OK;
@@ -254,7 +259,7 @@ function cheapBound(sys: TraceSystem, q: BoundQuestion, m: number, coat: number,
 	const na = q.objectNA;
 	// The rim ray and the fan's outermost ray, traced together (the same rays as one by one).
 	const rim = Math.min(na, CONE_TOP);
-	const outer = startRay(ray, 0, rim) && startRay(fanRay, 0, Math.sqrt((FAN_RAYS - 0.5) / FAN_RAYS) * na);
+	const outer = startRay(ray, 0, rim) && startRay(fanRay, 0, fanSine(FAN_RAYS, na));
 	if (outer) traceRayPair(sys, ray, fanRay);
 	// As axialCone finds it: when the rim ray passes, the whole cone counts.
 	if (!(outer ? ray[4] === TRACE_OK : passes(sys, rim))) return coneCutBound(sys, na, coat, wdStep, count);
@@ -263,23 +268,32 @@ function cheapBound(sys: TraceSystem, q: BoundQuestion, m: number, coat: number,
 	// rays so far put the bound above `bar`; the whole fan gives the axial RMS itself.
 	const airy = airyAt(q, na, m);
 	let sum = 0,
-		traced = 0,
+		landed = 0,
 		low = 0;
+	// The fan ray whose trace waits in `fanRay` (0: none): rays go two at a time, k and k − 1.
+	let waiting = outer ? FAN_RAYS : 0;
 	for (let k = FAN_RAYS; k >= 1; k--) {
-		const landed = k === FAN_RAYS && outer ? fanRay[4] === TRACE_OK : passes(sys, Math.sqrt((k - 0.5) / FAN_RAYS) * na);
-		if (!landed) continue;
-		const y = heightAtPlane(k === FAN_RAYS && outer ? fanRay : ray, sys.imageZMm);
+		let traced: Float64Array = ray;
+		if (waiting === k) {
+			traced = fanRay;
+			waiting = 0;
+		} else if (k > 1 && startRay(ray, 0, fanSine(k, na)) && startRay(fanRay, 0, fanSine(k - 1, na))) {
+			traceRayPair(sys, ray, fanRay);
+			waiting = k - 1;
+		} else if (!passes(sys, fanSine(k, na))) continue;
+		if (traced[4] !== TRACE_OK) continue;
+		const y = heightAtPlane(traced, sys.imageZMm);
 		if (y === null) continue;
 		sum += y * y;
-		traced++;
+		landed++;
 		const ratio = (Math.sqrt(sum / FAN_RAYS) / airy) * AIRY_LOW;
 		low = pack(0, coat, spotBand(ratio), wdStep, count, ratio);
 		if (low > bar) return low;
 	}
 	// The whole fan with the rim passing: the axial RMS itself (axialSpot's sum, added in another order).
-	boundFan[0] = traced === 0 ? -1 : Math.sqrt(sum / traced);
-	if (traced === 0) return pack(0, coat, spotBand(null), wdStep, count, 1e9);
-	const ratio = Math.sqrt(sum / traced) / airy;
+	boundFan[0] = landed === 0 ? -1 : Math.sqrt(sum / landed);
+	if (landed === 0) return pack(0, coat, spotBand(null), wdStep, count, 1e9);
+	const ratio = Math.sqrt(sum / landed) / airy;
 	// On axis only (no field edge), nothing else ranks: the key itself.
 	if (q.objectHeightMm === 0) boundUpper[0] = pack(0, coat, spotBand(ratio * AIRY_HIGH), wdStep, count, ratio * AIRY_HIGH);
 	return pack(0, coat, spotBand(ratio * AIRY_LOW), wdStep, count, ratio * AIRY_LOW);
