@@ -27,7 +27,6 @@ for (const k of which) {
 	const t = performance.now();
 	const r = await solveWithStock(stock, qs[k], { inline: true });
 	console.log(k, (performance.now() - t).toFixed(0), 'ms', 'proof', r.stats.provingMs, r.stats.provenBest, r.stats.physicalRoots, r.solutions.map((s) => s.spot.ratioToAiry?.toFixed(2) + '/' + Math.round(Math.min(s.objectDistanceMm, s.backDistanceMm))).join(' '));
-	console.log(JSON.stringify((globalThis as any).__C)); (globalThis as any).__C = {};
 	if (process.env.PROF) { const { profile } = await session.post('Profiler.stop'); fs.writeFileSync(`/tmp/prof/q${k}.cpuprofile`, JSON.stringify(profile)); }
 }
 process.exit(0);
