@@ -7,17 +7,12 @@
  */
 import fs from 'node:fs';
 import { Session } from 'node:inspector/promises';
-import { syntheticStock } from './_synthetic-stock';
+import { syntheticStock, BENCH_QUESTIONS } from './_synthetic-stock';
 import { solveWithStock, type StockView } from '../../src/lib/server/solver/solve';
 import { imagingRequestSchema } from '../../src/lib/solver/request';
 const PARTS = Number(process.env.BENCH_PARTS ?? 3000);
 const stock: StockView = { key: 'p', parts: syntheticStock(PARTS) };
-const qs = [
-	{ trackMm: 300, magnification: -0.5, objectNA: 0.05, objectHeightMm: 2 },
-	{ trackMm: 250, magnification: -1, objectNA: 0.08, objectHeightMm: 1 },
-	{ trackMm: 500, magnification: -4, objectNA: 0.1, objectHeightMm: 0.5 },
-	{ trackMm: 180, magnification: -0.25, objectNA: 0.03, objectHeightMm: 4 }
-].map((q) => imagingRequestSchema.parse({ ...q, wavelengthNm: 587.6, minGapMm: 1, minWorkingDistanceMm: 5, limit: 10, timeBudgetMs: 10_000 }));
+const qs = BENCH_QUESTIONS.map((q) => imagingRequestSchema.parse(q));
 const which = process.env.Q ? [Number(process.env.Q)] : [0, 1, 2, 3];
 const session = new Session();
 session.connect();

@@ -73,3 +73,14 @@ export function syntheticStock(count: number, seed = 7): CandidatePart[] {
 	}
 	return out;
 }
+
+/**
+ * The four imaging questions of the solver benchmark (solver-3000.ts, and the proof's profile):
+ * different magnifications, tracks, NA and field heights, each with the limits the benchmark asks.
+ */
+export const BENCH_QUESTIONS = [
+	{ trackMm: 300, magnification: -0.5, objectNA: 0.05, objectHeightMm: 2 },
+	{ trackMm: 250, magnification: -1, objectNA: 0.08, objectHeightMm: 1 },
+	{ trackMm: 500, magnification: -4, objectNA: 0.1, objectHeightMm: 0.5 },
+	{ trackMm: 180, magnification: -0.25, objectNA: 0.03, objectHeightMm: 4 }
+].map((q) => ({ ...q, wavelengthNm: 587.6, minGapMm: 1, minWorkingDistanceMm: 5, limit: 10, timeBudgetMs: 10_000 }));

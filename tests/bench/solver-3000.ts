@@ -8,19 +8,14 @@
  * in memory (the DB loader adds one cheap version query per solve when the cache is warm).
  * Prints the figures and a final JSON line.
  */
-import { syntheticStock } from './_synthetic-stock';
+import { syntheticStock, BENCH_QUESTIONS } from './_synthetic-stock';
 import { solveWithStock, type StockView } from '../../src/lib/server/solver/solve';
 import { imagingRequestSchema as solveRequestSchema } from '../../src/lib/solver/request';
 import { warmUp } from '../../src/lib/server/solver/pool';
 
 const PARTS = Number(process.env.BENCH_PARTS ?? 3000);
 const stock: StockView = { key: 'bench-3000', parts: syntheticStock(PARTS) };
-const questions = [
-	{ trackMm: 300, magnification: -0.5, objectNA: 0.05, objectHeightMm: 2 },
-	{ trackMm: 250, magnification: -1, objectNA: 0.08, objectHeightMm: 1 },
-	{ trackMm: 500, magnification: -4, objectNA: 0.1, objectHeightMm: 0.5 },
-	{ trackMm: 180, magnification: -0.25, objectNA: 0.03, objectHeightMm: 4 }
-].map((q) => solveRequestSchema.parse({ ...q, wavelengthNm: 587.6, minGapMm: 1, minWorkingDistanceMm: 5, limit: 10, timeBudgetMs: 10_000 }));
+const questions = BENCH_QUESTIONS.map((q) => solveRequestSchema.parse(q));
 
 const workers = await warmUp();
 const tCold = performance.now();
