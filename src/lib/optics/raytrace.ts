@@ -178,16 +178,6 @@ export function traceRayPair(sys: TraceSystem, a: Float64Array, b: Float64Array)
 	for (let k = 0; k < sys.count; k++) {
 		const c = sys.curvaturePerMm[k],
 			zk = sys.zMm[k];
-		if (!(dza > 0)) {
-			stop(a, za, ya, dza, dya, TRACE_MISSED, k);
-			traceFrom(sys, b, zb, yb, dzb, dyb, nBefore, k, null, true);
-			return;
-		}
-		if (!(dzb > 0)) {
-			stop(b, zb, yb, dzb, dyb, TRACE_MISSED, k);
-			traceFrom(sys, a, za, ya, dza, dya, nBefore, k, null, true);
-			return;
-		}
 		const t0a = (zk - za) / dza,
 			t0b = (zk - zb) / dzb;
 		const yta = ya + t0a * dya,
@@ -200,12 +190,6 @@ export function traceRayPair(sys: TraceSystem, a: Float64Array, b: Float64Array)
 			db = bb * bb - c * fb;
 		const dena = da >= 0 ? ba + Math.sqrt(da) : -1,
 			denb = db >= 0 ? bb + Math.sqrt(db) : -1;
-		// A ray that fails at this surface stops; the other goes on alone (traceFrom from here, the same steps).
-		if (!(dena > 0) || !(denb > 0) || t0a + fa / dena < -BEHIND_TOL_MM || t0b + fb / denb < -BEHIND_TOL_MM) {
-			traceFrom(sys, a, za, ya, dza, dya, nBefore, k, null, true);
-			traceFrom(sys, b, zb, yb, dzb, dyb, nBefore, k, null, true);
-			return;
-		}
 		const ta = fa / dena,
 			tb = fb / denb;
 		const zha = zk + ta * dza,
@@ -223,8 +207,10 @@ export function traceRayPair(sys: TraceSystem, a: Float64Array, b: Float64Array)
 			cosIb = dzb * nzb + dyb * nyb;
 		const k2a = 1 - mu * mu * (1 - cosIa * cosIa),
 			k2b = 1 - mu * mu * (1 - cosIb * cosIb);
-		if (Math.abs(yha) > semi || Math.abs(yhb) > semi || k2a < 0 || k2b < 0) {
-			// One or both clipped or reflected: each goes on alone from before this surface (the same steps).
+		// Either ray missed, meets the surface behind it, is clipped or reflected (or may be): each
+		// goes on alone from before this surface, with the same steps (traceFrom sets its status).
+		const lost = !(dza > 0) || !(dzb > 0) || !(dena > 0) || !(denb > 0) || t0a + ta < -BEHIND_TOL_MM || t0b + tb < -BEHIND_TOL_MM;
+		if (lost || Math.abs(yha) > semi || Math.abs(yhb) > semi || k2a < 0 || k2b < 0) {
 			traceFrom(sys, a, za, ya, dza, dya, nBefore, k, null, true);
 			traceFrom(sys, b, zb, yb, dzb, dyb, nBefore, k, null, true);
 			return;
@@ -404,7 +390,6 @@ export function traceSkewRayPair(sys: TraceSystem, a: Float64Array, b: Float64Ar
 	for (let k = 0; k < sys.count; k++) {
 		const c = sys.curvaturePerMm[k],
 			zk = sys.zMm[k];
-		let fail = !(dza > 0) || !(dzb > 0);
 		const t0a = (zk - za) / dza,
 			t0b = (zk - zb) / dzb;
 		const xta = xa + t0a * dxa,
@@ -419,10 +404,8 @@ export function traceSkewRayPair(sys: TraceSystem, a: Float64Array, b: Float64Ar
 			db = bb * bb - c * fb;
 		const dena = da >= 0 ? ba + Math.sqrt(da) : -1,
 			denb = db >= 0 ? bb + Math.sqrt(db) : -1;
-		fail = fail || !(dena > 0) || !(denb > 0);
 		const ta = fa / dena,
 			tb = fb / denb;
-		fail = fail || t0a + ta < -BEHIND_TOL_MM || t0b + tb < -BEHIND_TOL_MM;
 		const xha = xta + ta * dxa,
 			yha = yta + ta * dya,
 			zha = zk + ta * dza,
@@ -430,7 +413,6 @@ export function traceSkewRayPair(sys: TraceSystem, a: Float64Array, b: Float64Ar
 			yhb = ytb + tb * dyb,
 			zhb = zk + tb * dzb;
 		const semi = sys.semiApertureMm[k];
-		fail = fail || xha * xha + yha * yha > semi * semi || xhb * xhb + yhb * yhb > semi * semi;
 		const nxa = -c * xha,
 			nya = -c * yha,
 			nza = 1 - c * (zha - zk),
@@ -443,8 +425,10 @@ export function traceSkewRayPair(sys: TraceSystem, a: Float64Array, b: Float64Ar
 		const mu = nBefore / nAfter;
 		const k2a = 1 - mu * mu * (1 - cosIa * cosIa),
 			k2b = 1 - mu * mu * (1 - cosIb * cosIb);
-		if (fail || k2a < 0 || k2b < 0) {
-			// Either stops at this surface (or may): each goes on alone from before it (the same steps).
+		// Either ray missed, meets the surface behind it, is clipped or reflected (or may be): each
+		// goes on alone from before this surface, with the same steps (skewFrom sets its status).
+		const lost = !(dza > 0) || !(dzb > 0) || !(dena > 0) || !(denb > 0) || t0a + ta < -BEHIND_TOL_MM || t0b + tb < -BEHIND_TOL_MM;
+		if (lost || xha * xha + yha * yha > semi * semi || xhb * xhb + yhb * yhb > semi * semi || k2a < 0 || k2b < 0) {
 			skewFrom(sys, a, xa, ya, za, dxa, dya, dza, nBefore, k);
 			skewFrom(sys, b, xb, yb, zb, dxb, dyb, dzb, nBefore, k);
 			return;

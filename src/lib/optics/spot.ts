@@ -58,6 +58,11 @@ function landed(ray: Float64Array, zMm: number): number | null {
 	return ray[4] === TRACE_OK ? heightAtPlane(ray, zMm) : null;
 }
 
+/** Direction sine of ray k (1 … K) of the axial fan of sine `na`: pupil radius ρₖ = √((k − ½)/K) (see `axialSpot`). */
+export function fanSine(k: number, K: number, na: number): number {
+	return Math.sqrt((k - 0.5) / K) * na;
+}
+
 /**
  * RMS spot radius of the axial object point, in the plane `imageZMm`.
  *
@@ -77,11 +82,13 @@ export function axialSpot(sys: TraceSystem, options: FanOptions): SpotResult | n
 		failed = 0;
 	// Two rays at a time (the same rays as one by one), summed in order k = 1 … K.
 	for (let k = 1; k <= K; k += 2) {
-		const u = Math.sqrt((k - 0.5) / K) * options.na;
-		const pair = k < K && startRay(scratch, 0, u) && startRay(scratch2, 0, Math.sqrt((k + 0.5) / K) * options.na);
+		const two = k < K;
+		const u1 = fanSine(k, K, options.na),
+			u2 = two ? fanSine(k + 1, K, options.na) : NaN;
+		const pair = two && startRay(scratch, 0, u1) && startRay(scratch2, 0, u2);
 		if (pair) traceRayPair(sys, scratch, scratch2);
-		for (let q = 0; q < (k < K ? 2 : 1); q++) {
-			const y = pair ? landed(q === 0 ? scratch : scratch2, zImg) : landingHeight(sys, 0, q === 0 ? u : Math.sqrt((k + 0.5) / K) * options.na, zImg);
+		for (let q = 0; q < (two ? 2 : 1); q++) {
+			const y = pair ? landed(q === 0 ? scratch : scratch2, zImg) : landingHeight(sys, 0, q === 0 ? u1 : u2, zImg);
 			if (y === null) failed++;
 			else {
 				sum2 += y * y;
@@ -330,21 +337,31 @@ export function axialCone(sys: TraceSystem, requestedSine: number): AxialCone {
 	if (passes(rim)) {
 		if (rim === top || passes(top)) return { requestedSine, passedSine: requestedSine, stopSurface: -1, lostFraction: 0 };
 		// The whole cone asked for passes: only the stop's name is wanted, a coarse search above it will do.
-		return { requestedSine, passedSine: requestedSine, stopSurface: bisectCone(sys, rim, top, STOP_STEPS, ray[5]).stopSurface, lostFraction: 0 };
+		bisectCone(sys, rim, top, STOP_STEPS, ray[5]);
+		return { requestedSine, passedSine: requestedSine, stopSurface: coneBisection[2], lostFraction: 0 };
 	}
-	const cut = bisectCone(sys, 0, rim, CONE_STEPS, ray[5]);
-	const passedSine = Math.min(requestedSine, cut.lo);
+	bisectCone(sys, 0, rim, CONE_STEPS, ray[5]);
+	const passedSine = Math.min(requestedSine, coneBisection[0]);
 	const ratio = passedSine / requestedSine;
-	return { requestedSine, passedSine, stopSurface: cut.stopSurface, lostFraction: Math.max(0, 1 - ratio * ratio) };
+	return { requestedSine, passedSine, stopSurface: coneBisection[2], lostFraction: Math.max(0, 1 - ratio * ratio) };
 }
 
+/** After `bisectCone`: [the last sine that passed, the upper end of the interval, the surface that stopped the last one that did not]. */
+export const coneBisection = new Float64Array(3);
+
 /**
- * Bisection of `axialCone` on (lo, hi): the last sine that passed and the surface that stopped the
- * last one that did not. Each midpoint is traced together with the next step's midpoint should it
- * pass (`traceRayPair`: the same rays), so a passing step costs no trace of its own.
+ * Bisection of `axialCone` on (lo, hi) by the axial ray's direction sine, into `coneBisection`.
+ * Each midpoint is traced together with the next step's midpoint should it pass (`traceRayPair`:
+ * the same rays), so a passing step costs no trace of its own. With `keep` > 0 (the solver's rank
+ * bound) it gives up at the start of a step once (hi / requestedSine)² < keep, that is once the cone
+ * it will find surely passes less than `keep` of the cone asked for, and returns false; else true.
  */
-function bisectCone(sys: TraceSystem, lo: number, hi: number, steps: number, stopSurface: number): { lo: number; stopSurface: number } {
+export function bisectCone(sys: TraceSystem, lo: number, hi: number, steps: number, stopSurface: number, requestedSine = 1, keep = 0): boolean {
 	for (let i = 0; i < steps; i++) {
+		if ((hi / requestedSine) * (hi / requestedSine) < keep) {
+			setBisection(lo, hi, stopSurface);
+			return false;
+		}
 		const mid = 0.5 * (lo + hi);
 		const next = 0.5 * (mid + hi);
 		const pair = i + 1 < steps && startRay(scratch, 0, mid) && startRay(scratch2, 0, next);
@@ -365,7 +382,14 @@ function bisectCone(sys: TraceSystem, lo: number, hi: number, steps: number, sto
 			stopSurface = scratch2[5];
 		}
 	}
-	return { lo, stopSurface };
+	setBisection(lo, hi, stopSurface);
+	return true;
+}
+
+function setBisection(lo: number, hi: number, stopSurface: number): void {
+	coneBisection[0] = lo;
+	coneBisection[1] = hi;
+	coneBisection[2] = stopSurface;
 }
 
 /**

@@ -26,7 +26,7 @@
  *
  * Pure and allocation-free in the cheap tier (scratch buffers per module; one search per thread at a time).
  */
-import { axialCone, axialSpot, airyRadiusMm, workingFNumber, imageSideNA, CONE_TOP, CONE_STEPS } from '../../optics/spot';
+import { axialCone, axialSpot, bisectCone, fanSine, airyRadiusMm, workingFNumber, imageSideNA, CONE_TOP, CONE_STEPS } from '../../optics/spot';
 import { startRay, traceRay, traceRayPair, heightAtPlane, RAY_STRIDE, TRACE_OK, type TraceSystem } from '../../optics/raytrace';
 import { ELEMENT_STRIDE, EL_THICKNESS } from '../../optics/snapshot';
 import type { ThickElement } from '../../optics/element';
@@ -150,50 +150,21 @@ function buildSystem(table: RayTable, packed: Float64Array, i: number, j: number
 	return scratch;
 }
 
-/** Direction sine of the axial fan's ray k (1 … FAN_RAYS), as `axialSpot` samples it: pupil radius √((k − ½)/K). */
-function fanSine(k: number, na: number): number {
-	return Math.sqrt((k - 0.5) / FAN_RAYS) * na;
-}
-
 /** True when the axial ray at direction sine u passes every aperture (as axialCone tests it). */
 function passes(sys: TraceSystem, u: number): boolean {
 	return startRay(ray, 0, u) && traceRay(sys, ray) === TRACE_OK;
 }
 
 /**
- * The bound of a root whose rim ray is cut: the first steps of `axialCone`'s own bisection (from
- * [0, the sine asked for], the same midpoints) until its upper end shows a loss beyond the tolerance
- * (vignetting class 2 at least) or it has run as many steps as axialCone does; else nothing
- * beyond the exact parts of the key.
+ * The bound of a root whose rim ray is cut: the first steps of `axialCone`'s own bisection
+ * (`bisectCone` from [0, the sine asked for]: the same rays) until its upper end shows a loss
+ * beyond the tolerance (vignetting class 2 at least) or it has run as many steps as axialCone does;
+ * else nothing beyond the exact parts of the key.
  */
 function coneCutBound(sys: TraceSystem, na: number, coat: number, wdStep: number, count: number): number {
 	const keep = (1 - VIGNETTING_TOLERANCE) * (1 - 1e-12);
-	let lo = 0,
-		hi = Math.min(na, CONE_TOP);
-	for (let k = 0; k < CONE_STEPS; k++) {
-		if ((hi / na) * (hi / na) < keep) return pack(2, coat, 0, wdStep, count, 0);
-		const mid = 0.5 * (lo + hi);
-		if (k + 1 === CONE_STEPS) {
-			if (passes(sys, mid)) lo = mid;
-			else hi = mid;
-			continue;
-		}
-		// The midpoint and the next step's midpoint should it pass, traced together: when it does,
-		// that next step (hi unchanged, so the test above holds again) is already done.
-		const next = 0.5 * (mid + hi);
-		startRay(ray, 0, mid);
-		startRay(fanRay, 0, next);
-		traceRayPair(sys, ray, fanRay);
-		if (ray[4] !== TRACE_OK) {
-			hi = mid;
-			continue;
-		}
-		lo = mid;
-		k++;
-		if (fanRay[4] === TRACE_OK) lo = next;
-		else hi = next;
-	}
-	return pack(0, coat, 0, wdStep, count, 0);
+	const whole = bisectCone(sys, 0, Math.min(na, CONE_TOP), CONE_STEPS, -1, na, keep);
+	return pack(whole ? 0 : 2, coat, 0, wdStep, count, 0);
 }
 
 /** How much of the answer's figures the bound traces (each tier costs more and bounds tighter). */
@@ -259,7 +230,7 @@ function cheapBound(sys: TraceSystem, q: BoundQuestion, m: number, coat: number,
 	const na = q.objectNA;
 	// The rim ray and the fan's outermost ray, traced together (the same rays as one by one).
 	const rim = Math.min(na, CONE_TOP);
-	const outer = startRay(ray, 0, rim) && startRay(fanRay, 0, fanSine(FAN_RAYS, na));
+	const outer = startRay(ray, 0, rim) && startRay(fanRay, 0, fanSine(FAN_RAYS, FAN_RAYS, na));
 	if (outer) traceRayPair(sys, ray, fanRay);
 	// As axialCone finds it: when the rim ray passes, the whole cone counts.
 	if (!(outer ? ray[4] === TRACE_OK : passes(sys, rim))) return coneCutBound(sys, na, coat, wdStep, count);
@@ -277,10 +248,10 @@ function cheapBound(sys: TraceSystem, q: BoundQuestion, m: number, coat: number,
 		if (waiting === k) {
 			traced = fanRay;
 			waiting = 0;
-		} else if (k > 1 && startRay(ray, 0, fanSine(k, na)) && startRay(fanRay, 0, fanSine(k - 1, na))) {
+		} else if (k > 1 && startRay(ray, 0, fanSine(k, FAN_RAYS, na)) && startRay(fanRay, 0, fanSine(k - 1, FAN_RAYS, na))) {
 			traceRayPair(sys, ray, fanRay);
 			waiting = k - 1;
-		} else if (!passes(sys, fanSine(k, na))) continue;
+		} else if (!passes(sys, fanSine(k, FAN_RAYS, na))) continue;
 		if (traced[4] !== TRACE_OK) continue;
 		const y = heightAtPlane(traced, sys.imageZMm);
 		if (y === null) continue;
