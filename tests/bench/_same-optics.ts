@@ -2,11 +2,12 @@
  * The real-ray figures of 1,500 random two-lens systems as one JSON line (a helper for work on the
  * ray trace, not run by `npm run bench`): run it in two checkouts and compare the outputs byte for
  * byte to show that a change leaves every figure the same (axial cone and stop, axial RMS, field
- * edge's spot, loss and pupil, with and without the early stop). H sets the largest field height
- * (default 5 mm, 25 reaches blocked edges), STOP the early stop's radius (default 0.001 mm).
+ * edge's spot, loss and pupil, with and without the early stop, and the square grid's spot). H sets
+ * the largest field height (default 5 mm, 25 reaches blocked edges), STOP the early stop's radius
+ * (default 0.001 mm).
  * Invented lenses from a seeded generator; no catalogue data.
  */
-import { buildElement, traceSystemFromLayout, axialCone, axialSpot, layoutMatrix, imageAfter, create } from '../../src/lib/optics';
+import { buildElement, traceSystemFromLayout, axialCone, axialSpot, fieldGridSpot, layoutMatrix, imageAfter, create } from '../../src/lib/optics';
 import { edgeTrace } from '../../src/lib/solver/search/field-edge';
 import { mulberry32 } from '../../src/lib/prng';
 const r = mulberry32(11);
@@ -30,6 +31,7 @@ while (made < 1500) {
 	const spot = axialSpot(sys.value, { na: cone.passedSine > 0 ? cone.passedSine : na, rays: 32 });
 	const edge = edgeTrace(sys.value, h, na, cone.stopSurface);
 	const early = edgeTrace(sys.value, h, na, cone.stopSurface, Number(process.env.STOP ?? 0.001));
-	out.push([cone, spot?.rmsAboutCentroidMm ?? null, edge.rmsMm, edge.lostFraction, edge.centroidMm, edge.pupil, early.rmsMm, early.complete]);
+	const grid = fieldGridSpot(sys.value, h, { sinChief: edge.sinChief, radiusSine: na, grid: 12 });
+	out.push([cone, spot?.rmsAboutCentroidMm ?? null, edge.rmsMm, edge.lostFraction, edge.centroidMm, edge.pupil, early.rmsMm, early.complete, grid]);
 }
 console.log(JSON.stringify(out));

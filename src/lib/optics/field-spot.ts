@@ -37,8 +37,6 @@ export interface GridOptions {
 	readonly imageZMm?: number;
 }
 
-const skew = new Float64Array(SKEW_STRIDE);
-
 /** Scratch: where `landing` found the ray (x, y), and a sample's direction sines (L, M). */
 const landed = new Float64Array(2);
 const dir = new Float64Array(2);
@@ -84,6 +82,34 @@ class Landings {
 	}
 }
 
+/** Scratch of `gridDirections`: the grid cells' direction sines (L, M). */
+let gridL = new Float64Array(0),
+	gridM = new Float64Array(0);
+
+/**
+ * The cells of an n × n grid over [−1, 1]² whose centres (pₓ, p_y) lie in the unit disc, pₓ > 0
+ * only, in order (pₓ outer, p_y inner), as direction sines L = r·pₓ, M = sin θc + r·p_y into
+ * gridL and gridM; returns how many (see `fieldGridSpot`).
+ */
+function gridDirections(n: number, radiusSine: number, sinChief: number): number {
+	if (gridL.length < (n * n) / 2) {
+		gridL = new Float64Array((n * n) / 2);
+		gridM = new Float64Array((n * n) / 2);
+	}
+	const step = 2 / n;
+	let cells = 0;
+	for (let i = 0; i < n / 2; i++) {
+		const px = (i + 0.5) * step;
+		for (let j = 0; j < n; j++) {
+			const py = -1 + (j + 0.5) * step;
+			if (px * px + py * py > 1) continue;
+			gridL[cells] = radiusSine * px;
+			gridM[cells++] = sinChief + radiusSine * py;
+		}
+	}
+	return cells;
+}
+
 /**
  * RMS spot of the object point (0, `objectHeightMm`) from a square grid of skew rays over a
  * disc of directions: direction cosines L = r·pₓ, M = sin θc + r·p_y with (pₓ, p_y) the
@@ -97,28 +123,9 @@ class Landings {
 export function fieldGridSpot(sys: TraceSystem, objectHeightMm: number, options: GridOptions): GridSpot {
 	const n = Math.max(2, 2 * Math.round((options.grid ?? 16) / 2));
 	const zImg = options.imageZMm ?? sys.imageZMm;
-	const step = 2 / n;
-	let all = 0;
+	const all = gridDirections(n, options.radiusSine, options.sinChief);
 	const sums = new Landings();
-	for (let i = 0; i < n / 2; i++) {
-		const px = (i + 0.5) * step;
-		for (let j = 0; j < n; j++) {
-			const py = -1 + (j + 0.5) * step;
-			if (px * px + py * py > 1) continue;
-			all++;
-			const L = options.radiusSine * px,
-				M = options.sinChief + options.radiusSine * py;
-			const N2 = 1 - L * L - M * M;
-			if (!(N2 > 0)) continue;
-			skew[0] = 0;
-			skew[1] = objectHeightMm;
-			skew[2] = 0;
-			skew[3] = L;
-			skew[4] = M;
-			skew[5] = Math.sqrt(N2);
-			if (traceSkewRay(sys, skew) === TRACE_OK) sums.add(skew, zImg);
-		}
-	}
+	for (let c = 0; c < all; c++) if (passesDirection(sys, objectHeightMm, gridL[c], gridM[c])) sums.add(probe, zImg);
 	const traced = sums.n;
 	const chief = landingHeight(sys, objectHeightMm, options.sinChief, zImg);
 	const aboutChief = chief === null || traced === 0 ? null : Math.sqrt(Math.max(0, (sums.sx2 + sums.sy2 - 2 * chief * sums.sy) / traced + chief * chief));
@@ -169,20 +176,25 @@ export interface PupilEllipse {
 
 const probe = new Float64Array(SKEW_STRIDE);
 
-/** True when the skew ray from (0, h, 0) with direction sines (L, M) passes every surface. */
+const probe2 = new Float64Array(SKEW_STRIDE);
+
+/** Sets `ray` to start at (0, h, 0) with direction sines (L, M) and cosine √n2 along z. */
+function aim(ray: Float64Array, h: number, L: number, M: number, n2: number): void {
+	ray[0] = 0;
+	ray[1] = h;
+	ray[2] = 0;
+	ray[3] = L;
+	ray[4] = M;
+	ray[5] = Math.sqrt(n2);
+}
+
+/** True when the skew ray from (0, h, 0) with direction sines (L, M) passes every surface (traced into `probe`). */
 function passesDirection(sys: TraceSystem, h: number, L: number, M: number): boolean {
 	const n2 = 1 - L * L - M * M;
 	if (!(n2 > 0)) return false;
-	probe[0] = 0;
-	probe[1] = h;
-	probe[2] = 0;
-	probe[3] = L;
-	probe[4] = M;
-	probe[5] = Math.sqrt(n2);
+	aim(probe, h, L, M, n2);
 	return traceSkewRay(sys, probe) === TRACE_OK;
 }
-
-const probe2 = new Float64Array(SKEW_STRIDE);
 
 /**
  * `passesDirection` of two directions at once (`traceSkewRayPair`: the same rays): bit 1 set when
@@ -192,20 +204,11 @@ function passesTwo(sys: TraceSystem, h: number, L1: number, M1: number, L2: numb
 	const n1 = 1 - L1 * L1 - M1 * M1,
 		n2 = 1 - L2 * L2 - M2 * M2;
 	if (!(n1 > 0) || !(n2 > 0)) return (passesDirection(sys, h, L1, M1) ? 1 : 0) | (passesDirection(sys, h, L2, M2) ? 2 : 0);
-	probe.set(ZERO_SKEW);
-	probe2.set(ZERO_SKEW);
-	probe[1] = h;
-	probe[3] = L1;
-	probe[4] = M1;
-	probe[5] = Math.sqrt(n1);
-	probe2[1] = h;
-	probe2[3] = L2;
-	probe2[4] = M2;
-	probe2[5] = Math.sqrt(n2);
+	aim(probe, h, L1, M1, n1);
+	aim(probe2, h, L2, M2, n2);
 	traceSkewRayPair(sys, probe, probe2);
 	return (probe[6] === TRACE_OK ? 1 : 0) | (probe2[6] === TRACE_OK ? 2 : 0);
 }
-const ZERO_SKEW = new Float64Array(SKEW_STRIDE);
 
 /** Ways `extent` searches from a centre direction (L, M) = (0, base): up M, down M, or across L at M = base. */
 const UP = 0,
@@ -258,9 +261,6 @@ function extent(sys: TraceSystem, h: number, way: number, base: number, max: num
 
 /** Cells across the coarse grid `edgePupil` searches when the chief ray is lost (`fieldGridSpot`'s default grid). */
 export const PUPIL_SEARCH_GRID = 16;
-/** Scratch of `edgePupil`: the grid cells' direction sines (L, M). */
-const gridL = new Float64Array((PUPIL_SEARCH_GRID * PUPIL_SEARCH_GRID) / 2),
-	gridM = new Float64Array((PUPIL_SEARCH_GRID * PUPIL_SEARCH_GRID) / 2);
 
 /**
  * Finds the passed part of the requested cone of the object point at `objectHeightMm`: from the
@@ -276,21 +276,10 @@ export function edgePupil(sys: TraceSystem, objectHeightMm: number, sinChief: nu
 		na = requestedSine;
 	let centre = sinChief;
 	if (!passesDirection(sys, h, 0, centre)) {
-		const n = PUPIL_SEARCH_GRID,
-			step = 2 / n;
 		let sum = 0,
 			count = 0;
 		// The cells inside the disc, in order, traced two at a time (the same rays, summed in the same order).
-		let cells = 0;
-		for (let i = 0; i < n / 2; i++) {
-			for (let j = 0; j < n; j++) {
-				const px = (i + 0.5) * step,
-					py = -1 + (j + 0.5) * step;
-				if (px * px + py * py > 1) continue;
-				gridL[cells] = na * px;
-				gridM[cells++] = sinChief + na * py;
-			}
-		}
+		const cells = gridDirections(PUPIL_SEARCH_GRID, na, sinChief);
 		for (let c = 0; c < cells; c += 2) {
 			const passed = c + 1 < cells ? passesTwo(sys, h, gridL[c], gridM[c], gridL[c + 1], gridM[c + 1]) : passesDirection(sys, h, gridL[c], gridM[c]) ? 1 : 0;
 			for (let q = 0; q < 2 && c + q < cells; q++) {
