@@ -170,9 +170,10 @@ export function readRow(record: readonly string[], cm: CompiledMapping): ReadRow
 			const rRaw = cellAt(record, rf.column);
 			const tRaw = cellAt(record, tf.column);
 			const mRaw = cellAt(record, mf.column);
-			const r = rf.column !== undefined ? cellValue(rRaw, rf, cm, errors) : null;
-			const t = tf.column !== undefined ? cellValue(tRaw, tf, cm, errors) : null;
-			const m = mf.column !== undefined ? cellValue(mRaw, mf, cm, errors) : null;
+			// An unmapped field reads as a blank cell: null.
+			const r = cellValue(rRaw, rf, cm, errors);
+			const t = cellValue(tRaw, tf, cm, errors);
+			const m = cellValue(mRaw, mf, cm, errors);
 			const s: { radiusMm: number | null; thicknessMm?: number | null; material?: string | null } = { radiusMm: typeof r === 'number' ? r : null };
 			if (t !== null && t !== undefined) s.thicknessMm = t as number;
 			if (m !== null && m !== undefined) s.material = m as string;
