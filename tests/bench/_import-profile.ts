@@ -19,22 +19,16 @@
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import crypto from 'node:crypto';
 import { createRequire } from 'node:module';
 import { Session } from 'node:inspector/promises';
 import { eq } from 'drizzle-orm';
-
-const scripts = (name: string) => new URL(`../../scripts/lib/${name}`, import.meta.url).href;
-const { startStack } = (await import(scripts('stack.mjs'))) as {
-	startStack: (o: { dataDir: string; ports: Record<string, number>; logDir: string; secrets: Record<string, string>; quiet?: boolean }) => Promise<Record<string, string>>;
-};
-const { freePort, stopChildren } = (await import(scripts('proc.mjs'))) as { freePort: () => Promise<number>; stopChildren: () => Promise<void> };
+import { benchDataDir, startBenchStack, stopBenchStack } from './_stack';
 
 const ROWS = Number(process.env.BENCH_IMPORT_ROWS ?? 50_000);
 const ROUNDS = Number(process.env.PROFILE_ROUNDS ?? 3);
 const MODE = (process.env.PROFILE_MODE ?? 'commit') as 'check' | 'commit';
 const VARIANTS = (process.env.PROFILE_VARIANTS ?? 'current').split(',');
-const tmp = fs.mkdtempSync(path.join(os.tmpdir(), 'glasscrib-profile-import-'));
+const tmp = benchDataDir('glasscrib-profile-import-');
 
 const HEAD = 'sku,name,kind,diameterMm,r1Mm,t1Mm,material1,r2Mm,coating,supplier,supplierPartNumber,unitPrice,leadTimeDays\n';
 function line(i: number): string {
@@ -113,9 +107,7 @@ function threadCpuMs(pid: number): Map<string, { name: string; ms: number }> {
 }
 
 try {
-	const ports = { db: await freePort(), s3: await freePort(), smtp: await freePort() };
-	const secrets = { AUTH_PEPPER: crypto.randomBytes(24).toString('base64url'), DB_PASSWORD: crypto.randomBytes(12).toString('base64url'), DEMO_PASSWORD: 'tarnwell-bench-2026' };
-	const env = await startStack({ dataDir: tmp, ports, logDir: path.join(tmp, 'logs'), secrets, quiet: true });
+	const env = await startBenchStack(tmp);
 	Object.assign(process.env, env);
 	const { createDb } = await import('../../src/lib/server/db/client');
 	const schema = await import('../../src/lib/server/db/schema');
@@ -199,6 +191,5 @@ try {
 	session.disconnect();
 	await pool.end();
 } finally {
-	await stopChildren();
-	fs.rmSync(tmp, { recursive: true, force: true });
+	await stopBenchStack(tmp);
 }

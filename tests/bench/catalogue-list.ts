@@ -11,25 +11,16 @@
  *
  * Prints human lines and, last, one JSON line: {"bench":"catalogue-list",...}
  */
-import fs from 'node:fs';
 import os from 'node:os';
-import path from 'node:path';
-import crypto from 'node:crypto';
 import { eq, sql } from 'drizzle-orm';
 import { mulberry32 } from '../../src/lib/prng';
-
-// The stack scripts are plain JavaScript; loaded by a computed path so the type check stays out of them.
-const scripts = (name: string) => new URL(`../../scripts/lib/${name}`, import.meta.url).href;
-const { startStack } = (await import(scripts('stack.mjs'))) as {
-	startStack: (o: { dataDir: string; ports: Record<string, number>; logDir: string; secrets: Record<string, string>; quiet?: boolean }) => Promise<Record<string, string>>;
-};
-const { freePort, stopChildren } = (await import(scripts('proc.mjs'))) as { freePort: () => Promise<number>; stopChildren: () => Promise<void> };
+import { benchDataDir, startBenchStack, stopBenchStack } from './_stack';
 
 const PARTS = Number(process.env.BENCH_CATALOGUE_PARTS ?? 100_000);
 const RUNS = Number(process.env.BENCH_CATALOGUE_RUNS ?? 25);
 const WARMUP = 3;
 const TARGET_P95_MS = 150;
-const tmp = fs.mkdtempSync(path.join(os.tmpdir(), 'glasscrib-bench-catalogue-'));
+const tmp = benchDataDir('glasscrib-bench-catalogue-');
 
 const prng = mulberry32;
 
@@ -44,9 +35,7 @@ try {
 	let env: Record<string, string>;
 	if (process.env.BENCH_DATABASE_URL) env = { DATABASE_URL: process.env.BENCH_DATABASE_URL };
 	else {
-		const ports = { db: await freePort(), s3: await freePort(), smtp: await freePort() };
-		const secrets = { AUTH_PEPPER: crypto.randomBytes(24).toString('base64url'), DB_PASSWORD: crypto.randomBytes(12).toString('base64url'), DEMO_PASSWORD: 'tarnwell-bench-2026' };
-		env = await startStack({ dataDir: tmp, ports, logDir: path.join(tmp, 'logs'), secrets, quiet: true });
+		env = await startBenchStack(tmp);
 	}
 	Object.assign(process.env, env);
 	// Imported after the environment exists (the modules read it).
@@ -259,6 +248,5 @@ try {
 		});
 	}
 } finally {
-	await stopChildren();
-	fs.rmSync(tmp, { recursive: true, force: true });
+	await stopBenchStack(tmp);
 }

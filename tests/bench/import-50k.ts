@@ -14,25 +14,15 @@
  *
  * Prints human lines and, last, one JSON line: {"bench":"import-50k",...}
  */
-import fs from 'node:fs';
-import os from 'node:os';
-import path from 'node:path';
-import crypto from 'node:crypto';
 import v8 from 'node:v8';
 import vm from 'node:vm';
 import { eq } from 'drizzle-orm';
-
-// The stack scripts are plain JavaScript; loaded by a computed path so the type check stays out of them.
-const scripts = (name: string) => new URL(`../../scripts/lib/${name}`, import.meta.url).href;
-const { startStack } = (await import(scripts('stack.mjs'))) as {
-	startStack: (o: { dataDir: string; ports: Record<string, number>; logDir: string; secrets: Record<string, string>; quiet?: boolean }) => Promise<Record<string, string>>;
-};
-const { freePort, stopChildren } = (await import(scripts('proc.mjs'))) as { freePort: () => Promise<number>; stopChildren: () => Promise<void> };
+import { benchDataDir, startBenchStack, stopBenchStack } from './_stack';
 
 const ROWS = Number(process.env.BENCH_IMPORT_ROWS ?? 50_000);
 v8.setFlagsFromString('--expose-gc');
 const gc = vm.runInNewContext('gc') as () => void;
-const tmp = fs.mkdtempSync(path.join(os.tmpdir(), 'glasscrib-bench-import-'));
+const tmp = benchDataDir('glasscrib-bench-import-');
 
 const HEAD = 'sku,name,kind,diameterMm,r1Mm,t1Mm,material1,r2Mm,coating,supplier,supplierPartNumber,unitPrice,leadTimeDays\n';
 function line(i: number): string {
@@ -76,9 +66,7 @@ function sampler() {
 }
 
 try {
-	const ports = { db: await freePort(), s3: await freePort(), smtp: await freePort() };
-	const secrets = { AUTH_PEPPER: crypto.randomBytes(24).toString('base64url'), DB_PASSWORD: crypto.randomBytes(12).toString('base64url'), DEMO_PASSWORD: 'tarnwell-bench-2026' };
-	const env = await startStack({ dataDir: tmp, ports, logDir: path.join(tmp, 'logs'), secrets, quiet: true });
+	const env = await startBenchStack(tmp);
 	Object.assign(process.env, env);
 	// Imported after the environment exists (the modules read it).
 	const { createDb } = await import('../../src/lib/server/db/client');
@@ -174,6 +162,5 @@ try {
 	);
 	process.exitCode = ok ? 0 : 1;
 } finally {
-	await stopChildren();
-	fs.rmSync(tmp, { recursive: true, force: true });
+	await stopBenchStack(tmp);
 }
