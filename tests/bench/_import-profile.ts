@@ -108,7 +108,6 @@ function threadCpuMs(pid: number): Map<string, { name: string; ms: number }> {
 
 try {
 	const env = await startBenchStack(tmp);
-	Object.assign(process.env, env);
 	const { createDb } = await import('../../src/lib/server/db/client');
 	const schema = await import('../../src/lib/server/db/schema');
 	const { objectStoreFromEnv } = await import('../../src/lib/server/files/s3');

@@ -20,11 +20,16 @@ export function benchDataDir(prefix: string): string {
 	return fs.mkdtempSync(path.join(os.tmpdir(), prefix));
 }
 
-/** Starts the services with their data in `dataDir`; returns the environment the app's modules read. */
+/**
+ * Starts the services with their data in `dataDir` and puts the environment the app's modules read
+ * into process.env (import those modules after this); returns that environment.
+ */
 export async function startBenchStack(dataDir: string): Promise<Record<string, string>> {
 	const ports = { db: await freePort(), s3: await freePort(), smtp: await freePort() };
 	const secrets = { AUTH_PEPPER: crypto.randomBytes(24).toString('base64url'), DB_PASSWORD: crypto.randomBytes(12).toString('base64url'), DEMO_PASSWORD: 'tarnwell-bench-2026' };
-	return startStack({ dataDir, ports, logDir: path.join(dataDir, 'logs'), secrets, quiet: true });
+	const env = await startStack({ dataDir, ports, logDir: path.join(dataDir, 'logs'), secrets, quiet: true });
+	Object.assign(process.env, env);
+	return env;
 }
 
 /** Stops the services and removes their data. */

@@ -33,11 +33,10 @@ try {
 	// BENCH_DATABASE_URL: measure against a database that is already up (filled by an earlier run
 	// with BENCH_HOLD=1, which keeps its stack running after the figures), so changes can be re-measured.
 	let env: Record<string, string>;
-	if (process.env.BENCH_DATABASE_URL) env = { DATABASE_URL: process.env.BENCH_DATABASE_URL };
-	else {
-		env = await startBenchStack(tmp);
-	}
-	Object.assign(process.env, env);
+	if (process.env.BENCH_DATABASE_URL) {
+		env = { DATABASE_URL: process.env.BENCH_DATABASE_URL };
+		Object.assign(process.env, env);
+	} else env = await startBenchStack(tmp);
 	// Imported after the environment exists (the modules read it).
 	const { createDb } = await import('../../src/lib/server/db/client');
 	const schema = await import('../../src/lib/server/db/schema');

@@ -67,7 +67,6 @@ function sampler() {
 
 try {
 	const env = await startBenchStack(tmp);
-	Object.assign(process.env, env);
 	// Imported after the environment exists (the modules read it).
 	const { createDb } = await import('../../src/lib/server/db/client');
 	const schema = await import('../../src/lib/server/db/schema');
